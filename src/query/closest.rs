@@ -1,0 +1,148 @@
+//! Closest-point probes: the nearest object to a point or a placed shape, within a maximum distance.
+
+use glam::DVec3;
+use parry3d_f64::query::{ClosestPoints, PointQuery, closest_points};
+
+use super::QueryError;
+use super::shapes::ProbeShape;
+use super::sweep::contact_geometry;
+use super::world::{ObjectId, View};
+
+/// The nearest object to a closest-point probe.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct ClosestHit {
+    /// The nearest object.
+    pub object: ObjectId,
+    /// Metres between the probe and the object; 0 when they overlap.
+    pub distance: f64,
+    /// The nearest point on the object.
+    pub point: DVec3,
+    /// The nearest point on the probe shape (the probe point itself for a point probe).
+    pub shape_point: DVec3,
+    /// Unit normal from the object towards the probe.
+    pub normal: DVec3,
+    /// True when the probe overlaps the object (touching, penetrating, or enclosed by a closed mesh).
+    pub overlapping: bool,
+}
+
+/// What a closest-point probe places: a point, or a convex shape.
+#[derive(Clone)]
+pub enum ClosestProbe<'a> {
+    /// A single point.
+    Point,
+    /// A convex shape centred on the probe's position.
+    Shape(&'a ProbeShape),
+}
+
+impl View<'_> {
+    /// The nearest object within `max_distance` of the probe placed at `at`.
+    pub fn closest(
+        &self,
+        probe: ClosestProbe,
+        at: DVec3,
+        max_distance: f64,
+    ) -> Result<Option<ClosestHit>, QueryError> {
+        if !at.is_finite() {
+            return Err(QueryError("the probe position must be finite".into()));
+        }
+        if !(max_distance >= 0.0) {
+            return Err(QueryError("max_distance must be zero or more".into()));
+        }
+        let reach = match probe {
+            ClosestProbe::Point => 0.0,
+            ClosestProbe::Shape(shape) => shape.bounding_radius,
+        };
+        let mut best: Option<ClosestHit> = None;
+        for id in self
+            .world
+            .bvh
+            .leaves(|node| node.aabb().distance_to_local_point(at, true) <= max_distance + reach)
+        {
+            let id = id as ObjectId;
+            if !self.allows(id) {
+                continue;
+            }
+            let limit = best.map_or(max_distance, |b| b.distance);
+            if let Some(hit) = self.closest_on_body(id, &probe, at, limit) {
+                if best.is_none_or(|b| (hit.distance, hit.object) < (b.distance, b.object)) {
+                    best = Some(hit);
+                }
+            }
+        }
+        Ok(best)
+    }
+
+    /// The nearest point of one object to the probe, when within `limit`.
+    fn closest_on_body(
+        &self,
+        id: ObjectId,
+        probe: &ClosestProbe,
+        at: DVec3,
+        limit: f64,
+    ) -> Option<ClosestHit> {
+        let body = &self.world.bodies[id];
+        match probe {
+            ClosestProbe::Point => {
+                let proj = body.shape.project_point(&body.pose, at, false);
+                let inside = match body.mesh() {
+                    None => body.shape.contains_point(&body.pose, at),
+                    Some(_) => body.closed && proj.is_inside,
+                };
+                let distance = if inside { 0.0 } else { proj.point.distance(at) };
+                if distance > limit {
+                    return None;
+                }
+                let outward = (at - proj.point).try_normalize().unwrap_or(self.world.up());
+                let normal = if inside { -outward } else { outward };
+                Some(ClosestHit {
+                    object: id,
+                    distance,
+                    point: proj.point,
+                    shape_point: at,
+                    normal,
+                    overlapping: inside,
+                })
+            }
+            ClosestProbe::Shape(shape) => {
+                let pose = shape.pose_at(at);
+                if body.closed && body.shape.contains_point(&body.pose, at) {
+                    let (point, normal) = contact_geometry(body, &pose, shape, self.world.up());
+                    return Some(ClosestHit {
+                        object: id,
+                        distance: 0.0,
+                        point,
+                        shape_point: at,
+                        normal,
+                        overlapping: true,
+                    });
+                }
+                match closest_points(&body.pose, &*body.shape, &pose, &*shape.shape, limit).ok()? {
+                    ClosestPoints::Intersecting => {
+                        let (point, normal) = contact_geometry(body, &pose, shape, self.world.up());
+                        Some(ClosestHit {
+                            object: id,
+                            distance: 0.0,
+                            point,
+                            shape_point: point,
+                            normal,
+                            overlapping: true,
+                        })
+                    }
+                    ClosestPoints::WithinMargin(p1, p2) => {
+                        let distance = p1.distance(p2);
+                        let normal = (p2 - p1).try_normalize().unwrap_or(self.world.up());
+                        Some(ClosestHit {
+                            object: id,
+                            distance,
+                            point: p1,
+                            shape_point: p2,
+                            normal,
+                            overlapping: false,
+                        })
+                    }
+                    ClosestPoints::Disjoint => None,
+                }
+            }
+        }
+    }
+}

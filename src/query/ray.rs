@@ -1,0 +1,221 @@
+//! Ray probes: the first crossing, or every crossing, of the segment `from → to` with the level.
+
+use std::cell::Cell;
+
+use glam::DVec3;
+use parry3d_f64::query::Ray;
+
+use super::watertight::ShearedRay;
+use super::world::{Body, ObjectId, View};
+use super::{QueryError, merge_tolerance};
+
+/// Where a ray probe crosses a surface.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct RayHit {
+    /// The object crossed.
+    pub object: ObjectId,
+    /// Metres from the segment's start.
+    pub distance: f64,
+    /// Fraction of the segment, 0 at `from`, 1 at `to`.
+    pub t: f64,
+    /// The crossing point.
+    pub point: DVec3,
+    /// Unit surface normal, turned to face the segment's start.
+    pub normal: DVec3,
+    /// Triangle index within the object's mesh; `None` for primitives.
+    pub triangle: Option<u32>,
+    /// True when the segment crosses the surface from behind (from inside a solid).
+    pub back_face: bool,
+}
+
+/// A validated segment: start, unit direction and length.
+struct Segment {
+    from: DVec3,
+    dir: DVec3,
+    len: f64,
+}
+
+impl Segment {
+    fn new(from: DVec3, to: DVec3) -> Result<Segment, QueryError> {
+        if !from.is_finite() || !to.is_finite() {
+            return Err(QueryError("the ray's end points must be finite".into()));
+        }
+        let len = from.distance(to);
+        if len == 0.0 {
+            return Err(QueryError(
+                "the ray starts and ends at the same point".into(),
+            ));
+        }
+        Ok(Segment {
+            from,
+            dir: (to - from) / len,
+            len,
+        })
+    }
+
+    fn hit(
+        &self,
+        object: ObjectId,
+        distance: f64,
+        outward_normal: DVec3,
+        triangle: Option<u32>,
+    ) -> RayHit {
+        let back_face = outward_normal.dot(self.dir) > 0.0;
+        RayHit {
+            object,
+            distance,
+            t: distance / self.len,
+            point: self.from + self.dir * distance,
+            normal: if back_face {
+                -outward_normal
+            } else {
+                outward_normal
+            },
+            triangle,
+            back_face,
+        }
+    }
+}
+
+impl View<'_> {
+    /// The first surface the segment `from → to` crosses, if any.
+    pub fn ray_first(&self, from: DVec3, to: DVec3) -> Result<Option<RayHit>, QueryError> {
+        let seg = Segment::new(from, to)?;
+        let ray = Ray::new(seg.from, seg.dir);
+        let sheared = ShearedRay::new(seg.from, seg.dir);
+        let best: Cell<Option<RayHit>> = Cell::new(None);
+        self.world.bvh.cast_ray(&ray, seg.len, |id, best_so_far| {
+            let id = id as ObjectId;
+            if !self.allows(id) {
+                return None;
+            }
+            let hit = first_hit_on_body(
+                &self.world.bodies[id],
+                id,
+                &seg,
+                &ray,
+                &sheared,
+                best_so_far,
+            )?;
+            if best
+                .get()
+                .is_none_or(|b| (hit.distance, hit.object) < (b.distance, b.object))
+            {
+                best.set(Some(hit));
+            }
+            Some(hit.distance)
+        });
+        Ok(best.get())
+    }
+
+    /// Every surface crossing on the segment `from → to`, sorted by distance; where the segment passes
+    /// through an edge or vertex shared by several triangles of one object, that is one crossing.
+    pub fn ray_all(&self, from: DVec3, to: DVec3) -> Result<Vec<RayHit>, QueryError> {
+        let seg = Segment::new(from, to)?;
+        let ray = Ray::new(seg.from, seg.dir);
+        let sheared = ShearedRay::new(seg.from, seg.dir);
+        let mut hits = Vec::new();
+        for id in self
+            .world
+            .bvh
+            .leaves(|node| node.cast_ray(&ray, seg.len) <= seg.len)
+        {
+            let id = id as ObjectId;
+            if self.allows(id) {
+                all_hits_on_body(&self.world.bodies[id], id, &seg, &ray, &sheared, &mut hits);
+            }
+        }
+        hits.sort_by(|a, b| {
+            a.distance
+                .total_cmp(&b.distance)
+                .then(a.object.cmp(&b.object))
+        });
+        Ok(hits)
+    }
+}
+
+fn first_hit_on_body(
+    body: &Body,
+    id: ObjectId,
+    seg: &Segment,
+    ray: &Ray,
+    sheared: &ShearedRay,
+    max_distance: f64,
+) -> Option<RayHit> {
+    match body.mesh() {
+        Some(mesh) => {
+            let (tri, distance) = mesh.bvh().cast_ray(ray, max_distance, |tri, best| {
+                let t = mesh.triangle(tri);
+                sheared.intersect(t.a, t.b, t.c, best)
+            })?;
+            Some(seg.hit(id, distance, triangle_normal(mesh, tri), Some(tri)))
+        }
+        None => primitive_crossings(body, id, seg, ray)
+            .into_iter()
+            .flatten()
+            .find(|h| h.distance <= max_distance),
+    }
+}
+
+fn all_hits_on_body(
+    body: &Body,
+    id: ObjectId,
+    seg: &Segment,
+    ray: &Ray,
+    sheared: &ShearedRay,
+    out: &mut Vec<RayHit>,
+) {
+    let Some(mesh) = body.mesh() else {
+        out.extend(
+            primitive_crossings(body, id, seg, ray)
+                .into_iter()
+                .flatten(),
+        );
+        return;
+    };
+    let mut own: Vec<RayHit> = mesh
+        .bvh()
+        .leaves(|node| node.cast_ray(ray, seg.len) <= seg.len)
+        .filter_map(|tri| {
+            let t = mesh.triangle(tri);
+            let distance = sheared.intersect(t.a, t.b, t.c, seg.len)?;
+            Some(seg.hit(id, distance, triangle_normal(mesh, tri), Some(tri)))
+        })
+        .collect();
+    own.sort_by(|a, b| {
+        a.distance
+            .total_cmp(&b.distance)
+            .then(a.triangle.cmp(&b.triangle))
+    });
+    // One crossing where the segment passes through an edge or vertex shared by several triangles:
+    // hits at the same distance crossing the same way are the same crossing.
+    let tolerance = merge_tolerance(seg.len);
+    own.dedup_by(|later, kept| {
+        later.back_face == kept.back_face && later.distance - kept.distance <= tolerance
+    });
+    out.extend(own);
+}
+
+/// The crossings of a convex primitive, in order along the segment: where the segment enters it
+/// (when `from` is outside) and where it leaves it (when `to` is outside). A grazing touch is one.
+fn primitive_crossings(body: &Body, id: ObjectId, seg: &Segment, ray: &Ray) -> [Option<RayHit>; 2] {
+    let shape = &*body.shape;
+    let to = seg.from + seg.dir * seg.len;
+    let entry = (!shape.contains_point(&body.pose, seg.from))
+        .then(|| shape.cast_ray_and_get_normal(&body.pose, ray, seg.len, false))
+        .flatten()
+        .map(|i| seg.hit(id, i.time_of_impact, i.normal, None));
+    let back = Ray::new(to, -seg.dir);
+    let exit = (!shape.contains_point(&body.pose, to))
+        .then(|| shape.cast_ray_and_get_normal(&body.pose, &back, seg.len, false))
+        .flatten()
+        .map(|i| seg.hit(id, seg.len - i.time_of_impact, i.normal, None))
+        .filter(|x| entry.is_none_or(|e| x.distance - e.distance > merge_tolerance(seg.len)));
+    [entry, exit]
+}
+
+/// The unit geometric normal of a mesh triangle (counter-clockwise front).
+fn triangle_normal(mesh: &parry3d_f64::shape::TriMesh, tri: u32) -> DVec3 {
+    let t = mesh.triangle(tri);
+    (t.b - t.a).cross(t.c - t.a).normalize()
+}

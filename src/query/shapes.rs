@@ -1,0 +1,76 @@
+//! From validated primitives to parry3d-f64 shapes, and the probe shapes that move through the level.
+
+use glam::{DQuat, DVec3};
+use parry3d_f64::math::Pose;
+use parry3d_f64::shape::SharedShape;
+
+use crate::level::{Primitive, ShapeSpec};
+
+/// The parry shape of a validated primitive.
+pub fn primitive_shape(primitive: &Primitive) -> Result<SharedShape, String> {
+    Ok(match primitive {
+        Primitive::Sphere { radius } => SharedShape::ball(*radius),
+        Primitive::Box { half_extents } => {
+            SharedShape::cuboid(half_extents.x, half_extents.y, half_extents.z)
+        }
+        Primitive::Capsule {
+            radius,
+            half_height,
+        } if *half_height == 0.0 => SharedShape::ball(*radius),
+        Primitive::Capsule {
+            radius,
+            half_height,
+        } => SharedShape::capsule_y(*half_height, *radius),
+        Primitive::Cylinder {
+            radius,
+            half_height,
+        } => SharedShape::cylinder(*half_height, *radius),
+        Primitive::Convex { points } => SharedShape::convex_hull(points)
+            .ok_or("the convex hull of the points could not be built")?,
+    })
+}
+
+/// A convex shape a probe places or moves, with its turn.
+#[derive(Clone)]
+pub struct ProbeShape {
+    pub(crate) shape: SharedShape,
+    pub(crate) rotation: DQuat,
+    /// Radius of a ball around the shape's centre that holds the whole shape.
+    pub(crate) bounding_radius: f64,
+}
+
+impl ProbeShape {
+    /// The probe shape for a shape spec (`point` is not a probe shape here; it has its own queries).
+    pub fn new(spec: &ShapeSpec, rotation: DQuat) -> Result<ProbeShape, String> {
+        if !rotation.is_finite() || (rotation.length() - 1.0).abs() > 1e-6 {
+            return Err("rotation must be a unit quaternion [x, y, z, w]".into());
+        }
+        let primitive = spec
+            .primitive()?
+            .ok_or_else(|| format!("a {} cannot be a probe shape", spec.type_name()))?;
+        let shape = primitive_shape(&primitive)?;
+        let local = shape.compute_local_aabb();
+        let bounding_radius = local.mins.abs().max(local.maxs.abs()).length();
+        Ok(ProbeShape {
+            shape,
+            rotation: rotation.normalize(),
+            bounding_radius,
+        })
+    }
+
+    /// The pose of the shape with its centre at `at`.
+    pub fn pose_at(&self, at: DVec3) -> Pose {
+        Pose::from_parts(at, self.rotation)
+    }
+
+    /// The farthest the shape reaches from its centre along the unit direction `dir`.
+    pub fn extent_along(&self, dir: DVec3) -> f64 {
+        let local = self.rotation.inverse() * dir;
+        let support = self
+            .shape
+            .as_support_map()
+            .map(|s| s.local_support_point_toward(local))
+            .unwrap_or(DVec3::ZERO);
+        support.dot(local)
+    }
+}
