@@ -3,7 +3,9 @@
 use std::cell::Cell;
 
 use glam::DVec3;
-use parry3d_f64::query::Ray;
+use parry3d_f64::bounding_volume::BoundingVolume;
+use parry3d_f64::partitioning::BvhNode;
+use parry3d_f64::query::{Ray, RayCast};
 
 use super::watertight::ShearedRay;
 use super::world::{Body, ObjectId, View};
@@ -84,7 +86,7 @@ impl View<'_> {
         let ray = Ray::new(seg.from, seg.dir);
         let sheared = ShearedRay::new(seg.from, seg.dir);
         let best: Cell<Option<RayHit>> = Cell::new(None);
-        self.world.bvh.cast_ray(&ray, seg.len, |id, best_so_far| {
+        self.world.bvh.find_best(seg.len, |node, best| node_entry(node, &ray, best), |id, best_so_far| {
             let id = id as ObjectId;
             if !self.allows(id) {
                 return None;
@@ -144,7 +146,7 @@ fn first_hit_on_body(
 ) -> Option<RayHit> {
     match body.mesh() {
         Some(mesh) => {
-            let (tri, distance) = mesh.bvh().cast_ray(ray, max_distance, |tri, best| {
+            let (tri, distance) = mesh.bvh().find_best(max_distance, |node, best| node_entry(node, ray, best), |tri, best| {
                 let t = mesh.triangle(tri);
                 sheared.intersect(t.a, t.b, t.c, best)
             })?;
@@ -175,7 +177,7 @@ fn all_hits_on_body(
     };
     let mut own: Vec<RayHit> = mesh
         .bvh()
-        .leaves(|node| node.cast_ray(ray, seg.len) <= seg.len)
+        .leaves(|node| node_entry(node, ray, seg.len) <= seg.len)
         .filter_map(|tri| {
             let t = mesh.triangle(tri);
             let distance = sheared.intersect(t.a, t.b, t.c, seg.len)?;
@@ -196,17 +198,33 @@ fn all_hits_on_body(
     out.extend(own);
 }
 
+/// How much BVH boxes are grown for ray tests. The slab test of a box can miss a ray that passes
+/// exactly through a box corner or along a face by one rounding error (Williams et al., "An Efficient
+/// and Robust Ray–Box Intersection Algorithm", JGT 10(1), 2005); and a ray through a mesh vertex passes
+/// through the corners of the boxes of every triangle around it. Growing the boxes by far more than
+/// rounding keeps those triangles in the search; the triangle test itself stays exact.
+const NODE_SLACK: f64 = 1e-7;
+
+/// Where the ray enters a BVH node's box (grown by [`NODE_SLACK`]), or `f64::MAX` when it misses.
+fn node_entry(node: &BvhNode, ray: &Ray, max_distance: f64) -> f64 {
+    node.aabb().loosened(NODE_SLACK).cast_local_ray(ray, max_distance, true).unwrap_or(f64::MAX)
+}
+
 /// The crossings of a convex primitive, in order along the segment: where the segment enters it
 /// (when `from` is outside) and where it leaves it (when `to` is outside). A grazing touch is one.
 fn primitive_crossings(body: &Body, id: ObjectId, seg: &Segment, ray: &Ray) -> [Option<RayHit>; 2] {
     let shape = &*body.shape;
     let to = seg.from + seg.dir * seg.len;
-    let entry = (!shape.contains_point(&body.pose, seg.from))
+    let strictly_inside = |p: DVec3| {
+        let proj = shape.project_point(&body.pose, p, false);
+        proj.is_inside && proj.point != p
+    };
+    let entry = (!strictly_inside(seg.from))
         .then(|| shape.cast_ray_and_get_normal(&body.pose, ray, seg.len, false))
         .flatten()
         .map(|i| seg.hit(id, i.time_of_impact, i.normal, None));
     let back = Ray::new(to, -seg.dir);
-    let exit = (!shape.contains_point(&body.pose, to))
+    let exit = (!strictly_inside(to))
         .then(|| shape.cast_ray_and_get_normal(&body.pose, &back, seg.len, false))
         .flatten()
         .map(|i| seg.hit(id, seg.len - i.time_of_impact, i.normal, None))

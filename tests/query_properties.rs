@@ -1,0 +1,188 @@
+//! Property tests: the query core against brute-force f64 oracles written independently in
+//! tests/common (Möller–Trumbore over every triangle, Ericson's closest point per triangle, and
+//! root finding on exact distance functions), on random levels and probes.
+
+mod common;
+
+use common::*;
+use glam::{DQuat, DVec3};
+use plumbline::level::ShapeSpec;
+use plumbline::query::{ClosestProbe, ProbeShape};
+use proptest::prelude::*;
+use proptest::strategy::ValueTree;
+
+fn point(range: f64) -> impl Strategy<Value = DVec3> {
+    (-range..range, -range..range, -range..range).prop_map(|(x, y, z)| DVec3::new(x, y, z))
+}
+
+/// A soup of `n` random triangles in a 10 m cube, none degenerate.
+fn soup(n: usize) -> impl Strategy<Value = (Vec<DVec3>, Vec<[u32; 3]>)> {
+    prop::collection::vec((point(5.0), point(1.5), point(1.5)), n).prop_map(|tris| {
+        let mut v = Vec::new();
+        let mut t = Vec::new();
+        for (c, d1, d2) in tris {
+            if d1.cross(d2).length() < 1e-3 {
+                continue;
+            }
+            let base = v.len() as u32;
+            v.extend([c, c + d1, c + d2]);
+            t.push([base, base + 1, base + 2]);
+        }
+        (v, t)
+    })
+}
+
+fn sphere(r: f64) -> ProbeShape {
+    ProbeShape::new(&ShapeSpec::Sphere { radius: r }, DQuat::IDENTITY).unwrap()
+}
+
+/// The first crossing by brute force: Möller & Trumbore (1997) over every triangle.
+fn brute_first(from: DVec3, to: DVec3, v: &[DVec3], t: &[[u32; 3]]) -> Option<f64> {
+    let len = from.distance(to);
+    let d = (to - from) / len;
+    t.iter()
+        .filter_map(|tri| moller_trumbore(from, d, v[tri[0] as usize], v[tri[1] as usize], v[tri[2] as usize]))
+        .filter(|&x| (0.0..=len).contains(&x))
+        .min_by(f64::total_cmp)
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig { cases: 2000, ..ProptestConfig::default() })]
+
+    /// 2,000 levels x 5 rays = 10,000 random rays: no hit/miss disagreement with Möller–Trumbore,
+    /// |Δ distance| ≤ 1e-9 m, and all-hits lists every crossing.
+    #[test]
+    fn rays_match_brute_force((v, t) in soup(40), rays in prop::collection::vec((point(8.0), point(8.0)), 5)) {
+        prop_assume!(!t.is_empty());
+        let world = LevelBuilder::new().mesh("soup", v.clone(), t.clone()).world();
+        for (from, to) in rays {
+            prop_assume!(from.distance(to) > 1e-3);
+            let ours = world.everything().ray_first(from, to).unwrap().map(|h| h.distance);
+            let oracle = brute_first(from, to, &v, &t);
+            prop_assert_eq!(ours.is_some(), oracle.is_some(), "hit/miss disagree: {:?} vs {:?}", ours, oracle);
+            if let (Some(a), Some(b)) = (ours, oracle) {
+                prop_assert!((a - b).abs() <= 1e-9, "{} vs {}", a, b);
+            }
+            let all = world.everything().ray_all(from, to).unwrap();
+            let len = from.distance(to);
+            let d = (to - from) / len;
+            let count = t.iter().filter(|tri| {
+                moller_trumbore(from, d, v[tri[0] as usize], v[tri[1] as usize], v[tri[2] as usize])
+                    .is_some_and(|x| (0.0..=len).contains(&x))
+            }).count();
+            prop_assert_eq!(all.len(), count);
+        }
+    }
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig { cases: 300, ..ProptestConfig::default() })]
+
+    /// Sphere sweeps: the distance travelled before impact matches the first root of the exact
+    /// sphere–triangle distance (Ericson §5.1.5) minus the radius, to 1e-6 m; clearance likewise.
+    #[test]
+    fn sphere_sweeps_match_root_finding((v, t) in soup(12), from in point(8.0), to in point(8.0), r in 0.05f64..1.0) {
+        prop_assume!(!t.is_empty() && from.distance(to) > 0.1);
+        let world = LevelBuilder::new().mesh("soup", v.clone(), t.clone()).world();
+        let len = from.distance(to);
+        let at = |s: f64| from + (to - from) * (s / len);
+        let gap = |s: f64| soup_distance(at(s), &v, &t) - r;
+        // The soup's distance is a minimum of convex functions: take the first root over triangles.
+        let oracle = t.iter().filter_map(|tri| {
+            let one = [*tri];
+            first_root_convex(|s| soup_distance(at(s), &v, &one) - r, 0.0, len)
+        }).min_by(f64::total_cmp);
+        let ours = world.everything().sweep_first(&sphere(r), &[from, to]).unwrap();
+        match (ours, oracle) {
+            (Some(hit), Some(s)) => {
+                prop_assert!((hit.distance - s).abs() <= 1e-6, "{} vs {}", hit.distance, s);
+                prop_assert_eq!(hit.started_inside, s == 0.0);
+            }
+            (None, None) => {
+                let c = world.everything().sweep_clearance(&sphere(r), &[from, to], None).unwrap().unwrap();
+                let expected = t.iter().map(|tri| {
+                    let one = [*tri];
+                    golden_min(|s| soup_distance(at(s), &v, &one) - r, 0.0, len).1
+                }).fold(f64::INFINITY, f64::min);
+                prop_assert!((c.distance - expected).abs() <= 1e-6, "clearance {} vs {}", c.distance, expected);
+                prop_assert!((gap(c.t * len) - c.distance).abs() <= 1e-6);
+            }
+            (ours, oracle) => prop_assert!(false, "hit/miss disagree: {:?} vs {:?}", ours, oracle),
+        }
+    }
+
+    /// Closest point from a point and from a sphere, and overlap depth of a sphere, against Ericson's
+    /// closest point on each triangle (§5.1.5), to 1e-6 m.
+    #[test]
+    fn closest_and_overlap_match_brute_force((v, t) in soup(15), p in point(8.0), r in 0.05f64..2.0) {
+        prop_assume!(!t.is_empty());
+        let world = LevelBuilder::new().mesh("soup", v.clone(), t.clone()).world();
+        let view = world.everything();
+        let exact = soup_distance(p, &v, &t);
+        let hit = view.closest(ClosestProbe::Point, p, 100.0).unwrap().unwrap();
+        prop_assert!((hit.distance - exact).abs() <= 1e-9, "{} vs {}", hit.distance, exact);
+        let ball = sphere(r);
+        let near = view.closest(ClosestProbe::Shape(&ball), p, 100.0).unwrap().unwrap();
+        prop_assert!((near.distance - (exact - r).max(0.0)).abs() <= 1e-6, "{} vs {}", near.distance, exact - r);
+        let overlaps = view.overlap(&ball, p).unwrap();
+        if exact < r - 1e-6 {
+            prop_assert_eq!(overlaps.len(), 1);
+            prop_assert!((overlaps[0].depth - (r - exact)).abs() <= 1e-6, "{} vs {}", overlaps[0].depth, r - exact);
+        } else if exact > r + 1e-6 {
+            prop_assert!(overlaps.is_empty());
+        }
+    }
+
+    /// Boxes and capsules turned at random and swept down onto a floor touch it when their lowest
+    /// point reaches it: travelled = (height of centre - reach below centre) / descent per metre.
+    #[test]
+    fn turned_boxes_and_capsules_land_on_a_floor(
+        q in (-1.0f64..1.0, -1.0f64..1.0, -1.0f64..1.0, -1.0f64..1.0),
+        start in point(3.0),
+        drift in point(1.0),
+        capsule in any::<bool>(),
+    ) {
+        let rotation = DQuat::from_xyzw(q.0, q.1, q.2, q.3);
+        prop_assume!(rotation.length() > 0.1);
+        let rotation = rotation.normalize();
+        let spec = if capsule {
+            ShapeSpec::Capsule { radius: 0.3, half_height: 0.6 }
+        } else {
+            ShapeSpec::Box { half_extents: [0.4, 0.2, 0.7] }
+        };
+        let shape = ProbeShape::new(&spec, rotation).unwrap();
+        let reach = shape.extent_along(-DVec3::Y);
+        let from = DVec3::new(start.x, 5.0 + start.y, start.z);
+        let to = from + DVec3::new(drift.x, -10.0, drift.z);
+        let (fv, ft) = (
+            vec![DVec3::new(-100.0, 0.0, -100.0), DVec3::new(-100.0, 0.0, 100.0), DVec3::new(100.0, 0.0, 100.0), DVec3::new(100.0, 0.0, -100.0)],
+            vec![[0, 1, 2], [0, 2, 3]],
+        );
+        let world = LevelBuilder::new().mesh("floor", fv, ft).world();
+        let hit = world.everything().sweep_first(&shape, &[from, to]).unwrap().expect("lands");
+        let dir = (to - from).normalize();
+        let expected = (from.y - reach) / -dir.y;
+        prop_assert!((hit.distance - expected).abs() <= 1e-6, "{} vs {}", hit.distance, expected);
+        prop_assert!((hit.normal - DVec3::Y).length() <= 1e-6, "normal {:?}", hit.normal);
+        prop_assert!(hit.point.y.abs() <= 1e-6);
+    }
+}
+
+/// Closed meshes: every random ray crosses an icosphere an even number of times.
+#[test]
+fn closed_mesh_crossings_come_in_pairs() {
+    let (v, t) = icosphere(DVec3::new(0.1, 0.2, 0.3), 2.0, 3);
+    let world = LevelBuilder::new().mesh("ball", v, t).world();
+    let mut runner = proptest::test_runner::TestRunner::deterministic();
+    let strategy = (point(6.0), point(6.0));
+    for _ in 0..2000 {
+        let (from, to) = strategy.new_tree(&mut runner).unwrap().current();
+        // The mesh lies within its circumscribed sphere of radius 2.
+        let inside = |p: DVec3| p.distance(DVec3::new(0.1, 0.2, 0.3)) <= 2.0;
+        if inside(from) || inside(to) {
+            continue;
+        }
+        let hits = world.everything().ray_all(from, to).unwrap();
+        assert!(hits.len() % 2 == 0, "{from:?} -> {to:?}: {} crossings", hits.len());
+    }
+}
