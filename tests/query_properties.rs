@@ -41,7 +41,15 @@ fn brute_first(from: DVec3, to: DVec3, v: &[DVec3], t: &[[u32; 3]]) -> Option<f6
     let len = from.distance(to);
     let d = (to - from) / len;
     t.iter()
-        .filter_map(|tri| moller_trumbore(from, d, v[tri[0] as usize], v[tri[1] as usize], v[tri[2] as usize]))
+        .filter_map(|tri| {
+            moller_trumbore(
+                from,
+                d,
+                v[tri[0] as usize],
+                v[tri[1] as usize],
+                v[tri[2] as usize],
+            )
+        })
         .filter(|&x| (0.0..=len).contains(&x))
         .min_by(f64::total_cmp)
 }
@@ -183,6 +191,10 @@ fn closed_mesh_crossings_come_in_pairs() {
             continue;
         }
         let hits = world.everything().ray_all(from, to).unwrap();
-        assert!(hits.len() % 2 == 0, "{from:?} -> {to:?}: {} crossings", hits.len());
+        assert!(
+            hits.len() % 2 == 0,
+            "{from:?} -> {to:?}: {} crossings",
+            hits.len()
+        );
     }
 }

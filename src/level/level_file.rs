@@ -97,6 +97,11 @@ pub fn load_level_file(path: &Path) -> Result<(Level, Vec<Diagnostic>), InputErr
         match (&spec.mesh, &spec.shape) {
             (Some(mesh), None) => {
                 let mesh_path = folder.join(mesh);
+                if !mesh_path.is_file() {
+                    return Err(fail(format!(
+                        "mesh file \"{mesh}\" cannot be read: no such file"
+                    )));
+                }
                 let (inner, inner_diagnostics) = load_mesh_file(&mesh_path)?;
                 diagnostics.extend(inner_diagnostics);
                 let matrix = transform.matrix();

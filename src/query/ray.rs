@@ -86,27 +86,31 @@ impl View<'_> {
         let ray = Ray::new(seg.from, seg.dir);
         let sheared = ShearedRay::new(seg.from, seg.dir);
         let best: Cell<Option<RayHit>> = Cell::new(None);
-        self.world.bvh.find_best(seg.len, |node, best| node_entry(node, &ray, best), |id, best_so_far| {
-            let id = id as ObjectId;
-            if !self.allows(id) {
-                return None;
-            }
-            let hit = first_hit_on_body(
-                &self.world.bodies[id],
-                id,
-                &seg,
-                &ray,
-                &sheared,
-                best_so_far,
-            )?;
-            if best
-                .get()
-                .is_none_or(|b| (hit.distance, hit.object) < (b.distance, b.object))
-            {
-                best.set(Some(hit));
-            }
-            Some(hit.distance)
-        });
+        self.world.bvh.find_best(
+            seg.len,
+            |node, best| node_entry(node, &ray, best),
+            |id, best_so_far| {
+                let id = id as ObjectId;
+                if !self.allows(id) {
+                    return None;
+                }
+                let hit = first_hit_on_body(
+                    &self.world.bodies[id],
+                    id,
+                    &seg,
+                    &ray,
+                    &sheared,
+                    best_so_far,
+                )?;
+                if best
+                    .get()
+                    .is_none_or(|b| (hit.distance, hit.object) < (b.distance, b.object))
+                {
+                    best.set(Some(hit));
+                }
+                Some(hit.distance)
+            },
+        );
         Ok(best.get())
     }
 
@@ -146,10 +150,14 @@ fn first_hit_on_body(
 ) -> Option<RayHit> {
     match body.mesh() {
         Some(mesh) => {
-            let (tri, distance) = mesh.bvh().find_best(max_distance, |node, best| node_entry(node, ray, best), |tri, best| {
-                let t = mesh.triangle(tri);
-                sheared.intersect(t.a, t.b, t.c, best)
-            })?;
+            let (tri, distance) = mesh.bvh().find_best(
+                max_distance,
+                |node, best| node_entry(node, ray, best),
+                |tri, best| {
+                    let t = mesh.triangle(tri);
+                    sheared.intersect(t.a, t.b, t.c, best)
+                },
+            )?;
             Some(seg.hit(id, distance, triangle_normal(mesh, tri), Some(tri)))
         }
         None => primitive_crossings(body, id, seg, ray)
@@ -207,7 +215,10 @@ const NODE_SLACK: f64 = 1e-7;
 
 /// Where the ray enters a BVH node's box (grown by [`NODE_SLACK`]), or `f64::MAX` when it misses.
 fn node_entry(node: &BvhNode, ray: &Ray, max_distance: f64) -> f64 {
-    node.aabb().loosened(NODE_SLACK).cast_local_ray(ray, max_distance, true).unwrap_or(f64::MAX)
+    node.aabb()
+        .loosened(NODE_SLACK)
+        .cast_local_ray(ray, max_distance, true)
+        .unwrap_or(f64::MAX)
 }
 
 /// The crossings of a convex primitive, in order along the segment: where the segment enters it

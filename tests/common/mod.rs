@@ -13,14 +13,19 @@ pub struct LevelBuilder {
 
 impl LevelBuilder {
     pub fn new() -> Self {
-        Self { objects: Vec::new() }
+        Self {
+            objects: Vec::new(),
+        }
     }
 
     pub fn mesh(mut self, name: &str, vertices: Vec<DVec3>, triangles: Vec<[u32; 3]>) -> Self {
         self.objects.push(LevelObject {
             name: name.into(),
             tags: Vec::new(),
-            geometry: Geometry::Mesh(Mesh { vertices, triangles }),
+            geometry: Geometry::Mesh(Mesh {
+                vertices,
+                triangles,
+            }),
         });
         self
     }
@@ -36,13 +41,20 @@ impl LevelBuilder {
         self.objects.push(LevelObject {
             name: name.into(),
             tags: Vec::new(),
-            geometry: Geometry::Primitive { shape, translation: at, rotation },
+            geometry: Geometry::Primitive {
+                shape,
+                translation: at,
+                rotation,
+            },
         });
         self
     }
 
     pub fn level(self) -> Level {
-        Level { up: DVec3::Y, objects: self.objects }
+        Level {
+            up: DVec3::Y,
+            objects: self.objects,
+        }
     }
 
     pub fn world(self) -> World {
@@ -62,7 +74,14 @@ pub fn box_mesh(c: DVec3, h: DVec3) -> (Vec<DVec3>, Vec<[u32; 3]>) {
             c + s * h
         })
         .collect();
-    let quads = [[0, 2, 3, 1], [4, 5, 7, 6], [0, 1, 5, 4], [2, 6, 7, 3], [0, 4, 6, 2], [1, 3, 7, 5]];
+    let quads = [
+        [0, 2, 3, 1],
+        [4, 5, 7, 6],
+        [0, 1, 5, 4],
+        [2, 6, 7, 3],
+        [0, 4, 6, 2],
+        [1, 3, 7, 5],
+    ];
     let mut t = Vec::new();
     for q in quads {
         t.push([q[0], q[1], q[2]]);
@@ -75,17 +94,43 @@ pub fn box_mesh(c: DVec3, h: DVec3) -> (Vec<DVec3>, Vec<[u32; 3]>) {
 pub fn icosphere(c: DVec3, r: f64, levels: u32) -> (Vec<DVec3>, Vec<[u32; 3]>) {
     let p = (1.0 + 5f64.sqrt()) / 2.0;
     let mut v: Vec<DVec3> = [
-        [-1.0, p, 0.0], [1.0, p, 0.0], [-1.0, -p, 0.0], [1.0, -p, 0.0],
-        [0.0, -1.0, p], [0.0, 1.0, p], [0.0, -1.0, -p], [0.0, 1.0, -p],
-        [p, 0.0, -1.0], [p, 0.0, 1.0], [-p, 0.0, -1.0], [-p, 0.0, 1.0],
+        [-1.0, p, 0.0],
+        [1.0, p, 0.0],
+        [-1.0, -p, 0.0],
+        [1.0, -p, 0.0],
+        [0.0, -1.0, p],
+        [0.0, 1.0, p],
+        [0.0, -1.0, -p],
+        [0.0, 1.0, -p],
+        [p, 0.0, -1.0],
+        [p, 0.0, 1.0],
+        [-p, 0.0, -1.0],
+        [-p, 0.0, 1.0],
     ]
     .iter()
     .map(|a| DVec3::from_array(*a).normalize())
     .collect();
     let mut t: Vec<[u32; 3]> = vec![
-        [0, 11, 5], [0, 5, 1], [0, 1, 7], [0, 7, 10], [0, 10, 11], [1, 5, 9], [5, 11, 4], [11, 10, 2],
-        [10, 7, 6], [7, 1, 8], [3, 9, 4], [3, 4, 2], [3, 2, 6], [3, 6, 8], [3, 8, 9], [4, 9, 5],
-        [2, 4, 11], [6, 2, 10], [8, 6, 7], [9, 8, 1],
+        [0, 11, 5],
+        [0, 5, 1],
+        [0, 1, 7],
+        [0, 7, 10],
+        [0, 10, 11],
+        [1, 5, 9],
+        [5, 11, 4],
+        [11, 10, 2],
+        [10, 7, 6],
+        [7, 1, 8],
+        [3, 9, 4],
+        [3, 4, 2],
+        [3, 2, 6],
+        [3, 6, 8],
+        [3, 8, 9],
+        [4, 9, 5],
+        [2, 4, 11],
+        [6, 2, 10],
+        [8, 6, 7],
+        [9, 8, 1],
     ];
     for _ in 0..levels {
         let mut mid = std::collections::HashMap::new();
@@ -193,7 +238,11 @@ pub fn closest_segment_segment(p1: DVec3, q1: DVec3, p2: DVec3, q2: DVec3) -> (D
         } else {
             let b = d1.dot(d2);
             let denom = a * e - b * b;
-            let mut s0 = if denom != 0.0 { ((b * f - c * e) / denom).clamp(0.0, 1.0) } else { 0.0 };
+            let mut s0 = if denom != 0.0 {
+                ((b * f - c * e) / denom).clamp(0.0, 1.0)
+            } else {
+                0.0
+            };
             let mut t0 = (b * s0 + f) / e;
             if t0 < 0.0 {
                 t0 = 0.0;
@@ -212,7 +261,14 @@ pub fn closest_segment_segment(p1: DVec3, q1: DVec3, p2: DVec3, q2: DVec3) -> (D
 /// The smallest distance from point `p` to any triangle of a soup (Ericson §5.1.5 per triangle).
 pub fn soup_distance(p: DVec3, v: &[DVec3], t: &[[u32; 3]]) -> f64 {
     t.iter()
-        .map(|tri| p.distance(closest_point_triangle(p, v[tri[0] as usize], v[tri[1] as usize], v[tri[2] as usize])))
+        .map(|tri| {
+            p.distance(closest_point_triangle(
+                p,
+                v[tri[0] as usize],
+                v[tri[1] as usize],
+                v[tri[2] as usize],
+            ))
+        })
         .fold(f64::INFINITY, f64::min)
 }
 
@@ -226,7 +282,10 @@ pub fn golden_min(f: impl Fn(f64) -> f64, lo: f64, hi: f64) -> (f64, f64) {
         if f(c) <= f(d) { b = d } else { a = c }
     }
     let m = 0.5 * (a + b);
-    [(lo, f(lo)), (hi, f(hi)), (m, f(m))].into_iter().min_by(|x, y| x.1.total_cmp(&y.1)).unwrap()
+    [(lo, f(lo)), (hi, f(hi)), (m, f(m))]
+        .into_iter()
+        .min_by(|x, y| x.1.total_cmp(&y.1))
+        .unwrap()
 }
 
 /// First root of a function that is convex on [lo, hi]: where a sphere moving in a straight line first

@@ -1,0 +1,271 @@
+//! Every kind of bad level input gives a clear error naming the file and the place — never a panic —
+//! and `plumbline info` exits 2 with that one-line message.
+
+use std::path::{Path, PathBuf};
+use std::process::Command;
+
+use plumbline::level::load_level;
+
+fn write(dir: &Path, name: &str, bytes: &[u8]) -> PathBuf {
+    let path = dir.join(name);
+    std::fs::write(&path, bytes).unwrap();
+    path
+}
+
+/// Loads the file, expects an error, and returns its text.
+fn error_of(path: &Path) -> String {
+    let err = load_level(path).expect_err("the input is bad");
+    let text = err.to_string();
+    assert!(
+        text.starts_with(&path.display().to_string()),
+        "error names the file: {text}"
+    );
+    text
+}
+
+fn level_with(objects: &str) -> String {
+    format!(r#"{{"plumbline": "level", "version": 1, "objects": [{objects}]}}"#)
+}
+
+#[test]
+fn out_of_range_indices() {
+    let dir = tempfile::tempdir().unwrap();
+    let p = write(dir.path(), "a.level.json", level_with(r#"{"name": "wall", "shape": {"type": "triangles", "vertices": [[0,0,0],[1,0,0],[0,1,0]], "indices": [[0,1,2],[0,1,7]]}}"#).as_bytes());
+    let e = error_of(&p);
+    assert!(
+        e.contains("objects[0] \"wall\"")
+            && e.contains("triangle 1")
+            && e.contains("index 7 is out of range"),
+        "{e}"
+    );
+    let p = write(dir.path(), "b.obj", b"v 0 0 0\nv 1 0 0\nv 0 1 0\nf 1 2 9\n");
+    let e = error_of(&p);
+    assert!(
+        e.contains("line 4, column 7") && e.contains("vertex 9 does not exist"),
+        "{e}"
+    );
+    let p = write(dir.path(), "c.obj", b"v 0 0 0\nf 1 -2 1\n");
+    assert!(error_of(&p).contains("vertex -2 does not exist"));
+}
+
+#[test]
+fn non_finite_numbers() {
+    let dir = tempfile::tempdir().unwrap();
+    let p = write(dir.path(), "a.obj", b"v 0 0 0\nv nan 0 0\n");
+    let e = error_of(&p);
+    assert!(
+        e.contains("line 2, column 3") && e.contains("not a finite number"),
+        "{e}"
+    );
+    let p = write(dir.path(), "b.obj", b"v 0 0 inf\n");
+    assert!(error_of(&p).contains("line 1, column 7"));
+    // JSON has no NaN; a number too large for f64 is refused by the parser with its position.
+    let p = write(
+        dir.path(),
+        "c.level.json",
+        level_with(r#"{"name": "ball", "shape": {"type": "sphere", "radius": 1e999}}"#).as_bytes(),
+    );
+    assert!(error_of(&p).contains("line 1"));
+    let p = write(
+        dir.path(),
+        "d.level.json",
+        level_with(r#"{"name": "ball", "shape": {"type": "sphere", "radius": -1}}"#).as_bytes(),
+    );
+    let e = error_of(&p);
+    assert!(
+        e.contains("objects[0] \"ball\"") && e.contains("radius must be a positive number"),
+        "{e}"
+    );
+}
+
+#[test]
+fn empty_and_truncated_files() {
+    let dir = tempfile::tempdir().unwrap();
+    for name in ["a.level.json", "b.obj", "c.glb", "d.gltf"] {
+        let p = write(dir.path(), name, b"");
+        assert!(error_of(&p).ends_with("the file is empty"));
+    }
+    let p = write(
+        dir.path(),
+        "e.glb",
+        b"glTF\x02\x00\x00\x00\xff\x00\x00\x00JSON",
+    );
+    let e = error_of(&p);
+    assert!(e.contains("not a readable glTF 2.0 file"), "{e}");
+}
+
+#[test]
+fn json_of_the_wrong_type_and_unknown_fields() {
+    let dir = tempfile::tempdir().unwrap();
+    let p = write(
+        dir.path(),
+        "a.level.json",
+        br#"{"plumbline": "level", "version": 1, "objects": {"name": "x"}}"#,
+    );
+    let e = error_of(&p);
+    assert!(
+        e.contains("line 1, column") && e.contains("expected a sequence"),
+        "{e}"
+    );
+    let p = write(
+        dir.path(),
+        "b.level.json",
+        b"{\"plumbline\": \"level\", \"version\": 1,\n  \"objcts\": []}",
+    );
+    let e = error_of(&p);
+    assert!(
+        e.contains("line 2, column 10") && e.contains("unknown field `objcts`"),
+        "{e}"
+    );
+    let p = write(dir.path(), "c.level.json", b"[1, 2, 3]");
+    assert!(error_of(&p).contains("line 1"));
+    let p = write(
+        dir.path(),
+        "d.level.json",
+        br#"{"plumbline": "probes", "version": 1, "objects": []}"#,
+    );
+    assert!(error_of(&p).contains("not a level"));
+    let p = write(
+        dir.path(),
+        "e.level.json",
+        level_with(r#"{"name": "x", "shape": {"type": "sphere", "radius": 1, "colour": "red"}}"#)
+            .as_bytes(),
+    );
+    assert!(error_of(&p).contains("unknown field `colour`"));
+}
+
+#[test]
+fn missing_referenced_files() {
+    let dir = tempfile::tempdir().unwrap();
+    let p = write(
+        dir.path(),
+        "a.level.json",
+        level_with(r#"{"name": "shed", "mesh": "sheds/shed.glb"}"#).as_bytes(),
+    );
+    let e = error_of(&p);
+    assert!(
+        e.contains("objects[0] \"shed\"")
+            && e.contains("sheds/shed.glb")
+            && e.contains("cannot be read"),
+        "{e}"
+    );
+    let gltf =
+        r#"{"asset": {"version": "2.0"}, "buffers": [{"uri": "gone.bin", "byteLength": 12}]}"#;
+    let p = write(dir.path(), "b.gltf", gltf.as_bytes());
+    let e = error_of(&p);
+    assert!(e.contains("buffer 0") && e.contains("gone.bin"), "{e}");
+    assert!(
+        load_level(&dir.path().join("nowhere.obj"))
+            .unwrap_err()
+            .message
+            .contains("cannot read the file")
+    );
+}
+
+#[test]
+fn gltf_requiring_an_unsupported_extension() {
+    let dir = tempfile::tempdir().unwrap();
+    let gltf = r#"{"asset": {"version": "2.0"}, "extensionsUsed": ["EXT_meshopt_compression"], "extensionsRequired": ["EXT_meshopt_compression"]}"#;
+    let p = write(dir.path(), "a.gltf", gltf.as_bytes());
+    let e = error_of(&p);
+    assert!(e.contains("extensionsRequired"), "{e}");
+}
+
+#[test]
+fn gltf_accessor_outside_its_buffer() {
+    let dir = tempfile::tempdir().unwrap();
+    let gltf = r#"{"asset": {"version": "2.0"}, "scene": 0, "scenes": [{"nodes": [0]}], "nodes": [{"mesh": 0}],
+      "meshes": [{"primitives": [{"attributes": {"POSITION": 0}}]}],
+      "accessors": [{"bufferView": 0, "componentType": 5126, "count": 30, "type": "VEC3", "min": [0,0,0], "max": [1,1,1]}],
+      "bufferViews": [{"buffer": 0, "byteLength": 360}],
+      "buffers": [{"uri": "data:application/octet-stream;base64,AAAAAAAAAAAAAAAA", "byteLength": 12}]}"#;
+    let p = write(dir.path(), "a.gltf", gltf.as_bytes());
+    let e = error_of(&p);
+    assert!(
+        e.contains("bufferViews") || e.contains("outside their buffer"),
+        "{e}"
+    );
+}
+
+#[test]
+fn object_mistakes_in_level_files() {
+    let dir = tempfile::tempdir().unwrap();
+    let cases = [
+        (
+            r#"{"name": "a", "shape": {"type": "sphere", "radius": 1}}, {"name": "a", "shape": {"type": "sphere", "radius": 1}}"#,
+            "another object already has this name",
+        ),
+        (r#"{"name": "a"}"#, "exactly one of"),
+        (
+            r#"{"name": "a", "shape": {"type": "sphere", "radius": 1}, "rotation": [0, 0, 0, 2]}"#,
+            "unit quaternion",
+        ),
+        (
+            r#"{"name": "a", "shape": {"type": "sphere", "radius": 1}, "scale": [1, 2, 1]}"#,
+            "uniform scale",
+        ),
+        (
+            r#"{"name": "a", "shape": {"type": "convex", "points": [[0,0,0],[1,0,0],[0,1,0],[1,1,0]]}}"#,
+            "not all in one plane",
+        ),
+        (
+            r#"{"name": "a", "shape": {"type": "heightfield", "heights": [[0, 0], [0]], "size": [1, 1]}}"#,
+            "heights[1]",
+        ),
+        (
+            r#"{"name": "a", "shape": {"type": "point"}}"#,
+            "cannot be a point",
+        ),
+    ];
+    for (k, (objects, expected)) in cases.iter().enumerate() {
+        let p = write(
+            dir.path(),
+            &format!("{k}.level.json"),
+            level_with(objects).as_bytes(),
+        );
+        let e = error_of(&p);
+        assert!(e.contains(expected), "case {k}: {e}");
+    }
+}
+
+#[test]
+fn info_exits_2_with_a_one_line_error() {
+    let dir = tempfile::tempdir().unwrap();
+    let p = write(dir.path(), "a.obj", b"v 0 0 0\nf 1 2 3\n");
+    let out = Command::new(env!("CARGO_BIN_EXE_plumbline"))
+        .arg("info")
+        .arg(&p)
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2));
+    let stderr = String::from_utf8(out.stderr).unwrap();
+    assert_eq!(stderr.lines().count(), 1, "{stderr}");
+    assert!(stderr.contains("a.obj: line 2, column 5"), "{stderr}");
+    let out = Command::new(env!("CARGO_BIN_EXE_plumbline"))
+        .args(["info", "--bogus"])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2));
+}
+
+#[test]
+fn info_lists_objects_and_warnings() {
+    let dir = tempfile::tempdir().unwrap();
+    let p = write(
+        dir.path(),
+        "a.obj",
+        b"o crate\nv 0 0 0\nv 1 0 0\nv 0 1 0\nv 2 0 0\nf 1 2 3\nf 1 2 4\n",
+    );
+    let out = Command::new(env!("CARGO_BIN_EXE_plumbline"))
+        .arg("info")
+        .arg(&p)
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(0));
+    let stdout = String::from_utf8(out.stdout).unwrap();
+    assert!(stdout.contains("triangles 1"), "{stdout}");
+    assert!(
+        stdout.contains("crate") && stdout.contains("1 degenerate triangle(s)"),
+        "{stdout}"
+    );
+}
