@@ -54,6 +54,48 @@ impl InputError {
     }
 }
 
+impl InputError {
+    /// An error about `fragment`, a slice of the file's `text`, placed at the line and column where
+    /// the fragment starts.
+    pub fn at_fragment(
+        path: &Path,
+        text: &str,
+        fragment: &str,
+        message: impl Into<String>,
+    ) -> Self {
+        let (line, column) = position_of(text, fragment);
+        Self::at_line(path, line, column, message)
+    }
+
+    /// A serde_json error from parsing `fragment` (a slice of the file's `text`) on its own, placed at
+    /// its line and column in the whole file.
+    pub fn json_in(path: &Path, text: &str, fragment: &str, err: &serde_json::Error) -> Self {
+        let (line, column) = position_of(text, fragment);
+        let relative = Self::json(path, err);
+        if err.line() == 0 {
+            return Self::at_line(path, line, column, relative.message);
+        }
+        let abs_line = line + err.line() - 1;
+        let abs_column = if err.line() == 1 {
+            column + err.column() - 1
+        } else {
+            err.column()
+        };
+        Self::at_line(path, abs_line, abs_column, relative.message)
+    }
+}
+
+/// The 1-based line and column where `fragment` (a slice of `text`) starts.
+fn position_of(text: &str, fragment: &str) -> (usize, usize) {
+    let offset = (fragment.as_ptr() as usize)
+        .saturating_sub(text.as_ptr() as usize)
+        .min(text.len());
+    let before = &text[..offset];
+    let line = before.matches('\n').count() + 1;
+    let column = before.rsplit('\n').next().map_or(0, |l| l.chars().count()) + 1;
+    (line, column)
+}
+
 impl fmt::Display for InputError {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         write!(f, "{}", self.path.display())?;

@@ -4,6 +4,11 @@
 //! The library holds everything the command line and the window share:
 //! [`level`] loads and validates geometry, [`query`] answers probes over it.
 
+pub mod atomic;
+pub mod check;
 pub mod error;
+pub mod json_text;
 pub mod level;
+pub mod probe;
 pub mod query;
+pub mod report;

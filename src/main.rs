@@ -1,14 +1,15 @@
-//! The `plumbline` command: a thin shell over the library. Exit status: 0 every expectation holds,
-//! 1 an expectation fails or a probe errs (for `diff`: changes found), 2 bad usage or unreadable input.
+//! The `plumbline` command: a thin shell over the library. Exit status (SPEC §4): 0 every expectation
+//! holds (for `diff`: no changes), 1 an expectation fails or a probe errs (for `diff`: changes found),
+//! 2 bad usage or input that cannot be read.
 
-use std::io::Write;
+mod cli;
+
 use std::path::PathBuf;
 use std::process::ExitCode;
 
 use clap::{Parser, Subcommand};
 
-use plumbline::level::{Geometry, load_level};
-use plumbline::query::World;
+use plumbline::check::DEFAULT_TOLERANCE;
 
 #[derive(Parser)]
 #[command(
@@ -23,6 +24,51 @@ struct Cli {
 
 #[derive(Subcommand)]
 enum Command {
+    /// Answers every probe of a probe set, prints a summary and writes the requested files.
+    Check {
+        /// The probe set (*.probes.json).
+        probes: PathBuf,
+        /// Use this level instead of the one the probe set names.
+        #[arg(long)]
+        level: Option<PathBuf>,
+        /// Write the results file here.
+        #[arg(long)]
+        out: Option<PathBuf>,
+        /// Compare with this earlier results file and list what changed.
+        #[arg(long)]
+        baseline: Option<PathBuf>,
+        /// Write a JUnit XML report here.
+        #[arg(long)]
+        junit: Option<PathBuf>,
+        /// Write a Markdown summary here.
+        #[arg(long)]
+        markdown: Option<PathBuf>,
+        /// Metres a distance must move to count as a change.
+        #[arg(long, default_value_t = DEFAULT_TOLERANCE, value_parser = parse_tolerance)]
+        tolerance: f64,
+        /// Count a change since the baseline as a failure (exit 1).
+        #[arg(long)]
+        fail_on_change: bool,
+        /// Worker threads (default: all cores).
+        #[arg(long, value_parser = clap::value_parser!(u32).range(1..))]
+        jobs: Option<u32>,
+        /// List only failures, errors and changes.
+        #[arg(long)]
+        brief: bool,
+        /// Re-run whenever the level or the probe set changes on disk.
+        #[arg(long)]
+        watch: bool,
+    },
+    /// Lists what changed between two results files.
+    Diff {
+        /// The earlier results file.
+        old: PathBuf,
+        /// The later results file.
+        new: PathBuf,
+        /// Metres a distance must move to count as a change.
+        #[arg(long, default_value_t = DEFAULT_TOLERANCE, value_parser = parse_tolerance)]
+        tolerance: f64,
+    },
     /// Lists a level's objects, tags, triangle counts, bounds and load warnings.
     Info {
         /// A .level.json, .gltf, .glb or .obj file.
@@ -30,103 +76,75 @@ enum Command {
     },
 }
 
-/// Exit status for bad usage or input that cannot be read.
-const EXIT_BAD_INPUT: u8 = 2;
+fn parse_tolerance(text: &str) -> Result<f64, String> {
+    match text.parse::<f64>() {
+        Ok(v) if v.is_finite() && v >= 0.0 => Ok(v),
+        _ => Err(format!(
+            "\"{text}\" is not a distance in metres (zero or more)"
+        )),
+    }
+}
 
 fn main() -> ExitCode {
-    let cli = match Cli::try_parse() {
+    let parsed = match Cli::try_parse() {
         Ok(cli) => cli,
         Err(e) => {
             let _ = e.print();
             return if e.use_stderr() {
-                ExitCode::from(EXIT_BAD_INPUT)
+                ExitCode::from(cli::EXIT_BAD_INPUT)
             } else {
                 ExitCode::SUCCESS
             };
         }
     };
-    match run(cli) {
+    match run(parsed) {
         Ok(code) => code,
         Err(message) => {
             eprintln!("plumbline: {message}");
-            ExitCode::from(EXIT_BAD_INPUT)
+            ExitCode::from(cli::EXIT_BAD_INPUT)
         }
     }
 }
 
-fn run(cli: Cli) -> Result<ExitCode, String> {
-    match cli.command {
-        Some(Command::Info { level }) => info(&level),
+fn run(parsed: Cli) -> Result<ExitCode, String> {
+    match parsed.command {
+        Some(Command::Check {
+            probes,
+            level,
+            out,
+            baseline,
+            junit,
+            markdown,
+            tolerance,
+            fail_on_change,
+            jobs,
+            brief,
+            watch,
+        }) => {
+            let options = cli::CheckOptions {
+                probes,
+                level,
+                out,
+                baseline,
+                junit,
+                markdown,
+                tolerance,
+                fail_on_change,
+                jobs: jobs.map(|j| j as usize),
+                brief,
+            };
+            if watch {
+                cli::watch(&options)
+            } else {
+                cli::check(&options)
+            }
+        }
+        Some(Command::Diff {
+            old,
+            new,
+            tolerance,
+        }) => cli::diff(&old, &new, tolerance),
+        Some(Command::Info { level }) => cli::info(&level),
         None => Err("no command given; try `plumbline --help`".into()),
     }
-}
-
-fn info(path: &std::path::Path) -> Result<ExitCode, String> {
-    let (level, warnings) = load_level(path).map_err(|e| e.to_string())?;
-    let world = World::new(&level).map_err(|e| format!("{}: {e}", path.display()))?;
-    let mut out = String::new();
-    out.push_str(&format!("level     {}\n", path.display()));
-    out.push_str(&format!(
-        "up        [{}, {}, {}]\n",
-        level.up.x, level.up.y, level.up.z
-    ));
-    out.push_str(&format!("objects   {}\n", level.objects.len()));
-    out.push_str(&format!("triangles {}\n", level.triangle_count()));
-    if let Some((lo, hi)) = world.bounds() {
-        out.push_str(&format!(
-            "bounds    [{:.3}, {:.3}, {:.3}] .. [{:.3}, {:.3}, {:.3}]\n",
-            lo.x, lo.y, lo.z, hi.x, hi.y, hi.z
-        ));
-    }
-    out.push_str(&format!(
-        "digest    {}\n\n",
-        plumbline::level::level_digest(&level)
-    ));
-    let width = level
-        .objects
-        .iter()
-        .map(|o| o.name.len())
-        .max()
-        .unwrap_or(4)
-        .max(6);
-    out.push_str(&format!(
-        "{:<width$}  {:<10}  {:>9}  tags\n",
-        "object", "kind", "triangles"
-    ));
-    for (id, object) in level.objects.iter().enumerate() {
-        let (kind, triangles) = match &object.geometry {
-            Geometry::Mesh(m) if world.is_closed(id) => ("closed", m.triangles.len().to_string()),
-            Geometry::Mesh(m) => ("mesh", m.triangles.len().to_string()),
-            Geometry::Primitive { shape, .. } => (primitive_name(shape), "-".to_string()),
-        };
-        out.push_str(&format!(
-            "{:<width$}  {kind:<10}  {triangles:>9}  {}\n",
-            object.name,
-            object.tags.join(", ")
-        ));
-    }
-    if !warnings.is_empty() {
-        out.push_str(&format!("\n{} warning(s):\n", warnings.len()));
-        for w in &warnings {
-            out.push_str(&format!("  {w}\n"));
-        }
-    }
-    write_stdout(&out);
-    Ok(ExitCode::SUCCESS)
-}
-
-fn primitive_name(shape: &plumbline::level::Primitive) -> &'static str {
-    use plumbline::level::Primitive::*;
-    match shape {
-        Sphere { .. } => "sphere",
-        Box { .. } => "box",
-        Capsule { .. } => "capsule",
-        Cylinder { .. } => "cylinder",
-        Convex { .. } => "convex",
-    }
-}
-
-/// Writes to stdout; a closed pipe (`plumbline info x | head`) is not an error.
-fn write_stdout(text: &str) {
-    let _ = std::io::stdout().lock().write_all(text.as_bytes());
 }

@@ -67,7 +67,7 @@ pub(crate) fn load_mesh_file(
 }
 
 /// Reads a whole input file; a missing or empty file is an error that names it.
-pub(crate) fn read_input(path: &Path) -> Result<Vec<u8>, InputError> {
+pub fn read_input(path: &Path) -> Result<Vec<u8>, InputError> {
     let bytes = std::fs::read(path)
         .map_err(|e| InputError::file(path, format!("cannot read the file: {e}")))?;
     if bytes.iter().all(u8::is_ascii_whitespace) {

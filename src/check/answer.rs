@@ -1,0 +1,175 @@
+//! Answering one probe with the query core and turning the answer into result records.
+
+use glam::DQuat;
+
+use super::records::{
+    ClearanceRecord, ClosestRecord, Hits, OverlapRecord, ProbeResult, RayHitRecord, SweepHitRecord,
+    Verdict,
+};
+use super::verdict::judge;
+use crate::json_text::{round9, round9_vec};
+use crate::level::ShapeSpec;
+use crate::probe::{HitsMode, Probe, ProbeQuery};
+use crate::query::{ClosestProbe, ProbeShape, QueryError, View, World};
+
+/// Answers one probe and judges it against its expectation.
+pub fn answer_probe(world: &World, probe: &Probe) -> ProbeResult {
+    let kind = probe.query.kind().to_string();
+    match answer(world, probe) {
+        Ok((hits, clearance)) => {
+            let (verdict, reason) = judge(probe, &hits, clearance.as_ref());
+            ProbeResult {
+                id: probe.id.clone(),
+                kind,
+                verdict,
+                reason,
+                hits,
+                clearance,
+            }
+        }
+        Err(QueryError(message)) => ProbeResult {
+            id: probe.id.clone(),
+            hits: Hits::empty(&kind),
+            kind,
+            verdict: Verdict::Error,
+            reason: format!("could not be answered: {message}"),
+            clearance: None,
+        },
+    }
+}
+
+type Answer = (Hits, Option<ClearanceRecord>);
+
+fn answer(world: &World, probe: &Probe) -> Result<Answer, QueryError> {
+    let view = world.view(&probe.filter);
+    let tags = |id| world.tags(id).to_vec();
+    let name = |id| world.name(id).to_string();
+    Ok(match &probe.query {
+        ProbeQuery::Ray { from, to, hits } => {
+            let found = if *hits == Some(HitsMode::All) {
+                view.ray_all(*from, *to)?
+            } else {
+                view.ray_first(*from, *to)?.into_iter().collect()
+            };
+            let records = found
+                .iter()
+                .map(|h| RayHitRecord {
+                    object: name(h.object),
+                    tags: tags(h.object),
+                    distance: round9(h.distance),
+                    t: round9(h.t),
+                    point: round9_vec(h.point),
+                    normal: round9_vec(h.normal),
+                    triangle: h.triangle,
+                    back_face: h.back_face,
+                })
+                .collect();
+            (Hits::Ray(records), None)
+        }
+        ProbeQuery::Sweep {
+            shape,
+            rotation,
+            path,
+            hits,
+            duration,
+            ..
+        } => {
+            let shape = probe_shape(shape, *rotation)?;
+            let found = view.sweep_all(&shape, path)?;
+            let kept = if *hits == Some(HitsMode::All) {
+                &found[..]
+            } else {
+                &found[..found.len().min(1)]
+            };
+            let records = kept
+                .iter()
+                .map(|h| SweepHitRecord {
+                    object: name(h.object),
+                    tags: tags(h.object),
+                    distance: round9(h.distance),
+                    t: round9(h.t),
+                    segment: h.segment,
+                    time: duration.map(|d| round9(h.t * d)),
+                    position: round9_vec(h.position),
+                    point: round9_vec(h.point),
+                    normal: round9_vec(h.normal),
+                    started_inside: h.started_inside,
+                })
+                .collect();
+            let clearance = if probe.query.wants_clearance(probe.expect.as_ref()) {
+                view.sweep_clearance(&shape, path, found.first())?
+                    .map(|c| ClearanceRecord {
+                        distance: round9(c.distance),
+                        t: round9(c.t),
+                        position: round9_vec(c.position),
+                        object: name(c.object),
+                        point: round9_vec(c.point),
+                    })
+            } else {
+                None
+            };
+            (Hits::Sweep(records), clearance)
+        }
+        ProbeQuery::Closest {
+            shape,
+            at,
+            rotation,
+            max_distance,
+        } => {
+            let probe_shape;
+            let target = if matches!(shape, ShapeSpec::Point) {
+                ClosestProbe::Point
+            } else {
+                probe_shape = self::probe_shape(shape, *rotation)?;
+                ClosestProbe::Shape(&probe_shape)
+            };
+            let records = view
+                .closest(target, *at, *max_distance)?
+                .map(|h| ClosestRecord {
+                    object: name(h.object),
+                    tags: tags(h.object),
+                    distance: round9(h.distance),
+                    point: round9_vec(h.point),
+                    shape_point: round9_vec(h.shape_point),
+                    normal: round9_vec(h.normal),
+                    overlapping: h.overlapping,
+                })
+                .into_iter()
+                .collect();
+            (Hits::Closest(records), None)
+        }
+        ProbeQuery::Overlap {
+            shape,
+            at,
+            rotation,
+        } => {
+            let shape = probe_shape(shape, *rotation)?;
+            let records = overlap_records(&view, &shape, *at)?;
+            (Hits::Overlap(records), None)
+        }
+    })
+}
+
+fn overlap_records(
+    view: &View,
+    shape: &ProbeShape,
+    at: glam::DVec3,
+) -> Result<Vec<OverlapRecord>, QueryError> {
+    let world = view.world();
+    Ok(view
+        .overlap(shape, at)?
+        .iter()
+        .map(|h| OverlapRecord {
+            object: world.name(h.object).to_string(),
+            tags: world.tags(h.object).to_vec(),
+            depth: round9(h.depth),
+            direction: round9_vec(h.direction),
+            point: round9_vec(h.point),
+            enclosed: h.enclosed,
+        })
+        .collect())
+}
+
+fn probe_shape(shape: &ShapeSpec, rotation: Option<DQuat>) -> Result<ProbeShape, QueryError> {
+    ProbeShape::new(shape, rotation.unwrap_or(DQuat::IDENTITY)).map_err(QueryError)
+}

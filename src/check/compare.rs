@@ -1,0 +1,142 @@
+//! What changed between two runs of a probe set: verdicts, blocked/clear, first object, and
+//! distances that moved by more than a tolerance.
+
+use std::fmt;
+
+use super::records::{ProbeResult, Verdict};
+use super::results_file::ResultsFile;
+use super::verdict::metres;
+
+/// The default tolerance for distance changes, metres (SPEC §4).
+pub const DEFAULT_TOLERANCE: f64 = 0.01;
+
+/// One aspect of a probe's answer that changed.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Aspect {
+    /// The verdict changed.
+    Verdict(Verdict, Verdict),
+    /// It became blocked (true) or clear (false).
+    Blocked(bool, bool),
+    /// The first object hit (nearest, deepest) changed.
+    FirstObject(Option<String>, Option<String>),
+    /// The first hit's distance (or depth) moved.
+    Distance(f64, f64),
+    /// A sweep's least clearance moved.
+    Clearance(f64, f64),
+}
+
+impl fmt::Display for Aspect {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        let state = |b: bool| if b { "blocked" } else { "clear" };
+        let name = |n: &Option<String>| n.clone().unwrap_or_else(|| "nothing".into());
+        match self {
+            Aspect::Verdict(a, b) => write!(f, "verdict {} -> {}", a.word(), b.word()),
+            Aspect::Blocked(a, b) => write!(f, "{} -> {}", state(*a), state(*b)),
+            Aspect::FirstObject(a, b) => write!(f, "first object {} -> {}", name(a), name(b)),
+            Aspect::Distance(a, b) => write!(
+                f,
+                "distance {} -> {} ({:+.3} m)",
+                metres(*a),
+                metres(*b),
+                b - a
+            ),
+            Aspect::Clearance(a, b) => write!(
+                f,
+                "clearance {} -> {} ({:+.3} m)",
+                metres(*a),
+                metres(*b),
+                b - a
+            ),
+        }
+    }
+}
+
+/// A probe whose answer changed.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ProbeChange {
+    /// The probe's id.
+    pub id: String,
+    /// What changed, in a fixed order (verdict first).
+    pub aspects: Vec<Aspect>,
+}
+
+/// Everything that changed between an old and a new run.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Comparison {
+    /// Probes in both runs whose answers changed, in the new run's order.
+    pub changed: Vec<ProbeChange>,
+    /// Probes only in the new run.
+    pub added: Vec<String>,
+    /// Probes only in the old run.
+    pub removed: Vec<String>,
+    /// True when the two runs were computed on different level geometry.
+    pub level_differs: bool,
+}
+
+impl Comparison {
+    /// True when nothing changed (a different level alone is not a change in answers).
+    pub fn is_empty(&self) -> bool {
+        self.changed.is_empty() && self.added.is_empty() && self.removed.is_empty()
+    }
+
+    /// Number of probes changed, added or removed.
+    pub fn count(&self) -> usize {
+        self.changed.len() + self.added.len() + self.removed.len()
+    }
+}
+
+/// Compares two runs; distances must move by more than `tolerance` metres to count.
+pub fn compare(old: &ResultsFile, new: &ResultsFile, tolerance: f64) -> Comparison {
+    let mut comparison = Comparison {
+        level_differs: old.level_digest != new.level_digest,
+        ..Comparison::default()
+    };
+    for n in &new.results {
+        match old.results.iter().find(|o| o.id == n.id) {
+            Some(o) => {
+                let aspects = changes(o, n, tolerance);
+                if !aspects.is_empty() {
+                    comparison.changed.push(ProbeChange {
+                        id: n.id.clone(),
+                        aspects,
+                    });
+                }
+            }
+            None => comparison.added.push(n.id.clone()),
+        }
+    }
+    comparison.removed = old
+        .results
+        .iter()
+        .filter(|o| !new.results.iter().any(|n| n.id == o.id))
+        .map(|o| o.id.clone())
+        .collect();
+    comparison
+}
+
+/// The aspects of one probe's answer that changed.
+pub fn changes(old: &ProbeResult, new: &ProbeResult, tolerance: f64) -> Vec<Aspect> {
+    let mut aspects = Vec::new();
+    if old.verdict != new.verdict {
+        aspects.push(Aspect::Verdict(old.verdict, new.verdict));
+    }
+    let (was, is) = (!old.hits.is_empty(), !new.hits.is_empty());
+    if was != is {
+        aspects.push(Aspect::Blocked(was, is));
+    }
+    let first_object = |r: &ProbeResult| r.hits.first().map(|(o, _, _)| o.to_string());
+    if first_object(old) != first_object(new) {
+        aspects.push(Aspect::FirstObject(first_object(old), first_object(new)));
+    }
+    if let (Some((_, _, a)), Some((_, _, b))) = (old.hits.first(), new.hits.first()) {
+        if (a - b).abs() > tolerance {
+            aspects.push(Aspect::Distance(a, b));
+        }
+    }
+    if let (Some(a), Some(b)) = (&old.clearance, &new.clearance) {
+        if (a.distance - b.distance).abs() > tolerance {
+            aspects.push(Aspect::Clearance(a.distance, b.distance));
+        }
+    }
+    aspects
+}

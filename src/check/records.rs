@@ -1,0 +1,259 @@
+//! The result records of SPEC §3, as written to and read from results files.
+
+use serde::{Deserialize, Serialize};
+
+/// How a probe's expectation fared.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Verdict {
+    /// Every expected condition holds.
+    Pass,
+    /// At least one expected condition does not hold.
+    Fail,
+    /// The probe has no expectation.
+    Unchecked,
+    /// The probe could not be answered.
+    Error,
+}
+
+impl Verdict {
+    /// The word used in files and reports.
+    pub fn word(self) -> &'static str {
+        match self {
+            Verdict::Pass => "pass",
+            Verdict::Fail => "fail",
+            Verdict::Unchecked => "unchecked",
+            Verdict::Error => "error",
+        }
+    }
+}
+
+/// A ray crossing.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RayHitRecord {
+    /// Object name.
+    pub object: String,
+    /// Object tags.
+    pub tags: Vec<String>,
+    /// Metres from `from`.
+    pub distance: f64,
+    /// Fraction of the segment.
+    pub t: f64,
+    /// Crossing point.
+    pub point: [f64; 3],
+    /// Unit normal facing the start.
+    pub normal: [f64; 3],
+    /// Triangle index in the object's mesh (meshes only).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub triangle: Option<u32>,
+    /// Crossed from behind.
+    #[serde(default, skip_serializing_if = "is_false")]
+    pub back_face: bool,
+}
+
+/// A sweep's first impact with one object.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct SweepHitRecord {
+    /// Object name.
+    pub object: String,
+    /// Object tags.
+    pub tags: Vec<String>,
+    /// Path length travelled before impact.
+    pub distance: f64,
+    /// Fraction of the path length.
+    pub t: f64,
+    /// Path segment index.
+    pub segment: usize,
+    /// Seconds into the path (when the probe has a duration).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub time: Option<f64>,
+    /// Shape centre at impact.
+    pub position: [f64; 3],
+    /// Contact point on the object.
+    pub point: [f64; 3],
+    /// Unit normal from the object towards the shape.
+    pub normal: [f64; 3],
+    /// Overlapping at the start of the path.
+    #[serde(default, skip_serializing_if = "is_false")]
+    pub started_inside: bool,
+}
+
+/// The nearest object to a closest-point probe.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ClosestRecord {
+    /// Object name.
+    pub object: String,
+    /// Object tags.
+    pub tags: Vec<String>,
+    /// Metres between probe and object (0 when overlapping).
+    pub distance: f64,
+    /// Nearest point on the object.
+    pub point: [f64; 3],
+    /// Nearest point on the probe shape.
+    pub shape_point: [f64; 3],
+    /// Unit normal from the object towards the probe.
+    pub normal: [f64; 3],
+    /// The probe overlaps the object.
+    #[serde(default, skip_serializing_if = "is_false")]
+    pub overlapping: bool,
+}
+
+/// One object an overlap probe overlaps.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct OverlapRecord {
+    /// Object name.
+    pub object: String,
+    /// Object tags.
+    pub tags: Vec<String>,
+    /// Penetration depth.
+    pub depth: f64,
+    /// Unit direction that separates the shape by `depth`.
+    pub direction: [f64; 3],
+    /// Deepest point on the object.
+    pub point: [f64; 3],
+    /// The shape is entirely inside a closed mesh.
+    #[serde(default, skip_serializing_if = "is_false")]
+    pub enclosed: bool,
+}
+
+/// The least clearance of a sweep over its whole path.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ClearanceRecord {
+    /// Smallest distance to the level (0 where it touches).
+    pub distance: f64,
+    /// Fraction of the path where it occurs.
+    pub t: f64,
+    /// Shape centre there.
+    pub position: [f64; 3],
+    /// Nearest object.
+    pub object: String,
+    /// Nearest point on it.
+    pub point: [f64; 3],
+}
+
+/// A probe's hits, by kind.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+#[serde(untagged)]
+pub enum Hits {
+    /// Ray crossings.
+    Ray(Vec<RayHitRecord>),
+    /// Sweep impacts.
+    Sweep(Vec<SweepHitRecord>),
+    /// At most one nearest object.
+    Closest(Vec<ClosestRecord>),
+    /// Overlapped objects, deepest first.
+    Overlap(Vec<OverlapRecord>),
+}
+
+impl Hits {
+    /// Number of hits.
+    pub fn len(&self) -> usize {
+        match self {
+            Hits::Ray(h) => h.len(),
+            Hits::Sweep(h) => h.len(),
+            Hits::Closest(h) => h.len(),
+            Hits::Overlap(h) => h.len(),
+        }
+    }
+
+    /// True when there are no hits (the probe is clear).
+    pub fn is_empty(&self) -> bool {
+        self.len() == 0
+    }
+
+    /// The first hit's object name and tags, and its measure: distance for rays, sweeps and closest,
+    /// depth for overlaps.
+    pub fn first(&self) -> Option<(&str, &[String], f64)> {
+        match self {
+            Hits::Ray(h) => h
+                .first()
+                .map(|x| (x.object.as_str(), x.tags.as_slice(), x.distance)),
+            Hits::Sweep(h) => h
+                .first()
+                .map(|x| (x.object.as_str(), x.tags.as_slice(), x.distance)),
+            Hits::Closest(h) => h
+                .first()
+                .map(|x| (x.object.as_str(), x.tags.as_slice(), x.distance)),
+            Hits::Overlap(h) => h
+                .first()
+                .map(|x| (x.object.as_str(), x.tags.as_slice(), x.depth)),
+        }
+    }
+
+    /// No hits, of the given probe kind.
+    pub fn empty(kind: &str) -> Hits {
+        match kind {
+            "ray" => Hits::Ray(Vec::new()),
+            "sweep" => Hits::Sweep(Vec::new()),
+            "closest" => Hits::Closest(Vec::new()),
+            _ => Hits::Overlap(Vec::new()),
+        }
+    }
+}
+
+/// One probe's answer and verdict.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct ProbeResult {
+    /// The probe's id.
+    pub id: String,
+    /// `ray`, `sweep`, `closest` or `overlap`.
+    pub kind: String,
+    /// How the expectation fared.
+    pub verdict: Verdict,
+    /// One sentence a designer can read.
+    pub reason: String,
+    /// The hits.
+    pub hits: Hits,
+    /// A sweep's least clearance, when asked for.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub clearance: Option<ClearanceRecord>,
+}
+
+/// Counts by verdict.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Summary {
+    /// All probes.
+    pub probes: usize,
+    /// Passed.
+    pub pass: usize,
+    /// Failed.
+    pub fail: usize,
+    /// Without expectation.
+    pub unchecked: usize,
+    /// Could not be answered.
+    pub error: usize,
+}
+
+impl Summary {
+    /// Counts the verdicts of a list of results.
+    pub fn of(results: &[ProbeResult]) -> Summary {
+        let mut s = Summary {
+            probes: results.len(),
+            ..Summary::default()
+        };
+        for r in results {
+            match r.verdict {
+                Verdict::Pass => s.pass += 1,
+                Verdict::Fail => s.fail += 1,
+                Verdict::Unchecked => s.unchecked += 1,
+                Verdict::Error => s.error += 1,
+            }
+        }
+        s
+    }
+
+    /// True when every expectation holds and no probe erred.
+    pub fn all_hold(&self) -> bool {
+        self.fail == 0 && self.error == 0
+    }
+}
+
+fn is_false(b: &bool) -> bool {
+    !*b
+}

@@ -1,0 +1,132 @@
+//! Judging an answer against a probe's expectation, with one sentence a designer can read.
+
+use super::records::{ClearanceRecord, Hits, Verdict};
+use crate::probe::{Conditions, Probe};
+
+/// The verdict and the reason for it.
+pub fn judge(probe: &Probe, hits: &Hits, clearance: Option<&ClearanceRecord>) -> (Verdict, String) {
+    let answer = describe(hits, clearance);
+    let Some(expect) = &probe.expect else {
+        return (Verdict::Unchecked, capitalise(&answer));
+    };
+    match first_unmet(&expect.conditions(), hits, clearance) {
+        None => (Verdict::Pass, format!("As expected: {answer}")),
+        Some(wanted) => (Verdict::Fail, format!("Expected {wanted}; {answer}")),
+    }
+}
+
+/// The first condition that does not hold, worded as what was expected.
+fn first_unmet(c: &Conditions, hits: &Hits, clearance: Option<&ClearanceRecord>) -> Option<String> {
+    let first = hits.first();
+    if let Some(blocked) = c.blocked {
+        if blocked == hits.is_empty() {
+            return Some(if blocked {
+                "blocked".into()
+            } else {
+                "clear".into()
+            });
+        }
+    }
+    if let Some(name) = &c.first_object {
+        if first.is_none_or(|(object, _, _)| object != name) {
+            return Some(format!("{} {name}", first_word(hits)));
+        }
+    }
+    if let Some(tag) = &c.first_tag {
+        if first.is_none_or(|(_, tags, _)| !tags.contains(tag)) {
+            return Some(format!("{} tagged {tag}", first_word(hits)));
+        }
+    }
+    if let Some(range) = c.distance {
+        let within = first.is_some_and(|(_, _, d)| {
+            range.min.is_none_or(|lo| d >= lo) && range.max.is_none_or(|hi| d <= hi)
+        });
+        if !within {
+            let wanted = match (range.min, range.max) {
+                (Some(lo), Some(hi)) => {
+                    format!("a distance between {} and {}", metres(lo), metres(hi))
+                }
+                (Some(lo), None) => format!("a distance of at least {}", metres(lo)),
+                (None, Some(hi)) => format!("a distance of at most {}", metres(hi)),
+                (None, None) => "a distance".to_string(),
+            };
+            return Some(wanted);
+        }
+    }
+    if let Some(min) = c.min_clearance {
+        if clearance.is_none_or(|cl| cl.distance < min) {
+            return Some(format!("a clearance of at least {}", metres(min)));
+        }
+    }
+    if let Some(max) = c.max_depth {
+        if first.is_some_and(|(_, _, depth)| depth > max) {
+            return Some(format!("a depth of at most {}", metres(max)));
+        }
+    }
+    None
+}
+
+fn first_word(hits: &Hits) -> &'static str {
+    match hits {
+        Hits::Ray(_) | Hits::Sweep(_) => "the first hit to be",
+        Hits::Closest(_) => "the nearest object to be",
+        Hits::Overlap(_) => "the deepest overlap to be",
+    }
+}
+
+/// What the probe found, in a few words.
+fn describe(hits: &Hits, clearance: Option<&ClearanceRecord>) -> String {
+    let more = if hits.len() > 1 {
+        format!(" (and {} more)", hits.len() - 1)
+    } else {
+        String::new()
+    };
+    let found = match hits {
+        Hits::Ray(h) => h
+            .first()
+            .map(|x| format!("blocked by {} at {}{more}", x.object, metres(x.distance))),
+        Hits::Sweep(h) => h.first().map(|x| {
+            if x.started_inside {
+                format!("starts inside {}{more}", x.object)
+            } else {
+                format!("hits {} after {}{more}", x.object, metres(x.distance))
+            }
+        }),
+        Hits::Closest(h) => h.first().map(|x| {
+            if x.overlapping {
+                format!("overlaps {}", x.object)
+            } else {
+                format!("nearest is {} at {}", x.object, metres(x.distance))
+            }
+        }),
+        Hits::Overlap(h) => h.first().map(|x| {
+            let how = if x.enclosed { "is inside" } else { "overlaps" };
+            format!("{how} {} by {}{more}", x.object, metres(x.depth))
+        }),
+    };
+    match (found, clearance) {
+        (Some(text), _) => text,
+        (None, Some(c)) => format!(
+            "clear; closest approach {} to {} at {:.0}% of the path",
+            metres(c.distance),
+            c.object,
+            c.t * 100.0
+        ),
+        (None, None) => match hits {
+            Hits::Closest(_) => "nothing within reach".to_string(),
+            _ => "clear".to_string(),
+        },
+    }
+}
+
+/// Metres with millimetre precision, as designers read them.
+pub fn metres(x: f64) -> String {
+    format!("{x:.3} m")
+}
+
+fn capitalise(s: &str) -> String {
+    let mut c = s.chars();
+    c.next().map_or_else(String::new, |f| {
+        f.to_uppercase().collect::<String>() + c.as_str()
+    })
+}

@@ -1,0 +1,71 @@
+//! `plumbline info LEVEL`: objects, tags, triangle counts, bounds and load warnings.
+
+use std::path::Path;
+use std::process::ExitCode;
+
+use plumbline::level::{Geometry, Primitive, level_digest, load_level};
+use plumbline::query::World;
+
+use super::terminal::write_stdout;
+
+/// Prints what the level holds; exit 0, or an error for unreadable input.
+pub fn info(path: &Path) -> Result<ExitCode, String> {
+    let (level, warnings) = load_level(path).map_err(|e| e.to_string())?;
+    let world = World::new(&level).map_err(|e| format!("{}: {e}", path.display()))?;
+    let mut out = String::new();
+    out.push_str(&format!("level     {}\n", path.display()));
+    out.push_str(&format!(
+        "up        [{}, {}, {}]\n",
+        level.up.x, level.up.y, level.up.z
+    ));
+    out.push_str(&format!("objects   {}\n", level.objects.len()));
+    out.push_str(&format!("triangles {}\n", level.triangle_count()));
+    if let Some((lo, hi)) = world.bounds() {
+        out.push_str(&format!(
+            "bounds    [{:.3}, {:.3}, {:.3}] .. [{:.3}, {:.3}, {:.3}]\n",
+            lo.x, lo.y, lo.z, hi.x, hi.y, hi.z
+        ));
+    }
+    out.push_str(&format!("digest    {}\n\n", level_digest(&level)));
+    let width = level
+        .objects
+        .iter()
+        .map(|o| o.name.len())
+        .max()
+        .unwrap_or(0)
+        .max(6);
+    out.push_str(&format!(
+        "{:<width$}  {:<8}  {:>9}  tags\n",
+        "object", "kind", "triangles"
+    ));
+    for (id, object) in level.objects.iter().enumerate() {
+        let (kind, triangles) = match &object.geometry {
+            Geometry::Mesh(m) if world.is_closed(id) => ("closed", m.triangles.len().to_string()),
+            Geometry::Mesh(m) => ("mesh", m.triangles.len().to_string()),
+            Geometry::Primitive { shape, .. } => (primitive_name(shape), "-".to_string()),
+        };
+        out.push_str(&format!(
+            "{:<width$}  {kind:<8}  {triangles:>9}  {}\n",
+            object.name,
+            object.tags.join(", ")
+        ));
+    }
+    if !warnings.is_empty() {
+        out.push_str(&format!("\n{} warning(s):\n", warnings.len()));
+        for w in &warnings {
+            out.push_str(&format!("  {w}\n"));
+        }
+    }
+    write_stdout(&out);
+    Ok(ExitCode::SUCCESS)
+}
+
+fn primitive_name(shape: &Primitive) -> &'static str {
+    match shape {
+        Primitive::Sphere { .. } => "sphere",
+        Primitive::Box { .. } => "box",
+        Primitive::Capsule { .. } => "capsule",
+        Primitive::Cylinder { .. } => "cylinder",
+        Primitive::Convex { .. } => "convex",
+    }
+}

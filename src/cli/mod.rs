@@ -1,0 +1,56 @@
+//! The command line's subcommands, each a thin shell over the library.
+
+mod check;
+mod diff;
+mod info;
+mod terminal;
+
+pub use check::{CheckOptions, check, watch};
+pub use diff::diff;
+pub use info::info;
+
+use plumbline::check::Comparison;
+use terminal::{Style, Tone, write_stdout};
+
+/// Exit status when an expectation fails, a probe errs, or (`diff`) something changed.
+pub const EXIT_FAILED: u8 = 1;
+/// Exit status for bad usage or input that cannot be read.
+pub const EXIT_BAD_INPUT: u8 = 2;
+
+/// Prints what changed between two runs.
+fn print_comparison(c: &Comparison, style: Style) {
+    let mut out = String::new();
+    if c.level_differs {
+        out.push_str(&style.paint(
+            Tone::Note,
+            "warning: the baseline was computed on different level geometry (level digests differ)\n",
+        ));
+    }
+    if c.is_empty() {
+        out.push_str(&style.paint(Tone::Good, "No changes since the baseline.\n"));
+        write_stdout(&out);
+        return;
+    }
+    out.push_str(&style.paint(
+        Tone::Note,
+        &format!("Changed since the baseline ({}):\n", c.count()),
+    ));
+    let width = c
+        .changed
+        .iter()
+        .map(|p| p.id.len())
+        .chain(c.added.iter().chain(&c.removed).map(String::len))
+        .max()
+        .unwrap_or(0);
+    for p in &c.changed {
+        let what: Vec<String> = p.aspects.iter().map(|a| a.to_string()).collect();
+        out.push_str(&format!("  {:<width$}  {}\n", p.id, what.join("; ")));
+    }
+    for id in &c.added {
+        out.push_str(&format!("  {id:<width$}  new probe\n"));
+    }
+    for id in &c.removed {
+        out.push_str(&format!("  {id:<width$}  removed\n"));
+    }
+    write_stdout(&out);
+}

@@ -1,0 +1,96 @@
+//! Terminal output: colour only on a terminal and never when `NO_COLOR` is set; a progress bar on
+//! stderr for runs longer than about a second.
+
+use std::io::{IsTerminal, Write};
+use std::time::{Duration, Instant};
+
+use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
+
+/// How stdout is styled.
+#[derive(Clone, Copy)]
+pub struct Style {
+    colour: bool,
+}
+
+impl Style {
+    /// Colour when stdout is a terminal and `NO_COLOR` is unset or empty.
+    pub fn detect() -> Style {
+        let no_color = std::env::var_os("NO_COLOR").is_some_and(|v| !v.is_empty());
+        Style {
+            colour: std::io::stdout().is_terminal() && !no_color,
+        }
+    }
+
+    /// `text` in a colour when colour is on: `Good`, `Bad`, `Note`, `Dim`.
+    pub fn paint(&self, tone: Tone, text: &str) -> String {
+        if !self.colour {
+            return text.to_string();
+        }
+        let code = match tone {
+            Tone::Good => "36",
+            Tone::Bad => "1;31",
+            Tone::Note => "33",
+            Tone::Dim => "2",
+        };
+        format!("\x1b[{code}m{text}\x1b[0m")
+    }
+}
+
+/// The tones the summary uses.
+#[derive(Clone, Copy)]
+pub enum Tone {
+    /// Holds.
+    Good,
+    /// Fails or errs.
+    Bad,
+    /// Changed, or a warning.
+    Note,
+    /// Secondary text.
+    Dim,
+}
+
+/// Writes to stdout; a closed pipe (`plumbline check … | head`) is not an error.
+pub fn write_stdout(text: &str) {
+    let _ = std::io::stdout().lock().write_all(text.as_bytes());
+}
+
+/// A progress bar over `total` probes that appears on a terminal's stderr once a run has taken a second.
+pub struct Progress {
+    bar: ProgressBar,
+    started: Instant,
+    on_terminal: bool,
+}
+
+impl Progress {
+    /// A hidden bar; it shows itself after a second when stderr is a terminal.
+    pub fn new(total: usize) -> Progress {
+        let bar = ProgressBar::with_draw_target(Some(total as u64), ProgressDrawTarget::hidden());
+        bar.set_style(
+            ProgressStyle::with_template(
+                "{bar:40} {pos}/{len} probes  {elapsed} elapsed, about {eta} left",
+            )
+            .expect("the template is valid"),
+        );
+        Progress {
+            bar,
+            started: Instant::now(),
+            on_terminal: std::io::stderr().is_terminal(),
+        }
+    }
+
+    /// Records that `done` probes are finished.
+    pub fn update(&self, done: usize) {
+        if self.on_terminal
+            && self.bar.is_hidden()
+            && self.started.elapsed() > Duration::from_secs(1)
+        {
+            self.bar.set_draw_target(ProgressDrawTarget::stderr());
+        }
+        self.bar.set_position(done as u64);
+    }
+
+    /// Removes the bar.
+    pub fn finish(&self) {
+        self.bar.finish_and_clear();
+    }
+}
