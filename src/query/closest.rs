@@ -84,10 +84,12 @@ impl View<'_> {
         match probe {
             ClosestProbe::Point => {
                 let proj = body.shape.project_point(&body.pose, at, false);
-                let inside = match body.mesh() {
-                    None => body.shape.contains_point(&body.pose, at),
-                    Some(_) => body.closed && proj.is_inside,
-                };
+                // A point on the surface is at distance 0 but not inside.
+                let inside = proj.point != at
+                    && match body.mesh() {
+                        None => body.shape.contains_point(&body.pose, at),
+                        Some(_) => body.closed && proj.is_inside,
+                    };
                 let distance = if inside { 0.0 } else { proj.point.distance(at) };
                 if distance > limit {
                     return None;

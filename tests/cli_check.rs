@@ -1,0 +1,414 @@
+//! `plumbline check` and `plumbline diff` from the outside: exit codes, the results file against a
+//! reviewed golden file, reports, determinism across thread counts, and baselines.
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+const FIXTURE: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/tests/fixtures/check");
+
+fn plumbline(dir: &Path, args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_plumbline"))
+        .current_dir(dir)
+        .args(args)
+        .env("NO_COLOR", "1")
+        .output()
+        .unwrap()
+}
+
+fn text(bytes: &[u8]) -> String {
+    String::from_utf8(bytes.to_vec()).unwrap()
+}
+
+/// A copy of the fixture folder, so tests can edit files without touching the repository.
+fn fixture_copy() -> tempfile::TempDir {
+    let dir = tempfile::tempdir().unwrap();
+    for name in ["lane.level.json", "lane.probes.json"] {
+        std::fs::copy(Path::new(FIXTURE).join(name), dir.path().join(name)).unwrap();
+    }
+    dir
+}
+
+fn out(dir: &Path, name: &str) -> PathBuf {
+    dir.join(name)
+}
+
+#[test]
+fn results_match_the_reviewed_golden_file() {
+    let dir = fixture_copy();
+    let run = plumbline(
+        dir.path(),
+        &[
+            "check",
+            "lane.probes.json",
+            "--out",
+            "r.json",
+            "--jobs",
+            "1",
+        ],
+    );
+    assert_eq!(run.status.code(), Some(1), "{}", text(&run.stderr));
+    let golden = std::fs::read_to_string(Path::new(FIXTURE).join("lane.results.json")).unwrap();
+    assert_eq!(
+        std::fs::read_to_string(out(dir.path(), "r.json")).unwrap(),
+        golden
+    );
+    let stdout = text(&run.stdout);
+    assert!(
+        stdout.contains("FAIL   spawn-by-bollard  Expected clear; overlaps bollard by 0.100 m"),
+        "{stdout}"
+    );
+    assert!(
+        stdout.contains("7 probes: 5 pass, 1 fail, 0 error, 1 unchecked"),
+        "{stdout}"
+    );
+}
+
+#[test]
+fn results_are_byte_identical_across_thread_counts() {
+    let dir = fixture_copy();
+    plumbline(
+        dir.path(),
+        &[
+            "check",
+            "lane.probes.json",
+            "--out",
+            "one.json",
+            "--jobs",
+            "1",
+        ],
+    );
+    plumbline(
+        dir.path(),
+        &[
+            "check",
+            "lane.probes.json",
+            "--out",
+            "two.json",
+            "--jobs",
+            "2",
+        ],
+    );
+    let one = std::fs::read(out(dir.path(), "one.json")).unwrap();
+    assert!(!one.is_empty());
+    assert_eq!(one, std::fs::read(out(dir.path(), "two.json")).unwrap());
+}
+
+#[test]
+fn exit_0_when_every_expectation_holds() {
+    let dir = fixture_copy();
+    let probes = std::fs::read_to_string(dir.path().join("lane.probes.json")).unwrap();
+    // Give the failing spawn probe room: one metre further from the bollard.
+    std::fs::write(
+        dir.path().join("lane.probes.json"),
+        probes.replace("[-1.4, 0.95, -2]", "[-2.4, 0.95, -2]"),
+    )
+    .unwrap();
+    let run = plumbline(dir.path(), &["check", "lane.probes.json", "--brief"]);
+    assert_eq!(run.status.code(), Some(0), "{}", text(&run.stdout));
+    assert!(
+        !text(&run.stdout).contains("pass  "),
+        "--brief lists no passes"
+    );
+}
+
+#[test]
+fn junit_xml_reads_back_with_an_xml_parser() {
+    let dir = fixture_copy();
+    plumbline(
+        dir.path(),
+        &["check", "lane.probes.json", "--junit", "j.xml"],
+    );
+    let xml = std::fs::read_to_string(out(dir.path(), "j.xml")).unwrap();
+    let doc = roxmltree::Document::parse(&xml).expect("well-formed XML");
+    let suites = doc.root_element();
+    assert_eq!(suites.tag_name().name(), "testsuites");
+    assert_eq!(suites.attribute("tests"), Some("7"));
+    assert_eq!(suites.attribute("failures"), Some("1"));
+    let cases: Vec<_> = doc
+        .descendants()
+        .filter(|n| n.has_tag_name("testcase"))
+        .collect();
+    assert_eq!(cases.len(), 7);
+    let failing = cases
+        .iter()
+        .find(|c| c.attribute("name") == Some("spawn-by-bollard"))
+        .unwrap();
+    let failure = failing
+        .children()
+        .find(|n| n.has_tag_name("failure"))
+        .expect("a failure element");
+    assert_eq!(
+        failure.attribute("message"),
+        Some("Expected clear; overlaps bollard by 0.100 m")
+    );
+    let skipped = cases
+        .iter()
+        .find(|c| c.attribute("name") == Some("no-expectation"))
+        .unwrap();
+    assert!(skipped.children().any(|n| n.has_tag_name("skipped")));
+}
+
+#[test]
+fn markdown_summary_lists_failures_and_changes() {
+    let dir = fixture_copy();
+    plumbline(
+        dir.path(),
+        &["check", "lane.probes.json", "--out", "base.json"],
+    );
+    let level = std::fs::read_to_string(dir.path().join("lane.level.json")).unwrap();
+    std::fs::write(
+        dir.path().join("lane.level.json"),
+        level.replace(
+            "\"translation\": [5, 1.5, 0]",
+            "\"translation\": [6, 1.5, 0]",
+        ),
+    )
+    .unwrap();
+    plumbline(
+        dir.path(),
+        &[
+            "check",
+            "lane.probes.json",
+            "--baseline",
+            "base.json",
+            "--markdown",
+            "m.md",
+        ],
+    );
+    let md = std::fs::read_to_string(out(dir.path(), "m.md")).unwrap();
+    assert!(
+        md.starts_with("### Plumbline check: 5 of 7 probes pass"),
+        "{md}"
+    );
+    assert!(md.contains("| `spawn-by-bollard` Spawn beside the bollard is clear | overlap | fail | Expected clear; overlaps bollard by 0.100 m |"), "{md}");
+    assert!(md.contains("#### Changed since the baseline"), "{md}");
+    assert!(md.contains("| `gate-sees-shed` Gate lookout sees the shed wall through the pane | distance 10.900 m -> 11.900 m (+1.000 m) |"), "{md}");
+}
+
+#[test]
+fn a_baseline_reports_exactly_the_edited_probes() {
+    let dir = fixture_copy();
+    plumbline(
+        dir.path(),
+        &["check", "lane.probes.json", "--out", "base.json"],
+    );
+    // Move the bollard 1 m away: only the spawn probe beside it changes.
+    let level = std::fs::read_to_string(dir.path().join("lane.level.json")).unwrap();
+    std::fs::write(
+        dir.path().join("lane.level.json"),
+        level.replace("[-1, 0.5, -2]", "[0, 0.5, -2]"),
+    )
+    .unwrap();
+    let run = plumbline(
+        dir.path(),
+        &[
+            "check",
+            "lane.probes.json",
+            "--baseline",
+            "base.json",
+            "--out",
+            "new.json",
+        ],
+    );
+    let stdout = text(&run.stdout);
+    assert!(
+        stdout.contains("warning: the baseline was computed on different level geometry"),
+        "{stdout}"
+    );
+    assert!(
+        stdout.contains("Changed since the baseline (1):"),
+        "{stdout}"
+    );
+    assert!(stdout.contains("spawn-by-bollard  verdict fail -> pass; blocked -> clear; first object bollard -> nothing"), "{stdout}");
+    assert_eq!(run.status.code(), Some(0), "every expectation holds now");
+    let strict = plumbline(
+        dir.path(),
+        &[
+            "check",
+            "lane.probes.json",
+            "--baseline",
+            "base.json",
+            "--fail-on-change",
+        ],
+    );
+    assert_eq!(strict.status.code(), Some(1));
+    // diff says the same, and exits 1 on changes, 0 on none.
+    let diff = plumbline(dir.path(), &["diff", "base.json", "new.json"]);
+    assert_eq!(diff.status.code(), Some(1));
+    assert!(text(&diff.stdout).contains("spawn-by-bollard  verdict fail -> pass"));
+    assert_eq!(
+        plumbline(dir.path(), &["diff", "new.json", "new.json"])
+            .status
+            .code(),
+        Some(0)
+    );
+    // A distance change under the tolerance is not a change.
+    let within = plumbline(
+        dir.path(),
+        &["diff", "base.json", "new.json", "--tolerance", "5"],
+    );
+    assert!(text(&within.stdout).contains("Changed since the baseline (1):"));
+}
+
+#[test]
+fn level_override_takes_another_level() {
+    let dir = fixture_copy();
+    let level = std::fs::read_to_string(dir.path().join("lane.level.json")).unwrap();
+    std::fs::write(
+        dir.path().join("other.level.json"),
+        level.replace("\"name\": \"bollard\"", "\"name\": \"post\""),
+    )
+    .unwrap();
+    let run = plumbline(
+        dir.path(),
+        &["check", "lane.probes.json", "--level", "other.level.json"],
+    );
+    assert!(text(&run.stdout).contains("overlaps post by 0.100 m"));
+}
+
+/// Each bad probe file exits 2 with one line naming the file and the place.
+#[test]
+fn bad_probe_files_exit_2_with_a_clear_message() {
+    let dir = fixture_copy();
+    let cases = [
+        (
+            r#"{"id": "a", "kind": "ray", "from": [0, 0, "x"], "to": [1, 0, 0]}"#,
+            "line 4, column 49",
+            "invalid type",
+        ),
+        (
+            r#"{"id": "a", "kind": "ray", "from": [0, 0, 0], "to": [1, 0, 0]}, {"id": "a", "kind": "ray", "from": [0, 0, 0], "to": [2, 0, 0]}"#,
+            "line 4, column 69",
+            "used twice",
+        ),
+        (
+            r#"{"id": "a", "kind": "laser", "from": [0, 0, 0], "to": [1, 0, 0]}"#,
+            "line 4, column 5",
+            "unknown kind \"laser\"",
+        ),
+        (
+            r#"{"id": "a", "kind": "ray", "from": [0, 0, NaN], "to": [1, 0, 0]}"#,
+            "line 4, column 47",
+            "expected value",
+        ),
+        (
+            r#"{"id": "a", "kind": "ray", "from": [0, 0, 0], "to": [1, 0, 0], "expect": {"blocked": true, "frist_object": "x"}}"#,
+            "line 4, column 109",
+            "unknown field `frist_object`",
+        ),
+        (
+            r#"{"id": "a", "kind": "ray", "from": [0, 0, 0], "to": [1, 0, 0], "path": [[0, 0, 0]]}"#,
+            "line 4, column 5",
+            "field \"path\" does not apply to a ray probe",
+        ),
+        (
+            r#"{"id": "a b", "kind": "ray", "from": [0, 0, 0], "to": [1, 0, 0]}"#,
+            "line 4, column 5",
+            "must be letters",
+        ),
+        (
+            r#"{"id": "a", "kind": "sweep", "shape": {"type": "point"}, "path": [[0, 0, 0], [1, 0, 0]]}"#,
+            "line 4, column 5",
+            "cannot be a point",
+        ),
+        (
+            r#"{"id": "a", "kind": "overlap", "shape": {"type": "sphere", "radius": 0}, "at": [0, 0, 0]}"#,
+            "line 4, column 5",
+            "radius must be a positive number",
+        ),
+        (
+            r#"{"id": "a", "kind": "closest", "shape": {"type": "point"}, "at": [0, 0, 0]}"#,
+            "line 4, column 5",
+            "needs \"max_distance\"",
+        ),
+    ];
+    for (k, (probe, place, message)) in cases.iter().enumerate() {
+        let name = format!("bad{k}.probes.json");
+        let file = format!(
+            "{{\n  \"plumbline\": \"probes\", \"version\": 1, \"level\": \"lane.level.json\",\n  \"probes\": [\n    {probe}\n  ]\n}}\n"
+        );
+        std::fs::write(dir.path().join(&name), file).unwrap();
+        let run = plumbline(dir.path(), &["check", &name]);
+        let stderr = text(&run.stderr);
+        assert_eq!(run.status.code(), Some(2), "case {k}: {stderr}");
+        assert_eq!(stderr.lines().count(), 1, "case {k}: {stderr}");
+        assert!(
+            stderr.contains(&format!("{name}: {place}")) && stderr.contains(message),
+            "case {k}: {stderr}"
+        );
+    }
+    std::fs::write(
+        dir.path().join("nolevel.probes.json"),
+        r#"{"plumbline": "probes", "version": 1, "level": "gone.level.json", "probes": []}"#,
+    )
+    .unwrap();
+    let run = plumbline(dir.path(), &["check", "nolevel.probes.json"]);
+    assert_eq!(run.status.code(), Some(2));
+    assert!(text(&run.stderr).contains("gone.level.json: cannot read the file"));
+    assert_eq!(
+        plumbline(dir.path(), &["check", "missing.probes.json"])
+            .status
+            .code(),
+        Some(2)
+    );
+    assert_eq!(
+        plumbline(
+            dir.path(),
+            &["check", "lane.probes.json", "--tolerance", "-1"]
+        )
+        .status
+        .code(),
+        Some(2)
+    );
+    assert_eq!(
+        plumbline(dir.path(), &["check", "lane.probes.json", "--jobs", "0"])
+            .status
+            .code(),
+        Some(2)
+    );
+}
+
+/// `check --watch` re-runs when the level changes on disk and prints what changed since the last run.
+#[test]
+fn watch_reruns_on_a_level_edit() {
+    use std::io::{BufRead, BufReader};
+    use std::sync::mpsc;
+    use std::time::Duration;
+    let dir = fixture_copy();
+    let mut child = Command::new(env!("CARGO_BIN_EXE_plumbline"))
+        .current_dir(dir.path())
+        .args(["check", "lane.probes.json", "--watch"])
+        .env("NO_COLOR", "1")
+        .stdout(std::process::Stdio::piped())
+        .spawn()
+        .unwrap();
+    let (tx, rx) = mpsc::channel();
+    let stdout = child.stdout.take().unwrap();
+    std::thread::spawn(move || {
+        for line in BufReader::new(stdout).lines().map_while(Result::ok) {
+            if tx.send(line).is_err() {
+                break;
+            }
+        }
+    });
+    let wait_for = |needle: &str| -> bool {
+        // A generous limit only so a broken watcher cannot hang the suite; not a speed check.
+        while let Ok(line) = rx.recv_timeout(Duration::from_secs(60)) {
+            if line.contains(needle) {
+                return true;
+            }
+        }
+        false
+    };
+    assert!(wait_for("watching for changes"), "first run finished");
+    let level = std::fs::read_to_string(dir.path().join("lane.level.json")).unwrap();
+    std::fs::write(
+        dir.path().join("lane.level.json"),
+        level.replace("[-1, 0.5, -2]", "[0, 0.5, -2]"),
+    )
+    .unwrap();
+    let saw_change = wait_for("spawn-by-bollard  verdict fail -> pass");
+    let _ = child.kill();
+    let _ = child.wait();
+    assert!(saw_change, "the edit was picked up and reported");
+}

@@ -1,0 +1,37 @@
+//! Probe-set files: load → save → load gives the same probe set, with order, labels and every field kept.
+
+use std::path::Path;
+
+use plumbline::probe::{parse_probe_set, probe_set_to_json};
+
+#[test]
+fn save_and_reload_is_identical() {
+    let path = Path::new(concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/tests/fixtures/check/lane.probes.json"
+    ));
+    let text = std::fs::read_to_string(path).unwrap();
+    let set = parse_probe_set(path, &text).unwrap();
+    let saved = probe_set_to_json(&set);
+    let again = parse_probe_set(path, &saved).unwrap();
+    assert_eq!(set, again);
+    assert_eq!(saved, probe_set_to_json(&again), "saving is stable");
+    let ids: Vec<&str> = again.probes.iter().map(|p| p.id.as_str()).collect();
+    assert_eq!(
+        ids,
+        [
+            "gate-sees-shed",
+            "pane-blocks",
+            "lane-camera",
+            "walk-to-shed",
+            "crate-grounded",
+            "spawn-by-bollard",
+            "no-expectation"
+        ]
+    );
+    assert!(saved.contains("\"label\": \"Crate 1 rests on the ground\""));
+    assert!(
+        saved.contains("\"path\": [[-8.0, 3.5, -6.0], [0.0, 3.5, -6.0], [8.0, 3.5, -6.0]]"),
+        "{saved}"
+    );
+}
