@@ -17,14 +17,7 @@ pub fn to_pretty(value: &Value) -> String {
 
 fn write_value(value: &Value, depth: usize, out: &mut String) {
     let inline = serde_json::to_string(value).expect("JSON values always serialise");
-    let simple = match value {
-        Value::Array(items) => items.iter().all(|i| !matches!(i, Value::Object(_))),
-        Value::Object(map) => map
-            .values()
-            .all(|v| !matches!(v, Value::Object(_) | Value::Array(_)) || is_flat(v)),
-        _ => true,
-    };
-    if simple && inline.len() + depth * 2 <= INLINE_WIDTH {
+    if nesting(value) <= 2 && inline.len() + depth * 2 <= INLINE_WIDTH {
         out.push_str(&spaced(&inline, value));
         return;
     }
@@ -56,16 +49,12 @@ fn write_value(value: &Value, depth: usize, out: &mut String) {
     }
 }
 
-/// True for arrays of scalars and objects of scalars.
-fn is_flat(value: &Value) -> bool {
+/// How deeply arrays and objects nest: 0 for a scalar, 1 for `[1, 2]`, 2 for `[[1], [2]]`.
+fn nesting(value: &Value) -> usize {
     match value {
-        Value::Array(items) => items
-            .iter()
-            .all(|i| !matches!(i, Value::Object(_) | Value::Array(_)) || is_flat(i)),
-        Value::Object(map) => map
-            .values()
-            .all(|v| !matches!(v, Value::Object(_) | Value::Array(_))),
-        _ => true,
+        Value::Array(items) => 1 + items.iter().map(nesting).max().unwrap_or(0),
+        Value::Object(map) => 1 + map.values().map(nesting).max().unwrap_or(0),
+        _ => 0,
     }
 }
 
@@ -118,10 +107,12 @@ mod tests {
     #[test]
     fn vectors_inline_and_records_broken() {
         let v = json!({"a": [1.0, 2.5, 3.0], "b": {"type": "sphere", "radius": 0.3}, "c": [{"x": 1}, {"y": "a,b"}]});
+        let deep = json!({"hits": [{"point": [1.0, 2.0, 3.0]}]});
+        assert_eq!(to_pretty(&deep), "{\n  \"hits\": [\n    {\"point\": [1.0, 2.0, 3.0]}\n  ]\n}\n");
         let text = to_pretty(&v);
         assert_eq!(
             text,
-            "{\n  \"a\": [1.0, 2.5, 3.0],\n  \"b\": {\"type\": \"sphere\", \"radius\": 0.3},\n  \"c\": [\n    {\"x\": 1},\n    {\"y\": \"a,b\"}\n  ]\n}\n"
+            "{\n  \"a\": [1.0, 2.5, 3.0],\n  \"b\": {\"type\": \"sphere\", \"radius\": 0.3},\n  \"c\": [{\"x\": 1}, {\"y\": \"a,b\"}]\n}\n"
         );
         assert_eq!(serde_json::from_str::<Value>(&text).unwrap(), v);
     }

@@ -6,6 +6,7 @@
 
 pub mod atomic;
 pub mod check;
+pub mod demo;
 pub mod error;
 pub mod json_text;
 pub mod level;

@@ -192,7 +192,7 @@ fn closed_mesh_crossings_come_in_pairs() {
         }
         let hits = world.everything().ray_all(from, to).unwrap();
         assert!(
-            hits.len() % 2 == 0,
+            hits.len().is_multiple_of(2),
             "{from:?} -> {to:?}: {} crossings",
             hits.len()
         );

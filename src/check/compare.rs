@@ -128,15 +128,15 @@ pub fn changes(old: &ProbeResult, new: &ProbeResult, tolerance: f64) -> Vec<Aspe
     if first_object(old) != first_object(new) {
         aspects.push(Aspect::FirstObject(first_object(old), first_object(new)));
     }
-    if let (Some((_, _, a)), Some((_, _, b))) = (old.hits.first(), new.hits.first()) {
-        if (a - b).abs() > tolerance {
-            aspects.push(Aspect::Distance(a, b));
-        }
+    if let (Some((_, _, a)), Some((_, _, b))) = (old.hits.first(), new.hits.first())
+        && (a - b).abs() > tolerance
+    {
+        aspects.push(Aspect::Distance(a, b));
     }
-    if let (Some(a), Some(b)) = (&old.clearance, &new.clearance) {
-        if (a.distance - b.distance).abs() > tolerance {
-            aspects.push(Aspect::Clearance(a.distance, b.distance));
-        }
+    if let (Some(a), Some(b)) = (&old.clearance, &new.clearance)
+        && (a.distance - b.distance).abs() > tolerance
+    {
+        aspects.push(Aspect::Clearance(a.distance, b.distance));
     }
     aspects
 }

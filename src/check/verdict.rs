@@ -18,24 +18,24 @@ pub fn judge(probe: &Probe, hits: &Hits, clearance: Option<&ClearanceRecord>) ->
 /// The first condition that does not hold, worded as what was expected.
 fn first_unmet(c: &Conditions, hits: &Hits, clearance: Option<&ClearanceRecord>) -> Option<String> {
     let first = hits.first();
-    if let Some(blocked) = c.blocked {
-        if blocked == hits.is_empty() {
-            return Some(if blocked {
-                "blocked".into()
-            } else {
-                "clear".into()
-            });
-        }
+    if let Some(blocked) = c.blocked
+        && blocked == hits.is_empty()
+    {
+        return Some(if blocked {
+            "blocked".into()
+        } else {
+            "clear".into()
+        });
     }
-    if let Some(name) = &c.first_object {
-        if first.is_none_or(|(object, _, _)| object != name) {
-            return Some(format!("{} {name}", first_word(hits)));
-        }
+    if let Some(name) = &c.first_object
+        && first.is_none_or(|(object, _, _)| object != name)
+    {
+        return Some(format!("{} {name}", first_word(hits)));
     }
-    if let Some(tag) = &c.first_tag {
-        if first.is_none_or(|(_, tags, _)| !tags.contains(tag)) {
-            return Some(format!("{} tagged {tag}", first_word(hits)));
-        }
+    if let Some(tag) = &c.first_tag
+        && first.is_none_or(|(_, tags, _)| !tags.contains(tag))
+    {
+        return Some(format!("{} tagged {tag}", first_word(hits)));
     }
     if let Some(range) = c.distance {
         let within = first.is_some_and(|(_, _, d)| {
@@ -53,15 +53,15 @@ fn first_unmet(c: &Conditions, hits: &Hits, clearance: Option<&ClearanceRecord>)
             return Some(wanted);
         }
     }
-    if let Some(min) = c.min_clearance {
-        if clearance.is_none_or(|cl| cl.distance < min) {
-            return Some(format!("a clearance of at least {}", metres(min)));
-        }
+    if let Some(min) = c.min_clearance
+        && clearance.is_none_or(|cl| cl.distance < min)
+    {
+        return Some(format!("a clearance of at least {}", metres(min)));
     }
-    if let Some(max) = c.max_depth {
-        if first.is_some_and(|(_, _, depth)| depth > max) {
-            return Some(format!("a depth of at most {}", metres(max)));
-        }
+    if let Some(max) = c.max_depth
+        && first.is_some_and(|(_, _, depth)| depth > max)
+    {
+        return Some(format!("a depth of at most {}", metres(max)));
     }
     None
 }

@@ -188,7 +188,7 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
         ));
     }
     let need = |field: &str| format!("a {} probe needs \"{field}\"", raw.kind);
-    let rotation = raw.rotation.map(|q| unit_quaternion(q)).transpose()?;
+    let rotation = raw.rotation.map(unit_quaternion).transpose()?;
     Ok(match raw.kind.as_str() {
         "ray" => {
             let from = finite_point("from", raw.from.ok_or_else(|| need("from"))?)?;
@@ -222,12 +222,12 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
             if path.windows(2).all(|w| w[0] == w[1]) {
                 return Err("the sweep path has no length".into());
             }
-            if let Some(d) = raw.duration {
-                if !(d.is_finite() && d > 0.0) {
-                    return Err(format!(
-                        "duration must be a positive number of seconds, not {d}"
-                    ));
-                }
+            if let Some(d) = raw.duration
+                && !(d.is_finite() && d > 0.0)
+            {
+                return Err(format!(
+                    "duration must be a positive number of seconds, not {d}"
+                ));
             }
             ProbeQuery::Sweep {
                 shape,
@@ -361,10 +361,10 @@ fn check_conditions(c: &Conditions, query: &ProbeQuery) -> Result<(), String> {
         for v in [r.min, r.max].into_iter().flatten() {
             metres("distance", v)?;
         }
-        if let (Some(lo), Some(hi)) = (r.min, r.max) {
-            if lo > hi {
-                return Err(format!("expect.distance has min {lo} above max {hi}"));
-            }
+        if let (Some(lo), Some(hi)) = (r.min, r.max)
+            && lo > hi
+        {
+            return Err(format!("expect.distance has min {lo} above max {hi}"));
         }
     }
     if let Some(v) = c.min_clearance {

@@ -45,7 +45,7 @@ impl View<'_> {
         if !at.is_finite() {
             return Err(QueryError("the probe position must be finite".into()));
         }
-        if !(max_distance >= 0.0) {
+        if max_distance.is_nan() || max_distance < 0.0 {
             return Err(QueryError("max_distance must be zero or more".into()));
         }
         let reach = match probe {
@@ -63,10 +63,10 @@ impl View<'_> {
                 continue;
             }
             let limit = best.map_or(max_distance, |b| b.distance);
-            if let Some(hit) = self.closest_on_body(id, &probe, at, limit) {
-                if best.is_none_or(|b| (hit.distance, hit.object) < (b.distance, b.object)) {
-                    best = Some(hit);
-                }
+            if let Some(hit) = self.closest_on_body(id, &probe, at, limit)
+                && best.is_none_or(|b| (hit.distance, hit.object) < (b.distance, b.object))
+            {
+                best = Some(hit);
             }
         }
         Ok(best)

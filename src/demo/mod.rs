@@ -1,0 +1,110 @@
+//! Generated demo data: Saltfen Quay, an invented freight yard on a river quay, with its probe set, an
+//! edited version and a baseline; and larger levels in the same style for benchmarks.
+//!
+//! Architecture invariant: generation is deterministic — the same call writes the same bytes on every
+//! machine (own random source, fixed order, stable number formatting).
+
+mod glb;
+mod probes;
+pub mod quay;
+mod shapes;
+
+use std::path::Path;
+
+pub use glb::{GlbObject, write_glb};
+pub use probes::probe_set;
+pub use shapes::MeshBuilder;
+
+use crate::atomic::write_atomic;
+use crate::check::{ResultsFile, run_probes};
+use crate::json_text::to_pretty;
+use crate::level::{Geometry, Level, LevelObject, level_digest, load_level};
+use crate::probe::probe_set_to_json;
+use crate::query::World;
+use quay::Detail;
+
+/// File names of the demo scene inside its folder.
+pub mod files {
+    /// The meshes.
+    pub const GLB: &str = "saltfen-quay.glb";
+    /// The level file.
+    pub const LEVEL: &str = "saltfen-quay.level.json";
+    /// The level after three edits.
+    pub const EDITED_LEVEL: &str = "saltfen-quay-edited.level.json";
+    /// The probe set.
+    pub const PROBES: &str = "saltfen-quay.probes.json";
+    /// Results of the probe set on the original level, the baseline for the edited one.
+    pub const BASELINE: &str = "saltfen-quay.baseline.results.json";
+}
+
+/// Writes the demo scene (all five files of [`files`]) into `folder`.
+pub fn write_demo_scene(folder: &Path) -> Result<(), String> {
+    write_scene(folder, Detail::Demo, true)
+}
+
+/// Writes a large level in the demo's style with at least `triangles` triangles: `saltfen-quay.glb`,
+/// the level file and the probe set (no edited level or baseline).
+pub fn write_large_scene(folder: &Path, triangles: usize) -> Result<(), String> {
+    write_scene(folder, Detail::Triangles(triangles), false)
+}
+
+fn write_scene(folder: &Path, detail: Detail, with_edits: bool) -> Result<(), String> {
+    std::fs::create_dir_all(folder)
+        .map_err(|e| format!("{}: cannot create the folder: {e}", folder.display()))?;
+    let write = |name: &str, bytes: &[u8]| {
+        let path = folder.join(name);
+        write_atomic(&path, bytes)
+            .map_err(|e| format!("{}: cannot write the file: {e}", path.display()))
+    };
+    let objects = quay::mesh_objects(detail);
+    let glb_objects: Vec<GlbObject> = objects
+        .iter()
+        .map(|o| GlbObject {
+            name: &o.name,
+            tags: &o.tags,
+            mesh: &o.mesh,
+        })
+        .collect();
+    write(files::GLB, &write_glb(&glb_objects))?;
+    write(
+        files::LEVEL,
+        to_pretty(&quay::level_file(files::GLB, false)).as_bytes(),
+    )?;
+    let set = probe_set(files::LEVEL);
+    write(files::PROBES, probe_set_to_json(&set).as_bytes())?;
+    if with_edits {
+        write(
+            files::EDITED_LEVEL,
+            to_pretty(&quay::level_file(files::GLB, true)).as_bytes(),
+        )?;
+        let (level, _) = load_level(&folder.join(files::LEVEL)).map_err(|e| e.to_string())?;
+        let world = World::new(&level)?;
+        let results = run_probes(&world, &set.probes, None, &|_| {})?;
+        let baseline = ResultsFile::new(
+            files::PROBES.into(),
+            files::LEVEL.into(),
+            level_digest(&level),
+            &set,
+            results,
+        );
+        write(files::BASELINE, baseline.to_json().as_bytes())?;
+    }
+    Ok(())
+}
+
+/// A level in the demo's style with at least `triangles` triangles, built in memory (meshes only,
+/// in f64; the files hold f32 positions): for benchmarks that should not depend on files on disk.
+pub fn large_level(triangles: usize) -> Level {
+    let objects = quay::mesh_objects(Detail::Triangles(triangles))
+        .into_iter()
+        .map(|o| LevelObject {
+            name: o.name,
+            tags: o.tags.iter().map(|t| t.to_string()).collect(),
+            geometry: Geometry::Mesh(o.mesh),
+        })
+        .collect();
+    Level {
+        up: glam::DVec3::Y,
+        objects,
+    }
+}

@@ -1,0 +1,476 @@
+//! The demo probe set: what a designer checks on Saltfen Quay, one probe per question, each with a
+//! label in words. One probe fails on purpose so a first run shows what a failure looks like.
+
+use glam::DVec3;
+
+use super::quay::layout::*;
+use super::quay::{bollards, crates, drums, ground_height};
+use crate::level::ShapeSpec;
+use crate::probe::{Conditions, Expect, ExpectWord, HitsMode, Probe, ProbeQuery, ProbeSet, Range};
+use crate::query::Filter;
+
+/// A character: capsule of radius 0.35 m and 1.8 m tall.
+fn character() -> ShapeSpec {
+    ShapeSpec::Capsule {
+        radius: 0.35,
+        half_height: 0.55,
+    }
+}
+
+/// The height of a standing character's centre with its feet 1 cm above a floor at `floor`.
+fn standing(floor: f64) -> f64 {
+    floor + 0.9 + 0.01
+}
+
+fn v(x: f64, y: f64, z: f64) -> DVec3 {
+    DVec3::new(x, y, z)
+}
+
+fn probe(id: &str, label: &str, query: ProbeQuery, expect: Option<Expect>) -> Probe {
+    Probe {
+        id: id.into(),
+        label: Some(label.into()),
+        filter: Filter::default(),
+        query,
+        expect,
+    }
+}
+
+fn clear() -> Option<Expect> {
+    Some(Expect::Word(ExpectWord::Clear))
+}
+
+fn blocked() -> Option<Expect> {
+    Some(Expect::Word(ExpectWord::Blocked))
+}
+
+fn when(c: Conditions) -> Option<Expect> {
+    Some(Expect::Conditions(c))
+}
+
+fn ray(from: DVec3, to: DVec3) -> ProbeQuery {
+    ProbeQuery::Ray {
+        from,
+        to,
+        hits: None,
+    }
+}
+
+fn walk(path: Vec<DVec3>) -> ProbeQuery {
+    ProbeQuery::Sweep {
+        shape: character(),
+        rotation: None,
+        path,
+        hits: None,
+        duration: None,
+        clearance: None,
+    }
+}
+
+fn spawn(at: DVec3) -> ProbeQuery {
+    ProbeQuery::Overlap {
+        shape: character(),
+        at,
+        rotation: None,
+    }
+}
+
+fn resting(at: DVec3) -> ProbeQuery {
+    ProbeQuery::Closest {
+        shape: ShapeSpec::Point,
+        at,
+        rotation: None,
+        max_distance: 0.5,
+    }
+}
+
+fn ignoring_tags(mut p: Probe, tags: &[&str]) -> Probe {
+    p.filter.ignore_tags = tags.iter().map(|t| t.to_string()).collect();
+    p
+}
+
+/// Eye height above a floor, for lookouts.
+const EYE: f64 = 1.7;
+
+/// The demo probe set for the level file `level`.
+pub fn probe_set(level: &str) -> ProbeSet {
+    let gate = v(0.0, EYE, QUAY_Z + 3.0);
+    let hill = v(-12.0, ground_height(-12.0, 82.0) + EYE, 82.0);
+    let catwalk_eye = v(40.7, CATWALK_Y + EYE, 7.0);
+    let [wx0, wz0, wx1, _] = WAREHOUSE;
+    let door_x = (VEHICLE_DOOR[0] + VEHICLE_DOOR[1]) * 0.5;
+    let personnel_x = (PERSONNEL_DOOR[0] + PERSONNEL_DOOR[1]) * 0.5;
+    let office_door_x = (OFFICE_DOOR[0] + OFFICE_DOOR[1]) * 0.5;
+    let [cx0, cx1, cz, _, _] = CULVERT;
+    let mut probes = vec![
+        // Sightlines.
+        probe(
+            "gate-sees-warehouse-door",
+            "Quay gate lookout sees into the warehouse's vehicle door",
+            ray(gate, v(door_x, 2.0, wz0 + 0.5)),
+            clear(),
+        ),
+        probe(
+            "gate-view-of-office-blocked",
+            "Containers hide the office door from the quay gate",
+            ray(gate, v(office_door_x, 1.2, OFFICE[1] - 0.5)),
+            when(Conditions {
+                first_tag: Some("container".into()),
+                ..Conditions::default()
+            }),
+        ),
+        probe(
+            "catwalk-sees-bollard-12",
+            "From the catwalk, bollard 12 on the quay is in view",
+            ray(catwalk_eye, v(40.0, 0.9, QUAY_Z + 0.4)),
+            when(Conditions {
+                first_object: Some("bollard-12".into()),
+                ..Conditions::default()
+            }),
+        ),
+        ignoring_tags(
+            probe(
+                "office-window-view",
+                "From the office desk, the view through the south window is open",
+                ray(v(-30.5, 1.6, 18.0), v(-30.5, 1.6, -5.0)),
+                clear(),
+            ),
+            &["glass"],
+        ),
+        probe(
+            "office-window-is-glazed",
+            "The office's south window has glass in it",
+            ray(v(-30.5, 1.6, 18.0), v(-30.5, 1.6, -5.0)),
+            when(Conditions {
+                first_tag: Some("glass".into()),
+                ..Conditions::default()
+            }),
+        ),
+        ignoring_tags(
+            probe(
+                "hill-sees-yard-through-trees",
+                "Hill lookout sees the yard once foliage is see-through",
+                ray(hill, v(0.0, 1.0, 0.0)),
+                clear(),
+            ),
+            &["foliage"],
+        ),
+        probe(
+            "hill-view-screened-by-canopy",
+            "Tree canopies screen the yard from the hill lookout",
+            ray(hill, v(0.0, 1.0, 0.0)),
+            when(Conditions {
+                first_tag: Some("foliage".into()),
+                ..Conditions::default()
+            }),
+        ),
+        probe(
+            "fence-screens-low-view",
+            "The north fence blocks a low view into the yard",
+            ray(v(20.0, 1.2, FENCE_Z + 4.0), v(20.0, 1.0, 30.0)),
+            when(Conditions {
+                first_tag: Some("fence".into()),
+                distance: Some(Range {
+                    min: Some(3.9),
+                    max: Some(4.1),
+                }),
+                ..Conditions::default()
+            }),
+        ),
+        probe(
+            "warehouse-walls-crossed",
+            "A line through the warehouse at 5.5 m crosses its west wall, then leaves by the catwalk door",
+            ProbeQuery::Ray {
+                from: v(wx0 - 5.0, 5.5, 15.0),
+                to: v(wx1 + 5.0, 5.5, 14.6),
+                hits: Some(HitsMode::All),
+            },
+            when(Conditions {
+                first_object: Some("yard/warehouse".into()),
+                ..Conditions::default()
+            }),
+        ),
+        probe(
+            "crane-cab-sees-bollards",
+            "The crane driver sees the quay edge below the cab",
+            ray(v(0.0, 8.9, -36.7), v(-8.0, 0.9, QUAY_Z + 0.8)),
+            when(Conditions {
+                first_object: Some("bollard-06".into()),
+                ..Conditions::default()
+            }),
+        ),
+        // Camera paths.
+        probe(
+            "quay-camera",
+            "The quay camera glides under the crane and keeps a metre clear",
+            ProbeQuery::Sweep {
+                shape: ShapeSpec::Sphere { radius: 0.5 },
+                rotation: None,
+                path: vec![
+                    v(-55.0, 6.0, -35.5),
+                    v(-25.0, 6.5, -35.0),
+                    v(0.0, 6.0, -35.5),
+                    v(25.0, 6.5, -35.0),
+                    v(55.0, 6.0, -35.5),
+                ],
+                hits: None,
+                duration: Some(12.0),
+                clearance: Some(true),
+            },
+            when(Conditions {
+                blocked: Some(false),
+                min_clearance: Some(1.0),
+                ..Conditions::default()
+            }),
+        ),
+        probe(
+            "drone-flight",
+            "The drone's flight from the hill to the crane stays half a metre clear",
+            ProbeQuery::Sweep {
+                shape: ShapeSpec::Sphere { radius: 0.4 },
+                rotation: None,
+                path: vec![
+                    v(0.0, 16.0, 80.0),
+                    v(0.0, 13.0, 40.0),
+                    v(0.0, 12.0, -20.0),
+                    v(0.0, 12.5, -36.0),
+                ],
+                hits: None,
+                duration: Some(20.0),
+                clearance: None,
+            },
+            when(Conditions {
+                min_clearance: Some(0.5),
+                ..Conditions::default()
+            }),
+        ),
+        probe(
+            "ball-along-bollards",
+            "A ball rolled along the quay edge meets every bollard",
+            ProbeQuery::Sweep {
+                shape: ShapeSpec::Sphere { radius: 0.3 },
+                rotation: None,
+                path: vec![v(-52.0, 0.5, QUAY_Z + 0.7), v(52.0, 0.5, QUAY_Z + 0.7)],
+                hits: Some(HitsMode::All),
+                duration: Some(8.0),
+                clearance: None,
+            },
+            None,
+        ),
+        ignoring_tags(
+            probe(
+                "forklift-route",
+                "A forklift can drive from the warehouse door to the quay with 0.3 m to spare",
+                ProbeQuery::Sweep {
+                    shape: ShapeSpec::Box {
+                        half_extents: [0.6, 1.1, 1.4],
+                    },
+                    rotation: None,
+                    path: vec![
+                        v(door_x, 1.16, wz0 - 3.0),
+                        v(door_x, 1.16, -20.0),
+                        v(5.0, 1.16, -30.0),
+                    ],
+                    hits: None,
+                    duration: None,
+                    clearance: None,
+                },
+                when(Conditions {
+                    min_clearance: Some(0.3),
+                    ..Conditions::default()
+                }),
+            ),
+            &["ground"],
+        ),
+        // A character through doorways, the culvert and up the stairs.
+        probe(
+            "walk-through-vehicle-door",
+            "A character walks in through the vehicle door",
+            walk(vec![
+                v(door_x, standing(0.0), wz0 - 7.0),
+                v(door_x, standing(0.0), wz0 + 7.0),
+            ]),
+            clear(),
+        ),
+        probe(
+            "walk-through-personnel-door",
+            "A character walks in through the personnel door",
+            walk(vec![
+                v(personnel_x, standing(0.0), wz0 - 6.0),
+                v(personnel_x, standing(0.0), wz0 + 5.0),
+            ]),
+            clear(),
+        ),
+        probe(
+            "walk-into-office",
+            "A character walks into the office",
+            walk(vec![
+                v(office_door_x, standing(0.0), OFFICE[1] - 5.0),
+                v(office_door_x, standing(0.0), OFFICE[1] + 5.0),
+            ]),
+            clear(),
+        ),
+        ignoring_tags(
+            probe(
+                "crawl-through-culvert",
+                "A character just fits through the culvert, 4 cm to spare",
+                ProbeQuery::Sweep {
+                    shape: character(),
+                    rotation: None,
+                    path: vec![
+                        v(cx0 - 4.0, standing(0.0), cz),
+                        v(cx1 + 4.0, standing(0.0), cz),
+                    ],
+                    hits: None,
+                    duration: Some(4.0),
+                    clearance: None,
+                },
+                when(Conditions {
+                    blocked: Some(false),
+                    min_clearance: Some(0.04),
+                    ..Conditions::default()
+                }),
+            ),
+            &["ground"],
+        ),
+        ignoring_tags(
+            probe(
+                "window-too-small",
+                "A character cannot climb through a warehouse window",
+                walk(vec![v(wx0 - 5.0, 3.1, 15.0), v(wx0 + 4.0, 3.1, 15.0)]),
+                blocked(),
+            ),
+            &["glass"],
+        ),
+        probe(
+            "walk-up-to-catwalk",
+            "A character climbs the stairs and walks the catwalk",
+            walk(vec![
+                v(40.7, standing(0.0), -1.5),
+                v(40.7, standing(0.0), -0.4),
+                v(40.7, standing(CATWALK_Y) + 0.01, 5.6),
+                v(40.7, standing(CATWALK_Y) + 0.01, 19.0),
+            ]),
+            clear(),
+        ),
+        // Spawn points.
+        probe(
+            "spawn-yard-east",
+            "Spawn in the east yard is clear",
+            spawn(v(30.0, standing(0.0), -20.0)),
+            clear(),
+        ),
+        probe(
+            "spawn-yard-west",
+            "Spawn in the west yard is clear",
+            spawn(v(-40.0, standing(0.0), -5.0)),
+            clear(),
+        ),
+        probe(
+            "spawn-warehouse",
+            "Spawn inside the warehouse is clear",
+            spawn(v(15.0, standing(0.0), 20.0)),
+            clear(),
+        ),
+        probe(
+            "spawn-catwalk",
+            "Spawn on the catwalk is clear",
+            spawn(v(40.7, standing(CATWALK_Y), 10.0)),
+            clear(),
+        ),
+        probe(
+            "spawn-office",
+            "Spawn inside the office is clear",
+            spawn(v(-37.0, standing(0.0), 22.0)),
+            clear(),
+        ),
+        probe(
+            "spawn-near-boulder",
+            "Spawn beside the boulder is clear",
+            spawn(v(BOULDER.x - 4.3, standing(0.0), BOULDER.z)),
+            clear(),
+        ),
+        probe(
+            "spawn-by-drums",
+            "Spawn beside the drums is clear (fails on purpose: the drums were put there later)",
+            spawn(v(8.4, standing(0.0), 3.2)),
+            clear(),
+        ),
+        probe(
+            "marker-buried-in-boulder",
+            "The treasure marker is buried inside the boulder",
+            ProbeQuery::Overlap {
+                shape: ShapeSpec::Sphere { radius: 0.2 },
+                at: BOULDER,
+                rotation: None,
+            },
+            blocked(),
+        ),
+        ignoring_tags(
+            probe(
+                "pallet-bay-clear-of-office",
+                "The pallet bay keeps half a metre from the office wall",
+                ProbeQuery::Closest {
+                    shape: ShapeSpec::Box {
+                        half_extents: [0.4, 0.6, 0.8],
+                    },
+                    at: v(-36.0, 0.61, 12.0),
+                    rotation: None,
+                    max_distance: 5.0,
+                },
+                when(Conditions {
+                    distance: Some(Range {
+                        min: Some(0.5),
+                        max: None,
+                    }),
+                    ..Conditions::default()
+                }),
+            ),
+            &["ground"],
+        ),
+    ];
+    let props = crates()
+        .into_iter()
+        .map(|(n, c)| (n.to_string(), c, 0.3, "sits"))
+        .chain(
+            drums()
+                .into_iter()
+                .map(|(n, c)| (n.to_string(), c, 0.45, "stands")),
+        )
+        .chain(
+            bollards()
+                .into_iter()
+                .step_by(6)
+                .map(|(n, c)| (n, c, 0.5, "stands")),
+        );
+    for (name, centre, half_height, verb) in props {
+        // A point 1 cm above the floor under the prop's centre lies inside the prop only while the
+        // prop rests on the floor; lifted or moved, the floor is nearest instead.
+        let probe_point = v(centre.x, centre.y - half_height + 0.01, centre.z);
+        probes.push(probe(
+            &format!("{name}-on-floor"),
+            &format!("{} {verb} on the floor at its spot", capitalised(&name)),
+            resting(probe_point),
+            when(Conditions {
+                first_object: Some(name.clone()),
+                distance: Some(Range {
+                    min: None,
+                    max: Some(0.0),
+                }),
+                ..Conditions::default()
+            }),
+        ));
+    }
+    ProbeSet {
+        level: level.to_string(),
+        probes,
+    }
+}
+
+fn capitalised(name: &str) -> String {
+    let mut c = name.replace('-', " ").chars().collect::<Vec<_>>();
+    if let Some(first) = c.first_mut() {
+        *first = first.to_ascii_uppercase();
+    }
+    c.into_iter().collect()
+}
