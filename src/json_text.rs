@@ -108,7 +108,10 @@ mod tests {
     fn vectors_inline_and_records_broken() {
         let v = json!({"a": [1.0, 2.5, 3.0], "b": {"type": "sphere", "radius": 0.3}, "c": [{"x": 1}, {"y": "a,b"}]});
         let deep = json!({"hits": [{"point": [1.0, 2.0, 3.0]}]});
-        assert_eq!(to_pretty(&deep), "{\n  \"hits\": [\n    {\"point\": [1.0, 2.0, 3.0]}\n  ]\n}\n");
+        assert_eq!(
+            to_pretty(&deep),
+            "{\n  \"hits\": [\n    {\"point\": [1.0, 2.0, 3.0]}\n  ]\n}\n"
+        );
         let text = to_pretty(&v);
         assert_eq!(
             text,

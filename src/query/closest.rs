@@ -52,24 +52,21 @@ impl View<'_> {
             ClosestProbe::Point => 0.0,
             ClosestProbe::Shape(shape) => shape.bounding_radius,
         };
-        let mut best: Option<ClosestHit> = None;
-        for id in self
-            .world
-            .bvh
-            .leaves(|node| node.aabb().distance_to_local_point(at, true) <= max_distance + reach)
-        {
-            let id = id as ObjectId;
-            if !self.allows(id) {
-                continue;
-            }
-            let limit = best.map_or(max_distance, |b| b.distance);
-            if let Some(hit) = self.closest_on_body(id, &probe, at, limit)
-                && best.is_none_or(|b| (hit.distance, hit.object) < (b.distance, b.object))
-            {
-                best = Some(hit);
-            }
-        }
-        Ok(best)
+        // Best-first over object boxes: a box whose distance exceeds the best answer so far is
+        // never opened. A hit exactly at `max_distance` still counts, hence the next float up.
+        let best = self.world.bvh.find_best(
+            max_distance.next_up(),
+            |node, _| node.aabb().distance_to_local_point(at, true) - reach,
+            |id, best_so_far| {
+                let id = id as ObjectId;
+                if !self.allows(id) {
+                    return None;
+                }
+                let hit = self.closest_on_body(id, &probe, at, best_so_far.min(max_distance))?;
+                Some((hit.distance, hit))
+            },
+        );
+        Ok(best.map(|(_, (_, hit))| hit))
     }
 
     /// The nearest point of one object to the probe, when within `limit`.
@@ -83,7 +80,19 @@ impl View<'_> {
         let body = &self.world.bodies[id];
         match probe {
             ClosestProbe::Point => {
-                let proj = body.shape.project_point(&body.pose, at, false);
+                let proj = match body
+                    .shape
+                    .project_point_with_max_dist(&body.pose, at, false, limit)
+                {
+                    Some(proj) => proj,
+                    // Farther than `limit` from the surface, but possibly inside a solid.
+                    None if (body.closed || body.mesh().is_none())
+                        && body.shape.contains_point(&body.pose, at) =>
+                    {
+                        body.shape.project_point(&body.pose, at, false)
+                    }
+                    None => return None,
+                };
                 // A point on the surface is at distance 0 but not inside.
                 let inside = proj.point != at
                     && match body.mesh() {

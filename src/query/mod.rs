@@ -3,7 +3,9 @@
 //!
 //! Architecture invariant: the core computes in f64 and never samples; every answer is either a
 //! closed-form or converged query of parry3d-f64 or our own exact test (watertight ray–triangle).
-//! Results are deterministic: ties are broken by distance, then object index, then triangle index.
+//! Results are deterministic: the same level and probe give the same answer. Exact ties between
+//! objects go to the one met first in the BVH's fixed traversal order (first-hit rays, closest
+//! points) or to the lower object index (sweeps, overlaps, all-hit lists).
 
 pub mod clearance;
 pub mod closest;

@@ -3,9 +3,8 @@
 use std::cell::Cell;
 
 use glam::DVec3;
-use parry3d_f64::bounding_volume::BoundingVolume;
 use parry3d_f64::partitioning::BvhNode;
-use parry3d_f64::query::{Ray, RayCast};
+use parry3d_f64::query::Ray;
 
 use super::watertight::ShearedRay;
 use super::world::{Body, ObjectId, View};
@@ -34,6 +33,7 @@ pub struct RayHit {
 struct Segment {
     from: DVec3,
     dir: DVec3,
+    inv_dir: DVec3,
     len: f64,
 }
 
@@ -48,9 +48,11 @@ impl Segment {
                 "the ray starts and ends at the same point".into(),
             ));
         }
+        let dir = (to - from) / len;
         Ok(Segment {
             from,
-            dir: (to - from) / len,
+            dir,
+            inv_dir: dir.recip(),
             len,
         })
     }
@@ -88,7 +90,7 @@ impl View<'_> {
         let best: Cell<Option<RayHit>> = Cell::new(None);
         self.world.bvh.find_best(
             seg.len,
-            |node, best| node_entry(node, &ray, best),
+            |node, best| node_entry(node, &ray, seg.inv_dir, best),
             |id, best_so_far| {
                 let id = id as ObjectId;
                 if !self.allows(id) {
@@ -124,7 +126,7 @@ impl View<'_> {
         for id in self
             .world
             .bvh
-            .leaves(|node| node.cast_ray(&ray, seg.len) <= seg.len)
+            .leaves(|node| node_entry(node, &ray, seg.inv_dir, seg.len) <= seg.len)
         {
             let id = id as ObjectId;
             if self.allows(id) {
@@ -152,7 +154,7 @@ fn first_hit_on_body(
         Some(mesh) => {
             let (tri, distance) = mesh.bvh().find_best(
                 max_distance,
-                |node, best| node_entry(node, ray, best),
+                |node, best| node_entry(node, ray, seg.inv_dir, best),
                 |tri, best| {
                     let t = mesh.triangle(tri);
                     sheared.intersect(t.a, t.b, t.c, best)
@@ -185,7 +187,7 @@ fn all_hits_on_body(
     };
     let mut own: Vec<RayHit> = mesh
         .bvh()
-        .leaves(|node| node_entry(node, ray, seg.len) <= seg.len)
+        .leaves(|node| node_entry(node, ray, seg.inv_dir, seg.len) <= seg.len)
         .filter_map(|tri| {
             let t = mesh.triangle(tri);
             let distance = sheared.intersect(t.a, t.b, t.c, seg.len)?;
@@ -214,11 +216,17 @@ fn all_hits_on_body(
 const NODE_SLACK: f64 = 1e-7;
 
 /// Where the ray enters a BVH node's box (grown by [`NODE_SLACK`]), or `f64::MAX` when it misses.
-fn node_entry(node: &BvhNode, ray: &Ray, max_distance: f64) -> f64 {
-    node.aabb()
-        .loosened(NODE_SLACK)
-        .cast_local_ray(ray, max_distance, true)
-        .unwrap_or(f64::MAX)
+/// The slab test of Williams et al. (2005) with a precomputed inverse direction: a zero direction
+/// component gives infinite slab distances, and the NaN of `0 × ∞` (origin on a slab plane) is
+/// ignored by `min`/`max`, so that axis does not constrain the ray.
+fn node_entry(node: &BvhNode, ray: &Ray, inv_dir: DVec3, max_distance: f64) -> f64 {
+    let lo = (node.mins() - DVec3::splat(NODE_SLACK) - ray.origin) * inv_dir;
+    let hi = (node.maxs() + DVec3::splat(NODE_SLACK) - ray.origin) * inv_dir;
+    let near = lo.min(hi);
+    let far = lo.max(hi);
+    let enter = near.x.max(near.y).max(near.z).max(0.0);
+    let exit = far.x.min(far.y).min(far.z).min(max_distance);
+    if enter <= exit { enter } else { f64::MAX }
 }
 
 /// The crossings of a convex primitive, in order along the segment: where the segment enters it

@@ -58,6 +58,11 @@ impl ProbeShape {
         })
     }
 
+    /// The radius when the shape is a ball.
+    pub fn ball_radius(&self) -> Option<f64> {
+        self.shape.as_ball().map(|b| b.radius)
+    }
+
     /// The pose of the shape with its centre at `at`.
     pub fn pose_at(&self, at: DVec3) -> Pose {
         Pose::from_parts(at, self.rotation)

@@ -4,7 +4,11 @@
 use glam::DVec3;
 use parry3d_f64::bounding_volume::{Aabb, BoundingVolume};
 use parry3d_f64::math::Pose;
-use parry3d_f64::query::{ShapeCastOptions, ShapeCastStatus, cast_shapes, contact};
+use parry3d_f64::query::PointQuery;
+use parry3d_f64::query::{
+    ClosestPoints, ShapeCastOptions, ShapeCastStatus, cast_shapes, closest_points, contact,
+};
+use parry3d_f64::shape::Shape;
 
 use super::shapes::ProbeShape;
 use super::world::{Body, ObjectId, View};
@@ -43,7 +47,9 @@ impl View<'_> {
         shape: &ProbeShape,
         path: &[DVec3],
     ) -> Result<Option<SweepHit>, QueryError> {
-        Ok(self.sweep_all(shape, path)?.into_iter().next())
+        let geometry = PathGeometry::new(path)?;
+        let first = self.impacts(shape, &geometry, true).into_iter().next();
+        Ok(first.map(|i| self.measure(i, shape, &geometry)))
     }
 
     /// For every object touched along the path, its first impact; sorted by distance travelled.
@@ -53,57 +59,91 @@ impl View<'_> {
         path: &[DVec3],
     ) -> Result<Vec<SweepHit>, QueryError> {
         let geometry = PathGeometry::new(path)?;
-        let mut hits: Vec<SweepHit> = Vec::new();
+        let impacts = self.impacts(shape, &geometry, false);
+        Ok(impacts
+            .into_iter()
+            .map(|i| self.measure(i, shape, &geometry))
+            .collect())
+    }
+
+    /// Times of impact along the path, sorted by distance travelled: every object's first, or with
+    /// `first_only` just the earliest (later candidates are cut off as soon as one is found).
+    fn impacts(
+        &self,
+        shape: &ProbeShape,
+        geometry: &PathGeometry,
+        first_only: bool,
+    ) -> Vec<Impact> {
+        let mut impacts: Vec<Impact> = Vec::new();
         let mut done = vec![false; self.world.len()];
-        for (s, (a, b)) in geometry.segments().enumerate() {
+        for (segment, (a, b)) in geometry.segments().enumerate() {
             let len = a.distance(b);
             if len == 0.0 {
                 continue;
             }
+            let mut limit = len;
             let swept = swept_aabb(shape, a, b, 0.0);
-            let candidates: Vec<u32> = self.world.bvh.intersect_aabb(&swept).collect();
-            for id in candidates {
-                let id = id as ObjectId;
-                if done[id] || !self.allows(id) {
+            for id in self.world.bvh.intersect_aabb(&swept) {
+                let object = id as ObjectId;
+                if done[object] || !self.allows(object) {
                     continue;
                 }
-                if let Some(hit) = self.segment_hit(id, shape, &geometry, s, a, b) {
-                    done[id] = true;
-                    hits.push(hit);
+                if let Some((toi, part, started_inside)) =
+                    self.time_of_impact(object, shape, segment, a, b, limit)
+                {
+                    done[object] = true;
+                    impacts.push(Impact {
+                        object,
+                        segment,
+                        toi,
+                        part,
+                        started_inside,
+                    });
+                    if first_only {
+                        limit = limit.min(toi);
+                    }
                 }
             }
+            if first_only && !impacts.is_empty() {
+                break;
+            }
         }
-        hits.sort_by(|x, y| {
-            x.distance
-                .total_cmp(&y.distance)
+        impacts.sort_by(|x, y| {
+            geometry
+                .distance_at(x.segment, x.toi)
+                .total_cmp(&geometry.distance_at(y.segment, y.toi))
                 .then(x.object.cmp(&y.object))
         });
-        Ok(hits)
+        if first_only {
+            impacts.truncate(1);
+        }
+        impacts
     }
 
-    /// The impact of the shape with one object on segment `s` (`a → b`) of the path, if any.
-    fn segment_hit(
+    /// When (metres along segment `segment`, `a → b`, up to `limit`) the shape first touches one
+    /// object, which part of it (the triangle of a mesh), and whether it already overlaps it at the
+    /// start of the path.
+    fn time_of_impact(
         &self,
         id: ObjectId,
         shape: &ProbeShape,
-        geometry: &PathGeometry,
-        s: usize,
+        segment: usize,
         a: DVec3,
         b: DVec3,
-    ) -> Option<SweepHit> {
+        limit: f64,
+    ) -> Option<(f64, u32, bool)> {
         let body = &self.world.bodies[id];
-        let len = a.distance(b);
-        let dir = (b - a) / len;
-        let start = shape.pose_at(a);
-        if s == 0 && body.closed && body.shape.contains_point(&body.pose, a) {
-            return Some(impact(body, id, shape, geometry, s, a, dir, 0.0, true));
+        let dir = (b - a) / a.distance(b);
+        if segment == 0 && body.closed && body.shape.contains_point(&body.pose, a) {
+            return Some((0.0, u32::MAX, true));
         }
         let options = ShapeCastOptions {
-            max_time_of_impact: len,
+            max_time_of_impact: limit,
             target_distance: 0.0,
             stop_at_penetration: true,
-            compute_impact_geometry_on_penetration: true,
+            compute_impact_geometry_on_penetration: false,
         };
+        let start = shape.pose_at(a);
         let cast = cast_shapes(
             &body.pose,
             DVec3::ZERO,
@@ -115,52 +155,135 @@ impl View<'_> {
         )
         .ok()??;
         let started_inside =
-            s == 0 && cast.status == ShapeCastStatus::PenetratingOrWithinTargetDist;
-        Some(impact(
-            body,
-            id,
-            shape,
-            geometry,
-            s,
-            a,
-            dir,
-            cast.time_of_impact,
-            started_inside,
-        ))
+            segment == 0 && cast.status == ShapeCastStatus::PenetratingOrWithinTargetDist;
+        Some((cast.time_of_impact, cast.subshape1, started_inside))
+    }
+
+    /// The full hit record of an impact, with the contact point and normal measured a hair before it.
+    fn measure(&self, impact: Impact, shape: &ProbeShape, geometry: &PathGeometry) -> SweepHit {
+        let (a, b) = geometry
+            .segments()
+            .nth(impact.segment)
+            .expect("the impact's segment exists");
+        let dir = (b - a) / a.distance(b);
+        let body = &self.world.bodies[impact.object];
+        let refined = match shape.ball_radius() {
+            Some(radius) if !impact.started_inside => {
+                refine_ball_impact(body, radius, a, dir, impact.toi)
+            }
+            _ => None,
+        };
+        let (toi, point, normal) = refined.unwrap_or_else(|| {
+            let position = a + dir * impact.toi;
+            let before = if impact.started_inside {
+                position
+            } else {
+                position - dir * RECONTACT_BACKOFF
+            };
+            let pose = shape.pose_at(before);
+            let part = match body.mesh() {
+                Some(mesh) if impact.part < mesh.num_triangles() as u32 => {
+                    part_contact(&mesh.triangle(impact.part), &Pose::IDENTITY, &pose, shape)
+                }
+                Some(_) => None,
+                None => part_contact(&*body.shape, &body.pose, &pose, shape),
+            };
+            let (point, normal) =
+                part.unwrap_or_else(|| contact_geometry(body, &pose, shape, -dir));
+            (impact.toi, point, normal)
+        });
+        let distance = geometry.distance_at(impact.segment, toi);
+        SweepHit {
+            object: impact.object,
+            distance,
+            t: geometry.fraction(distance),
+            segment: impact.segment,
+            position: a + dir * toi,
+            point,
+            normal,
+            started_inside: impact.started_inside,
+        }
     }
 }
 
-/// The hit record for an impact at `toi` metres along segment `s`, with the contact point and normal
-/// measured by a closest-point query a hair before impact.
-#[allow(clippy::too_many_arguments)]
-fn impact(
+/// A time of impact found along the path, before its contact geometry is measured.
+struct Impact {
+    object: ObjectId,
+    segment: usize,
+    toi: f64,
+    /// The triangle of a mesh that is hit (`u32::MAX` when not known).
+    part: u32,
+    started_inside: bool,
+}
+
+/// The exact time of impact of a ball of `radius` whose centre moves from `a` along unit `dir`
+/// against a body, refined from parry's estimate `toi`, with the contact point and the unit normal.
+///
+/// The gap is the distance from the centre to a convex part (a mesh triangle near the contact, or a
+/// primitive) minus the radius: an exact point projection (Ericson, Real-Time Collision Detection,
+/// 2005, §5.1.5 for triangles), convex in the distance travelled, with slope `normal · dir`. Newton's
+/// method on a convex decreasing function, started left of the root, never overshoots and converges
+/// quadratically (Ortega & Rheinboldt, Iterative Solution of Nonlinear Equations, 1970, §13.3). The
+/// earliest root over the parts is the impact. `None` when no part converges near `toi`.
+fn refine_ball_impact(
     body: &Body,
-    id: ObjectId,
-    shape: &ProbeShape,
-    geometry: &PathGeometry,
-    s: usize,
+    radius: f64,
     a: DVec3,
     dir: DVec3,
     toi: f64,
-    started_inside: bool,
-) -> SweepHit {
-    let position = a + dir * toi;
-    let before = if started_inside {
-        position
-    } else {
-        a + dir * (toi - RECONTACT_BACKOFF)
+) -> Option<(f64, DVec3, DVec3)> {
+    let refine = |project: &dyn Fn(DVec3) -> DVec3| -> Option<(f64, DVec3, DVec3)> {
+        let mut s = (toi - 1e-4).max(0.0);
+        for _ in 0..60 {
+            let centre = a + dir * s;
+            let point = project(centre);
+            let away = centre - point;
+            let gap = away.length() - radius;
+            if gap < -1e-9 {
+                return None;
+            }
+            let normal = away.try_normalize()?;
+            if gap <= 1e-12 {
+                return ((s - toi).abs() <= 1e-3).then_some((s, point, normal));
+            }
+            let closing = -normal.dot(dir);
+            if closing <= 1e-12 || s > toi + 1e-3 {
+                return None;
+            }
+            s += gap / closing;
+        }
+        None
     };
-    let (point, normal) = contact_geometry(body, &shape.pose_at(before), shape, -dir);
-    let distance = geometry.distance_at(s, toi);
-    SweepHit {
-        object: id,
-        distance,
-        t: geometry.fraction(distance),
-        segment: s,
-        position,
-        point,
-        normal,
-        started_inside,
+    match body.mesh() {
+        Some(mesh) => {
+            let reach = Aabb::from_points([a + dir * toi]).loosened(radius + 1e-3);
+            mesh.bvh()
+                .intersect_aabb(&reach)
+                .filter_map(|tri| {
+                    let triangle = mesh.triangle(tri);
+                    refine(&|p| triangle.project_local_point(p, false).point)
+                })
+                .min_by(|x, y| x.0.total_cmp(&y.0))
+        }
+        None => refine(&|p| body.shape.project_point(&body.pose, p, false).point),
+    }
+}
+
+/// The contact point on one convex part of an object (a mesh triangle or a primitive) and the unit
+/// normal from it towards the shape at `pose`, just before impact: one closest-point query.
+fn part_contact(
+    part: &dyn Shape,
+    part_pose: &Pose,
+    pose: &Pose,
+    shape: &ProbeShape,
+) -> Option<(DVec3, DVec3)> {
+    match closest_points(part_pose, part, pose, &*shape.shape, 1.0).ok()? {
+        ClosestPoints::WithinMargin(p1, p2) => Some((p1, (p2 - p1).try_normalize()?)),
+        ClosestPoints::Intersecting => {
+            let c = contact(part_pose, part, pose, &*shape.shape, 0.0).ok()??;
+            Some((c.point1, c.normal1.try_normalize()?))
+        }
+        ClosestPoints::Disjoint => None,
     }
 }
 
@@ -172,7 +295,9 @@ pub(crate) fn contact_geometry(
     shape: &ProbeShape,
     fallback: DVec3,
 ) -> (DVec3, DVec3) {
-    let prediction = 10.0 * RECONTACT_BACKOFF + shape.bounding_radius;
+    // A hair before impact the gap is at most the back-off (the gap shrinks no faster than the
+    // shape moves); twice that finds the contact without gathering far-away triangles.
+    let prediction = 2.0 * RECONTACT_BACKOFF;
     match contact(&body.pose, &*body.shape, pose, &*shape.shape, prediction) {
         Ok(Some(c)) if c.normal1.length_squared() > 0.0 => (c.point1, c.normal1.normalize()),
         Ok(Some(c)) => (c.point1, fallback),
