@@ -198,3 +198,69 @@ fn closed_mesh_crossings_come_in_pairs() {
         );
     }
 }
+
+/// A mesh larger than one part (`PART_TRIANGLES`) is split inside the World; answers, triangle
+/// indices and merged crossings are the same as for the whole mesh.
+#[test]
+fn split_meshes_answer_like_whole_ones() {
+    let n = 200; // 80,000 triangles: two parts
+    assert!(2 * n * n > plumbline::query::PART_TRIANGLES);
+    let mut v = Vec::new();
+    let mut t = Vec::new();
+    for i in 0..=n {
+        for j in 0..=n {
+            let (x, z) = (j as f64 * 0.5 - 50.0, i as f64 * 0.5 - 50.0);
+            v.push(DVec3::new(x, (0.3 * x).sin() + (0.2 * z).cos(), z));
+        }
+    }
+    let at = |i: usize, j: usize| (i * (n + 1) + j) as u32;
+    for i in 0..n {
+        for j in 0..n {
+            t.push([at(i, j), at(i + 1, j), at(i, j + 1)]);
+            t.push([at(i, j + 1), at(i + 1, j), at(i + 1, j + 1)]);
+        }
+    }
+    let world = LevelBuilder::new()
+        .mesh("ground", v.clone(), t.clone())
+        .world();
+    let mut runner = proptest::test_runner::TestRunner::deterministic();
+    let strategy = (point(45.0), point(45.0));
+    for _ in 0..300 {
+        let (mut from, mut to) = strategy.new_tree(&mut runner).unwrap().current();
+        from.y += 10.0;
+        to.y -= 10.0;
+        let hit = world.everything().ray_first(from, to).unwrap();
+        let oracle = brute_first(from, to, &v, &t);
+        assert_eq!(hit.is_some(), oracle.is_some());
+        if let (Some(h), Some(d)) = (hit, oracle) {
+            assert!((h.distance - d).abs() < 1e-9);
+            let tri = t[h.triangle.unwrap() as usize];
+            let dir = (to - from).normalize();
+            let own = moller_trumbore(
+                from,
+                dir,
+                v[tri[0] as usize],
+                v[tri[1] as usize],
+                v[tri[2] as usize],
+            );
+            assert!(
+                own.is_some_and(|x| (x - d).abs() < 1e-9),
+                "the reported triangle is the one crossed"
+            );
+        }
+        let p = DVec3::new(from.x, 0.5, from.z);
+        let near = world
+            .everything()
+            .closest(ClosestProbe::Point, p, 100.0)
+            .unwrap()
+            .unwrap();
+        assert!((near.distance - soup_distance(p, &v, &t)).abs() < 1e-9);
+    }
+    // A vertical ray through a grid vertex shared by six triangles: one crossing.
+    let vertex = v[at(n / 2, n / 2) as usize];
+    let hits = world
+        .everything()
+        .ray_all(vertex + DVec3::Y * 5.0, vertex - DVec3::Y * 5.0)
+        .unwrap();
+    assert_eq!(hits.len(), 1);
+}

@@ -191,8 +191,8 @@ fn terrain(detail: Detail) -> MeshBuilder {
     let cells = match detail {
         Detail::Demo => (250, 210),
         Detail::Triangles(n) => {
-            // Two triangles a cell over a 200 x 170 m area; everything else is about 30 thousand.
-            let wanted = (n.saturating_sub(30_000) / 2).max(1) as f64;
+            // Two triangles a cell over a 200 x 170 m area; everything else is about 15 thousand.
+            let wanted = (n.saturating_sub(14_000) / 2).max(1) as f64;
             let columns = (wanted * 200.0 / 170.0).sqrt().ceil() as usize;
             (columns, (wanted / columns as f64).ceil() as usize)
         }

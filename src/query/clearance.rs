@@ -76,12 +76,11 @@ impl View<'_> {
             let axis = Segment::new(a, b);
             let region = Aabb::from_points([a, b]).loosened(best.distance + shape.bounding_radius);
             let mut pieces: Vec<(f64, ObjectId, Piece)> = Vec::new();
-            for id in self.world.bvh.intersect_aabb(&region) {
-                let id = id as ObjectId;
-                if !self.allows(id) {
+            for leaf in self.world.bvh.intersect_aabb(&region) {
+                let Some(body) = self.body(leaf) else {
                     continue;
-                }
-                let body = &self.world.bodies[id];
+                };
+                let id = body.object;
                 match body.mesh() {
                     Some(mesh) => {
                         for tri in mesh.bvh().intersect_aabb(&region) {
@@ -94,7 +93,7 @@ impl View<'_> {
                         }
                     }
                     None => {
-                        let piece = Piece::Body(id);
+                        let piece = Piece::Body(leaf as usize);
                         let lower = self.piece_distance(&piece, &Pose::IDENTITY, &axis)
                             - shape.bounding_radius;
                         if lower < best.distance {
@@ -142,18 +141,18 @@ impl View<'_> {
     }
 }
 
-/// A convex piece of the level: one mesh triangle, or a whole convex primitive object.
+/// A convex piece of the level: one mesh triangle, or a whole convex primitive (by body index).
 enum Piece {
     Triangle(parry3d_f64::shape::Triangle),
-    Body(ObjectId),
+    Body(usize),
 }
 
 impl Piece {
     fn placed<'a>(&'a self, view: &'a View) -> (Pose, &'a dyn Shape) {
         match self {
             Piece::Triangle(t) => (Pose::IDENTITY, t),
-            Piece::Body(id) => {
-                let body = &view.world.bodies[*id];
+            Piece::Body(index) => {
+                let body = &view.world.bodies[*index];
                 (body.pose, &*body.shape)
             }
         }

@@ -6,7 +6,7 @@ use parry3d_f64::query::{ClosestPoints, PointQuery, closest_points};
 use super::QueryError;
 use super::shapes::ProbeShape;
 use super::sweep::contact_geometry;
-use super::world::{ObjectId, View};
+use super::world::{Body, ObjectId, View};
 
 /// The nearest object to a closest-point probe.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -57,12 +57,9 @@ impl View<'_> {
         let best = self.world.bvh.find_best(
             max_distance.next_up(),
             |node, _| node.aabb().distance_to_local_point(at, true) - reach,
-            |id, best_so_far| {
-                let id = id as ObjectId;
-                if !self.allows(id) {
-                    return None;
-                }
-                let hit = self.closest_on_body(id, &probe, at, best_so_far.min(max_distance))?;
+            |leaf, best_so_far| {
+                let body = self.body(leaf)?;
+                let hit = self.closest_on_body(body, &probe, at, best_so_far.min(max_distance))?;
                 Some((hit.distance, hit))
             },
         );
@@ -72,12 +69,12 @@ impl View<'_> {
     /// The nearest point of one object to the probe, when within `limit`.
     fn closest_on_body(
         &self,
-        id: ObjectId,
+        body: &Body,
         probe: &ClosestProbe,
         at: DVec3,
         limit: f64,
     ) -> Option<ClosestHit> {
-        let body = &self.world.bodies[id];
+        let id = body.object;
         match probe {
             ClosestProbe::Point => {
                 let proj = match body

@@ -25,7 +25,7 @@ pub use ray::RayHit;
 pub use shapes::ProbeShape;
 pub use sweep::SweepHit;
 pub use watertight::ShearedRay;
-pub use world::{Filter, ObjectId, View, World};
+pub use world::{Filter, ObjectId, PART_TRIANGLES, View, World};
 
 /// A probe the core cannot answer as asked (for example a ray of zero length); one sentence.
 #[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]

@@ -35,12 +35,11 @@ impl View<'_> {
         let pose = shape.pose_at(at);
         let bounds = shape.shape.compute_aabb(&pose);
         let mut hits = Vec::new();
-        for id in self.world.bvh.intersect_aabb(&bounds) {
-            let id = id as ObjectId;
-            if !self.allows(id) {
+        for leaf in self.world.bvh.intersect_aabb(&bounds) {
+            let Some(body) = self.body(leaf) else {
                 continue;
-            }
-            let body = &self.world.bodies[id];
+            };
+            let id = body.object;
             let touching = contact(&body.pose, &*body.shape, &pose, &*shape.shape, 0.0)
                 .ok()
                 .flatten();
@@ -68,6 +67,9 @@ impl View<'_> {
                 });
             }
         }
+        // An object split into parts keeps its deepest overlap.
+        hits.sort_by(|a, b| a.object.cmp(&b.object).then(b.depth.total_cmp(&a.depth)));
+        hits.dedup_by_key(|h| h.object);
         hits.sort_by(|a, b| b.depth.total_cmp(&a.depth).then(a.object.cmp(&b.object)));
         Ok(hits)
     }

@@ -91,19 +91,9 @@ impl View<'_> {
         self.world.bvh.find_best(
             seg.len,
             |node, best| node_entry(node, &ray, seg.inv_dir, best),
-            |id, best_so_far| {
-                let id = id as ObjectId;
-                if !self.allows(id) {
-                    return None;
-                }
-                let hit = first_hit_on_body(
-                    &self.world.bodies[id],
-                    id,
-                    &seg,
-                    &ray,
-                    &sheared,
-                    best_so_far,
-                )?;
+            |leaf, best_so_far| {
+                let body = self.body(leaf)?;
+                let hit = first_hit_on_body(body, &seg, &ray, &sheared, best_so_far)?;
                 if best
                     .get()
                     .is_none_or(|b| (hit.distance, hit.object) < (b.distance, b.object))
@@ -123,16 +113,30 @@ impl View<'_> {
         let ray = Ray::new(seg.from, seg.dir);
         let sheared = ShearedRay::new(seg.from, seg.dir);
         let mut hits = Vec::new();
-        for id in self
+        for leaf in self
             .world
             .bvh
             .leaves(|node| node_entry(node, &ray, seg.inv_dir, seg.len) <= seg.len)
         {
-            let id = id as ObjectId;
-            if self.allows(id) {
-                all_hits_on_body(&self.world.bodies[id], id, &seg, &ray, &sheared, &mut hits);
+            if let Some(body) = self.body(leaf) {
+                all_hits_on_body(body, &seg, &ray, &sheared, &mut hits);
             }
         }
+        // One crossing where the segment passes through an edge or vertex shared by several triangles
+        // of one object (also across the parts of a split mesh): hits on the same object at the same
+        // distance, crossing the same way, are the same crossing.
+        hits.sort_by(|a, b| {
+            a.object
+                .cmp(&b.object)
+                .then(a.distance.total_cmp(&b.distance))
+                .then(a.triangle.cmp(&b.triangle))
+        });
+        let tolerance = merge_tolerance(seg.len);
+        hits.dedup_by(|later, kept| {
+            later.object == kept.object
+                && later.back_face == kept.back_face
+                && later.distance - kept.distance <= tolerance
+        });
         hits.sort_by(|a, b| {
             a.distance
                 .total_cmp(&b.distance)
@@ -144,7 +148,6 @@ impl View<'_> {
 
 fn first_hit_on_body(
     body: &Body,
-    id: ObjectId,
     seg: &Segment,
     ray: &Ray,
     sheared: &ShearedRay,
@@ -160,52 +163,46 @@ fn first_hit_on_body(
                     sheared.intersect(t.a, t.b, t.c, best)
                 },
             )?;
-            Some(seg.hit(id, distance, triangle_normal(mesh, tri), Some(tri)))
+            Some(seg.hit(
+                body.object,
+                distance,
+                triangle_normal(mesh, tri),
+                Some(body.triangle_id(tri)),
+            ))
         }
-        None => primitive_crossings(body, id, seg, ray)
+        None => primitive_crossings(body, seg, ray)
             .into_iter()
             .flatten()
             .find(|h| h.distance <= max_distance),
     }
 }
 
+/// Pushes every crossing of the segment with one body (merged across shared edges by the caller).
 fn all_hits_on_body(
     body: &Body,
-    id: ObjectId,
     seg: &Segment,
     ray: &Ray,
     sheared: &ShearedRay,
     out: &mut Vec<RayHit>,
 ) {
     let Some(mesh) = body.mesh() else {
-        out.extend(
-            primitive_crossings(body, id, seg, ray)
-                .into_iter()
-                .flatten(),
-        );
+        out.extend(primitive_crossings(body, seg, ray).into_iter().flatten());
         return;
     };
-    let mut own: Vec<RayHit> = mesh
-        .bvh()
-        .leaves(|node| node_entry(node, ray, seg.inv_dir, seg.len) <= seg.len)
-        .filter_map(|tri| {
-            let t = mesh.triangle(tri);
-            let distance = sheared.intersect(t.a, t.b, t.c, seg.len)?;
-            Some(seg.hit(id, distance, triangle_normal(mesh, tri), Some(tri)))
-        })
-        .collect();
-    own.sort_by(|a, b| {
-        a.distance
-            .total_cmp(&b.distance)
-            .then(a.triangle.cmp(&b.triangle))
-    });
-    // One crossing where the segment passes through an edge or vertex shared by several triangles:
-    // hits at the same distance crossing the same way are the same crossing.
-    let tolerance = merge_tolerance(seg.len);
-    own.dedup_by(|later, kept| {
-        later.back_face == kept.back_face && later.distance - kept.distance <= tolerance
-    });
-    out.extend(own);
+    out.extend(
+        mesh.bvh()
+            .leaves(|node| node_entry(node, ray, seg.inv_dir, seg.len) <= seg.len)
+            .filter_map(|tri| {
+                let t = mesh.triangle(tri);
+                let distance = sheared.intersect(t.a, t.b, t.c, seg.len)?;
+                Some(seg.hit(
+                    body.object,
+                    distance,
+                    triangle_normal(mesh, tri),
+                    Some(body.triangle_id(tri)),
+                ))
+            }),
+    );
 }
 
 /// How much BVH boxes are grown for ray tests. The slab test of a box can miss a ray that passes
@@ -231,7 +228,7 @@ fn node_entry(node: &BvhNode, ray: &Ray, inv_dir: DVec3, max_distance: f64) -> f
 
 /// The crossings of a convex primitive, in order along the segment: where the segment enters it
 /// (when `from` is outside) and where it leaves it (when `to` is outside). A grazing touch is one.
-fn primitive_crossings(body: &Body, id: ObjectId, seg: &Segment, ray: &Ray) -> [Option<RayHit>; 2] {
+fn primitive_crossings(body: &Body, seg: &Segment, ray: &Ray) -> [Option<RayHit>; 2] {
     let shape = &*body.shape;
     let to = seg.from + seg.dir * seg.len;
     let strictly_inside = |p: DVec3| {
@@ -241,12 +238,12 @@ fn primitive_crossings(body: &Body, id: ObjectId, seg: &Segment, ray: &Ray) -> [
     let entry = (!strictly_inside(seg.from))
         .then(|| shape.cast_ray_and_get_normal(&body.pose, ray, seg.len, false))
         .flatten()
-        .map(|i| seg.hit(id, i.time_of_impact, i.normal, None));
+        .map(|i| seg.hit(body.object, i.time_of_impact, i.normal, None));
     let back = Ray::new(to, -seg.dir);
     let exit = (!strictly_inside(to))
         .then(|| shape.cast_ray_and_get_normal(&body.pose, &back, seg.len, false))
         .flatten()
-        .map(|i| seg.hit(id, seg.len - i.time_of_impact, i.normal, None))
+        .map(|i| seg.hit(body.object, seg.len - i.time_of_impact, i.normal, None))
         .filter(|x| entry.is_none_or(|e| x.distance - e.distance > merge_tolerance(seg.len)));
     [entry, exit]
 }

@@ -83,17 +83,20 @@ impl View<'_> {
             }
             let mut limit = len;
             let swept = swept_aabb(shape, a, b, 0.0);
-            for id in self.world.bvh.intersect_aabb(&swept) {
-                let object = id as ObjectId;
-                if done[object] || !self.allows(object) {
+            let mut found: Vec<Impact> = Vec::new();
+            for leaf in self.world.bvh.intersect_aabb(&swept) {
+                let Some(body) = self.body(leaf) else {
+                    continue;
+                };
+                if done[body.object] {
                     continue;
                 }
                 if let Some((toi, part, started_inside)) =
-                    self.time_of_impact(object, shape, segment, a, b, limit)
+                    time_of_impact(body, shape, segment, a, b, limit)
                 {
-                    done[object] = true;
-                    impacts.push(Impact {
-                        object,
+                    found.push(Impact {
+                        object: body.object,
+                        body: leaf as usize,
                         segment,
                         toi,
                         part,
@@ -104,6 +107,13 @@ impl View<'_> {
                     }
                 }
             }
+            // An object split into parts keeps its earliest impact.
+            found.sort_by(|x, y| x.object.cmp(&y.object).then(x.toi.total_cmp(&y.toi)));
+            found.dedup_by_key(|i| i.object);
+            for impact in &found {
+                done[impact.object] = true;
+            }
+            impacts.extend(found);
             if first_only && !impacts.is_empty() {
                 break;
             }
@@ -120,45 +130,6 @@ impl View<'_> {
         impacts
     }
 
-    /// When (metres along segment `segment`, `a → b`, up to `limit`) the shape first touches one
-    /// object, which part of it (the triangle of a mesh), and whether it already overlaps it at the
-    /// start of the path.
-    fn time_of_impact(
-        &self,
-        id: ObjectId,
-        shape: &ProbeShape,
-        segment: usize,
-        a: DVec3,
-        b: DVec3,
-        limit: f64,
-    ) -> Option<(f64, u32, bool)> {
-        let body = &self.world.bodies[id];
-        let dir = (b - a) / a.distance(b);
-        if segment == 0 && body.closed && body.shape.contains_point(&body.pose, a) {
-            return Some((0.0, u32::MAX, true));
-        }
-        let options = ShapeCastOptions {
-            max_time_of_impact: limit,
-            target_distance: 0.0,
-            stop_at_penetration: true,
-            compute_impact_geometry_on_penetration: false,
-        };
-        let start = shape.pose_at(a);
-        let cast = cast_shapes(
-            &body.pose,
-            DVec3::ZERO,
-            &*body.shape,
-            &start,
-            dir,
-            &*shape.shape,
-            options,
-        )
-        .ok()??;
-        let started_inside =
-            segment == 0 && cast.status == ShapeCastStatus::PenetratingOrWithinTargetDist;
-        Some((cast.time_of_impact, cast.subshape1, started_inside))
-    }
-
     /// The full hit record of an impact, with the contact point and normal measured a hair before it.
     fn measure(&self, impact: Impact, shape: &ProbeShape, geometry: &PathGeometry) -> SweepHit {
         let (a, b) = geometry
@@ -166,7 +137,7 @@ impl View<'_> {
             .nth(impact.segment)
             .expect("the impact's segment exists");
         let dir = (b - a) / a.distance(b);
-        let body = &self.world.bodies[impact.object];
+        let body = &self.world.bodies[impact.body];
         let refined = match shape.ball_radius() {
             Some(radius) if !impact.started_inside => {
                 refine_ball_impact(body, radius, a, dir, impact.toi)
@@ -206,9 +177,48 @@ impl View<'_> {
     }
 }
 
+/// When (metres along segment `segment`, `a → b`, up to `limit`) the shape first touches one
+/// object, which part of it (the triangle of a mesh), and whether it already overlaps it at the
+/// start of the path.
+fn time_of_impact(
+    body: &Body,
+    shape: &ProbeShape,
+    segment: usize,
+    a: DVec3,
+    b: DVec3,
+    limit: f64,
+) -> Option<(f64, u32, bool)> {
+    let dir = (b - a) / a.distance(b);
+    if segment == 0 && body.closed && body.shape.contains_point(&body.pose, a) {
+        return Some((0.0, u32::MAX, true));
+    }
+    let options = ShapeCastOptions {
+        max_time_of_impact: limit,
+        target_distance: 0.0,
+        stop_at_penetration: true,
+        compute_impact_geometry_on_penetration: false,
+    };
+    let start = shape.pose_at(a);
+    let cast = cast_shapes(
+        &body.pose,
+        DVec3::ZERO,
+        &*body.shape,
+        &start,
+        dir,
+        &*shape.shape,
+        options,
+    )
+    .ok()??;
+    let started_inside =
+        segment == 0 && cast.status == ShapeCastStatus::PenetratingOrWithinTargetDist;
+    Some((cast.time_of_impact, cast.subshape1, started_inside))
+}
+
 /// A time of impact found along the path, before its contact geometry is measured.
 struct Impact {
     object: ObjectId,
+    /// The body (part of the object) that is hit.
+    body: usize,
     segment: usize,
     toi: f64,
     /// The triangle of a mesh that is hit (`u32::MAX` when not known).

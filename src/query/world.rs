@@ -1,7 +1,5 @@
 //! The World: every level object as a parry3d-f64 shape, one BVH over the objects, and filtered views.
 
-use std::collections::HashMap;
-
 use glam::DVec3;
 use parry3d_f64::bounding_volume::Aabb;
 use parry3d_f64::math::Pose;
@@ -14,14 +12,22 @@ use crate::level::{Geometry, Level};
 /// Index of an object in the [`World`] (the same order as the level's objects).
 pub type ObjectId = usize;
 
-/// One object ready for queries.
+/// Open meshes larger than this are split into parts of this many triangles, grouped in space: the
+/// BVH of each part is built with bounded temporary memory, and the world's BVH holds the parts.
+pub const PART_TRIANGLES: usize = 1 << 16;
+
+/// One convex primitive, or one mesh or part of a mesh, ready for queries.
 pub(crate) struct Body {
     pub shape: SharedShape,
     pub pose: Pose,
     pub aabb: Aabb,
+    /// The object this body belongs to.
+    pub object: ObjectId,
     /// True for a triangle mesh that is closed (every edge shared by exactly two triangles with
-    /// opposite directions), so it has an inside.
+    /// opposite directions), so it has an inside. Closed meshes are never split.
     pub closed: bool,
+    /// For a part of a split mesh: the object's triangle index of each of the part's triangles.
+    triangle_ids: Option<Box<[u32]>>,
 }
 
 impl Body {
@@ -29,13 +35,22 @@ impl Body {
     pub fn mesh(&self) -> Option<&TriMesh> {
         self.shape.as_trimesh()
     }
+
+    /// The object's triangle index of this body's triangle `local`.
+    pub fn triangle_id(&self, local: u32) -> u32 {
+        self.triangle_ids
+            .as_ref()
+            .map_or(local, |ids| ids[local as usize])
+    }
 }
 
-/// The queryable level: parry shapes, one BVH over objects, names and tags.
+/// The queryable level: parry shapes, one BVH over objects (or their parts), names and tags.
 pub struct World {
+    /// Leaves of `bvh`: primitives, meshes and parts of meshes.
     pub(crate) bodies: Vec<Body>,
     names: Vec<String>,
     tags: Vec<Vec<String>>,
+    closed: Vec<bool>,
     pub(crate) bvh: Bvh,
     up: DVec3,
 }
@@ -44,35 +59,41 @@ impl World {
     /// Builds the world from a validated level.
     pub fn new(level: &Level) -> Result<World, String> {
         let mut bodies = Vec::with_capacity(level.objects.len());
-        for object in &level.objects {
-            let body = match &object.geometry {
-                Geometry::Mesh(mesh) => mesh_body(&mesh.vertices, &mesh.triangles)
-                    .map_err(|e| format!("object \"{}\": {e}", object.name))?,
+        for (object, item) in level.objects.iter().enumerate() {
+            let fail = |e: String| format!("object \"{}\": {e}", item.name);
+            match &item.geometry {
+                Geometry::Mesh(mesh) => bodies
+                    .extend(mesh_bodies(object, &mesh.vertices, &mesh.triangles).map_err(fail)?),
                 Geometry::Primitive {
                     shape,
                     translation,
                     rotation,
                 } => {
-                    let shape = primitive_shape(shape)
-                        .map_err(|e| format!("object \"{}\": {e}", object.name))?;
+                    let shape = primitive_shape(shape).map_err(fail)?;
                     let pose = Pose::from_parts(*translation, *rotation);
                     let aabb = shape.compute_aabb(&pose);
-                    Body {
+                    bodies.push(Body {
                         shape,
                         pose,
                         aabb,
+                        object,
                         closed: false,
-                    }
+                        triangle_ids: None,
+                    });
                 }
-            };
-            bodies.push(body);
+            }
         }
         let aabbs: Vec<Aabb> = bodies.iter().map(|b| b.aabb).collect();
         let bvh = Bvh::from_leaves(BvhBuildStrategy::Binned, &aabbs);
+        let mut closed = vec![false; level.objects.len()];
+        for body in &bodies {
+            closed[body.object] |= body.closed;
+        }
         Ok(World {
             bodies,
             names: level.objects.iter().map(|o| o.name.clone()).collect(),
             tags: level.objects.iter().map(|o| o.tags.clone()).collect(),
+            closed,
             bvh,
             up: level.up,
         })
@@ -80,12 +101,12 @@ impl World {
 
     /// Number of objects.
     pub fn len(&self) -> usize {
-        self.bodies.len()
+        self.names.len()
     }
 
     /// True when the world has no objects.
     pub fn is_empty(&self) -> bool {
-        self.bodies.is_empty()
+        self.names.is_empty()
     }
 
     /// The object's name.
@@ -100,7 +121,7 @@ impl World {
 
     /// True when the object is a closed triangle mesh (it has an inside).
     pub fn is_closed(&self, id: ObjectId) -> bool {
-        self.bodies[id].closed
+        self.closed[id]
     }
 
     /// The level's up axis.
@@ -185,17 +206,87 @@ impl<'w> View<'w> {
     pub fn allows(&self, id: ObjectId) -> bool {
         self.allowed.as_ref().is_none_or(|a| a[id])
     }
+
+    /// The body behind a world BVH leaf, when the view queries its object.
+    pub(crate) fn body(&self, leaf: u32) -> Option<&'w Body> {
+        let body = &self.world.bodies[leaf as usize];
+        self.allows(body.object).then_some(body)
+    }
 }
 
-fn mesh_body(vertices: &[DVec3], triangles: &[[u32; 3]]) -> Result<Body, String> {
+/// The bodies of one mesh object: the whole mesh, or for a large open mesh, parts of
+/// [`PART_TRIANGLES`] triangles grouped along a Morton curve of their centroids.
+fn mesh_bodies(
+    object: ObjectId,
+    vertices: &[DVec3],
+    triangles: &[[u32; 3]],
+) -> Result<Vec<Body>, String> {
     let (welded, indices) = weld(vertices, triangles);
-    let closed = is_closed(&indices);
-    let flags = if closed {
-        TriMeshFlags::ORIENTED
-    } else {
-        TriMeshFlags::empty()
-    };
-    let mesh = TriMesh::with_flags(welded, indices, flags)
+    if is_closed(&indices) {
+        return Ok(vec![mesh_body(
+            object,
+            welded,
+            indices,
+            TriMeshFlags::ORIENTED,
+            true,
+            None,
+        )?]);
+    }
+    // Open: the welded copy was only needed to tell; free it before any BVH is built.
+    drop((welded, indices));
+    if triangles.len() <= PART_TRIANGLES {
+        return Ok(vec![mesh_body(
+            object,
+            vertices.to_vec(),
+            triangles.to_vec(),
+            TriMeshFlags::empty(),
+            false,
+            None,
+        )?]);
+    }
+    let (welded, indices) = (vertices, triangles);
+    let order = morton_order(welded, indices);
+    let mut local_of = vec![u32::MAX; welded.len()];
+    let mut bodies = Vec::with_capacity(order.len().div_ceil(PART_TRIANGLES));
+    for part in order.chunks(PART_TRIANGLES) {
+        let mut part_vertices = Vec::new();
+        let mut part_indices = Vec::with_capacity(part.len());
+        for &t in part {
+            part_indices.push(indices[t as usize].map(|v| {
+                if local_of[v as usize] == u32::MAX {
+                    local_of[v as usize] = part_vertices.len() as u32;
+                    part_vertices.push(welded[v as usize]);
+                }
+                local_of[v as usize]
+            }));
+        }
+        for &t in part {
+            for v in indices[t as usize] {
+                local_of[v as usize] = u32::MAX;
+            }
+        }
+        let ids: Box<[u32]> = part.into();
+        bodies.push(mesh_body(
+            object,
+            part_vertices,
+            part_indices,
+            TriMeshFlags::empty(),
+            false,
+            Some(ids),
+        )?);
+    }
+    Ok(bodies)
+}
+
+fn mesh_body(
+    object: ObjectId,
+    vertices: Vec<DVec3>,
+    indices: Vec<[u32; 3]>,
+    flags: TriMeshFlags,
+    closed: bool,
+    triangle_ids: Option<Box<[u32]>>,
+) -> Result<Body, String> {
+    let mesh = TriMesh::with_flags(vertices, indices, flags)
         .map_err(|e| format!("cannot build the mesh: {e:?}"))?;
     let shape = SharedShape::new(mesh);
     let pose = Pose::IDENTITY;
@@ -204,42 +295,90 @@ fn mesh_body(vertices: &[DVec3], triangles: &[[u32; 3]]) -> Result<Body, String>
         shape,
         pose,
         aabb,
+        object,
         closed,
+        triangle_ids,
     })
 }
 
-/// Merges vertices at exactly the same position, keeping the triangle order.
+/// Triangle indices sorted along a Morton (Z-order) curve of their centroids, so that consecutive
+/// triangles are close in space (Morton, IBM technical report, 1966).
+fn morton_order(vertices: &[DVec3], triangles: &[[u32; 3]]) -> Vec<u32> {
+    let (lo, hi) = vertices.iter().fold(
+        (DVec3::splat(f64::MAX), DVec3::splat(f64::MIN)),
+        |(lo, hi), v| (lo.min(*v), hi.max(*v)),
+    );
+    let scale = (hi - lo).max(DVec3::splat(1e-12));
+    let spread = |x: u64| -> u64 {
+        // Spread 21 bits so that two zero bits separate each.
+        let mut x = x & 0x1f_ffff;
+        x = (x | (x << 32)) & 0x1f_0000_0000_ffff;
+        x = (x | (x << 16)) & 0x1f_0000_ff00_00ff;
+        x = (x | (x << 8)) & 0x100f_00f0_0f00_f00f;
+        x = (x | (x << 4)) & 0x10c3_0c30_c30c_30c3;
+        (x | (x << 2)) & 0x1249_2492_4924_9249
+    };
+    let code = |t: &[u32; 3]| {
+        let c = (vertices[t[0] as usize] + vertices[t[1] as usize] + vertices[t[2] as usize]) / 3.0;
+        let q = ((c - lo) / scale * 2_097_151.0).clamp(DVec3::ZERO, DVec3::splat(2_097_151.0));
+        spread(q.x as u64) | (spread(q.y as u64) << 1) | (spread(q.z as u64) << 2)
+    };
+    let mut order: Vec<u32> = (0..triangles.len() as u32).collect();
+    order.sort_unstable_by_key(|&t| (code(&triangles[t as usize]), t));
+    order
+}
+
+/// Merges vertices at exactly the same position, keeping the triangle order. Sorting vertex indices
+/// by position keeps the extra memory to two `u32` per vertex.
 fn weld(vertices: &[DVec3], triangles: &[[u32; 3]]) -> (Vec<DVec3>, Vec<[u32; 3]>) {
     let key = |v: DVec3| {
         v.to_array()
             .map(|c| if c == 0.0 { 0u64 } else { c.to_bits() })
     };
-    let mut first: HashMap<[u64; 3], u32> = HashMap::with_capacity(vertices.len());
-    let mut remap = Vec::with_capacity(vertices.len());
+    let mut order: Vec<u32> = (0..vertices.len() as u32).collect();
+    order.sort_unstable_by_key(|&i| (key(vertices[i as usize]), i));
+    let mut remap = vec![0u32; vertices.len()];
+    let mut first_of_run = vec![false; vertices.len()];
+    for (k, &i) in order.iter().enumerate() {
+        let same = k > 0 && key(vertices[order[k - 1] as usize]) == key(vertices[i as usize]);
+        // Within a run of equal positions, the lowest original index (sorted first) represents it.
+        remap[i as usize] = if same {
+            remap[order[k - 1] as usize]
+        } else {
+            i
+        };
+        first_of_run[i as usize] = !same;
+    }
+    drop(order);
+    // Keep representatives in their original order so welding a mesh without duplicates is a no-op.
+    let mut new_index = vec![u32::MAX; vertices.len()];
     let mut welded = Vec::with_capacity(vertices.len());
-    for &v in vertices {
-        let id = *first.entry(key(v)).or_insert_with(|| {
-            welded.push(v);
-            (welded.len() - 1) as u32
-        });
-        remap.push(id);
+    for (i, v) in vertices.iter().enumerate() {
+        if first_of_run[i] {
+            new_index[i] = welded.len() as u32;
+            welded.push(*v);
+        }
     }
     let indices = triangles
         .iter()
-        .map(|t| t.map(|i| remap[i as usize]))
+        .map(|t| t.map(|i| new_index[remap[i as usize] as usize]))
         .collect();
     (welded, indices)
 }
 
-/// True when every directed edge appears once and its reverse once (a closed, consistently wound mesh).
+/// True when every directed edge appears once and its reverse once (a closed, consistently wound
+/// mesh). Sorted edge keys keep the extra memory to 24 bytes per triangle.
 fn is_closed(triangles: &[[u32; 3]]) -> bool {
-    let mut edges: HashMap<(u32, u32), u32> = HashMap::with_capacity(triangles.len() * 3);
+    let mut edges: Vec<u64> = Vec::with_capacity(triangles.len() * 3);
     for t in triangles {
         for k in 0..3 {
-            *edges.entry((t[k], t[(k + 1) % 3])).or_insert(0) += 1;
+            edges.push((u64::from(t[k]) << 32) | u64::from(t[(k + 1) % 3]));
         }
     }
-    edges
-        .iter()
-        .all(|(&(a, b), &n)| n == 1 && edges.get(&(b, a)) == Some(&1))
+    edges.sort_unstable();
+    let unique = edges.windows(2).all(|w| w[0] != w[1]);
+    unique
+        && edges
+            .iter()
+            .all(|&e| edges.binary_search(&e.rotate_right(32)).is_ok())
 }
