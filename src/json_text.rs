@@ -16,9 +16,9 @@ pub fn to_pretty(value: &Value) -> String {
 }
 
 fn write_value(value: &Value, depth: usize, out: &mut String) {
-    let inline = serde_json::to_string(value).expect("JSON values always serialise");
-    if nesting(value) <= 2 && inline.len() + depth * 2 <= INLINE_WIDTH {
-        out.push_str(&spaced(&inline, value));
+    if nests_within(value, 2) && inline_len(value, INLINE_WIDTH.saturating_sub(depth * 2)).is_some()
+    {
+        write_inline(value, out);
         return;
     }
     let pad = "  ".repeat(depth + 1);
@@ -37,7 +37,7 @@ fn write_value(value: &Value, depth: usize, out: &mut String) {
             out.push_str("{\n");
             for (k, (key, item)) in map.iter().enumerate() {
                 out.push_str(&pad);
-                out.push_str(&serde_json::to_string(key).expect("keys serialise"));
+                write_scalar_string(key, out);
                 out.push_str(": ");
                 write_value(item, depth + 1, out);
                 out.push_str(if k + 1 < map.len() { ",\n" } else { "\n" });
@@ -45,47 +45,101 @@ fn write_value(value: &Value, depth: usize, out: &mut String) {
             out.push_str(&"  ".repeat(depth));
             out.push('}');
         }
-        _ => out.push_str(&inline),
+        scalar => write_inline(scalar, out),
     }
 }
 
-/// How deeply arrays and objects nest: 0 for a scalar, 1 for `[1, 2]`, 2 for `[[1], [2]]`.
-fn nesting(value: &Value) -> usize {
+/// Writes a value on one line, with a space after each `,` and `:`.
+fn write_inline(value: &Value, out: &mut String) {
     match value {
-        Value::Array(items) => 1 + items.iter().map(nesting).max().unwrap_or(0),
-        Value::Object(map) => 1 + map.values().map(nesting).max().unwrap_or(0),
-        _ => 0,
-    }
-}
-
-/// Compact JSON with a space after each `,` and `:` outside strings, for one-line readability.
-fn spaced(compact: &str, value: &Value) -> String {
-    if matches!(
-        value,
-        Value::String(_) | Value::Number(_) | Value::Bool(_) | Value::Null
-    ) {
-        return compact.to_string();
-    }
-    let mut out = String::with_capacity(compact.len() + 16);
-    let mut in_string = false;
-    let mut escaped = false;
-    for c in compact.chars() {
-        out.push(c);
-        if in_string {
-            if escaped {
-                escaped = false;
-            } else if c == '\\' {
-                escaped = true;
-            } else if c == '"' {
-                in_string = false;
+        Value::Array(items) => {
+            out.push('[');
+            for (k, item) in items.iter().enumerate() {
+                if k > 0 {
+                    out.push_str(", ");
+                }
+                write_inline(item, out);
             }
-        } else if c == '"' {
-            in_string = true;
-        } else if c == ',' || c == ':' {
-            out.push(' ');
+            out.push(']');
+        }
+        Value::Object(map) => {
+            out.push('{');
+            for (k, (key, item)) in map.iter().enumerate() {
+                if k > 0 {
+                    out.push_str(", ");
+                }
+                write_scalar_string(key, out);
+                out.push_str(": ");
+                write_inline(item, out);
+            }
+            out.push('}');
+        }
+        Value::String(s) => write_scalar_string(s, out),
+        scalar => {
+            use std::fmt::Write;
+            let _ = write!(out, "{scalar}");
         }
     }
-    out
+}
+
+fn write_scalar_string(s: &str, out: &mut String) {
+    out.push_str(&serde_json::to_string(s).expect("strings serialise"));
+}
+
+/// The one-line length of a value when it is at most `budget` characters, else `None` (stops early).
+fn inline_len(value: &Value, budget: usize) -> Option<usize> {
+    let len = match value {
+        Value::Array(items) => {
+            let mut len = 2 + 2 * items.len().saturating_sub(1);
+            for item in items {
+                len += inline_len(item, budget.checked_sub(len)?)?;
+            }
+            len
+        }
+        Value::Object(map) => {
+            let mut len = 2 + 2 * map.len().saturating_sub(1);
+            for (key, item) in map {
+                len += key.len() + 4;
+                len += inline_len(item, budget.checked_sub(len)?)?;
+            }
+            len
+        }
+        Value::String(s) => s.len() + 2,
+        Value::Number(n) => number_len(n),
+        Value::Bool(b) => {
+            if *b {
+                4
+            } else {
+                5
+            }
+        }
+        Value::Null => 4,
+    };
+    (len <= budget).then_some(len)
+}
+
+/// The length of a number as JSON writes it, without allocating.
+fn number_len(n: &serde_json::Number) -> usize {
+    struct Count(usize);
+    impl std::fmt::Write for Count {
+        fn write_str(&mut self, s: &str) -> std::fmt::Result {
+            self.0 += s.len();
+            Ok(())
+        }
+    }
+    let mut count = Count(0);
+    let _ = std::fmt::Write::write_fmt(&mut count, format_args!("{n}"));
+    count.0
+}
+
+/// True when arrays and objects nest at most `levels` deep (`[1, 2]` is 1, `[[1], [2]]` is 2);
+/// stops looking as soon as it is deeper, so large documents are not walked.
+fn nests_within(value: &Value, levels: usize) -> bool {
+    match value {
+        Value::Array(items) => levels > 0 && items.iter().all(|i| nests_within(i, levels - 1)),
+        Value::Object(map) => levels > 0 && map.values().all(|v| nests_within(v, levels - 1)),
+        _ => true,
+    }
 }
 
 /// Rounds a length, fraction or coordinate for output: nine decimals (a nanometre), and never `-0`.

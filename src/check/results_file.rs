@@ -13,7 +13,7 @@ use super::records::{
     SweepHitRecord, Verdict,
 };
 use crate::error::InputError;
-use crate::probe::{ProbeSet, probe_set_to_json};
+use crate::probe::{ProbeSet, write_probe_set_compact};
 
 /// A results file: what was checked, on which geometry, and every probe's result.
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -63,9 +63,11 @@ impl ResultsFile {
     }
 }
 
-/// A digest of a probe set's content (its canonical file form).
+/// A digest of a probe set's content (its compact canonical JSON).
 pub fn probes_digest(set: &ProbeSet) -> String {
-    let bytes = Sha256::digest(probe_set_to_json(set).as_bytes());
+    let mut hasher = Sha256::new();
+    write_probe_set_compact(set, &mut hasher).expect("hashing cannot fail");
+    let bytes = hasher.finalize();
     format!(
         "sha256:{}",
         bytes.iter().map(|b| format!("{b:02x}")).collect::<String>()

@@ -1,0 +1,158 @@
+//! `check` over 100,000 mixed probes on a generated 1M-triangle level: the whole run (answers,
+//! verdicts, results file written) beside the sum of the bare query calls for the same probes, on one
+//! thread; and the same run on two threads. Figures are in the README.
+
+mod common;
+
+use criterion::{BenchmarkId, Criterion, criterion_group, criterion_main};
+use glam::DQuat;
+use plumbline::check::{ResultsFile, run_probes};
+use plumbline::demo::quay::Random;
+use plumbline::level::{ShapeSpec, level_digest};
+use plumbline::probe::{Expect, ExpectWord, HitsMode, Probe, ProbeQuery, ProbeSet};
+use plumbline::query::{ClosestProbe, Filter, ProbeShape, World};
+
+const PROBES: usize = 100_000;
+
+fn probes() -> Vec<Probe> {
+    let segments = common::short_segments(PROBES);
+    let mut random = Random::new(11);
+    segments
+        .into_iter()
+        .enumerate()
+        .map(|(k, (from, to))| {
+            let pick = random.unit();
+            let sphere = ShapeSpec::Sphere { radius: 0.3 };
+            let capsule = ShapeSpec::Capsule {
+                radius: 0.35,
+                half_height: 0.55,
+            };
+            let query = if pick < 0.4 {
+                ProbeQuery::Ray {
+                    from,
+                    to,
+                    hits: None,
+                }
+            } else if pick < 0.6 {
+                ProbeQuery::Ray {
+                    from,
+                    to,
+                    hits: Some(HitsMode::All),
+                }
+            } else if pick < 0.75 {
+                ProbeQuery::Sweep {
+                    shape: sphere,
+                    rotation: None,
+                    path: vec![from, to],
+                    hits: None,
+                    duration: None,
+                    clearance: None,
+                }
+            } else if pick < 0.8 {
+                ProbeQuery::Sweep {
+                    shape: capsule,
+                    rotation: None,
+                    path: vec![from, to],
+                    hits: None,
+                    duration: None,
+                    clearance: None,
+                }
+            } else if pick < 0.9 {
+                ProbeQuery::Closest {
+                    shape: ShapeSpec::Point,
+                    at: from,
+                    rotation: None,
+                    max_distance: 5.0,
+                }
+            } else {
+                ProbeQuery::Overlap {
+                    shape: capsule,
+                    at: from,
+                    rotation: None,
+                }
+            };
+            Probe {
+                id: format!("p{k}"),
+                label: None,
+                filter: Filter::default(),
+                query,
+                expect: Some(Expect::Word(ExpectWord::Clear)),
+            }
+        })
+        .collect()
+}
+
+/// The bare query calls for the same probes, with nothing recorded.
+fn bare_queries(world: &World, probes: &[Probe]) -> usize {
+    let view = world.everything();
+    let mut found = 0;
+    for probe in probes {
+        found += match &probe.query {
+            ProbeQuery::Ray {
+                from,
+                to,
+                hits: None,
+            } => view.ray_first(*from, *to).unwrap().is_some() as usize,
+            ProbeQuery::Ray { from, to, .. } => view.ray_all(*from, *to).unwrap().len(),
+            ProbeQuery::Sweep { shape, path, .. } => {
+                let shape = ProbeShape::new(shape, DQuat::IDENTITY).unwrap();
+                view.sweep_first(&shape, path).unwrap().is_some() as usize
+            }
+            ProbeQuery::Closest {
+                at, max_distance, ..
+            } => view
+                .closest(ClosestProbe::Point, *at, *max_distance)
+                .unwrap()
+                .is_some() as usize,
+            ProbeQuery::Overlap { shape, at, .. } => {
+                let shape = ProbeShape::new(shape, DQuat::IDENTITY).unwrap();
+                view.overlap(&shape, *at).unwrap().len()
+            }
+        };
+    }
+    found
+}
+
+fn bench(c: &mut Criterion) {
+    let (level, _) = common::levels();
+    let world = World::new(&level).unwrap();
+    let digest = level_digest(&level);
+    let set = ProbeSet {
+        level: "bench.level.json".into(),
+        probes: probes(),
+    };
+    let out = tempfile::tempdir().unwrap();
+    let mut group = c.benchmark_group("check 100k probes");
+    group
+        .sample_size(10)
+        .measurement_time(std::time::Duration::from_secs(20));
+    group.bench_function(BenchmarkId::new("bare queries", "1 thread"), |b| {
+        b.iter(|| bare_queries(&world, &set.probes))
+    });
+    for jobs in [1usize, 2] {
+        group.bench_function(
+            BenchmarkId::new("check with results file", format!("{jobs} thread(s)")),
+            |b| {
+                b.iter(|| {
+                    let results = run_probes(&world, &set.probes, Some(jobs), &|_| {}).unwrap();
+                    let file = ResultsFile::new(
+                        "bench.probes.json".into(),
+                        "bench.level.json".into(),
+                        digest.clone(),
+                        &set,
+                        results,
+                    );
+                    plumbline::atomic::write_atomic(
+                        &out.path().join("bench.results.json"),
+                        file.to_json().as_bytes(),
+                    )
+                    .unwrap();
+                })
+            },
+        );
+    }
+    group.finish();
+}
+
+criterion_group!(benches, bench);
+criterion_main!(benches);
