@@ -25,9 +25,10 @@ fn main() {
             std::process::exit(2);
         });
     let loaded = start.elapsed();
-    let world = plumbline::query::World::new(&level).expect("the level builds");
-    let built = start.elapsed();
     let triangles = level.triangle_count();
+    // As `plumbline check` does: the World takes the level over.
+    let world = plumbline::query::World::from_level(level).expect("the level builds");
+    let built = start.elapsed();
     let peak = peak_rss_bytes().unwrap_or(0);
     println!("triangles            {triangles}");
     println!("load                 {:.3} s", loaded.as_secs_f64());

@@ -76,6 +76,38 @@ enum Command {
     },
 }
 
+/// With no command: check the bundled demo's probe set against the edited demo level, comparing with
+/// the baseline from the original level, so a first run shows every kind of answer and what changed.
+fn demo() -> Result<ExitCode, String> {
+    let scenes = demo_scenes();
+    println!("Plumbline demo: Saltfen Quay, a freight yard on a river quay, after three edits.");
+    println!("(`plumbline --help` lists the commands; the README walks through this run.)\n");
+    let options = cli::CheckOptions {
+        probes: scenes.join(plumbline::demo::files::PROBES),
+        level: Some(scenes.join(plumbline::demo::files::EDITED_LEVEL)),
+        out: None,
+        baseline: Some(scenes.join(plumbline::demo::files::BASELINE)),
+        junit: None,
+        markdown: None,
+        tolerance: DEFAULT_TOLERANCE,
+        fail_on_change: false,
+        jobs: None,
+        brief: false,
+    };
+    // The demo fails on purpose to show failures; as a demonstration it still ends successfully.
+    cli::check(&options).map(|_| ExitCode::SUCCESS)
+}
+
+/// The demo's folder: `scenes/` here, or the one in the source tree this binary was built from.
+fn demo_scenes() -> PathBuf {
+    let here = PathBuf::from("scenes");
+    if here.join(plumbline::demo::files::PROBES).is_file() {
+        here
+    } else {
+        PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("scenes")
+    }
+}
+
 fn parse_tolerance(text: &str) -> Result<f64, String> {
     match text.parse::<f64>() {
         Ok(v) if v.is_finite() && v >= 0.0 => Ok(v),
@@ -145,6 +177,6 @@ fn run(parsed: Cli) -> Result<ExitCode, String> {
             tolerance,
         }) => cli::diff(&old, &new, tolerance),
         Some(Command::Info { level }) => cli::info(&level),
-        None => Err("no command given; try `plumbline --help`".into()),
+        None => demo(),
     }
 }

@@ -175,7 +175,8 @@ fn run_once(options: &CheckOptions) -> Result<Run, String> {
         .join(&set.level);
     let level_path = options.level.clone().unwrap_or(beside_probes);
     let (level, warnings) = load_level(&level_path).map_err(|e| e.to_string())?;
-    let world = World::new(&level).map_err(|e| format!("{}: {e}", level_path.display()))?;
+    let (digest, triangles) = (level_digest(&level), level.triangle_count());
+    let world = World::from_level(level).map_err(|e| format!("{}: {e}", level_path.display()))?;
     let progress = Progress::new(set.probes.len());
     let results = run_probes(&world, &set.probes, options.jobs, &|done| {
         progress.update(done)
@@ -184,7 +185,7 @@ fn run_once(options: &CheckOptions) -> Result<Run, String> {
     let results = ResultsFile::new(
         options.probes.display().to_string(),
         level_path.display().to_string(),
-        level_digest(&level),
+        digest,
         &set,
         results,
     );
@@ -192,7 +193,7 @@ fn run_once(options: &CheckOptions) -> Result<Run, String> {
         set,
         level_path,
         results,
-        triangles: level.triangle_count(),
+        triangles,
         warnings: warnings.iter().map(|w| w.to_string()).collect(),
     })
 }

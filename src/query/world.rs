@@ -56,21 +56,31 @@ pub struct World {
 }
 
 impl World {
-    /// Builds the world from a validated level.
+    /// Builds the world from a validated level, which stays the caller's.
     pub fn new(level: &Level) -> Result<World, String> {
+        World::from_level(level.clone())
+    }
+
+    /// Builds the world from a validated level, taking it over: each mesh is handed to its body, or
+    /// freed as soon as its parts are built, so peak memory holds one copy of the geometry.
+    pub fn from_level(level: Level) -> Result<World, String> {
+        let up = level.up;
         let mut bodies = Vec::with_capacity(level.objects.len());
-        for (object, item) in level.objects.iter().enumerate() {
+        let mut names = Vec::with_capacity(level.objects.len());
+        let mut tags = Vec::with_capacity(level.objects.len());
+        for (object, item) in level.objects.into_iter().enumerate() {
             let fail = |e: String| format!("object \"{}\": {e}", item.name);
-            match &item.geometry {
-                Geometry::Mesh(mesh) => bodies
-                    .extend(mesh_bodies(object, &mesh.vertices, &mesh.triangles).map_err(fail)?),
+            match item.geometry {
+                Geometry::Mesh(mesh) => {
+                    bodies.extend(mesh_bodies(object, mesh.vertices, mesh.triangles).map_err(fail)?)
+                }
                 Geometry::Primitive {
                     shape,
                     translation,
                     rotation,
                 } => {
-                    let shape = primitive_shape(shape).map_err(fail)?;
-                    let pose = Pose::from_parts(*translation, *rotation);
+                    let shape = primitive_shape(&shape).map_err(fail)?;
+                    let pose = Pose::from_parts(translation, rotation);
                     let aabb = shape.compute_aabb(&pose);
                     bodies.push(Body {
                         shape,
@@ -82,20 +92,22 @@ impl World {
                     });
                 }
             }
+            names.push(item.name);
+            tags.push(item.tags);
         }
         let aabbs: Vec<Aabb> = bodies.iter().map(|b| b.aabb).collect();
         let bvh = Bvh::from_leaves(BvhBuildStrategy::Binned, &aabbs);
-        let mut closed = vec![false; level.objects.len()];
+        let mut closed = vec![false; names.len()];
         for body in &bodies {
             closed[body.object] |= body.closed;
         }
         Ok(World {
             bodies,
-            names: level.objects.iter().map(|o| o.name.clone()).collect(),
-            tags: level.objects.iter().map(|o| o.tags.clone()).collect(),
+            names,
+            tags,
             closed,
             bvh,
-            up: level.up,
+            up,
         })
     }
 
@@ -218,11 +230,12 @@ impl<'w> View<'w> {
 /// [`PART_TRIANGLES`] triangles grouped along a Morton curve of their centroids.
 fn mesh_bodies(
     object: ObjectId,
-    vertices: &[DVec3],
-    triangles: &[[u32; 3]],
+    vertices: Vec<DVec3>,
+    triangles: Vec<[u32; 3]>,
 ) -> Result<Vec<Body>, String> {
-    let (welded, indices) = weld(vertices, triangles);
+    let (welded, indices) = weld(&vertices, &triangles);
     if is_closed(&indices) {
+        drop((vertices, triangles));
         return Ok(vec![mesh_body(
             object,
             welded,
@@ -237,18 +250,20 @@ fn mesh_bodies(
     if triangles.len() <= PART_TRIANGLES {
         return Ok(vec![mesh_body(
             object,
-            vertices.to_vec(),
-            triangles.to_vec(),
+            vertices,
+            triangles,
             TriMeshFlags::empty(),
             false,
             None,
         )?]);
     }
     let (welded, indices) = (vertices, triangles);
-    let order = morton_order(welded, indices);
+    let mut order: Vec<u32> = (0..indices.len() as u32).collect();
+    let mut parts = Vec::new();
+    split_in_space(&welded, &indices, &mut order, &mut parts);
     let mut local_of = vec![u32::MAX; welded.len()];
-    let mut bodies = Vec::with_capacity(order.len().div_ceil(PART_TRIANGLES));
-    for part in order.chunks(PART_TRIANGLES) {
+    let mut bodies = Vec::with_capacity(parts.len());
+    for part in parts.iter().map(|r| &order[r.clone()]) {
         let mut part_vertices = Vec::new();
         let mut part_indices = Vec::with_capacity(part.len());
         for &t in part {
@@ -301,31 +316,47 @@ fn mesh_body(
     })
 }
 
-/// Triangle indices sorted along a Morton (Z-order) curve of their centroids, so that consecutive
-/// triangles are close in space (Morton, IBM technical report, 1966).
-fn morton_order(vertices: &[DVec3], triangles: &[[u32; 3]]) -> Vec<u32> {
-    let (lo, hi) = vertices.iter().fold(
-        (DVec3::splat(f64::MAX), DVec3::splat(f64::MIN)),
-        |(lo, hi), v| (lo.min(*v), hi.max(*v)),
-    );
-    let scale = (hi - lo).max(DVec3::splat(1e-12));
-    let spread = |x: u64| -> u64 {
-        // Spread 21 bits so that two zero bits separate each.
-        let mut x = x & 0x1f_ffff;
-        x = (x | (x << 32)) & 0x1f_0000_0000_ffff;
-        x = (x | (x << 16)) & 0x1f_0000_ff00_00ff;
-        x = (x | (x << 8)) & 0x100f_00f0_0f00_f00f;
-        x = (x | (x << 4)) & 0x10c3_0c30_c30c_30c3;
-        (x | (x << 2)) & 0x1249_2492_4924_9249
+/// Splits `order` (triangle indices) into ranges of at most [`PART_TRIANGLES`] triangles that are
+/// compact in space: the centroids are cut at the median of their widest axis, recursively (a
+/// k-d split; Bentley, "Multidimensional binary search trees", CACM 18(9), 1975), so parts overlap
+/// little and a query rarely opens more than one.
+fn split_in_space(
+    vertices: &[DVec3],
+    triangles: &[[u32; 3]],
+    order: &mut [u32],
+    parts: &mut Vec<std::ops::Range<usize>>,
+) {
+    let centroid = |t: u32| {
+        let [a, b, c] = triangles[t as usize];
+        vertices[a as usize] + vertices[b as usize] + vertices[c as usize]
     };
-    let code = |t: &[u32; 3]| {
-        let c = (vertices[t[0] as usize] + vertices[t[1] as usize] + vertices[t[2] as usize]) / 3.0;
-        let q = ((c - lo) / scale * 2_097_151.0).clamp(DVec3::ZERO, DVec3::splat(2_097_151.0));
-        spread(q.x as u64) | (spread(q.y as u64) << 1) | (spread(q.z as u64) << 2)
-    };
-    let mut order: Vec<u32> = (0..triangles.len() as u32).collect();
-    order.sort_unstable_by_key(|&t| (code(&triangles[t as usize]), t));
-    order
+    let mut pending = vec![0..order.len()];
+    while let Some(range) = pending.pop() {
+        if range.len() <= PART_TRIANGLES {
+            parts.push(range);
+            continue;
+        }
+        let slice = &mut order[range.clone()];
+        let (lo, hi) = slice.iter().fold(
+            (DVec3::splat(f64::MAX), DVec3::splat(f64::MIN)),
+            |(lo, hi), &t| {
+                let c = centroid(t);
+                (lo.min(c), hi.max(c))
+            },
+        );
+        let axis = (hi - lo).max_position();
+        // Cut at a multiple of the part size so parts come out full.
+        let half = slice.len().div_ceil(2).div_ceil(PART_TRIANGLES) * PART_TRIANGLES;
+        let cut = half.min(slice.len() - 1);
+        slice.select_nth_unstable_by(cut, |&x, &y| {
+            centroid(x)[axis]
+                .total_cmp(&centroid(y)[axis])
+                .then(x.cmp(&y))
+        });
+        pending.push(range.start + cut..range.end);
+        pending.push(range.start..range.start + cut);
+    }
+    parts.sort_by_key(|r| r.start);
 }
 
 /// Merges vertices at exactly the same position, keeping the triangle order. Sorting vertex indices
