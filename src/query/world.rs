@@ -330,7 +330,8 @@ fn split_in_space(
         let [a, b, c] = triangles[t as usize];
         vertices[a as usize] + vertices[b as usize] + vertices[c as usize]
     };
-    let mut pending: Vec<std::ops::Range<usize>> = Vec::from([0..order.len()]);
+    let mut pending: Vec<std::ops::Range<usize>> = Vec::new();
+    pending.push(0..order.len());
     while let Some(range) = pending.pop() {
         if range.len() <= PART_TRIANGLES {
             parts.push(range);
