@@ -15,6 +15,11 @@ pub fn to_pretty(value: &Value) -> String {
     out
 }
 
+/// Writes a value laid out as [`to_pretty`] does, as if it stood `depth` levels deep (no newline).
+pub fn write_pretty(value: &Value, depth: usize, out: &mut String) {
+    write_value(value, depth, out);
+}
+
 fn write_value(value: &Value, depth: usize, out: &mut String) {
     if nests_within(value, 2) && inline_len(value, INLINE_WIDTH.saturating_sub(depth * 2)).is_some()
     {

@@ -4,7 +4,7 @@
 use std::path::Path;
 use std::process::Command;
 
-use plumbline::check::{ResultsFile, Verdict, run_probes};
+use plumbline::check::{ResultsFile, Verdict, probes_digest, run_probes};
 use plumbline::demo::{files, write_demo_scene};
 use plumbline::level::{level_digest, load_level};
 use plumbline::probe::load_probe_set;
@@ -89,7 +89,7 @@ fn the_probe_set_gives_the_reviewed_baseline() {
         files::PROBES.into(),
         files::LEVEL.into(),
         level_digest(&level),
-        &set,
+        probes_digest(&set),
         results,
     );
     let golden = std::fs::read_to_string(scenes().join(files::BASELINE)).unwrap();

@@ -16,6 +16,6 @@ pub use records::{
     ClearanceRecord, ClosestRecord, Hits, OverlapRecord, ProbeResult, RayHitRecord, Summary,
     SweepHitRecord, Verdict,
 };
-pub use results_file::{ResultsFile, load_results, probes_digest};
+pub use results_file::{ResultsFile, load_results, probes_digest, text_digest};
 pub use run::run_probes;
 pub use verdict::metres;

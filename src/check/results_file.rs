@@ -13,7 +13,7 @@ use super::records::{
     SweepHitRecord, Verdict,
 };
 use crate::error::InputError;
-use crate::probe::{ProbeSet, write_probe_set_compact};
+use crate::probe::{ProbeSet, probe_set_to_json};
 
 /// A results file: what was checked, on which geometry, and every probe's result.
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -37,12 +37,12 @@ pub struct ResultsFile {
 }
 
 impl ResultsFile {
-    /// Assembles a results file.
+    /// Assembles a results file; `probes_digest` is [`text_digest`] of the probe-set file's bytes.
     pub fn new(
         probes: String,
         level: String,
         level_digest: String,
-        set: &ProbeSet,
+        probes_digest: String,
         results: Vec<ProbeResult>,
     ) -> Self {
         ResultsFile {
@@ -51,27 +51,59 @@ impl ResultsFile {
             probes,
             level,
             level_digest,
-            probes_digest: probes_digest(set),
+            probes_digest,
             summary: Summary::of(&results),
             results,
         }
     }
 
-    /// The file's text: stable JSON, no timestamps.
+    /// The file's text: stable JSON, no timestamps. Written result by result, so no value tree of
+    /// the whole run is ever built.
     pub fn to_json(&self) -> String {
-        crate::json_text::to_pretty(&serde_json::to_value(self).expect("results serialise"))
+        use crate::json_text::{to_pretty, write_pretty};
+        let head = serde_json::json!({
+            "plumbline": self.plumbline, "version": self.version, "probes": self.probes, "level": self.level,
+            "level_digest": self.level_digest, "probes_digest": self.probes_digest, "summary": self.summary,
+            "results": [],
+        });
+        let head = to_pretty(&head);
+        // The head ends with `"results": []\n}\n`; open the array there and write each result into it.
+        let mut out = head[..head.len() - "[]\n}\n".len()].to_string();
+        if self.results.is_empty() {
+            out.push_str("[]\n}\n");
+            return out;
+        }
+        out.push_str("[\n");
+        for (k, result) in self.results.iter().enumerate() {
+            out.push_str("    ");
+            write_pretty(
+                &serde_json::to_value(result).expect("results serialise"),
+                2,
+                &mut out,
+            );
+            out.push_str(if k + 1 < self.results.len() {
+                ",\n"
+            } else {
+                "\n"
+            });
+        }
+        out.push_str("  ]\n}\n");
+        out
     }
 }
 
-/// A digest of a probe set's content (its compact canonical JSON).
-pub fn probes_digest(set: &ProbeSet) -> String {
-    let mut hasher = Sha256::new();
-    write_probe_set_compact(set, &mut hasher).expect("hashing cannot fail");
-    let bytes = hasher.finalize();
+/// `sha256:<hex>` of a file's bytes: the `probes_digest` of a probe-set file as read.
+pub fn text_digest(bytes: &[u8]) -> String {
+    let hash = Sha256::digest(bytes);
     format!(
         "sha256:{}",
-        bytes.iter().map(|b| format!("{b:02x}")).collect::<String>()
+        hash.iter().map(|b| format!("{b:02x}")).collect::<String>()
     )
+}
+
+/// The digest of a probe set as this program saves it (equal to [`text_digest`] of the saved file).
+pub fn probes_digest(set: &ProbeSet) -> String {
+    text_digest(probe_set_to_json(set).as_bytes())
 }
 
 #[derive(Deserialize)]

@@ -7,9 +7,11 @@ use std::sync::mpsc;
 use std::time::Duration;
 
 use plumbline::atomic::write_atomic;
-use plumbline::check::{Comparison, ResultsFile, Verdict, compare, load_results, run_probes};
-use plumbline::level::{level_digest, load_level};
-use plumbline::probe::{ProbeSet, load_probe_set};
+use plumbline::check::{
+    Comparison, ResultsFile, Verdict, compare, load_results, run_probes, text_digest,
+};
+use plumbline::level::{level_digest, load_level, read_input};
+use plumbline::probe::{ProbeSet, parse_probe_set};
 use plumbline::query::World;
 use plumbline::report::{junit_xml, markdown_summary};
 
@@ -167,7 +169,11 @@ fn folder_of(path: &Path) -> PathBuf {
 }
 
 fn run_once(options: &CheckOptions) -> Result<Run, String> {
-    let set = load_probe_set(&options.probes).map_err(|e| e.to_string())?;
+    let bytes = read_input(&options.probes).map_err(|e| e.to_string())?;
+    let text = std::str::from_utf8(&bytes)
+        .map_err(|e| format!("{}: not UTF-8 text: {e}", options.probes.display()))?;
+    let set = parse_probe_set(&options.probes, text).map_err(|e| e.to_string())?;
+    let probes_digest = text_digest(&bytes);
     let beside_probes = options
         .probes
         .parent()
@@ -186,7 +192,7 @@ fn run_once(options: &CheckOptions) -> Result<Run, String> {
         options.probes.display().to_string(),
         level_path.display().to_string(),
         digest,
-        &set,
+        probes_digest,
         results,
     );
     Ok(Run {

@@ -16,7 +16,7 @@ pub use probes::probe_set;
 pub use shapes::MeshBuilder;
 
 use crate::atomic::write_atomic;
-use crate::check::{ResultsFile, run_probes};
+use crate::check::{ResultsFile, probes_digest, run_probes};
 use crate::json_text::to_pretty;
 use crate::level::{Geometry, Level, LevelObject, level_digest, load_level};
 use crate::probe::probe_set_to_json;
@@ -84,7 +84,7 @@ fn write_scene(folder: &Path, detail: Detail, with_edits: bool) -> Result<(), St
             files::PROBES.into(),
             files::LEVEL.into(),
             level_digest(&level),
-            &set,
+            probes_digest(&set),
             results,
         );
         write(files::BASELINE, baseline.to_json().as_bytes())?;

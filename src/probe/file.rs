@@ -98,22 +98,6 @@ pub fn parse_probe_set(path: &Path, text: &str) -> Result<ProbeSet, InputError> 
     })
 }
 
-/// Writes a probe set as compact JSON, probe by probe (for digests: no pretty layout, no whole-set
-/// value in memory).
-pub fn write_probe_set_compact(
-    set: &ProbeSet,
-    writer: &mut dyn std::io::Write,
-) -> std::io::Result<()> {
-    serde_json::to_writer(
-        &mut *writer,
-        &json!({ "plumbline": "probes", "version": 1, "level": set.level }),
-    )?;
-    for probe in &set.probes {
-        serde_json::to_writer(&mut *writer, &probe_to_value(probe))?;
-    }
-    Ok(())
-}
-
 /// Serialises a probe set in the file format, stable and ready to save.
 pub fn probe_set_to_json(set: &ProbeSet) -> String {
     let probes: Vec<Value> = set.probes.iter().map(probe_to_value).collect();
