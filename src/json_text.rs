@@ -26,7 +26,7 @@ fn write_value(value: &Value, depth: usize, out: &mut String) {
         write_inline(value, out);
         return;
     }
-    let pad = "  ".repeat(depth + 1);
+    let pad = indent(depth + 1);
     match value {
         Value::Array(items) => {
             out.push_str("[\n");
@@ -35,7 +35,7 @@ fn write_value(value: &Value, depth: usize, out: &mut String) {
                 write_value(item, depth + 1, out);
                 out.push_str(if k + 1 < items.len() { ",\n" } else { "\n" });
             }
-            out.push_str(&"  ".repeat(depth));
+            out.push_str(&indent(depth));
             out.push(']');
         }
         Value::Object(map) => {
@@ -47,7 +47,7 @@ fn write_value(value: &Value, depth: usize, out: &mut String) {
                 write_value(item, depth + 1, out);
                 out.push_str(if k + 1 < map.len() { ",\n" } else { "\n" });
             }
-            out.push_str(&"  ".repeat(depth));
+            out.push_str(&indent(depth));
             out.push('}');
         }
         scalar => write_inline(scalar, out),
@@ -88,7 +88,22 @@ fn write_inline(value: &Value, out: &mut String) {
 }
 
 fn write_scalar_string(s: &str, out: &mut String) {
-    out.push_str(&serde_json::to_string(s).expect("strings serialise"));
+    if s.bytes().any(|b| b < 0x20 || b == b'"' || b == b'\\') {
+        out.push_str(&serde_json::to_string(s).expect("strings serialise"));
+    } else {
+        out.push('"');
+        out.push_str(s);
+        out.push('"');
+    }
+}
+
+/// Two spaces per level.
+fn indent(depth: usize) -> std::borrow::Cow<'static, str> {
+    const SPACES: &str = "                                ";
+    match SPACES.get(..2 * depth) {
+        Some(s) => std::borrow::Cow::Borrowed(s),
+        None => std::borrow::Cow::Owned("  ".repeat(depth)),
+    }
 }
 
 /// The one-line length of a value when it is at most `budget` characters, else `None` (stops early).

@@ -243,6 +243,12 @@ fn refine_ball_impact(
     toi: f64,
 ) -> Option<(f64, DVec3, DVec3)> {
     let refine = |project: &dyn Fn(DVec3) -> DVec3| -> Option<(f64, DVec3, DVec3)> {
+        // A part that is not touching at parry's estimate (to well beyond its error) is not the
+        // first contact: skip it without iterating.
+        let at_estimate = a + dir * toi;
+        if at_estimate.distance(project(at_estimate)) - radius > 1e-4 {
+            return None;
+        }
         let mut s = (toi - 1e-4).max(0.0);
         for _ in 0..60 {
             let centre = a + dir * s;
