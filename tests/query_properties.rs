@@ -203,13 +203,13 @@ fn closed_mesh_crossings_come_in_pairs() {
 /// indices and merged crossings are the same as for the whole mesh.
 #[test]
 fn split_meshes_answer_like_whole_ones() {
-    let n = 200; // 80,000 triangles: two parts
+    let n = 370; // 273,800 triangles: two parts
     assert!(2 * n * n > plumbline::query::PART_TRIANGLES);
     let mut v = Vec::new();
     let mut t = Vec::new();
     for i in 0..=n {
         for j in 0..=n {
-            let (x, z) = (j as f64 * 0.5 - 50.0, i as f64 * 0.5 - 50.0);
+            let (x, z) = (j as f64 * 0.25 - 46.25, i as f64 * 0.25 - 46.25);
             v.push(DVec3::new(x, (0.3 * x).sin() + (0.2 * z).cos(), z));
         }
     }
@@ -225,7 +225,7 @@ fn split_meshes_answer_like_whole_ones() {
         .world();
     let mut runner = proptest::test_runner::TestRunner::deterministic();
     let strategy = (point(45.0), point(45.0));
-    for _ in 0..300 {
+    for _ in 0..100 {
         let (mut from, mut to) = strategy.new_tree(&mut runner).unwrap().current();
         from.y += 10.0;
         to.y -= 10.0;

@@ -140,7 +140,7 @@ impl View<'_> {
         let body = &self.world.bodies[impact.body];
         let refined = match shape.ball_radius() {
             Some(radius) if !impact.started_inside => {
-                refine_ball_impact(body, radius, a, dir, impact.toi)
+                refine_ball_impact(body, radius, a, dir, impact.toi, impact.part)
             }
             _ => None,
         };
@@ -227,7 +227,8 @@ struct Impact {
 }
 
 /// The exact time of impact of a ball of `radius` whose centre moves from `a` along unit `dir`
-/// against a body, refined from parry's estimate `toi`, with the contact point and the unit normal.
+/// against a body, refined from parry's estimate `toi` (and the triangle `part` it names, `u32::MAX`
+/// when none), with the contact point and the unit normal.
 ///
 /// The gap is the distance from the centre to a convex part (a mesh triangle near the contact, or a
 /// primitive) minus the radius: an exact point projection (Ericson, Real-Time Collision Detection,
@@ -241,6 +242,7 @@ fn refine_ball_impact(
     a: DVec3,
     dir: DVec3,
     toi: f64,
+    part: u32,
 ) -> Option<(f64, DVec3, DVec3)> {
     let refine = |project: &dyn Fn(DVec3) -> DVec3| -> Option<(f64, DVec3, DVec3)> {
         // A part that is not touching at parry's estimate (to well beyond its error) is not the
@@ -272,7 +274,15 @@ fn refine_ball_impact(
     };
     match body.mesh() {
         Some(mesh) => {
-            let reach = Aabb::from_points([a + dir * toi]).loosened(radius + 1e-3);
+            // The triangles that can share the first touch lie around the contact point on the
+            // triangle parry names; without one, search the whole ball.
+            let centre = a + dir * toi;
+            let reach = if part < mesh.num_triangles() as u32 {
+                Aabb::from_points([mesh.triangle(part).project_local_point(centre, false).point])
+                    .loosened(1e-3)
+            } else {
+                Aabb::from_points([centre]).loosened(radius + 1e-3)
+            };
             mesh.bvh()
                 .intersect_aabb(&reach)
                 .filter_map(|tri| {

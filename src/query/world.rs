@@ -12,9 +12,9 @@ use crate::level::{Geometry, Level};
 /// Index of an object in the [`World`] (the same order as the level's objects).
 pub type ObjectId = usize;
 
-/// Open meshes larger than this are split into parts of this many triangles, grouped in space: the
+/// Open meshes larger than this are split into parts of at most this many triangles, grouped in space: the
 /// BVH of each part is built with bounded temporary memory, and the world's BVH holds the parts.
-pub const PART_TRIANGLES: usize = 1 << 16;
+pub const PART_TRIANGLES: usize = 1 << 18;
 
 /// One convex primitive, or one mesh or part of a mesh, ready for queries.
 pub(crate) struct Body {
@@ -261,8 +261,9 @@ fn mesh_bodies(
     let mut order: Vec<u32> = (0..indices.len() as u32).collect();
     let mut parts = Vec::new();
     split_in_space(&welded, &indices, &mut order, &mut parts);
+    // Copy every part out first and free the whole mesh before any BVH is built.
     let mut local_of = vec![u32::MAX; welded.len()];
-    let mut bodies = Vec::with_capacity(parts.len());
+    let mut pieces = Vec::with_capacity(parts.len());
     for part in parts.iter().map(|r| &order[r.clone()]) {
         let mut part_vertices = Vec::new();
         let mut part_indices = Vec::with_capacity(part.len());
@@ -280,7 +281,12 @@ fn mesh_bodies(
                 local_of[v as usize] = u32::MAX;
             }
         }
-        let ids: Box<[u32]> = part.into();
+        part_vertices.shrink_to_fit();
+        pieces.push((part_vertices, part_indices, Box::<[u32]>::from(part)));
+    }
+    drop((welded, indices, order, local_of));
+    let mut bodies = Vec::with_capacity(pieces.len());
+    for (part_vertices, part_indices, ids) in pieces {
         bodies.push(mesh_body(
             object,
             part_vertices,
