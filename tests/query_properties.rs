@@ -141,22 +141,24 @@ proptest! {
         }
     }
 
-    /// Boxes and capsules turned at random and swept down onto a floor touch it when their lowest
-    /// point reaches it: travelled = (height of centre - reach below centre) / descent per metre.
+    /// Boxes, capsules, cylinders and convex hulls turned at random and swept down onto a floor touch
+    /// it when their lowest point reaches it: travelled = (height of centre - reach below centre) /
+    /// descent per metre (the reach from the shape's support function).
     #[test]
     fn turned_boxes_and_capsules_land_on_a_floor(
         q in (-1.0f64..1.0, -1.0f64..1.0, -1.0f64..1.0, -1.0f64..1.0),
         start in point(3.0),
         drift in point(1.0),
-        capsule in any::<bool>(),
+        kind in 0usize..4,
     ) {
         let rotation = DQuat::from_xyzw(q.0, q.1, q.2, q.3);
         prop_assume!(rotation.length() > 0.1);
         let rotation = rotation.normalize();
-        let spec = if capsule {
-            ShapeSpec::Capsule { radius: 0.3, half_height: 0.6 }
-        } else {
-            ShapeSpec::Box { half_extents: [0.4, 0.2, 0.7] }
+        let spec = match kind {
+            0 => ShapeSpec::Capsule { radius: 0.3, half_height: 0.6 },
+            1 => ShapeSpec::Box { half_extents: [0.4, 0.2, 0.7] },
+            2 => ShapeSpec::Cylinder { radius: 0.35, half_height: 0.5 },
+            _ => ShapeSpec::Convex { points: vec![[0.5, 0.0, 0.0], [-0.3, 0.4, 0.1], [0.0, -0.6, 0.3], [0.1, 0.2, -0.7], [-0.2, -0.1, 0.2]] },
         };
         let shape = ProbeShape::new(&spec, rotation).unwrap();
         let reach = shape.extent_along(-DVec3::Y);

@@ -75,13 +75,12 @@ fn answer(world: &World, probe: &Probe) -> Result<Answer, QueryError> {
             ..
         } => {
             let shape = probe_shape(shape, *rotation)?;
-            let found = view.sweep_all(&shape, path)?;
-            let kept = if *hits == Some(HitsMode::All) {
-                &found[..]
+            let found = if *hits == Some(HitsMode::All) {
+                view.sweep_all(&shape, path)?
             } else {
-                &found[..found.len().min(1)]
+                view.sweep_first(&shape, path)?.into_iter().collect()
             };
-            let records = kept
+            let records = found
                 .iter()
                 .map(|h| SweepHitRecord {
                     object: name(h.object),

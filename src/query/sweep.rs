@@ -4,10 +4,10 @@
 use glam::DVec3;
 use parry3d_f64::bounding_volume::{Aabb, BoundingVolume};
 use parry3d_f64::math::Pose;
-use parry3d_f64::query::PointQuery;
 use parry3d_f64::query::{
     ClosestPoints, ShapeCastOptions, ShapeCastStatus, cast_shapes, closest_points, contact,
 };
+use parry3d_f64::query::{PointQuery, Ray, RayCast};
 use parry3d_f64::shape::Shape;
 
 use super::shapes::ProbeShape;
@@ -82,12 +82,31 @@ impl View<'_> {
                 continue;
             }
             let mut limit = len;
-            let swept = swept_aabb(shape, a, b, 0.0);
+            let dir = (b - a) / len;
+            // Candidates in the order the moving shape's box reaches theirs: once the nearest impact
+            // is known, every candidate the box reaches later is skipped.
+            let reach = shape.shape.compute_aabb(&shape.pose_at(DVec3::ZERO));
+            let ray = Ray::new(a, dir);
+            let mut candidates: Vec<(f64, u32)> = self
+                .world
+                .bvh
+                .intersect_aabb(&swept_aabb(shape, a, b, 0.0))
+                .filter_map(|leaf| {
+                    let body = self.body(leaf)?;
+                    // Grown by a hair so a shape exactly touching a face along it stays a candidate.
+                    let grown = Aabb::new(body.aabb.mins - reach.maxs, body.aabb.maxs - reach.mins)
+                        .loosened(1e-7);
+                    let entry = grown.cast_local_ray(&ray, len, true)?;
+                    Some((entry, leaf))
+                })
+                .collect();
+            candidates.sort_by(|x, y| x.0.total_cmp(&y.0).then(x.1.cmp(&y.1)));
             let mut found: Vec<Impact> = Vec::new();
-            for leaf in self.world.bvh.intersect_aabb(&swept) {
-                let Some(body) = self.body(leaf) else {
-                    continue;
-                };
+            for (entry, leaf) in candidates {
+                if first_only && entry > limit {
+                    break;
+                }
+                let body = &self.world.bodies[leaf as usize];
                 if done[body.object] {
                     continue;
                 }
