@@ -90,7 +90,7 @@ impl View<'_> {
             let mut candidates: Vec<(f64, u32)> = self
                 .world
                 .bvh
-                .intersect_aabb(&swept_aabb(shape, a, b, 0.0))
+                .intersect_aabb(&swept_aabb(shape, a, b))
                 .filter_map(|leaf| {
                     let body = self.body(leaf)?;
                     // Grown by a hair so a shape exactly touching a face along it stays a candidate.
@@ -361,11 +361,10 @@ pub(crate) fn contact_geometry(
     }
 }
 
-/// The bounding box of the shape swept over a segment, grown by `margin`.
-fn swept_aabb(shape: &ProbeShape, a: DVec3, b: DVec3, margin: f64) -> Aabb {
+/// The bounding box of the shape swept over a segment.
+fn swept_aabb(shape: &ProbeShape, a: DVec3, b: DVec3) -> Aabb {
     shape
         .shape
         .compute_aabb(&shape.pose_at(a))
         .merged(&shape.shape.compute_aabb(&shape.pose_at(b)))
-        .loosened(margin)
 }
