@@ -26,35 +26,8 @@ struct Cli {
 enum Command {
     /// Answers every probe of a probe set, prints a summary and writes the requested files.
     Check {
-        /// The probe set (*.probes.json).
-        probes: PathBuf,
-        /// Use this level instead of the one the probe set names.
-        #[arg(long)]
-        level: Option<PathBuf>,
-        /// Write the results file here.
-        #[arg(long)]
-        out: Option<PathBuf>,
-        /// Compare with this earlier results file and list what changed.
-        #[arg(long)]
-        baseline: Option<PathBuf>,
-        /// Write a JUnit XML report here.
-        #[arg(long)]
-        junit: Option<PathBuf>,
-        /// Write a Markdown summary here.
-        #[arg(long)]
-        markdown: Option<PathBuf>,
-        /// Metres a distance must move to count as a change.
-        #[arg(long, default_value_t = DEFAULT_TOLERANCE, value_parser = parse_tolerance)]
-        tolerance: f64,
-        /// Count a change since the baseline as a failure (exit 1).
-        #[arg(long)]
-        fail_on_change: bool,
-        /// Worker threads (default: all cores).
-        #[arg(long, value_parser = clap::value_parser!(u32).range(1..))]
-        jobs: Option<u32>,
-        /// List only failures, errors and changes.
-        #[arg(long)]
-        brief: bool,
+        #[command(flatten)]
+        options: cli::CheckOptions,
         /// Re-run whenever the level or the probe set changes on disk.
         #[arg(long)]
         watch: bool,
@@ -66,7 +39,7 @@ enum Command {
         /// The later results file.
         new: PathBuf,
         /// Metres a distance must move to count as a change.
-        #[arg(long, default_value_t = DEFAULT_TOLERANCE, value_parser = parse_tolerance)]
+        #[arg(long, default_value_t = DEFAULT_TOLERANCE, value_parser = cli::parse_tolerance)]
         tolerance: f64,
     },
     /// Lists a level's objects, tags, triangle counts, bounds and load warnings.
@@ -108,15 +81,6 @@ fn demo_scenes() -> PathBuf {
     }
 }
 
-fn parse_tolerance(text: &str) -> Result<f64, String> {
-    match text.parse::<f64>() {
-        Ok(v) if v.is_finite() && v >= 0.0 => Ok(v),
-        _ => Err(format!(
-            "\"{text}\" is not a distance in metres (zero or more)"
-        )),
-    }
-}
-
 fn main() -> ExitCode {
     let parsed = match Cli::try_parse() {
         Ok(cli) => cli,
@@ -140,31 +104,7 @@ fn main() -> ExitCode {
 
 fn run(parsed: Cli) -> Result<ExitCode, String> {
     match parsed.command {
-        Some(Command::Check {
-            probes,
-            level,
-            out,
-            baseline,
-            junit,
-            markdown,
-            tolerance,
-            fail_on_change,
-            jobs,
-            brief,
-            watch,
-        }) => {
-            let options = cli::CheckOptions {
-                probes,
-                level,
-                out,
-                baseline,
-                junit,
-                markdown,
-                tolerance,
-                fail_on_change,
-                jobs: jobs.map(|j| j as usize),
-                brief,
-            };
+        Some(Command::Check { options, watch }) => {
             if watch {
                 cli::watch(&options)
             } else {

@@ -84,28 +84,9 @@ fn gltf_json(uri: Option<&str>, extra_root: &str) -> String {
     )
 }
 
-/// A GLB container (glTF 2.0 §4.4): header, JSON chunk, BIN chunk, each padded to 4 bytes.
+/// A GLB container of the JSON and the binary buffer (the library's packer, glTF 2.0 §4.4).
 fn glb(json: &str, bin: &[u8]) -> Vec<u8> {
-    let mut json = json.as_bytes().to_vec();
-    while !json.len().is_multiple_of(4) {
-        json.push(b' ');
-    }
-    let mut bin = bin.to_vec();
-    while !bin.len().is_multiple_of(4) {
-        bin.push(0);
-    }
-    let total = 12 + 8 + json.len() + 8 + bin.len();
-    let mut out = Vec::new();
-    out.extend(b"glTF");
-    out.extend(2u32.to_le_bytes());
-    out.extend((total as u32).to_le_bytes());
-    out.extend((json.len() as u32).to_le_bytes());
-    out.extend(b"JSON");
-    out.extend(json);
-    out.extend((bin.len() as u32).to_le_bytes());
-    out.extend(b"BIN\0");
-    out.extend(bin);
-    out
+    plumbline::demo::pack_glb(json.as_bytes(), bin)
 }
 
 fn check_gltf_level(level: &Level) {

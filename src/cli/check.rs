@@ -8,7 +8,8 @@ use std::time::Duration;
 
 use plumbline::atomic::write_atomic;
 use plumbline::check::{
-    Comparison, ResultsFile, Verdict, compare, load_results, run_probes, text_digest,
+    Comparison, DEFAULT_TOLERANCE, ResultsFile, Verdict, compare, load_results, run_probes,
+    text_digest,
 };
 use plumbline::level::{level_digest, load_level, read_input};
 use plumbline::probe::{ProbeSet, parse_probe_set};
@@ -19,26 +20,36 @@ use super::terminal::{Progress, Style, Tone, write_stdout};
 use super::{EXIT_FAILED, print_comparison};
 
 /// The options of `plumbline check`.
+#[derive(clap::Args)]
 pub struct CheckOptions {
-    /// The probe set.
+    /// The probe set (*.probes.json).
     pub probes: PathBuf,
-    /// A level that overrides the probe set's.
+    /// Use this level instead of the one the probe set names.
+    #[arg(long)]
     pub level: Option<PathBuf>,
-    /// Where to write the results file.
+    /// Write the results file here.
+    #[arg(long)]
     pub out: Option<PathBuf>,
-    /// A results file to compare with.
+    /// Compare with this earlier results file and list what changed.
+    #[arg(long)]
     pub baseline: Option<PathBuf>,
-    /// Where to write JUnit XML.
+    /// Write a JUnit XML report here.
+    #[arg(long)]
     pub junit: Option<PathBuf>,
-    /// Where to write the Markdown summary.
+    /// Write a Markdown summary here.
+    #[arg(long)]
     pub markdown: Option<PathBuf>,
-    /// Metres a distance must move to count as changed.
+    /// Metres a distance must move to count as a change.
+    #[arg(long, default_value_t = DEFAULT_TOLERANCE, value_parser = super::parse_tolerance)]
     pub tolerance: f64,
-    /// A change counts as a failure.
+    /// Count a change since the baseline as a failure (exit 1).
+    #[arg(long)]
     pub fail_on_change: bool,
-    /// Worker threads.
-    pub jobs: Option<usize>,
-    /// Only failures, errors and changes are listed.
+    /// Worker threads (default: all cores).
+    #[arg(long, value_parser = clap::value_parser!(u32).range(1..))]
+    pub jobs: Option<u32>,
+    /// List only failures, errors and changes.
+    #[arg(long)]
     pub brief: bool,
 }
 
@@ -184,9 +195,12 @@ fn run_once(options: &CheckOptions) -> Result<Run, String> {
     let (digest, triangles) = (level_digest(&level), level.triangle_count());
     let world = World::from_level(level).map_err(|e| format!("{}: {e}", level_path.display()))?;
     let progress = Progress::new(set.probes.len());
-    let results = run_probes(&world, &set.probes, options.jobs, &|done| {
-        progress.update(done)
-    })?;
+    let results = run_probes(
+        &world,
+        &set.probes,
+        options.jobs.map(|j| j as usize),
+        &|done| progress.update(done),
+    )?;
     progress.finish();
     let results = ResultsFile::new(
         options.probes.display().to_string(),

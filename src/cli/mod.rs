@@ -17,6 +17,16 @@ pub const EXIT_FAILED: u8 = 1;
 /// Exit status for bad usage or input that cannot be read.
 pub const EXIT_BAD_INPUT: u8 = 2;
 
+/// Parses a distance tolerance in metres (zero or more).
+pub fn parse_tolerance(text: &str) -> Result<f64, String> {
+    match text.parse::<f64>() {
+        Ok(v) if v.is_finite() && v >= 0.0 => Ok(v),
+        _ => Err(format!(
+            "\"{text}\" is not a distance in metres (zero or more)"
+        )),
+    }
+}
+
 /// Prints what changed between two runs.
 fn print_comparison(c: &Comparison, style: Style) {
     let mut out = String::new();

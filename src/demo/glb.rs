@@ -66,23 +66,29 @@ pub fn write_glb(objects: &[GlbObject]) -> Vec<u8> {
         "bufferViews": views,
         "buffers": [{"byteLength": bin.len()}],
     });
-    let mut json_bytes = serde_json::to_vec(&document).expect("the document serialises");
-    while !json_bytes.len().is_multiple_of(4) {
-        json_bytes.push(b' ');
-    }
-    while !bin.len().is_multiple_of(4) {
-        bin.push(0);
-    }
-    let total = 12 + 8 + json_bytes.len() + 8 + bin.len();
+    pack_glb(
+        &serde_json::to_vec(&document).expect("the document serialises"),
+        &bin,
+    )
+}
+
+/// A GLB container (glTF 2.0 §4.4): the 12-byte header, the JSON chunk padded with spaces and the
+/// BIN chunk padded with zeros, each to a multiple of 4 bytes.
+pub fn pack_glb(json: &[u8], bin: &[u8]) -> Vec<u8> {
+    let pad = |len: usize| (4 - len % 4) % 4;
+    let (json_len, bin_len) = (json.len() + pad(json.len()), bin.len() + pad(bin.len()));
+    let total = 12 + 8 + json_len + 8 + bin_len;
     let mut out = Vec::with_capacity(total);
     out.extend(b"glTF");
     out.extend(2u32.to_le_bytes());
     out.extend((total as u32).to_le_bytes());
-    out.extend((json_bytes.len() as u32).to_le_bytes());
+    out.extend((json_len as u32).to_le_bytes());
     out.extend(b"JSON");
-    out.extend(json_bytes);
-    out.extend((bin.len() as u32).to_le_bytes());
+    out.extend(json);
+    out.extend(std::iter::repeat_n(b' ', pad(json.len())));
+    out.extend((bin_len as u32).to_le_bytes());
     out.extend(b"BIN\0");
     out.extend(bin);
+    out.extend(std::iter::repeat_n(0u8, pad(bin.len())));
     out
 }

@@ -11,7 +11,7 @@ mod shapes;
 
 use std::path::Path;
 
-pub use glb::{GlbObject, write_glb};
+pub use glb::{GlbObject, pack_glb, write_glb};
 pub use probes::probe_set;
 pub use shapes::MeshBuilder;
 

@@ -3,6 +3,7 @@
 #![allow(dead_code)]
 
 use glam::{DQuat, DVec3};
+use plumbline::demo::MeshBuilder;
 use plumbline::level::{Geometry, Level, LevelObject, Mesh, Primitive};
 use plumbline::query::World;
 
@@ -64,92 +65,18 @@ impl LevelBuilder {
 
 /// A closed box mesh (12 triangles, outward counter-clockwise) centred at `c` with half extents `h`.
 pub fn box_mesh(c: DVec3, h: DVec3) -> (Vec<DVec3>, Vec<[u32; 3]>) {
-    let v: Vec<DVec3> = (0..8)
-        .map(|i| {
-            let s = DVec3::new(
-                if i & 1 == 0 { -1.0 } else { 1.0 },
-                if i & 2 == 0 { -1.0 } else { 1.0 },
-                if i & 4 == 0 { -1.0 } else { 1.0 },
-            );
-            c + s * h
-        })
-        .collect();
-    let quads = [
-        [0, 2, 3, 1],
-        [4, 5, 7, 6],
-        [0, 1, 5, 4],
-        [2, 6, 7, 3],
-        [0, 4, 6, 2],
-        [1, 3, 7, 5],
-    ];
-    let mut t = Vec::new();
-    for q in quads {
-        t.push([q[0], q[1], q[2]]);
-        t.push([q[0], q[2], q[3]]);
-    }
-    (v, t)
+    let mut mb = MeshBuilder::new();
+    mb.turned_box(c, h, DQuat::IDENTITY);
+    let mesh = mb.finish();
+    (mesh.vertices, mesh.triangles)
 }
 
-/// A closed icosphere: an icosahedron subdivided `levels` times, projected onto radius `r` around `c`.
+/// A closed icosphere: an icosahedron subdivided `levels` times, on radius `r` around `c`.
 pub fn icosphere(c: DVec3, r: f64, levels: u32) -> (Vec<DVec3>, Vec<[u32; 3]>) {
-    let p = (1.0 + 5f64.sqrt()) / 2.0;
-    let mut v: Vec<DVec3> = [
-        [-1.0, p, 0.0],
-        [1.0, p, 0.0],
-        [-1.0, -p, 0.0],
-        [1.0, -p, 0.0],
-        [0.0, -1.0, p],
-        [0.0, 1.0, p],
-        [0.0, -1.0, -p],
-        [0.0, 1.0, -p],
-        [p, 0.0, -1.0],
-        [p, 0.0, 1.0],
-        [-p, 0.0, -1.0],
-        [-p, 0.0, 1.0],
-    ]
-    .iter()
-    .map(|a| DVec3::from_array(*a).normalize())
-    .collect();
-    let mut t: Vec<[u32; 3]> = vec![
-        [0, 11, 5],
-        [0, 5, 1],
-        [0, 1, 7],
-        [0, 7, 10],
-        [0, 10, 11],
-        [1, 5, 9],
-        [5, 11, 4],
-        [11, 10, 2],
-        [10, 7, 6],
-        [7, 1, 8],
-        [3, 9, 4],
-        [3, 4, 2],
-        [3, 2, 6],
-        [3, 6, 8],
-        [3, 8, 9],
-        [4, 9, 5],
-        [2, 4, 11],
-        [6, 2, 10],
-        [8, 6, 7],
-        [9, 8, 1],
-    ];
-    for _ in 0..levels {
-        let mut mid = std::collections::HashMap::new();
-        let mut next = Vec::new();
-        let mut midpoint = |a: u32, b: u32, v: &mut Vec<DVec3>| -> u32 {
-            *mid.entry((a.min(b), a.max(b))).or_insert_with(|| {
-                v.push(((v[a as usize] + v[b as usize]) * 0.5).normalize());
-                (v.len() - 1) as u32
-            })
-        };
-        for [a, b, c2] in t {
-            let ab = midpoint(a, b, &mut v);
-            let bc = midpoint(b, c2, &mut v);
-            let ca = midpoint(c2, a, &mut v);
-            next.extend([[a, ab, ca], [b, bc, ab], [c2, ca, bc], [ab, bc, ca]]);
-        }
-        t = next;
-    }
-    (v.into_iter().map(|x| c + x * r).collect(), t)
+    let mut mb = MeshBuilder::new();
+    mb.blob(c, DVec3::splat(r), levels);
+    let mesh = mb.finish();
+    (mesh.vertices, mesh.triangles)
 }
 
 /// Möller & Trumbore, "Fast, Minimum Storage Ray/Triangle Intersection", JGT 2(1), 1997:
