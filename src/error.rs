@@ -85,6 +85,32 @@ impl InputError {
     }
 }
 
+/// Checks the `"plumbline"` and `"version"` fields every file of ours starts with: the file must be
+/// of kind `expected` (described to users as `what`, e.g. "a probe set") and of version 1.
+pub fn check_header(
+    path: &Path,
+    kind: &str,
+    version: u32,
+    expected: &str,
+    what: &str,
+) -> Result<(), InputError> {
+    if kind != expected {
+        return Err(InputError::at(
+            path,
+            "field \"plumbline\"",
+            format!("this is a \"{kind}\" file, not {what} (\"plumbline\": \"{expected}\")"),
+        ));
+    }
+    if version != 1 {
+        return Err(InputError::at(
+            path,
+            "field \"version\"",
+            format!("format version {version} is not known to this program (it reads version 1)"),
+        ));
+    }
+    Ok(())
+}
+
 /// The 1-based line and column where `fragment` (a slice of `text`) starts.
 fn position_of(text: &str, fragment: &str) -> (usize, usize) {
     let offset = (fragment.as_ptr() as usize)

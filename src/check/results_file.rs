@@ -12,7 +12,7 @@ use super::records::{
     ClearanceRecord, ClosestRecord, Hits, OverlapRecord, ProbeResult, RayHitRecord, Summary,
     SweepHitRecord, Verdict,
 };
-use crate::error::InputError;
+use crate::error::{InputError, check_header};
 use crate::probe::{ProbeSet, probe_set_to_json};
 
 /// A results file: what was checked, on which geometry, and every probe's result.
@@ -137,13 +137,13 @@ pub fn load_results(path: &Path) -> Result<ResultsFile, InputError> {
     let text = std::str::from_utf8(&bytes)
         .map_err(|e| InputError::file(path, format!("not UTF-8 text: {e}")))?;
     let raw: RawResults = serde_json::from_str(text).map_err(|e| InputError::json(path, &e))?;
-    if raw.plumbline != "results" || raw.version != 1 {
-        return Err(InputError::at(
-            path,
-            "field \"plumbline\"",
-            "not a version 1 results file (\"plumbline\": \"results\")",
-        ));
-    }
+    check_header(
+        path,
+        &raw.plumbline,
+        raw.version,
+        "results",
+        "a results file",
+    )?;
     let mut results = Vec::with_capacity(raw.results.len());
     for item in &raw.results {
         let r: RawResult = serde_json::from_str(item.get())

@@ -12,7 +12,7 @@ use super::model::{Geometry, Level, LevelObject};
 use super::shape::ShapeSpec;
 use super::transform::Transform;
 use super::{load_mesh_file, read_input};
-use crate::error::{Diagnostic, InputError};
+use crate::error::{Diagnostic, InputError, check_header};
 
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -59,26 +59,7 @@ pub fn load_level_file(path: &Path) -> Result<(Level, Vec<Diagnostic>), InputErr
     let text = std::str::from_utf8(&text)
         .map_err(|e| InputError::file(path, format!("not UTF-8 text: {e}")))?;
     let file: LevelFile = serde_json::from_str(text).map_err(|e| InputError::json(path, &e))?;
-    if file.plumbline != "level" {
-        return Err(InputError::at(
-            path,
-            "field \"plumbline\"",
-            format!(
-                "this is a \"{}\" file, not a level (\"plumbline\": \"level\")",
-                file.plumbline
-            ),
-        ));
-    }
-    if file.version != 1 {
-        return Err(InputError::at(
-            path,
-            "field \"version\"",
-            format!(
-                "level format version {} is not known to this program (it reads version 1)",
-                file.version
-            ),
-        ));
-    }
+    check_header(path, &file.plumbline, file.version, "level", "a level")?;
     let up = parse_up(path, file.up)?;
     let folder = path.parent().unwrap_or(Path::new(""));
     let mut diagnostics = Vec::new();

@@ -10,7 +10,7 @@ use serde_json::value::RawValue;
 use serde_json::{Map, Value, json};
 
 use super::model::{Conditions, Expect, ExpectWord, HitsMode, Probe, ProbeQuery, ProbeSet};
-use crate::error::InputError;
+use crate::error::{InputError, check_header};
 use crate::level::ShapeSpec;
 use crate::query::{Filter, ProbeShape};
 
@@ -58,26 +58,7 @@ pub fn load_probe_set(path: &Path) -> Result<ProbeSet, InputError> {
 /// Parses and validates probe-set text; `path` is used in error messages.
 pub fn parse_probe_set(path: &Path, text: &str) -> Result<ProbeSet, InputError> {
     let raw: RawSet = serde_json::from_str(text).map_err(|e| InputError::json(path, &e))?;
-    if raw.plumbline != "probes" {
-        return Err(InputError::at(
-            path,
-            "field \"plumbline\"",
-            format!(
-                "this is a \"{}\" file, not a probe set (\"plumbline\": \"probes\")",
-                raw.plumbline
-            ),
-        ));
-    }
-    if raw.version != 1 {
-        return Err(InputError::at(
-            path,
-            "field \"version\"",
-            format!(
-                "probe-set format version {} is not known to this program (it reads version 1)",
-                raw.version
-            ),
-        ));
-    }
+    check_header(path, &raw.plumbline, raw.version, "probes", "a probe set")?;
     let mut ids = HashSet::new();
     let mut probes = Vec::with_capacity(raw.probes.len());
     for item in &raw.probes {
