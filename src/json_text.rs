@@ -2,25 +2,73 @@
 //! arrays and objects (vectors, shapes, ranges) kept on one line. Stable: the same value gives the
 //! same bytes.
 
-use serde_json::Value;
+use serde_json::{Number, Value};
 
 /// Lines longer than this are broken up even when they could be inline.
 const INLINE_WIDTH: usize = 100;
 
+/// A JSON value that borrows its text: what the writer lays out. Records build it without the
+/// allocations of a `serde_json::Value` (no owned keys, no maps).
+#[derive(Debug, Clone, PartialEq)]
+pub enum Json<'a> {
+    /// `null`.
+    Null,
+    /// `true` or `false`.
+    Bool(bool),
+    /// A number, formatted as serde_json formats it.
+    Num(Number),
+    /// A string.
+    Str(&'a str),
+    /// An array.
+    Arr(Vec<Json<'a>>),
+    /// An object, keys in order.
+    Obj(Vec<(&'a str, Json<'a>)>),
+}
+
+impl Json<'_> {
+    /// A float (`null` when not finite, as serde_json writes it).
+    pub fn float(x: f64) -> Json<'static> {
+        Number::from_f64(x).map_or(Json::Null, Json::Num)
+    }
+
+    /// A whole number.
+    pub fn int(x: u64) -> Json<'static> {
+        Json::Num(Number::from(x))
+    }
+
+    /// Three floats, a vector.
+    pub fn vec3(v: [f64; 3]) -> Json<'static> {
+        Json::Arr(v.iter().map(|x| Json::float(*x)).collect())
+    }
+}
+
+impl<'a> From<&'a Value> for Json<'a> {
+    fn from(value: &'a Value) -> Json<'a> {
+        match value {
+            Value::Null => Json::Null,
+            Value::Bool(b) => Json::Bool(*b),
+            Value::Number(n) => Json::Num(n.clone()),
+            Value::String(s) => Json::Str(s),
+            Value::Array(items) => Json::Arr(items.iter().map(Json::from).collect()),
+            Value::Object(map) => Json::Obj(
+                map.iter()
+                    .map(|(k, v)| (k.as_str(), Json::from(v)))
+                    .collect(),
+            ),
+        }
+    }
+}
+
 /// Formats a JSON value for a file, ending with a newline.
 pub fn to_pretty(value: &Value) -> String {
     let mut out = String::new();
-    write_value(value, 0, &mut out);
+    write_pretty(&Json::from(value), 0, &mut out);
     out.push('\n');
     out
 }
 
 /// Writes a value laid out as [`to_pretty`] does, as if it stood `depth` levels deep (no newline).
-pub fn write_pretty(value: &Value, depth: usize, out: &mut String) {
-    write_value(value, depth, out);
-}
-
-fn write_value(value: &Value, depth: usize, out: &mut String) {
+pub fn write_pretty(value: &Json, depth: usize, out: &mut String) {
     if nests_within(value, 2) && inline_len(value, INLINE_WIDTH.saturating_sub(depth * 2)).is_some()
     {
         write_inline(value, out);
@@ -28,24 +76,24 @@ fn write_value(value: &Value, depth: usize, out: &mut String) {
     }
     let pad = indent(depth + 1);
     match value {
-        Value::Array(items) => {
+        Json::Arr(items) => {
             out.push_str("[\n");
             for (k, item) in items.iter().enumerate() {
                 out.push_str(&pad);
-                write_value(item, depth + 1, out);
+                write_pretty(item, depth + 1, out);
                 out.push_str(if k + 1 < items.len() { ",\n" } else { "\n" });
             }
             out.push_str(&indent(depth));
             out.push(']');
         }
-        Value::Object(map) => {
+        Json::Obj(fields) => {
             out.push_str("{\n");
-            for (k, (key, item)) in map.iter().enumerate() {
+            for (k, (key, item)) in fields.iter().enumerate() {
                 out.push_str(&pad);
-                write_scalar_string(key, out);
+                write_string(key, out);
                 out.push_str(": ");
-                write_value(item, depth + 1, out);
-                out.push_str(if k + 1 < map.len() { ",\n" } else { "\n" });
+                write_pretty(item, depth + 1, out);
+                out.push_str(if k + 1 < fields.len() { ",\n" } else { "\n" });
             }
             out.push_str(&indent(depth));
             out.push('}');
@@ -55,9 +103,10 @@ fn write_value(value: &Value, depth: usize, out: &mut String) {
 }
 
 /// Writes a value on one line, with a space after each `,` and `:`.
-fn write_inline(value: &Value, out: &mut String) {
+fn write_inline(value: &Json, out: &mut String) {
+    use std::fmt::Write;
     match value {
-        Value::Array(items) => {
+        Json::Arr(items) => {
             out.push('[');
             for (k, item) in items.iter().enumerate() {
                 if k > 0 {
@@ -67,27 +116,28 @@ fn write_inline(value: &Value, out: &mut String) {
             }
             out.push(']');
         }
-        Value::Object(map) => {
+        Json::Obj(fields) => {
             out.push('{');
-            for (k, (key, item)) in map.iter().enumerate() {
+            for (k, (key, item)) in fields.iter().enumerate() {
                 if k > 0 {
                     out.push_str(", ");
                 }
-                write_scalar_string(key, out);
+                write_string(key, out);
                 out.push_str(": ");
                 write_inline(item, out);
             }
             out.push('}');
         }
-        Value::String(s) => write_scalar_string(s, out),
-        scalar => {
-            use std::fmt::Write;
-            let _ = write!(out, "{scalar}");
+        Json::Str(s) => write_string(s, out),
+        Json::Num(n) => {
+            let _ = write!(out, "{n}");
         }
+        Json::Bool(b) => out.push_str(if *b { "true" } else { "false" }),
+        Json::Null => out.push_str("null"),
     }
 }
 
-fn write_scalar_string(s: &str, out: &mut String) {
+fn write_string(s: &str, out: &mut String) {
     if s.bytes().any(|b| b < 0x20 || b == b'"' || b == b'\\') {
         out.push_str(&serde_json::to_string(s).expect("strings serialise"));
     } else {
@@ -107,39 +157,39 @@ fn indent(depth: usize) -> std::borrow::Cow<'static, str> {
 }
 
 /// The one-line length of a value when it is at most `budget` characters, else `None` (stops early).
-fn inline_len(value: &Value, budget: usize) -> Option<usize> {
+fn inline_len(value: &Json, budget: usize) -> Option<usize> {
     let len = match value {
-        Value::Array(items) => {
+        Json::Arr(items) => {
             let mut len = 2 + 2 * items.len().saturating_sub(1);
             for item in items {
                 len += inline_len(item, budget.checked_sub(len)?)?;
             }
             len
         }
-        Value::Object(map) => {
-            let mut len = 2 + 2 * map.len().saturating_sub(1);
-            for (key, item) in map {
+        Json::Obj(fields) => {
+            let mut len = 2 + 2 * fields.len().saturating_sub(1);
+            for (key, item) in fields {
                 len += key.len() + 4;
                 len += inline_len(item, budget.checked_sub(len)?)?;
             }
             len
         }
-        Value::String(s) => s.len() + 2,
-        Value::Number(n) => number_len(n),
-        Value::Bool(b) => {
+        Json::Str(s) => s.len() + 2,
+        Json::Num(n) => number_len(n),
+        Json::Bool(b) => {
             if *b {
                 4
             } else {
                 5
             }
         }
-        Value::Null => 4,
+        Json::Null => 4,
     };
     (len <= budget).then_some(len)
 }
 
 /// The length of a number as JSON writes it, without allocating.
-fn number_len(n: &serde_json::Number) -> usize {
+fn number_len(n: &Number) -> usize {
     struct Count(usize);
     impl std::fmt::Write for Count {
         fn write_str(&mut self, s: &str) -> std::fmt::Result {
@@ -154,10 +204,10 @@ fn number_len(n: &serde_json::Number) -> usize {
 
 /// True when arrays and objects nest at most `levels` deep (`[1, 2]` is 1, `[[1], [2]]` is 2);
 /// stops looking as soon as it is deeper, so large documents are not walked.
-fn nests_within(value: &Value, levels: usize) -> bool {
+fn nests_within(value: &Json, levels: usize) -> bool {
     match value {
-        Value::Array(items) => levels > 0 && items.iter().all(|i| nests_within(i, levels - 1)),
-        Value::Object(map) => levels > 0 && map.values().all(|v| nests_within(v, levels - 1)),
+        Json::Arr(items) => levels > 0 && items.iter().all(|i| nests_within(i, levels - 1)),
+        Json::Obj(fields) => levels > 0 && fields.iter().all(|(_, v)| nests_within(v, levels - 1)),
         _ => true,
     }
 }

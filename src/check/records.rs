@@ -257,3 +257,129 @@ impl Summary {
 fn is_false(b: &bool) -> bool {
     !*b
 }
+
+/// The records as the results file lays them out: the same fields, in the same order and with the
+/// same omissions as their serde form, built without intermediate JSON values.
+mod layout {
+    use super::*;
+    use crate::json_text::Json;
+
+    fn tags(tags: &[String]) -> Json<'_> {
+        Json::Arr(tags.iter().map(|t| Json::Str(t)).collect())
+    }
+
+    impl RayHitRecord {
+        /// This record as laid out in results files.
+        pub fn to_json(&self) -> Json<'_> {
+            let mut f = vec![
+                ("object", Json::Str(&self.object)),
+                ("tags", tags(&self.tags)),
+                ("distance", Json::float(self.distance)),
+                ("t", Json::float(self.t)),
+                ("point", Json::vec3(self.point)),
+                ("normal", Json::vec3(self.normal)),
+            ];
+            if let Some(t) = self.triangle {
+                f.push(("triangle", Json::int(u64::from(t))));
+            }
+            if self.back_face {
+                f.push(("back_face", Json::Bool(true)));
+            }
+            Json::Obj(f)
+        }
+    }
+
+    impl SweepHitRecord {
+        /// This record as laid out in results files.
+        pub fn to_json(&self) -> Json<'_> {
+            let mut f = vec![
+                ("object", Json::Str(&self.object)),
+                ("tags", tags(&self.tags)),
+                ("distance", Json::float(self.distance)),
+                ("t", Json::float(self.t)),
+                ("segment", Json::int(self.segment as u64)),
+            ];
+            if let Some(time) = self.time {
+                f.push(("time", Json::float(time)));
+            }
+            f.push(("position", Json::vec3(self.position)));
+            f.push(("point", Json::vec3(self.point)));
+            f.push(("normal", Json::vec3(self.normal)));
+            if self.started_inside {
+                f.push(("started_inside", Json::Bool(true)));
+            }
+            Json::Obj(f)
+        }
+    }
+
+    impl ClosestRecord {
+        /// This record as laid out in results files.
+        pub fn to_json(&self) -> Json<'_> {
+            let mut f = vec![
+                ("object", Json::Str(&self.object)),
+                ("tags", tags(&self.tags)),
+                ("distance", Json::float(self.distance)),
+                ("point", Json::vec3(self.point)),
+                ("shape_point", Json::vec3(self.shape_point)),
+                ("normal", Json::vec3(self.normal)),
+            ];
+            if self.overlapping {
+                f.push(("overlapping", Json::Bool(true)));
+            }
+            Json::Obj(f)
+        }
+    }
+
+    impl OverlapRecord {
+        /// This record as laid out in results files.
+        pub fn to_json(&self) -> Json<'_> {
+            let mut f = vec![
+                ("object", Json::Str(&self.object)),
+                ("tags", tags(&self.tags)),
+                ("depth", Json::float(self.depth)),
+                ("direction", Json::vec3(self.direction)),
+                ("point", Json::vec3(self.point)),
+            ];
+            if self.enclosed {
+                f.push(("enclosed", Json::Bool(true)));
+            }
+            Json::Obj(f)
+        }
+    }
+
+    impl ClearanceRecord {
+        /// This record as laid out in results files.
+        pub fn to_json(&self) -> Json<'_> {
+            Json::Obj(vec![
+                ("distance", Json::float(self.distance)),
+                ("t", Json::float(self.t)),
+                ("position", Json::vec3(self.position)),
+                ("object", Json::Str(&self.object)),
+                ("point", Json::vec3(self.point)),
+            ])
+        }
+    }
+
+    impl ProbeResult {
+        /// This result as laid out in results files.
+        pub fn to_json(&self) -> Json<'_> {
+            let hits = match &self.hits {
+                Hits::Ray(h) => h.iter().map(RayHitRecord::to_json).collect(),
+                Hits::Sweep(h) => h.iter().map(SweepHitRecord::to_json).collect(),
+                Hits::Closest(h) => h.iter().map(ClosestRecord::to_json).collect(),
+                Hits::Overlap(h) => h.iter().map(OverlapRecord::to_json).collect(),
+            };
+            let mut f = vec![
+                ("id", Json::Str(&self.id)),
+                ("kind", Json::Str(&self.kind)),
+                ("verdict", Json::Str(self.verdict.word())),
+                ("reason", Json::Str(&self.reason)),
+                ("hits", Json::Arr(hits)),
+            ];
+            if let Some(c) = &self.clearance {
+                f.push(("clearance", c.to_json()));
+            }
+            Json::Obj(f)
+        }
+    }
+}

@@ -76,11 +76,7 @@ impl ResultsFile {
         out.push_str("[\n");
         for (k, result) in self.results.iter().enumerate() {
             out.push_str("    ");
-            write_pretty(
-                &serde_json::to_value(result).expect("results serialise"),
-                2,
-                &mut out,
-            );
+            write_pretty(&result.to_json(), 2, &mut out);
             out.push_str(if k + 1 < self.results.len() {
                 ",\n"
             } else {
