@@ -269,3 +269,42 @@ fn info_lists_objects_and_warnings() {
         "{stdout}"
     );
 }
+
+proptest::proptest! {
+    #![proptest_config(proptest::prelude::ProptestConfig { cases: 300, ..Default::default() })]
+
+    /// Arbitrary bytes, and valid files cut short or with bytes flipped, never panic a loader: each
+    /// gives a level or an error.
+    #[test]
+    fn no_input_panics_a_loader(
+        bytes in proptest::collection::vec(proptest::prelude::any::<u8>(), 0..400),
+        cut in 0usize..4000,
+        flips in proptest::collection::vec((0usize..4000, proptest::prelude::any::<u8>()), 0..6),
+    ) {
+        let dir = tempfile::tempdir().unwrap();
+        for name in ["a.glb", "a.gltf", "a.obj", "a.level.json"] {
+            let _ = load_level(&write(dir.path(), name, &bytes));
+        }
+        let obj = b"o crate\nv 0 0 0\nv 1 0 0\nv 0 1 0\nv 0 0 1\nf 1 2 3\nf 1 3 4\nf -1 -2 -3/1/1\n".to_vec();
+        let level = br#"{"plumbline": "level", "version": 1, "objects": [{"name": "a", "shape": {"type": "heightfield", "heights": [[0, 1], [2, 3]], "size": [1, 1]}}, {"name": "b", "translation": [1, 2, 3], "shape": {"type": "convex", "points": [[0,0,0],[1,0,0],[0,1,0],[0,0,1]]}}]}"#.to_vec();
+        let glb = plumbline::demo::pack_glb(
+            br#"{"asset": {"version": "2.0"}, "scene": 0, "scenes": [{"nodes": [0]}], "nodes": [{"mesh": 0}], "meshes": [{"primitives": [{"attributes": {"POSITION": 0}, "indices": 1}]}], "accessors": [{"bufferView": 0, "componentType": 5126, "count": 3, "type": "VEC3", "min": [0,0,0], "max": [1,1,0]}, {"bufferView": 1, "componentType": 5123, "count": 3, "type": "SCALAR"}], "bufferViews": [{"buffer": 0, "byteLength": 36}, {"buffer": 0, "byteOffset": 36, "byteLength": 6}], "buffers": [{"byteLength": 44}]}"#,
+            &[0u8; 44],
+        );
+        for (name, mut good) in [("b.obj", obj), ("b.level.json", level), ("b.glb", glb)] {
+            for &(at, value) in &flips {
+                if !good.is_empty() {
+                    let k = at % good.len();
+                    good[k] = value;
+                }
+            }
+            good.truncate(cut.min(good.len()));
+            let path = write(dir.path(), name, &good);
+            if let Ok((level, _)) = load_level(&path) {
+                // Whatever loads also builds a world and answers a probe.
+                let world = plumbline::query::World::new(&level).unwrap();
+                let _ = world.everything().ray_first(glam::DVec3::splat(-5.0), glam::DVec3::splat(5.0));
+            }
+        }
+    }
+}

@@ -18,6 +18,10 @@ pub fn load_gltf(
     path: &Path,
     bytes: &[u8],
 ) -> Result<(Vec<LevelObject>, Vec<Diagnostic>), InputError> {
+    let unchecked =
+        gltf::Gltf::from_slice_without_validation(bytes).map_err(|e| gltf_error(path, e))?;
+    check_attribute_accessors(path, unchecked.document.as_json())?;
+    drop(unchecked);
     let gltf = gltf::Gltf::from_slice(bytes).map_err(|e| gltf_error(path, e))?;
     let buffers = load_buffers(path, &gltf)?;
     let mut loader = Loader {
@@ -34,6 +38,31 @@ pub fn load_gltf(
         }
     }
     Ok((loader.objects, loader.diagnostics))
+}
+
+/// Checks that every primitive attribute names an accessor that exists: gltf-json 1.4's own validation
+/// indexes the accessor list with it unchecked (a malformed file would panic there).
+fn check_attribute_accessors(path: &Path, root: &gltf::json::Root) -> Result<(), InputError> {
+    for (m, mesh) in root.meshes.iter().enumerate() {
+        for (p, primitive) in mesh.primitives.iter().enumerate() {
+            let missing = primitive
+                .attributes
+                .values()
+                .any(|a| a.value() >= root.accessors.len())
+                || primitive
+                    .indices
+                    .as_ref()
+                    .is_some_and(|a| a.value() >= root.accessors.len());
+            if missing {
+                return Err(InputError::at(
+                    path,
+                    format!("meshes[{m}].primitives[{p}]"),
+                    "refers to an accessor that does not exist",
+                ));
+            }
+        }
+    }
+    Ok(())
 }
 
 /// Nodes nested deeper than this are refused (a cycle in a broken file would otherwise recurse forever).
