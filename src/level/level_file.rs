@@ -144,8 +144,11 @@ fn parse_up(path: &Path, up: Option<[f64; 3]>) -> Result<DVec3, InputError> {
 
 fn parse_transform(spec: &ObjectSpec) -> Result<Transform, String> {
     let translation = DVec3::from_array(spec.translation.unwrap_or([0.0; 3]));
-    if !translation.is_finite() {
-        return Err("translation must be three finite numbers".into());
+    if !super::within_range(translation) {
+        return Err(format!(
+            "translation must be three finite numbers within ±{:e} m",
+            super::MAX_COORDINATE
+        ));
     }
     let rotation = match spec.rotation {
         None => DQuat::IDENTITY,

@@ -37,7 +37,12 @@ impl MeshFault {
     /// What the fault is, for an error message.
     pub fn message(&self) -> String {
         match self {
-            MeshFault::NonFiniteVertex(_) => "vertex coordinate is not a finite number".into(),
+            MeshFault::NonFiniteVertex(_) => {
+                format!(
+                    "vertex coordinate is not a finite number within ±{:e} m",
+                    super::MAX_COORDINATE
+                )
+            }
             MeshFault::IndexOutOfRange {
                 index,
                 vertex_count,
@@ -80,7 +85,7 @@ pub fn build_mesh(
         }
     }
     let placed: Vec<DVec3> = vertices.iter().map(|&v| apply(matrix, v)).collect();
-    if let Some(bad) = placed.iter().position(|v| !v.is_finite()) {
+    if let Some(bad) = placed.iter().position(|v| !super::within_range(*v)) {
         return Err(MeshFault::NonFiniteVertex(bad));
     }
     let flip = mirrors(matrix);

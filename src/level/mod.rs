@@ -26,6 +26,18 @@ pub use transform::Transform;
 
 use crate::error::{Diagnostic, InputError};
 
+/// The largest coordinate, in metres, a level or probe may use: 10,000 km. Beyond it f64 keeps too
+/// few digits below the millimetre, and parry's iterative queries can fail outright. Ours.
+pub const MAX_COORDINATE: f64 = 1e7;
+
+/// The largest size (radius, half extent, height), in metres, a shape may have: 1,000 km. Ours.
+pub const MAX_SIZE: f64 = 1e6;
+
+/// True when every coordinate of `v` is finite and within ±[`MAX_COORDINATE`].
+pub fn within_range(v: glam::DVec3) -> bool {
+    v.is_finite() && v.abs().max_element() <= MAX_COORDINATE
+}
+
 /// Loads a level from a level file (`.json`), a glTF 2.0 file (`.gltf`, `.glb`) or an OBJ file.
 pub fn load_level(path: &Path) -> Result<(Level, Vec<Diagnostic>), InputError> {
     match extension(path).as_str() {

@@ -163,29 +163,37 @@ fn mesh_geometry(
 }
 
 fn positive(field: &str, value: f64) -> Result<f64, String> {
-    if value.is_finite() && value > 0.0 {
+    if value.is_finite() && value > 0.0 && value <= super::MAX_SIZE {
         Ok(value)
     } else {
         Err(format!(
-            "{field} must be a positive number of metres, not {value}"
+            "{field} must be a positive number of metres up to {:e}, not {value}",
+            super::MAX_SIZE
         ))
     }
 }
 
 fn non_negative(field: &str, value: f64) -> Result<f64, String> {
-    if value.is_finite() && value >= 0.0 {
+    if value.is_finite() && value >= 0.0 && value <= super::MAX_SIZE {
         Ok(value)
     } else {
         Err(format!(
-            "{field} must be zero or a positive number of metres, not {value}"
+            "{field} must be zero or a positive number of metres up to {:e}, not {value}",
+            super::MAX_SIZE
         ))
     }
 }
 
 fn convex_points(points: &[[f64; 3]]) -> Result<Vec<DVec3>, String> {
     let points: Vec<DVec3> = points.iter().map(|p| DVec3::from_array(*p)).collect();
-    if let Some(bad) = points.iter().position(|p| !p.is_finite()) {
-        return Err(format!("points[{bad}] is not a finite point"));
+    if let Some(bad) = points
+        .iter()
+        .position(|p| !p.is_finite() || p.abs().max_element() > super::MAX_SIZE)
+    {
+        return Err(format!(
+            "points[{bad}] must be finite and within {:e} m of the shape's centre",
+            super::MAX_SIZE
+        ));
     }
     if points.len() < 4 || !spans_volume(&points) {
         return Err(

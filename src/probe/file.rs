@@ -227,7 +227,10 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
             )?;
             let at = finite_point("at", raw.at.ok_or_else(|| need("at"))?)?;
             let max_distance = raw.max_distance.ok_or_else(|| need("max_distance"))?;
-            if !(max_distance.is_finite() && max_distance >= 0.0) {
+            if !(max_distance.is_finite()
+                && max_distance >= 0.0
+                && max_distance <= crate::level::MAX_COORDINATE)
+            {
                 return Err(format!(
                     "max_distance must be zero or a positive number of metres, not {max_distance}"
                 ));
@@ -274,10 +277,13 @@ fn probe_shape(
 
 fn finite_point(field: &str, p: [f64; 3]) -> Result<DVec3, String> {
     let v = DVec3::from_array(p);
-    if v.is_finite() {
+    if crate::level::within_range(v) {
         Ok(v)
     } else {
-        Err(format!("\"{field}\" must be three finite numbers"))
+        Err(format!(
+            "\"{field}\" must be three finite numbers within ±{:e} m",
+            crate::level::MAX_COORDINATE
+        ))
     }
 }
 
