@@ -174,7 +174,7 @@ fn positive(field: &str, value: f64) -> Result<f64, String> {
 }
 
 fn non_negative(field: &str, value: f64) -> Result<f64, String> {
-    if value.is_finite() && value >= 0.0 && value <= super::MAX_SIZE {
+    if value.is_finite() && (0.0..=super::MAX_SIZE).contains(&value) {
         Ok(value)
     } else {
         Err(format!(

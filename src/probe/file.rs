@@ -228,8 +228,7 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
             let at = finite_point("at", raw.at.ok_or_else(|| need("at"))?)?;
             let max_distance = raw.max_distance.ok_or_else(|| need("max_distance"))?;
             if !(max_distance.is_finite()
-                && max_distance >= 0.0
-                && max_distance <= crate::level::MAX_COORDINATE)
+                && (0.0..=crate::level::MAX_COORDINATE).contains(&max_distance))
             {
                 return Err(format!(
                     "max_distance must be zero or a positive number of metres, not {max_distance}"
