@@ -42,8 +42,8 @@ type Answer = (Hits, Option<ClearanceRecord>);
 
 fn answer(world: &World, probe: &Probe) -> Result<Answer, QueryError> {
     let view = world.view(&probe.filter);
-    let tags = |id| world.tags(id).to_vec();
-    let name = |id| world.name(id).to_string();
+    let tags = |id| world.shared_tags(id);
+    let name = |id| world.shared_name(id);
     Ok(match &probe.query {
         ProbeQuery::Ray { from, to, hits } => {
             let found = if *hits == Some(HitsMode::All) {
@@ -159,8 +159,8 @@ fn overlap_records(
         .overlap(shape, at)?
         .iter()
         .map(|h| OverlapRecord {
-            object: world.name(h.object).to_string(),
-            tags: world.tags(h.object).to_vec(),
+            object: world.shared_name(h.object),
+            tags: world.shared_tags(h.object),
             depth: round9(h.depth),
             direction: round9_vec(h.direction),
             point: round9_vec(h.point),

@@ -1,5 +1,7 @@
 //! The result records of SPEC §3, as written to and read from results files.
 
+use std::sync::Arc;
+
 use serde::{Deserialize, Serialize};
 
 /// How a probe's expectation fared.
@@ -33,9 +35,9 @@ impl Verdict {
 #[serde(deny_unknown_fields)]
 pub struct RayHitRecord {
     /// Object name.
-    pub object: String,
+    pub object: Arc<str>,
     /// Object tags.
-    pub tags: Vec<String>,
+    pub tags: Arc<[String]>,
     /// Metres from `from`.
     pub distance: f64,
     /// Fraction of the segment.
@@ -57,9 +59,9 @@ pub struct RayHitRecord {
 #[serde(deny_unknown_fields)]
 pub struct SweepHitRecord {
     /// Object name.
-    pub object: String,
+    pub object: Arc<str>,
     /// Object tags.
-    pub tags: Vec<String>,
+    pub tags: Arc<[String]>,
     /// Path length travelled before impact.
     pub distance: f64,
     /// Fraction of the path length.
@@ -85,9 +87,9 @@ pub struct SweepHitRecord {
 #[serde(deny_unknown_fields)]
 pub struct ClosestRecord {
     /// Object name.
-    pub object: String,
+    pub object: Arc<str>,
     /// Object tags.
-    pub tags: Vec<String>,
+    pub tags: Arc<[String]>,
     /// Metres between probe and object (0 when overlapping).
     pub distance: f64,
     /// Nearest point on the object.
@@ -106,9 +108,9 @@ pub struct ClosestRecord {
 #[serde(deny_unknown_fields)]
 pub struct OverlapRecord {
     /// Object name.
-    pub object: String,
+    pub object: Arc<str>,
     /// Object tags.
-    pub tags: Vec<String>,
+    pub tags: Arc<[String]>,
     /// Penetration depth.
     pub depth: f64,
     /// Unit direction that separates the shape by `depth`.
@@ -131,7 +133,7 @@ pub struct ClearanceRecord {
     /// Shape centre there.
     pub position: [f64; 3],
     /// Nearest object.
-    pub object: String,
+    pub object: Arc<str>,
     /// Nearest point on it.
     pub point: [f64; 3],
 }
@@ -170,18 +172,10 @@ impl Hits {
     /// depth for overlaps.
     pub fn first(&self) -> Option<(&str, &[String], f64)> {
         match self {
-            Hits::Ray(h) => h
-                .first()
-                .map(|x| (x.object.as_str(), x.tags.as_slice(), x.distance)),
-            Hits::Sweep(h) => h
-                .first()
-                .map(|x| (x.object.as_str(), x.tags.as_slice(), x.distance)),
-            Hits::Closest(h) => h
-                .first()
-                .map(|x| (x.object.as_str(), x.tags.as_slice(), x.distance)),
-            Hits::Overlap(h) => h
-                .first()
-                .map(|x| (x.object.as_str(), x.tags.as_slice(), x.depth)),
+            Hits::Ray(h) => h.first().map(|x| (&*x.object, &x.tags[..], x.distance)),
+            Hits::Sweep(h) => h.first().map(|x| (&*x.object, &x.tags[..], x.distance)),
+            Hits::Closest(h) => h.first().map(|x| (&*x.object, &x.tags[..], x.distance)),
+            Hits::Overlap(h) => h.first().map(|x| (&*x.object, &x.tags[..], x.depth)),
         }
     }
 

@@ -1,5 +1,7 @@
 //! The World: every level object as a parry3d-f64 shape, one BVH over the objects, and filtered views.
 
+use std::sync::Arc;
+
 use glam::DVec3;
 use parry3d_f64::bounding_volume::Aabb;
 use parry3d_f64::math::Pose;
@@ -48,8 +50,8 @@ impl Body {
 pub struct World {
     /// Leaves of `bvh`: primitives, meshes and parts of meshes.
     pub(crate) bodies: Vec<Body>,
-    names: Vec<String>,
-    tags: Vec<Vec<String>>,
+    names: Vec<Arc<str>>,
+    tags: Vec<Arc<[String]>>,
     closed: Vec<bool>,
     pub(crate) bvh: Bvh,
     up: DVec3,
@@ -92,8 +94,8 @@ impl World {
                     });
                 }
             }
-            names.push(item.name);
-            tags.push(item.tags);
+            names.push(Arc::from(item.name));
+            tags.push(Arc::from(item.tags));
         }
         let aabbs: Vec<Aabb> = bodies.iter().map(|b| b.aabb).collect();
         let bvh = Bvh::from_leaves(BvhBuildStrategy::Binned, &aabbs);
@@ -129,6 +131,16 @@ impl World {
     /// The object's tags (sorted).
     pub fn tags(&self, id: ObjectId) -> &[String] {
         &self.tags[id]
+    }
+
+    /// The object's name, shared (no copy of the text).
+    pub fn shared_name(&self, id: ObjectId) -> Arc<str> {
+        self.names[id].clone()
+    }
+
+    /// The object's tags, shared (no copy of the list).
+    pub fn shared_tags(&self, id: ObjectId) -> Arc<[String]> {
+        self.tags[id].clone()
     }
 
     /// True when the object is a closed triangle mesh (it has an inside).
