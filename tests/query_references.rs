@@ -502,3 +502,45 @@ fn sweep_all_hits_started_inside_and_clearance() {
     );
     assert!((clearance.point.y - 0.5).abs() < 1e-7);
 }
+
+/// A capsule swept into a box's top edge touches it where its lower hemisphere meets the edge:
+/// elementary geometry (a sphere of radius r whose centre is h above the edge's height touches it at
+/// a horizontal distance √(r² − h²)); the normal points from the edge to the hemisphere's centre.
+#[test]
+fn capsule_meets_an_edge_exactly() {
+    let (v, t) = box_mesh(DVec3::new(12.0, 1.25, 0.0), DVec3::new(2.0, 1.25, 2.0)); // top edge at x = 10, y = 2.5
+    let world = LevelBuilder::new().mesh("sill", v, t).world();
+    let capsule = ProbeShape::new(
+        &ShapeSpec::Capsule {
+            radius: 0.35,
+            half_height: 0.55,
+        },
+        DQuat::IDENTITY,
+    )
+    .unwrap();
+    let hit = world
+        .everything()
+        .sweep_first(
+            &capsule,
+            &[DVec3::new(5.0, 3.1, 0.3), DVec3::new(14.0, 3.1, 0.3)],
+        )
+        .unwrap()
+        .expect("the edge is met");
+    let reach = (0.35f64 * 0.35 - 0.05 * 0.05).sqrt();
+    assert!(
+        (hit.position.x - (10.0 - reach)).abs() < 1e-6,
+        "{:?}",
+        hit.position
+    );
+    assert!(
+        (hit.point - DVec3::new(10.0, 2.5, 0.3)).length() < 1e-6,
+        "{:?}",
+        hit.point
+    );
+    let expected = DVec3::new(-reach, 0.05, 0.0) / 0.35;
+    assert!(
+        (hit.normal - expected).length() < 1e-6,
+        "{:?} vs {expected:?}",
+        hit.normal
+    );
+}

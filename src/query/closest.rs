@@ -113,7 +113,7 @@ impl View<'_> {
             }
             ClosestProbe::Shape(shape) => {
                 let pose = shape.pose_at(at);
-                if body.closed && body.shape.contains_point(&body.pose, at) {
+                if body.encloses(at) {
                     let (point, normal) = contact_geometry(body, &pose, shape, self.world.up());
                     return Some(ClosestHit {
                         object: id,

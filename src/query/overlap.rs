@@ -43,7 +43,7 @@ impl View<'_> {
             let touching = contact(&body.pose, &*body.shape, &pose, &*shape.shape, 0.0)
                 .ok()
                 .flatten();
-            if body.closed && body.shape.contains_point(&body.pose, at) {
+            if body.encloses(at) {
                 // The centre is inside a closed mesh: push the shape out through the nearest wall.
                 let wall = body.shape.project_point(&body.pose, at, false).point;
                 let direction = (wall - at).try_normalize().unwrap_or(self.world.up());

@@ -4,11 +4,12 @@
 use glam::DVec3;
 use parry3d_f64::bounding_volume::{Aabb, BoundingVolume};
 use parry3d_f64::math::Pose;
+use parry3d_f64::query::details::closest_points_segment_segment_with_locations_nD;
 use parry3d_f64::query::{
     ClosestPoints, ShapeCastOptions, ShapeCastStatus, cast_shapes, closest_points, contact,
 };
 use parry3d_f64::query::{PointQuery, Ray, RayCast};
-use parry3d_f64::shape::Shape;
+use parry3d_f64::shape::{Segment, Shape, Triangle};
 
 use super::shapes::ProbeShape;
 use super::world::{Body, ObjectId, View};
@@ -173,7 +174,15 @@ impl View<'_> {
             let pose = shape.pose_at(before);
             let part = match body.mesh() {
                 Some(mesh) if impact.part < mesh.num_triangles() as u32 => {
-                    part_contact(&mesh.triangle(impact.part), &Pose::IDENTITY, &pose, shape)
+                    // The exact capsule contact needs no back-off: at impact the axis is a radius
+                    // away from the triangle (unless the path started inside).
+                    let triangle = mesh.triangle(impact.part);
+                    let exact = (!impact.started_inside)
+                        .then(|| {
+                            capsule_triangle_contact(&triangle, &shape.pose_at(position), shape)
+                        })
+                        .flatten();
+                    exact.or_else(|| part_contact(&triangle, &Pose::IDENTITY, &pose, shape))
                 }
                 Some(_) => None,
                 None => part_contact(&*body.shape, &body.pose, &pose, shape),
@@ -208,7 +217,7 @@ fn time_of_impact(
     limit: f64,
 ) -> Option<(f64, u32, bool)> {
     let dir = (b - a) / a.distance(b);
-    if segment == 0 && body.closed && body.shape.contains_point(&body.pose, a) {
+    if segment == 0 && body.encloses(a) {
         return Some((0.0, u32::MAX, true));
     }
     let options = ShapeCastOptions {
@@ -270,7 +279,7 @@ fn refine_ball_impact(
         if at_estimate.distance(project(at_estimate)) - radius > 1e-4 {
             return None;
         }
-        let mut s = (toi - 1e-4).max(0.0);
+        let mut s = (toi - 1e-5).max(0.0);
         for _ in 0..60 {
             let centre = a + dir * s;
             let point = project(centre);
@@ -312,6 +321,48 @@ fn refine_ball_impact(
         }
         None => refine(&|p| body.shape.project_point(&body.pose, p, false).point),
     }
+}
+
+/// For a capsule a hair before impact, the contact point on a mesh triangle and the unit normal
+/// towards the capsule, exactly: the closest points of the capsule's axis segment and the triangle
+/// (which do not meet, since the capsule is still apart) are the nearest of the axis end points
+/// projected onto the triangle (Ericson 2005, §5.1.5) and the axis against each triangle edge
+/// (§5.1.9). `None` for other shapes.
+fn capsule_triangle_contact(
+    triangle: &Triangle,
+    pose: &Pose,
+    shape: &ProbeShape,
+) -> Option<(DVec3, DVec3)> {
+    let capsule = shape.shape.as_capsule()?;
+    let (a, b) = (
+        pose.transform_point(capsule.segment.a),
+        pose.transform_point(capsule.segment.b),
+    );
+    let axis = Segment::new(a, b);
+    let mut best: Option<(f64, DVec3, DVec3)> = None;
+    let mut consider = |on_triangle: DVec3, on_axis: DVec3| {
+        let d = on_triangle.distance_squared(on_axis);
+        if best.is_none_or(|(bd, _, _)| d < bd) {
+            best = Some((d, on_triangle, on_axis));
+        }
+    };
+    for end in [a, b] {
+        consider(triangle.project_local_point(end, false).point, end);
+    }
+    for (p, q) in [
+        (triangle.a, triangle.b),
+        (triangle.b, triangle.c),
+        (triangle.c, triangle.a),
+    ] {
+        let (on_axis, on_edge) =
+            closest_points_segment_segment_with_locations_nD((&axis.a, &axis.b), (&p, &q));
+        consider(
+            Segment::new(p, q).point_at(&on_edge),
+            axis.point_at(&on_axis),
+        );
+    }
+    let (_, on_triangle, on_axis) = best?;
+    Some((on_triangle, (on_axis - on_triangle).try_normalize()?))
 }
 
 /// The contact point on one convex part of an object (a mesh triangle or a primitive) and the unit

@@ -38,6 +38,12 @@ impl Body {
         self.shape.as_trimesh()
     }
 
+    /// True when `p` is inside this body's closed mesh (never for open meshes or primitives). The
+    /// box test first: most points are far outside.
+    pub fn encloses(&self, p: DVec3) -> bool {
+        self.closed && self.aabb.contains_local_point(p) && self.shape.contains_point(&self.pose, p)
+    }
+
     /// The object's triangle index of this body's triangle `local`.
     pub fn triangle_id(&self, local: u32) -> u32 {
         self.triangle_ids
