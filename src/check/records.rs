@@ -31,7 +31,7 @@ impl Verdict {
 }
 
 /// A ray crossing.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct RayHitRecord {
     /// Object name.
@@ -47,15 +47,15 @@ pub struct RayHitRecord {
     /// Unit normal facing the start.
     pub normal: [f64; 3],
     /// Triangle index in the object's mesh (meshes only).
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(default)]
     pub triangle: Option<u32>,
     /// Crossed from behind.
-    #[serde(default, skip_serializing_if = "is_false")]
+    #[serde(default)]
     pub back_face: bool,
 }
 
 /// A sweep's first impact with one object.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct SweepHitRecord {
     /// Object name.
@@ -69,7 +69,7 @@ pub struct SweepHitRecord {
     /// Path segment index.
     pub segment: usize,
     /// Seconds into the path (when the probe has a duration).
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(default)]
     pub time: Option<f64>,
     /// Shape centre at impact.
     pub position: [f64; 3],
@@ -78,12 +78,12 @@ pub struct SweepHitRecord {
     /// Unit normal from the object towards the shape.
     pub normal: [f64; 3],
     /// Overlapping at the start of the path.
-    #[serde(default, skip_serializing_if = "is_false")]
+    #[serde(default)]
     pub started_inside: bool,
 }
 
 /// The nearest object to a closest-point probe.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct ClosestRecord {
     /// Object name.
@@ -99,12 +99,12 @@ pub struct ClosestRecord {
     /// Unit normal from the object towards the probe.
     pub normal: [f64; 3],
     /// The probe overlaps the object.
-    #[serde(default, skip_serializing_if = "is_false")]
+    #[serde(default)]
     pub overlapping: bool,
 }
 
 /// One object an overlap probe overlaps.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct OverlapRecord {
     /// Object name.
@@ -118,12 +118,12 @@ pub struct OverlapRecord {
     /// Deepest point on the object.
     pub point: [f64; 3],
     /// The shape is entirely inside a closed mesh.
-    #[serde(default, skip_serializing_if = "is_false")]
+    #[serde(default)]
     pub enclosed: bool,
 }
 
 /// The least clearance of a sweep over its whole path.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct ClearanceRecord {
     /// Smallest distance to the level (0 where it touches).
@@ -139,8 +139,7 @@ pub struct ClearanceRecord {
 }
 
 /// A probe's hits, by kind.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-#[serde(untagged)]
+#[derive(Debug, Clone, PartialEq)]
 pub enum Hits {
     /// Ray crossings.
     Ray(Vec<RayHitRecord>),
@@ -191,7 +190,7 @@ impl Hits {
 }
 
 /// One probe's answer and verdict.
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq)]
 pub struct ProbeResult {
     /// The probe's id.
     pub id: String,
@@ -204,7 +203,6 @@ pub struct ProbeResult {
     /// The hits.
     pub hits: Hits,
     /// A sweep's least clearance, when asked for.
-    #[serde(skip_serializing_if = "Option::is_none")]
     pub clearance: Option<ClearanceRecord>,
 }
 
@@ -248,12 +246,8 @@ impl Summary {
     }
 }
 
-fn is_false(b: &bool) -> bool {
-    !*b
-}
-
-/// The records as the results file lays them out: the same fields, in the same order and with the
-/// same omissions as their serde form, built without intermediate JSON values.
+/// The records as the results file lays them out (the one writer of results; reading is serde's):
+/// built as borrowed JSON, without intermediate values.
 mod layout {
     use super::*;
     use crate::json_text::Json;

@@ -3,7 +3,7 @@
 
 use std::path::Path;
 
-use serde::{Deserialize, Serialize};
+use serde::Deserialize;
 use serde_json::Value;
 use serde_json::value::RawValue;
 use sha2::{Digest, Sha256};
@@ -16,7 +16,7 @@ use crate::error::{InputError, check_header};
 use crate::probe::{ProbeSet, probe_set_to_json};
 
 /// A results file: what was checked, on which geometry, and every probe's result.
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq)]
 pub struct ResultsFile {
     /// Always `"results"`.
     pub plumbline: String,
