@@ -36,6 +36,7 @@
 //! assert!((touch.distance - 3.5).abs() < 1e-9);
 //! ```
 
+pub mod app;
 pub mod atomic;
 pub mod check;
 pub mod demo;
@@ -45,3 +46,4 @@ pub mod level;
 pub mod probe;
 pub mod query;
 pub mod report;
+pub mod view;

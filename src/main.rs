@@ -20,10 +20,19 @@ use plumbline::check::DEFAULT_TOLERANCE;
 struct Cli {
     #[command(subcommand)]
     command: Option<Command>,
+    #[command(flatten)]
+    window: cli::WindowArgs,
 }
 
 #[derive(Subcommand)]
 enum Command {
+    /// Opens the workbench window on a level or a probe set (default: the bundled demo).
+    Open {
+        /// A *.probes.json, .level.json, .gltf, .glb or .obj file.
+        file: Option<PathBuf>,
+        #[command(flatten)]
+        window: cli::WindowArgs,
+    },
     /// Answers every probe of a probe set, prints a summary and writes the requested files.
     Check {
         #[command(flatten)]
@@ -49,26 +58,11 @@ enum Command {
     },
 }
 
-/// With no command: check the bundled demo's probe set against the edited demo level, comparing with
-/// the baseline from the original level, so a first run shows every kind of answer and what changed.
-fn demo() -> Result<ExitCode, String> {
-    let scenes = demo_scenes();
-    println!("Plumbline demo: Saltfen Quay, a freight yard on a river quay, after three edits.");
-    println!("(`plumbline --help` lists the commands; the README walks through this run.)\n");
-    let options = cli::CheckOptions {
-        probes: scenes.join(plumbline::demo::files::PROBES),
-        level: Some(scenes.join(plumbline::demo::files::EDITED_LEVEL)),
-        out: None,
-        baseline: Some(scenes.join(plumbline::demo::files::BASELINE)),
-        junit: None,
-        markdown: None,
-        tolerance: DEFAULT_TOLERANCE,
-        fail_on_change: false,
-        jobs: None,
-        brief: false,
-    };
-    // The demo fails on purpose to show failures; as a demonstration it still ends successfully.
-    cli::check(&options).map(|_| ExitCode::SUCCESS)
+/// Opens the window on `file`, or on the bundled demo's probe set.
+fn open(file: Option<PathBuf>, window: cli::WindowArgs) -> Result<ExitCode, String> {
+    let file = file.unwrap_or_else(|| demo_scenes().join(plumbline::demo::files::PROBES));
+    plumbline::app::run(&file, window.options()?)?;
+    Ok(ExitCode::SUCCESS)
 }
 
 /// The demo's folder: `scenes/` here, or the one in the source tree this binary was built from.
@@ -117,6 +111,7 @@ fn run(parsed: Cli) -> Result<ExitCode, String> {
             tolerance,
         }) => cli::diff(&old, &new, tolerance),
         Some(Command::Info { level }) => cli::info(&level),
-        None => demo(),
+        Some(Command::Open { file, window }) => open(file, window),
+        None => open(None, parsed.window),
     }
 }

@@ -4,10 +4,12 @@ mod check;
 mod diff;
 mod info;
 mod terminal;
+mod window;
 
 pub use check::{CheckOptions, check, watch};
 pub use diff::diff;
 pub use info::info;
+pub use window::WindowArgs;
 
 use plumbline::check::Comparison;
 use terminal::{Style, Tone, write_stdout};

@@ -127,6 +127,30 @@ impl View<'_> {
         Ok(Some(best))
     }
 
+    /// The shape's distance to the level at `samples` evenly spaced places along `path` (at least
+    /// two: the ends), as (metres travelled, distance) pairs, for plotting. Sampled, so it can miss a
+    /// narrow dip between samples: the exact least clearance is [`View::sweep_clearance`].
+    pub fn clearance_profile(
+        &self,
+        shape: &ProbeShape,
+        path: &[DVec3],
+        samples: usize,
+    ) -> Result<Vec<(f64, f64)>, QueryError> {
+        let geometry = PathGeometry::new(path)?;
+        let total = geometry.length();
+        let samples = samples.max(2);
+        let mut profile = Vec::with_capacity(samples);
+        for i in 0..samples {
+            let travelled = total * i as f64 / (samples - 1) as f64;
+            let at = geometry.point_at(travelled);
+            let found = self.closest(ClosestProbe::Shape(shape), at, f64::INFINITY)?;
+            if let Some(hit) = found {
+                profile.push((travelled, hit.distance));
+            }
+        }
+        Ok(profile)
+    }
+
     fn piece_distance(&self, piece: &Piece, pose: &Pose, shape: &dyn Shape) -> f64 {
         let (piece_pose, piece_shape) = piece.placed(self);
         distance(&piece_pose, piece_shape, pose, shape).map_or(f64::INFINITY, |d| d.distance)

@@ -22,7 +22,7 @@ pub use clearance::Clearance;
 pub use closest::{ClosestHit, ClosestProbe};
 pub use overlap::{OverlapHit, TOUCH_TOLERANCE};
 pub use ray::RayHit;
-pub use shapes::ProbeShape;
+pub use shapes::{ProbeShape, primitive_shape, shape_surface};
 pub use sweep::SweepHit;
 pub use watertight::ShearedRay;
 pub use world::{Filter, ObjectId, PART_TRIANGLES, View, World};
@@ -72,8 +72,29 @@ impl<'a> PathGeometry<'a> {
         self.cumulative[s] + along
     }
 
+    /// The whole path's length.
+    pub fn length(&self) -> f64 {
+        self.cumulative[self.cumulative.len() - 1]
+    }
+
+    /// The point `travelled` metres along the path (clamped to its ends).
+    pub fn point_at(&self, travelled: f64) -> DVec3 {
+        let s = self
+            .cumulative
+            .partition_point(|c| *c <= travelled)
+            .clamp(1, self.points.len() - 1)
+            - 1;
+        let len = self.cumulative[s + 1] - self.cumulative[s];
+        let u = if len > 0.0 {
+            ((travelled - self.cumulative[s]) / len).clamp(0.0, 1.0)
+        } else {
+            0.0
+        };
+        self.points[s].lerp(self.points[s + 1], u)
+    }
+
     /// Fraction of the whole path for a distance travelled.
     pub fn fraction(&self, travelled: f64) -> f64 {
-        travelled / self.cumulative[self.cumulative.len() - 1]
+        travelled / self.length()
     }
 }

@@ -30,6 +30,26 @@ pub fn primitive_shape(primitive: &Primitive) -> Result<SharedShape, String> {
     })
 }
 
+/// A triangulated surface of a primitive's parry shape in its own frame, for drawing: vertices and
+/// triangles with outward winding.
+pub fn shape_surface(shape: &SharedShape) -> (Vec<DVec3>, Vec<[u32; 3]>) {
+    const AROUND: u32 = 24;
+    const ALONG: u32 = 12;
+    if let Some(ball) = shape.as_ball() {
+        ball.to_trimesh(AROUND, ALONG)
+    } else if let Some(cuboid) = shape.as_cuboid() {
+        cuboid.to_trimesh()
+    } else if let Some(capsule) = shape.as_capsule() {
+        capsule.to_trimesh(AROUND, ALONG)
+    } else if let Some(cylinder) = shape.as_cylinder() {
+        cylinder.to_trimesh(AROUND)
+    } else if let Some(convex) = shape.as_convex_polyhedron() {
+        convex.to_trimesh()
+    } else {
+        (Vec::new(), Vec::new())
+    }
+}
+
 /// A convex shape a probe places or moves, with its turn.
 #[derive(Clone)]
 pub struct ProbeShape {
@@ -56,6 +76,13 @@ impl ProbeShape {
             rotation: rotation.normalize(),
             bounding_radius,
         })
+    }
+
+    /// The shape's surface with its turn applied, centred on the origin (for drawing).
+    pub fn surface(&self) -> (Vec<DVec3>, Vec<[u32; 3]>) {
+        let (vertices, triangles) = shape_surface(&self.shape);
+        let turned = vertices.into_iter().map(|v| self.rotation * v).collect();
+        (turned, triangles)
     }
 
     /// The radius when the shape is a ball.

@@ -1,0 +1,68 @@
+//! Verdict badges: the state's marker shape drawn in its colour, beside its word, so a verdict reads
+//! without colour and without relying on a font having the symbol.
+
+use eframe::egui;
+use egui::{Color32, Pos2, Rect, Sense, Shape, Stroke, Vec2};
+
+use crate::check::Verdict;
+use crate::view::palette::{StateMark, verdict_colour, verdict_mark, verdict_word};
+
+/// The colour of a verdict, for egui.
+pub fn verdict_color32(verdict: Verdict) -> Color32 {
+    let [r, g, b] = verdict_colour(verdict);
+    Color32::from_rgb(r, g, b)
+}
+
+/// Paints a verdict's marker shape centred on `centre`, `radius` points across half its width.
+pub fn paint_mark(painter: &egui::Painter, centre: Pos2, radius: f32, verdict: Verdict) {
+    let colour = verdict_color32(verdict);
+    match verdict_mark(verdict) {
+        StateMark::Round => {
+            painter.circle_filled(centre, radius, colour);
+        }
+        StateMark::Square => {
+            let r = radius * 0.85;
+            painter.rect_filled(
+                Rect::from_center_size(centre, Vec2::splat(2.0 * r)),
+                1.0,
+                colour,
+            );
+        }
+        StateMark::Diamond => {
+            let points = vec![
+                centre + Vec2::new(0.0, -radius),
+                centre + Vec2::new(radius, 0.0),
+                centre + Vec2::new(0.0, radius),
+                centre + Vec2::new(-radius, 0.0),
+            ];
+            painter.add(Shape::convex_polygon(points, colour, Stroke::NONE));
+        }
+        StateMark::Cross => {
+            let r = radius * 0.8;
+            let stroke = Stroke::new(radius * 0.6, colour);
+            painter.line_segment(
+                [centre + Vec2::new(-r, -r), centre + Vec2::new(r, r)],
+                stroke,
+            );
+            painter.line_segment(
+                [centre + Vec2::new(-r, r), centre + Vec2::new(r, -r)],
+                stroke,
+            );
+        }
+    }
+}
+
+/// A verdict's marker and word, in its colour.
+pub fn badge(ui: &mut egui::Ui, verdict: Verdict, extra: &str) -> egui::Response {
+    ui.horizontal(|ui| {
+        ui.spacing_mut().item_spacing.x = 4.0;
+        let (rect, _) = ui.allocate_exact_size(Vec2::splat(14.0), Sense::hover());
+        paint_mark(ui.painter(), rect.center(), 5.5, verdict);
+        ui.label(
+            egui::RichText::new(format!("{}{extra}", verdict_word(verdict)))
+                .color(verdict_color32(verdict))
+                .strong(),
+        );
+    })
+    .response
+}

@@ -1,0 +1,224 @@
+//! Unattended runs of the window: `--screenshot` writes a PNG of the whole window after the first
+//! complete frame and exits; `--bench-frames N` draws N frames of each kind (overlay change, camera
+//! motion, full redraw), prints their times and exits.
+
+use std::path::{Path, PathBuf};
+use std::sync::{Arc, Mutex};
+
+use eframe::egui;
+
+use super::Workbench;
+use super::viewport::FrameLog;
+use crate::view::renderer::FrameKind;
+
+/// Frames drawn before the screenshot is asked for: the first lays the panels out, the second draws
+/// the level into its cache and the overlays on top.
+const SETTLE_FRAMES: usize = 3;
+
+/// What an unattended run reports back once the window has closed.
+#[derive(Clone, Default)]
+pub struct Outcome(Arc<Mutex<Option<Result<(), String>>>>);
+
+impl Outcome {
+    fn set(&self, result: Result<(), String>) {
+        if let Ok(mut slot) = self.0.lock() {
+            *slot = Some(result);
+        }
+    }
+
+    /// The run's result (success when nothing was asked of it).
+    pub fn result(&self) -> Result<(), String> {
+        self.0
+            .lock()
+            .ok()
+            .and_then(|mut s| s.take())
+            .unwrap_or(Ok(()))
+    }
+}
+
+/// The benchmark's phases, in order.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Phase {
+    Marks,
+    Motion,
+    Redraw,
+}
+
+/// Drives a screenshot or a frame benchmark, one frame at a time.
+pub struct Capture {
+    screenshot: Option<PathBuf>,
+    bench_frames: Option<usize>,
+    frame: usize,
+    image: Arc<Mutex<Option<Arc<egui::ColorImage>>>>,
+    requested: bool,
+    log: Arc<Mutex<FrameLog>>,
+    outcome: Outcome,
+}
+
+impl Capture {
+    /// A capture for the command-line options (idle when neither option is given).
+    pub fn new(options: &super::WindowOptions) -> Capture {
+        Capture {
+            screenshot: options.screenshot.clone(),
+            bench_frames: options.bench_frames,
+            frame: 0,
+            image: Arc::default(),
+            requested: false,
+            log: Arc::default(),
+            outcome: Outcome::default(),
+        }
+    }
+
+    /// Where the result lands.
+    pub fn outcome(&self) -> Outcome {
+        self.outcome.clone()
+    }
+
+    /// Called at the start of every frame.
+    pub fn before_frame(&mut self, ctx: &egui::Context, workbench: &mut Workbench) {
+        if self.screenshot.is_none() && self.bench_frames.is_none() {
+            return;
+        }
+        self.frame += 1;
+        ctx.request_repaint();
+        if let Some(n) = self.bench_frames {
+            self.bench_step(ctx, workbench, n);
+        } else {
+            self.screenshot_step(ctx);
+        }
+    }
+
+    fn screenshot_step(&mut self, ctx: &egui::Context) {
+        let Some(path) = self.screenshot.clone() else {
+            return;
+        };
+        if self.frame >= SETTLE_FRAMES && !self.requested {
+            self.requested = true;
+            let slot = self.image.clone();
+            let wake = ctx.clone();
+            ctx.request_screenshot(move |image| {
+                if let Ok(mut s) = slot.lock() {
+                    *s = Some(image);
+                }
+                wake.request_repaint();
+            });
+        }
+        let taken = self.image.lock().ok().and_then(|mut s| s.take());
+        if let Some(image) = taken {
+            let result = write_png(&path, &image);
+            if result.is_ok() {
+                println!(
+                    "wrote {} ({}×{})",
+                    path.display(),
+                    image.size[0],
+                    image.size[1]
+                );
+            }
+            self.outcome.set(result);
+            ctx.send_viewport_cmd(egui::ViewportCommand::Close);
+        }
+    }
+
+    fn bench_step(&mut self, ctx: &egui::Context, workbench: &mut Workbench, n: usize) {
+        if self.frame == 1 {
+            workbench.viewport.frame_log = Some(self.log.clone());
+        }
+        // Frame 1 lays out, frame 2 draws the level once; timing starts after.
+        let step = self.frame.saturating_sub(SETTLE_FRAMES);
+        let phase = match step / n.max(1) {
+            0 => Phase::Marks,
+            1 => Phase::Motion,
+            2 => Phase::Redraw,
+            _ => {
+                self.outcome.set(Ok(()));
+                println!("{}", self.report(workbench));
+                ctx.send_viewport_cmd(egui::ViewportCommand::Close);
+                return;
+            }
+        };
+        let probes = workbench.document.probes.probes.len();
+        match phase {
+            Phase::Marks => {
+                // Only the selection changes: the level must come from its cache.
+                workbench.viewport.force_moving = false;
+                let next = if probes == 0 {
+                    None
+                } else {
+                    Some(step % probes)
+                };
+                workbench.selection.probe = next;
+            }
+            Phase::Motion => {
+                workbench.viewport.force_moving = true;
+                workbench.viewport.camera.orbit(0.02, 0.0);
+            }
+            Phase::Redraw => {
+                workbench.viewport.force_moving = false;
+                workbench.viewport.camera.orbit(0.02, 0.0);
+            }
+        }
+    }
+
+    fn report(&self, workbench: &Workbench) -> String {
+        let log = self
+            .log
+            .lock()
+            .map(|l| l.frames.clone())
+            .unwrap_or_default();
+        let document = &workbench.document;
+        let mut out = format!(
+            "frame times of the 3D view (paint callback to glFinish), level {} with {} triangles:\n",
+            document.level_path.display(),
+            document.level.triangle_count()
+        );
+        for (kind, words) in [
+            (
+                FrameKind::MarksOnly,
+                "overlay or selection change (level from its cache)",
+            ),
+            (FrameKind::Proxy, "camera moving (level proxy)"),
+            (FrameKind::Level, "full level drawn"),
+        ] {
+            let mut times: Vec<f64> = log
+                .iter()
+                .filter(|(k, _)| *k == kind)
+                .map(|(_, t)| t * 1e3)
+                .collect();
+            if times.is_empty() {
+                continue;
+            }
+            times.sort_by(f64::total_cmp);
+            let at = |q: f64| times[((times.len() - 1) as f64 * q).round() as usize];
+            out.push_str(&format!(
+                "  {words}: {} frames, median {:.1} ms, 90th percentile {:.1} ms, max {:.1} ms\n",
+                times.len(),
+                at(0.5),
+                at(0.9),
+                at(1.0)
+            ));
+        }
+        out
+    }
+}
+
+/// Writes an egui image as an 8-bit RGBA PNG, atomically.
+pub fn write_png(path: &Path, image: &egui::ColorImage) -> Result<(), String> {
+    let mut bytes = Vec::new();
+    {
+        let mut encoder = png::Encoder::new(&mut bytes, image.size[0] as u32, image.size[1] as u32);
+        encoder.set_color(png::ColorType::Rgba);
+        encoder.set_depth(png::BitDepth::Eight);
+        let mut writer = encoder
+            .write_header()
+            .map_err(|e| format!("{}: cannot encode PNG: {e}", path.display()))?;
+        let rgba: Vec<u8> = image
+            .pixels
+            .iter()
+            .flat_map(|p| p.to_srgba_unmultiplied())
+            .collect();
+        writer
+            .write_image_data(&rgba)
+            .map_err(|e| format!("{}: cannot encode PNG: {e}", path.display()))?;
+    }
+    crate::atomic::write_atomic(path, &bytes).map_err(|e| format!("{}: {e}", path.display()))
+}

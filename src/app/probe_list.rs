@@ -1,0 +1,201 @@
+//! The probe list: every probe with its verdict (icon, word and colour), narrowed by text, kind and
+//! verdict; a click selects a probe.
+
+use eframe::egui;
+use egui::{Color32, RichText};
+
+use super::Selection;
+use super::badge::{paint_mark, verdict_color32};
+use super::document::Document;
+use crate::check::Verdict;
+use crate::view::palette::verdict_word;
+
+/// The kinds offered by the kind filter.
+const KINDS: [&str; 4] = ["ray", "sweep", "closest", "overlap"];
+
+/// The verdicts offered by the verdict filter.
+const VERDICTS: [Verdict; 4] = [
+    Verdict::Fail,
+    Verdict::Error,
+    Verdict::Pass,
+    Verdict::Unchecked,
+];
+
+/// The list's filters.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct ListFilter {
+    /// Text that the id, label or first object must contain (any case).
+    pub text: String,
+    /// Only this kind.
+    pub kind: Option<&'static str>,
+    /// Only this verdict.
+    pub verdict: Option<Verdict>,
+}
+
+impl ListFilter {
+    /// The indices of the probes the filter lets through, in probe order.
+    pub fn shown(&self, document: &Document) -> Vec<usize> {
+        let needle = self.text.to_lowercase();
+        (0..document.probes.probes.len())
+            .filter(|&i| {
+                let probe = &document.probes.probes[i];
+                let Some(result) = document.results.get(i) else {
+                    return false;
+                };
+                let kind_ok = self.kind.is_none_or(|k| probe.query.kind() == k);
+                let verdict_ok = self.verdict.is_none_or(|v| result.verdict == v);
+                let text_ok = needle.is_empty()
+                    || probe.id.to_lowercase().contains(&needle)
+                    || probe
+                        .label
+                        .as_deref()
+                        .is_some_and(|l| l.to_lowercase().contains(&needle))
+                    || result
+                        .hits
+                        .first()
+                        .is_some_and(|(object, _, _)| object.to_lowercase().contains(&needle));
+                kind_ok && verdict_ok && text_ok
+            })
+            .collect()
+    }
+}
+
+/// Shows the filters and the list. Returns true when the user picked a probe here.
+pub fn probe_list_ui(
+    ui: &mut egui::Ui,
+    filter: &mut ListFilter,
+    document: &Document,
+    shown: &[usize],
+    selection: &mut Selection,
+    scroll_to_selection: bool,
+) -> bool {
+    ui.add(
+        egui::TextEdit::singleline(&mut filter.text)
+            .hint_text("Filter: id, label or object")
+            .desired_width(f32::INFINITY),
+    );
+    ui.horizontal(|ui| {
+        egui::ComboBox::from_id_salt("kind-filter")
+            .selected_text(filter.kind.unwrap_or("every kind"))
+            .width(100.0)
+            .show_ui(ui, |ui| {
+                ui.selectable_value(&mut filter.kind, None, "every kind");
+                for kind in KINDS {
+                    ui.selectable_value(&mut filter.kind, Some(kind), kind);
+                }
+            });
+        egui::ComboBox::from_id_salt("verdict-filter")
+            .selected_text(filter.verdict.map_or("every verdict", verdict_word))
+            .width(110.0)
+            .show_ui(ui, |ui| {
+                ui.selectable_value(&mut filter.verdict, None, "every verdict");
+                for verdict in VERDICTS {
+                    ui.selectable_value(&mut filter.verdict, Some(verdict), verdict_word(verdict));
+                }
+            });
+    });
+    ui.label(
+        RichText::new(format!(
+            "{} of {} probes",
+            shown.len(),
+            document.probes.probes.len()
+        ))
+        .weak(),
+    );
+    ui.separator();
+    let mut picked = false;
+    let row_height = ui.text_style_height(&egui::TextStyle::Body) * 2.0 + 8.0;
+    egui::ScrollArea::vertical()
+        .auto_shrink([false, false])
+        .show_rows(ui, row_height, shown.len(), |ui, rows| {
+            for &i in &shown[rows] {
+                let probe = &document.probes.probes[i];
+                let verdict = document.results[i].verdict;
+                let selected = selection.probe == Some(i);
+                let response = probe_row(ui, row_height - 2.0, probe, verdict, selected);
+                if selected && scroll_to_selection {
+                    response.scroll_to_me(Some(egui::Align::Center));
+                }
+                if response.clicked() {
+                    selection.probe = Some(i);
+                    selection.hit = None;
+                    picked = true;
+                }
+            }
+        });
+    picked
+}
+
+/// One row: the verdict's marker and word, the id and kind, and the label underneath.
+fn probe_row(
+    ui: &mut egui::Ui,
+    height: f32,
+    probe: &crate::probe::Probe,
+    verdict: Verdict,
+    selected: bool,
+) -> egui::Response {
+    let width = ui.available_width();
+    let (rect, response) = ui.allocate_exact_size(egui::vec2(width, height), egui::Sense::click());
+    let title = format!("{}  {}", verdict_word(verdict), probe.id);
+    let label = probe.label.as_deref().unwrap_or("(no label)");
+    response.widget_info(|| {
+        egui::WidgetInfo::selected(
+            egui::Role::Button,
+            true,
+            selected,
+            format!("{title} {label}"),
+        )
+    });
+    if !ui.is_rect_visible(rect) {
+        return response;
+    }
+    let visuals = ui.style().interact_selectable(&response, selected);
+    if selected || response.hovered() {
+        ui.painter().rect_filled(rect, 3.0, visuals.weak_bg_fill);
+    }
+    let painter = ui.painter().with_clip_rect(rect);
+    let top = rect.top() + 4.0;
+    paint_mark(
+        &painter,
+        egui::pos2(rect.left() + 10.0, top + 8.0),
+        5.0,
+        verdict,
+    );
+    let word = painter.text(
+        egui::pos2(rect.left() + 20.0, top),
+        egui::Align2::LEFT_TOP,
+        verdict_word(verdict),
+        egui::FontId::proportional(13.0),
+        verdict_color32(verdict),
+    );
+    let id = painter.text(
+        egui::pos2(word.right() + 8.0, top),
+        egui::Align2::LEFT_TOP,
+        &probe.id,
+        egui::FontId::proportional(13.0),
+        ui.visuals().strong_text_color(),
+    );
+    painter.text(
+        egui::pos2(id.right() + 8.0, top),
+        egui::Align2::LEFT_TOP,
+        probe.query.kind(),
+        egui::FontId::proportional(11.5),
+        ui.visuals().weak_text_color(),
+    );
+    let mut job = egui::text::LayoutJob::simple(
+        label.to_string(),
+        egui::FontId::proportional(12.0),
+        ui.visuals().weak_text_color(),
+        rect.width() - 26.0,
+    );
+    job.wrap.max_rows = 1;
+    job.wrap.break_anywhere = false;
+    job.wrap.overflow_character = Some('…');
+    let galley = painter.layout_job(job);
+    painter.galley(
+        egui::pos2(rect.left() + 20.0, top + 18.0),
+        galley,
+        Color32::PLACEHOLDER,
+    );
+    response
+}

@@ -1,0 +1,534 @@
+//! The 3D viewport panel: camera controls, hover picking with the query core, clicking probes, and the
+//! three-d paint callback with labels and an axis marker painted over it by egui.
+
+use std::cell::RefCell;
+use std::sync::{Arc, Mutex};
+use std::time::Instant;
+
+use eframe::{egui, egui_glow};
+use egui::{Align2, Color32, FontId, Pos2, Rect, Sense, Stroke, Vec2};
+use glam::{DVec2, DVec3};
+
+use super::Selection;
+use super::badge::{paint_mark, verdict_color32};
+use super::document::Document;
+use crate::check::{Hits, Verdict};
+use crate::view::palette::{okabe_ito, verdict_word};
+use crate::view::probe_marks::{probe_points, start_point};
+use crate::view::renderer::FrameKind;
+use crate::view::{
+    Emphasis, FrameInput, LevelDrawing, Mark, MarkSurfaces, OrbitCamera, Renderer, Sizing,
+    mark_surfaces, probe_marks,
+};
+
+/// At most this many probes are drawn at once (the list filter picks which).
+pub const MAX_DRAWN_PROBES: usize = 600;
+
+/// Pixels within which a click picks a probe's marker.
+const CLICK_REACH: f32 = 14.0;
+
+thread_local! {
+    /// The GPU scene. three-d objects are not `Send`, and the paint callback runs on the UI thread.
+    static RENDERER: RefCell<Option<Renderer>> = const { RefCell::new(None) };
+}
+
+/// What is under the mouse pointer.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Hover {
+    /// Object name.
+    pub object: String,
+    /// Its tags.
+    pub tags: Vec<String>,
+    /// Triangle index in the object's mesh (meshes only).
+    pub triangle: Option<u32>,
+    /// The point under the pointer.
+    pub point: DVec3,
+    /// Metres from the eye.
+    pub distance: f64,
+}
+
+/// How the last frames were drawn, for `--bench-frames`.
+#[derive(Debug, Default)]
+pub struct FrameLog {
+    /// (kind, seconds spent in the paint callback, finished with `glFinish`) per frame.
+    pub frames: Vec<(FrameKind, f64)>,
+}
+
+/// The viewport's state.
+pub struct Viewport {
+    /// The camera.
+    pub camera: OrbitCamera,
+    /// Fly mode: drag turns the view about the eye and W/A/S/D/Q/E move.
+    pub fly: bool,
+    drawing: Arc<LevelDrawing>,
+    level_revision: u64,
+    marks: Arc<MarkSurfaces>,
+    marks_revision: u64,
+    marks_key: Option<MarksKey>,
+    /// What is under the pointer.
+    pub hover: Option<Hover>,
+    last_camera: OrbitCamera,
+    /// When set, every frame's draw time is recorded (with a `glFinish`).
+    pub frame_log: Option<Arc<Mutex<FrameLog>>>,
+    /// Draw as if the camera were moving (benchmarks of motion frames).
+    pub force_moving: bool,
+}
+
+#[derive(Clone, PartialEq)]
+struct MarksKey {
+    camera: OrbitCamera,
+    height: u32,
+    selection: Selection,
+    hover_triangle: Option<[DVec3; 3]>,
+    results_revision: u64,
+    shown: Vec<usize>,
+}
+
+impl Viewport {
+    /// A viewport framing the document's level.
+    pub fn new(document: &Document) -> Viewport {
+        let drawing = Arc::new(LevelDrawing::new(&document.level));
+        let camera = OrbitCamera::framing(drawing.min, drawing.max, drawing.up);
+        Viewport {
+            camera,
+            fly: false,
+            drawing,
+            level_revision: 1,
+            marks: Arc::new(MarkSurfaces::default()),
+            marks_revision: 0,
+            marks_key: None,
+            hover: None,
+            last_camera: camera,
+            frame_log: None,
+            force_moving: false,
+        }
+    }
+
+    /// Frames the whole level.
+    pub fn frame_level(&mut self) {
+        self.camera.frame(self.drawing.min, self.drawing.max);
+    }
+
+    /// Frames a set of points (a probe and its answer), keeping the heading.
+    pub fn frame_points(&mut self, points: &[DVec3]) {
+        let Some(first) = points.first() else {
+            return;
+        };
+        let (lo, hi) = points
+            .iter()
+            .fold((*first, *first), |(lo, hi), p| (lo.min(*p), hi.max(*p)));
+        let pad = DVec3::splat(1.5);
+        self.camera.frame(lo - pad, hi + pad);
+    }
+
+    /// Shows the viewport in `ui`. `shown` are the probe indices the list shows (drawn in the view);
+    /// returns true when the selection changed by a click in the view.
+    pub fn ui(
+        &mut self,
+        ui: &mut egui::Ui,
+        document: &Document,
+        results_revision: u64,
+        shown: &[usize],
+        selection: &mut Selection,
+    ) -> bool {
+        let (rect, response) = ui.allocate_exact_size(ui.available_size(), Sense::click_and_drag());
+        let size = DVec2::new(rect.width() as f64, rect.height() as f64);
+        self.handle_camera_input(ui, &response, size);
+        let moving = self.force_moving
+            || self.camera != self.last_camera
+            || response.dragged()
+            || ui.input(|i| i.smooth_scroll_delta != Vec2::ZERO);
+        if self.camera != self.last_camera {
+            // One more frame once the camera rests, to replace the proxy with the full level.
+            ui.ctx().request_repaint();
+        }
+        self.last_camera = self.camera;
+
+        let pointer = response.hover_pos().filter(|_| !response.dragged());
+        self.hover = pointer.and_then(|p| self.pick(document, rect, p));
+        let mut clicked = false;
+        if response.clicked()
+            && let Some(p) = response.interact_pointer_pos()
+        {
+            let picked = self.probe_at(document, shown, rect, p);
+            if picked != selection.probe {
+                selection.probe = picked;
+                selection.hit = None;
+                clicked = true;
+            }
+        }
+
+        self.update_marks(document, results_revision, shown, *selection, rect);
+        let frame = FrameInput {
+            camera: self.camera,
+            level: self.drawing.clone(),
+            level_revision: self.level_revision,
+            marks: self.marks.clone(),
+            marks_revision: self.marks_revision,
+            moving,
+        };
+        let log = self.frame_log.clone();
+        let callback = egui_glow::CallbackFn::new(move |info, painter| {
+            let pixels = info.viewport_in_pixels();
+            let viewport = three_d::Viewport {
+                x: pixels.left_px,
+                y: pixels.from_bottom_px,
+                width: pixels.width_px.max(1) as u32,
+                height: pixels.height_px.max(1) as u32,
+            };
+            let started = Instant::now();
+            RENDERER.with(|cell| {
+                let mut slot = cell.borrow_mut();
+                if slot.is_none() {
+                    match three_d::Context::from_gl_context(painter.gl().clone()) {
+                        Ok(context) => *slot = Some(Renderer::new(context)),
+                        Err(e) => eprintln!("plumbline: cannot draw the 3D view: {e}"),
+                    }
+                }
+                if let Some(renderer) = slot.as_mut() {
+                    let [w, h] = info.screen_size_px;
+                    let target = three_d::RenderTarget::screen(renderer.context(), w, h);
+                    let kind = renderer.render(&target, viewport, &frame);
+                    if let Some(log) = &log {
+                        renderer.finish();
+                        if let Ok(mut log) = log.lock() {
+                            log.frames.push((kind, started.elapsed().as_secs_f64()));
+                        }
+                    }
+                }
+            });
+        });
+        ui.painter().add(egui::PaintCallback {
+            rect,
+            callback: Arc::new(callback),
+        });
+        self.paint_labels(ui, document, shown, *selection, rect);
+        self.paint_axes(ui, rect);
+        if let Some(hover) = &self.hover {
+            paint_hover(ui, rect, pointer, hover);
+        }
+        clicked
+    }
+
+    fn handle_camera_input(&mut self, ui: &egui::Ui, response: &egui::Response, size: DVec2) {
+        let turn = 0.008;
+        if response.dragged_by(egui::PointerButton::Primary) {
+            let d = response.drag_delta();
+            if self.fly {
+                self.camera.look(-d.x as f64 * turn, d.y as f64 * turn);
+            } else {
+                self.camera.orbit(-d.x as f64 * turn, d.y as f64 * turn);
+            }
+        }
+        if response.dragged_by(egui::PointerButton::Secondary)
+            || response.dragged_by(egui::PointerButton::Middle)
+        {
+            let d = response.drag_delta();
+            self.camera.pan(DVec2::new(d.x as f64, d.y as f64), size.y);
+        }
+        if response.hovered() {
+            let scroll = ui.input(|i| i.smooth_scroll_delta.y);
+            if scroll != 0.0 {
+                self.camera.zoom((-scroll as f64 * 0.0025).exp());
+            }
+        }
+        if self.fly && response.hovered() {
+            let (dt, keys) = ui.input(|i| {
+                let held = |k| i.key_down(k) as i32 as f64;
+                (
+                    i.stable_dt.min(0.1) as f64,
+                    [
+                        held(egui::Key::W) - held(egui::Key::S),
+                        held(egui::Key::D) - held(egui::Key::A),
+                        held(egui::Key::E) - held(egui::Key::Q),
+                    ],
+                )
+            });
+            if keys != [0.0; 3] {
+                let speed = self.camera.distance.clamp(2.0, 200.0) * dt;
+                self.camera
+                    .fly(keys[0] * speed, keys[1] * speed, keys[2] * speed);
+                ui.ctx().request_repaint();
+            }
+        }
+    }
+
+    /// The object and triangle under a pixel, found with the query core.
+    fn pick(&self, document: &Document, rect: Rect, pointer: Pos2) -> Option<Hover> {
+        let size = DVec2::new(rect.width() as f64, rect.height() as f64);
+        let pixel = DVec2::new(
+            (pointer.x - rect.left()) as f64,
+            (pointer.y - rect.top()) as f64,
+        );
+        let (eye, direction) = self.camera.pixel_ray(pixel, size);
+        let reach = self.camera.distance + self.drawing.radius() * 4.0;
+        let hit = document
+            .world
+            .everything()
+            .ray_first(eye, eye + direction * reach)
+            .ok()??;
+        Some(Hover {
+            object: document.world.name(hit.object).to_string(),
+            tags: document.world.tags(hit.object).to_vec(),
+            triangle: hit.triangle,
+            point: hit.point,
+            distance: hit.distance,
+        })
+    }
+
+    /// The probe whose marker or line is nearest a click, within reach.
+    fn probe_at(
+        &self,
+        document: &Document,
+        shown: &[usize],
+        rect: Rect,
+        click: Pos2,
+    ) -> Option<usize> {
+        let project = |p: DVec3| self.to_screen(rect, p);
+        let mut best: Option<(f32, usize)> = None;
+        for &i in shown.iter().take(MAX_DRAWN_PROBES) {
+            let points = probe_points(&document.probes.probes[i], document.results.get(i));
+            let screen: Vec<Pos2> = points.iter().filter_map(|p| project(*p)).collect();
+            let mut nearest = screen
+                .iter()
+                .map(|s| s.distance(click))
+                .fold(f32::INFINITY, f32::min);
+            for pair in screen.windows(2) {
+                nearest = nearest.min(distance_to_segment(click, pair[0], pair[1]) + 2.0);
+            }
+            if nearest <= CLICK_REACH && best.is_none_or(|(d, _)| nearest < d) {
+                best = Some((nearest, i));
+            }
+        }
+        best.map(|(_, i)| i)
+    }
+
+    /// Where a world point shows in the viewport rectangle.
+    pub fn to_screen(&self, rect: Rect, point: DVec3) -> Option<Pos2> {
+        let size = DVec2::new(rect.width() as f64, rect.height() as f64);
+        let behind = (point - self.camera.eye()).dot(-self.camera.backward()) <= 0.0;
+        if behind {
+            return None;
+        }
+        let p = self.camera.project(point, size, self.drawing.radius())?;
+        Some(Pos2::new(rect.left() + p.x as f32, rect.top() + p.y as f32))
+    }
+
+    fn update_marks(
+        &mut self,
+        document: &Document,
+        results_revision: u64,
+        shown: &[usize],
+        selection: Selection,
+        rect: Rect,
+    ) {
+        let hover_triangle = self
+            .hover
+            .as_ref()
+            .and_then(|h| document.triangle(&h.object, h.triangle?));
+        let key = MarksKey {
+            camera: self.camera,
+            height: rect.height() as u32,
+            selection,
+            hover_triangle,
+            results_revision,
+            shown: shown.iter().take(MAX_DRAWN_PROBES).copied().collect(),
+        };
+        if self.marks_key.as_ref() == Some(&key) {
+            return;
+        }
+        let mut marks = Vec::new();
+        for &i in &key.shown {
+            let (Some(probe), Some(result)) =
+                (document.probes.probes.get(i), document.results.get(i))
+            else {
+                continue;
+            };
+            let emphasis = Emphasis {
+                selected: selection.probe == Some(i),
+                hit: selection.hit,
+            };
+            probe_marks(probe, result, emphasis, &mut marks);
+            if emphasis.selected {
+                overlapped_objects(document, result, &mut marks);
+            }
+        }
+        if let Some(t) = hover_triangle {
+            for k in 0..3 {
+                marks.push(Mark::Line {
+                    from: t[k],
+                    to: t[(k + 1) % 3],
+                    colour: [250, 250, 250],
+                    width: 2.0,
+                    dashed: false,
+                });
+            }
+        }
+        let sizing = Sizing {
+            camera: self.camera,
+            viewport_height: rect.height().max(1.0) as f64,
+            origin: self.drawing.origin,
+        };
+        self.marks = Arc::new(mark_surfaces(&marks, &sizing));
+        self.marks_revision += 1;
+        self.marks_key = Some(key);
+    }
+
+    /// Names beside failing probes and the selected one, so the answer is readable at a glance.
+    fn paint_labels(
+        &self,
+        ui: &egui::Ui,
+        document: &Document,
+        shown: &[usize],
+        selection: Selection,
+        rect: Rect,
+    ) {
+        let painter = ui.painter().with_clip_rect(rect);
+        let font = FontId::proportional(13.0);
+        for &i in shown.iter().take(MAX_DRAWN_PROBES) {
+            let (Some(probe), Some(result)) =
+                (document.probes.probes.get(i), document.results.get(i))
+            else {
+                continue;
+            };
+            let selected = selection.probe == Some(i);
+            if !selected && !matches!(result.verdict, Verdict::Fail | Verdict::Error) {
+                continue;
+            }
+            let Some(at) = self.to_screen(rect, start_point(&probe.query)) else {
+                continue;
+            };
+            let text = format!("{}  {}", verdict_word(result.verdict), probe.id);
+            let galley = painter.layout_no_wrap(text, font.clone(), Color32::WHITE);
+            let pos = at + Vec2::new(26.0, -galley.size().y - 6.0);
+            let frame = Rect::from_min_size(
+                pos - Vec2::new(16.0, 0.0),
+                galley.size() + Vec2::new(16.0, 0.0),
+            )
+            .expand2(Vec2::new(5.0, 2.0));
+            painter.rect_filled(frame, 3.0, Color32::from_rgba_unmultiplied(20, 22, 28, 225));
+            painter.rect_stroke(
+                frame,
+                3.0,
+                Stroke::new(
+                    if selected { 2.0 } else { 1.0 },
+                    verdict_color32(result.verdict),
+                ),
+                egui::StrokeKind::Outside,
+            );
+            paint_mark(
+                &painter,
+                pos + Vec2::new(-8.0, galley.size().y * 0.5),
+                5.0,
+                result.verdict,
+            );
+            painter.galley(pos, galley, Color32::WHITE);
+        }
+    }
+
+    /// A small axis marker in the bottom-left corner; the level's up axis is drawn thicker.
+    fn paint_axes(&self, ui: &egui::Ui, rect: Rect) {
+        let painter = ui.painter().with_clip_rect(rect);
+        let centre = Pos2::new(rect.left() + 42.0, rect.bottom() - 42.0);
+        let right = self.camera.right();
+        let screen_up = self.camera.screen_up();
+        let axes = [
+            ("X", DVec3::X, okabe_ito::VERMILLION),
+            ("Y", DVec3::Y, okabe_ito::BLUISH_GREEN),
+            ("Z", DVec3::Z, okabe_ito::SKY_BLUE),
+        ];
+        painter.circle_filled(
+            centre,
+            36.0,
+            Color32::from_rgba_unmultiplied(20, 22, 28, 170),
+        );
+        for (name, axis, [r, g, b]) in axes {
+            let d = Vec2::new(axis.dot(right) as f32, -axis.dot(screen_up) as f32) * 26.0;
+            let is_up = axis.dot(self.camera.up).abs() > 0.99;
+            let colour = Color32::from_rgb(r, g, b);
+            painter.line_segment(
+                [centre, centre + d],
+                Stroke::new(if is_up { 3.5 } else { 2.0 }, colour),
+            );
+            let label = if is_up {
+                format!("{name} up")
+            } else {
+                name.to_string()
+            };
+            painter.text(
+                centre + d * 1.25,
+                Align2::CENTER_CENTER,
+                label,
+                FontId::proportional(11.0),
+                colour,
+            );
+        }
+    }
+}
+
+/// Highlights the objects an overlap probe overlaps (see-through copies of their triangles).
+fn overlapped_objects(
+    document: &Document,
+    result: &crate::check::ProbeResult,
+    marks: &mut Vec<Mark>,
+) {
+    let Hits::Overlap(hits) = &result.hits else {
+        return;
+    };
+    for hit in hits {
+        let Some(object) = document
+            .level
+            .objects
+            .iter()
+            .find(|o| *o.name == *hit.object)
+        else {
+            continue;
+        };
+        if let crate::level::Geometry::Mesh(mesh) = &object.geometry
+            && mesh.triangles.len() <= 20_000
+        {
+            marks.push(Mark::Ghost {
+                vertices: mesh.vertices.clone(),
+                triangles: mesh.triangles.clone(),
+                colour: okabe_ito::ORANGE,
+                alpha: 120,
+            });
+        }
+    }
+}
+
+fn paint_hover(ui: &egui::Ui, rect: Rect, pointer: Option<Pos2>, hover: &Hover) {
+    let Some(pointer) = pointer else {
+        return;
+    };
+    let tags = if hover.tags.is_empty() {
+        "no tags".to_string()
+    } else {
+        hover.tags.join(", ")
+    };
+    let triangle = hover
+        .triangle
+        .map_or(String::new(), |t| format!("\ntriangle {t}"));
+    let text = format!(
+        "{}\n{tags}{triangle}\n{:.2} m from the eye",
+        hover.object, hover.distance
+    );
+    let painter = ui.painter().with_clip_rect(rect);
+    let galley = painter.layout_no_wrap(text, FontId::proportional(12.5), Color32::WHITE);
+    let mut pos = pointer + Vec2::new(16.0, 16.0);
+    if pos.x + galley.size().x > rect.right() - 8.0 {
+        pos.x = pointer.x - galley.size().x - 16.0;
+    }
+    if pos.y + galley.size().y > rect.bottom() - 8.0 {
+        pos.y = pointer.y - galley.size().y - 16.0;
+    }
+    let frame = Rect::from_min_size(pos, galley.size()).expand(6.0);
+    painter.rect_filled(frame, 4.0, Color32::from_rgba_unmultiplied(12, 14, 18, 235));
+    painter.galley(pos, galley, Color32::WHITE);
+}
+
+fn distance_to_segment(p: Pos2, a: Pos2, b: Pos2) -> f32 {
+    let ab = b - a;
+    let t = ((p - a).dot(ab) / ab.length_sq().max(1e-6)).clamp(0.0, 1.0);
+    p.distance(a + ab * t)
+}

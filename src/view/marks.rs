@@ -1,0 +1,419 @@
+//! Overlay marks (lines, points, arrows, translucent shapes) and their triangles. Widths and sizes are
+//! in screen pixels, so marks are rebuilt when the camera moves; they stay readable at any distance.
+
+use glam::{DVec2, DVec3};
+
+use super::camera::OrbitCamera;
+use super::palette::{Rgb, StateMark};
+use super::surface::{Surface, face_normal, shaded};
+
+/// One thing drawn over the level.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Mark {
+    /// A straight line, solid or dashed.
+    Line {
+        /// Start.
+        from: DVec3,
+        /// End.
+        to: DVec3,
+        /// Colour.
+        colour: Rgb,
+        /// Width in pixels.
+        width: f64,
+        /// Drawn as dashes (used for the part of a ray beyond its first hit).
+        dashed: bool,
+    },
+    /// A point marker whose shape tells the probe's state.
+    Point {
+        /// Where.
+        at: DVec3,
+        /// Colour.
+        colour: Rgb,
+        /// Size in pixels.
+        size: f64,
+        /// Marker shape.
+        mark: StateMark,
+    },
+    /// An arrow from a point along a direction (normals, penetration directions).
+    Arrow {
+        /// Tail.
+        from: DVec3,
+        /// Unit direction.
+        direction: DVec3,
+        /// Length in pixels.
+        length: f64,
+        /// Colour.
+        colour: Rgb,
+        /// Shaft width in pixels.
+        width: f64,
+    },
+    /// A shape surface placed in the world, drawn see-through.
+    Ghost {
+        /// Vertices, world coordinates.
+        vertices: Vec<DVec3>,
+        /// Triangles.
+        triangles: Vec<[u32; 3]>,
+        /// Colour.
+        colour: Rgb,
+        /// Opacity, 0–255.
+        alpha: u8,
+    },
+}
+
+/// The triangles of a set of marks: solid ones, and see-through ones drawn after them.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct MarkSurfaces {
+    /// Opaque triangles.
+    pub solid: Surface,
+    /// Translucent triangles.
+    pub see_through: Surface,
+}
+
+/// The camera and viewport marks are sized for.
+#[derive(Debug, Clone, Copy)]
+pub struct Sizing {
+    /// The camera.
+    pub camera: OrbitCamera,
+    /// Viewport height, pixels.
+    pub viewport_height: f64,
+    /// World point the drawing coordinates start from.
+    pub origin: DVec3,
+}
+
+impl Sizing {
+    /// Metres that one pixel covers at a world point.
+    fn metres_per_pixel(&self, at: DVec3) -> f64 {
+        let depth = (at - self.camera.eye())
+            .dot(-self.camera.backward())
+            .max(self.camera.distance * 0.01);
+        self.camera.metres_per_pixel(depth, self.viewport_height)
+    }
+}
+
+/// Builds the triangles of `marks` for the given camera.
+pub fn mark_surfaces(marks: &[Mark], sizing: &Sizing) -> MarkSurfaces {
+    let mut out = MarkSurfaces::default();
+    for mark in marks {
+        match mark {
+            Mark::Line {
+                from,
+                to,
+                colour,
+                width,
+                dashed,
+            } => {
+                if *dashed {
+                    dashes(&mut out.solid, *from, *to, *colour, *width, sizing);
+                } else {
+                    tube(&mut out.solid, *from, *to, *colour, *width, sizing);
+                }
+            }
+            Mark::Point {
+                at,
+                colour,
+                size,
+                mark,
+            } => marker(&mut out.solid, *at, *colour, *size, *mark, sizing),
+            Mark::Arrow {
+                from,
+                direction,
+                length,
+                colour,
+                width,
+            } => {
+                let along = *direction * sizing.metres_per_pixel(*from) * *length;
+                arrow(&mut out.solid, *from, along, *colour, *width, sizing)
+            }
+            Mark::Ghost {
+                vertices,
+                triangles,
+                colour,
+                alpha,
+            } => {
+                for t in triangles {
+                    let corners = t.map(|i| vertices[i as usize]);
+                    push_lit(&mut out.see_through, corners, *colour, *alpha, sizing);
+                }
+            }
+        }
+    }
+    out
+}
+
+/// Adds a triangle lit by a light at the eye (marks are shaded so their shape reads).
+fn push_lit(surface: &mut Surface, corners: [DVec3; 3], colour: Rgb, alpha: u8, sizing: &Sizing) {
+    let Some(normal) = face_normal(corners) else {
+        return;
+    };
+    let light = 0.62 + 0.38 * normal.dot(sizing.camera.backward()).abs();
+    surface.push(corners, sizing.origin, shaded(colour, light, alpha));
+}
+
+/// Two unit vectors across a direction.
+fn across(dir: DVec3) -> (DVec3, DVec3) {
+    let helper = if dir.x.abs() < 0.9 {
+        DVec3::X
+    } else {
+        DVec3::Y
+    };
+    let u = dir.cross(helper).normalize();
+    (u, dir.cross(u))
+}
+
+/// A six-sided tube whose width is `width` pixels at both ends.
+fn tube(surface: &mut Surface, from: DVec3, to: DVec3, colour: Rgb, width: f64, sizing: &Sizing) {
+    let Some(dir) = (to - from).try_normalize() else {
+        return;
+    };
+    let (u, v) = across(dir);
+    let r0 = sizing.metres_per_pixel(from) * width * 0.5;
+    let r1 = sizing.metres_per_pixel(to) * width * 0.5;
+    const SIDES: usize = 6;
+    let ring = |centre: DVec3, r: f64, k: usize| {
+        let angle = k as f64 * std::f64::consts::TAU / SIDES as f64;
+        centre + (u * angle.cos() + v * angle.sin()) * r
+    };
+    for k in 0..SIDES {
+        let (a0, a1) = (ring(from, r0, k), ring(from, r0, k + 1));
+        let (b0, b1) = (ring(to, r1, k), ring(to, r1, k + 1));
+        push_lit(surface, [a0, a1, b1], colour, 255, sizing);
+        push_lit(surface, [a0, b1, b0], colour, 255, sizing);
+    }
+}
+
+/// Dashes about eight pixels long with equal gaps.
+fn dashes(surface: &mut Surface, from: DVec3, to: DVec3, colour: Rgb, width: f64, sizing: &Sizing) {
+    let length = (to - from).length();
+    let middle = (from + to) * 0.5;
+    let dash = sizing.metres_per_pixel(middle) * 8.0;
+    let count = ((length / (2.0 * dash)).floor() as usize).clamp(1, 400);
+    for i in 0..count {
+        let t0 = i as f64 / count as f64;
+        let t1 = t0 + 0.5 / count as f64;
+        tube(
+            surface,
+            from.lerp(to, t0),
+            from.lerp(to, t1),
+            colour,
+            width,
+            sizing,
+        );
+    }
+}
+
+/// A tube with a four-sided head.
+fn arrow(
+    surface: &mut Surface,
+    from: DVec3,
+    along: DVec3,
+    colour: Rgb,
+    width: f64,
+    sizing: &Sizing,
+) {
+    let Some(dir) = along.try_normalize() else {
+        return;
+    };
+    let tip = from + along;
+    let head = (sizing.metres_per_pixel(tip) * width * 4.0).min(along.length() * 0.5);
+    let neck = tip - dir * head;
+    tube(surface, from, neck, colour, width, sizing);
+    let (u, v) = across(dir);
+    let r = head * 0.45;
+    let base = [neck + u * r, neck + v * r, neck - u * r, neck - v * r];
+    for k in 0..4 {
+        push_lit(
+            surface,
+            [base[k], base[(k + 1) % 4], tip],
+            colour,
+            255,
+            sizing,
+        );
+        push_lit(
+            surface,
+            [base[(k + 1) % 4], base[k], neck],
+            colour,
+            255,
+            sizing,
+        );
+    }
+}
+
+/// A point marker: ball, cube, diamond or cross, `size` pixels across, with screen-aligned faces.
+fn marker(
+    surface: &mut Surface,
+    at: DVec3,
+    colour: Rgb,
+    size: f64,
+    mark: StateMark,
+    sizing: &Sizing,
+) {
+    let r = sizing.metres_per_pixel(at) * size * 0.5;
+    let camera = &sizing.camera;
+    let (x, y, z) = (camera.right(), camera.screen_up(), camera.backward());
+    let to_world = |p: DVec3| at + (x * p.x + y * p.y + z * p.z) * r;
+    match mark {
+        StateMark::Round => {
+            let (vertices, triangles) = unit_ball();
+            for t in triangles {
+                let corners = t.map(|i| to_world(vertices[i]));
+                push_lit(surface, corners, colour, 255, sizing);
+            }
+        }
+        StateMark::Square => box_between(
+            surface,
+            DVec3::splat(-0.8),
+            DVec3::splat(0.8),
+            colour,
+            &to_world,
+            sizing,
+        ),
+        StateMark::Diamond => {
+            let tips = [DVec3::X, DVec3::Y, -DVec3::X, -DVec3::Y];
+            for k in 0..4 {
+                for z in [DVec3::Z, -DVec3::Z] {
+                    let corners = [tips[k], tips[(k + 1) % 4], z * 0.7].map(&to_world);
+                    push_lit(surface, corners, colour, 255, sizing);
+                }
+            }
+        }
+        StateMark::Cross => {
+            let d = DVec2::splat(0.25);
+            for sign in [1.0, -1.0] {
+                // Two bars at ±45° on screen.
+                let along = DVec3::new(1.0, sign, 0.0).normalize();
+                let side = DVec3::new(-sign, 1.0, 0.0).normalize();
+                let corners = [
+                    -along - side * d.x,
+                    along - side * d.x,
+                    along + side * d.y,
+                    -along + side * d.y,
+                ];
+                let quad = corners.map(&to_world);
+                push_lit(surface, [quad[0], quad[1], quad[2]], colour, 255, sizing);
+                push_lit(surface, [quad[0], quad[2], quad[3]], colour, 255, sizing);
+            }
+        }
+    }
+}
+
+fn box_between(
+    surface: &mut Surface,
+    lo: DVec3,
+    hi: DVec3,
+    colour: Rgb,
+    to_world: &dyn Fn(DVec3) -> DVec3,
+    sizing: &Sizing,
+) {
+    let corner = |i: usize| {
+        to_world(DVec3::new(
+            if i & 1 == 0 { lo.x } else { hi.x },
+            if i & 2 == 0 { lo.y } else { hi.y },
+            if i & 4 == 0 { lo.z } else { hi.z },
+        ))
+    };
+    const FACES: [[usize; 4]; 6] = [
+        [0, 2, 3, 1],
+        [4, 5, 7, 6],
+        [0, 1, 5, 4],
+        [2, 6, 7, 3],
+        [0, 4, 6, 2],
+        [1, 3, 7, 5],
+    ];
+    for f in FACES {
+        let q = f.map(corner);
+        push_lit(surface, [q[0], q[1], q[2]], colour, 255, sizing);
+        push_lit(surface, [q[0], q[2], q[3]], colour, 255, sizing);
+    }
+}
+
+/// A unit ball: an octahedron split once and pushed out to the sphere.
+fn unit_ball() -> (Vec<DVec3>, Vec<[usize; 3]>) {
+    let tips = [DVec3::X, DVec3::Y, -DVec3::X, -DVec3::Y];
+    let mut vertices = Vec::new();
+    let mut triangles = Vec::new();
+    for k in 0..4 {
+        for z in [DVec3::Z, -DVec3::Z] {
+            let (a, b, c) = (tips[k], tips[(k + 1) % 4], z);
+            let (ab, bc, ca) = (
+                (a + b).normalize(),
+                (b + c).normalize(),
+                (c + a).normalize(),
+            );
+            for t in [[a, ab, ca], [ab, b, bc], [ca, bc, c], [ab, bc, ca]] {
+                let base = vertices.len();
+                vertices.extend(t);
+                triangles.push([base, base + 1, base + 2]);
+            }
+        }
+    }
+    (vertices, triangles)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn sizing() -> Sizing {
+        Sizing {
+            camera: OrbitCamera::framing(DVec3::splat(-5.0), DVec3::splat(5.0), DVec3::Y),
+            viewport_height: 600.0,
+            origin: DVec3::ZERO,
+        }
+    }
+
+    #[test]
+    fn a_line_is_as_wide_as_asked_on_screen() {
+        let sizing = sizing();
+        let (from, to) = (DVec3::new(-2.0, 0.0, 0.0), DVec3::new(2.0, 0.0, 0.0));
+        let marks = [Mark::Line {
+            from,
+            to,
+            colour: [1, 2, 3],
+            width: 4.0,
+            dashed: false,
+        }];
+        let out = mark_surfaces(&marks, &sizing);
+        assert_eq!(out.solid.triangle_count(), 12);
+        // The ring at `from` spans 4 pixels on screen: its farthest corner is 2 pixels from the centre
+        // line's end (1.7 pixels or more for a corner of the hexagon).
+        let size = DVec2::new(800.0, 600.0);
+        let end = sizing.camera.project(from, size, 10.0).unwrap();
+        let farthest = out
+            .solid
+            .positions
+            .iter()
+            .map(|p| DVec3::new(p[0] as f64, p[1] as f64, p[2] as f64))
+            .filter(|p| (p.x - from.x).abs() < 1e-3)
+            .filter_map(|p| sizing.camera.project(p, size, 10.0))
+            .map(|q| (q - end).length())
+            .fold(0.0, f64::max);
+        assert!((1.7..=2.05).contains(&farthest), "{farthest}");
+    }
+
+    #[test]
+    fn dashes_leave_gaps_and_ghosts_are_see_through() {
+        let sizing = sizing();
+        let dashed = mark_surfaces(
+            &[Mark::Line {
+                from: DVec3::ZERO,
+                to: DVec3::new(0.0, 0.0, 8.0),
+                colour: [0, 0, 0],
+                width: 2.0,
+                dashed: true,
+            }],
+            &sizing,
+        );
+        assert!(dashed.solid.triangle_count() > 12);
+        let ghost = mark_surfaces(
+            &[Mark::Ghost {
+                vertices: vec![DVec3::ZERO, DVec3::X, DVec3::Y],
+                triangles: vec![[0, 1, 2]],
+                colour: [9, 9, 9],
+                alpha: 90,
+            }],
+            &sizing,
+        );
+        assert!(ghost.solid.is_empty());
+        assert_eq!(ghost.see_through.colours[0][3], 90);
+    }
+}

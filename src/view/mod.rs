@@ -1,0 +1,17 @@
+//! Drawing the level and the probes: the camera, colours, the geometry of every mark, and the three-d
+//! renderer that puts them on screen (or into an offscreen image for tests and screenshots). Only this
+//! module converts the core's f64 geometry to f32.
+
+pub mod camera;
+pub mod level_drawing;
+pub mod marks;
+pub mod palette;
+pub mod probe_marks;
+pub mod renderer;
+pub mod surface;
+
+pub use camera::OrbitCamera;
+pub use level_drawing::LevelDrawing;
+pub use marks::{Mark, MarkSurfaces, Sizing, mark_surfaces};
+pub use probe_marks::{Emphasis, probe_marks};
+pub use renderer::{FrameInput, FrameKind, Renderer};

@@ -1,0 +1,245 @@
+//! How each probe and its answer look in the viewport. Every probe starts with a marker whose shape and
+//! colour give its verdict; rays and paths are solid up to the first hit and dashed beyond it; hits are
+//! yellow balls with blue normals; sweeps show the shape where it meets the level as a see-through
+//! ghost (and, when selected, at the start and end too) and the point of least clearance; closest
+//! probes show the segment between the two nearest points; overlaps show the shape, the deepest points
+//! and the way out.
+
+use glam::{DQuat, DVec3};
+
+use super::marks::Mark;
+use super::palette::{HIT, NORMAL, SELECTED, verdict_colour, verdict_mark};
+use crate::check::{Hits, ProbeResult};
+use crate::level::ShapeSpec;
+use crate::probe::{Probe, ProbeQuery};
+use crate::query::ProbeShape;
+
+/// Line width of probes, pixels.
+const WIDTH: f64 = 3.0;
+/// Line width of the selected probe, pixels.
+const SELECTED_WIDTH: f64 = 5.0;
+/// Size of a probe's verdict marker, pixels.
+const MARKER: f64 = 13.0;
+/// Size of a hit marker, pixels.
+const HIT_SIZE: f64 = 8.0;
+/// Length of normal arrows, pixels.
+const ARROW: f64 = 36.0;
+
+/// What of a probe is picked out: nothing, the probe, or the probe and one of its hits.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub struct Emphasis {
+    /// The probe is selected.
+    pub selected: bool,
+    /// Index of the selected hit.
+    pub hit: Option<usize>,
+}
+
+/// Appends the marks of one probe and its answer.
+pub fn probe_marks(probe: &Probe, result: &ProbeResult, emphasis: Emphasis, out: &mut Vec<Mark>) {
+    let colour = verdict_colour(result.verdict);
+    let width = if emphasis.selected {
+        SELECTED_WIDTH
+    } else {
+        WIDTH
+    };
+    let start = start_point(&probe.query);
+    out.push(Mark::Point {
+        at: start,
+        colour: if emphasis.selected { SELECTED } else { colour },
+        size: if emphasis.selected {
+            MARKER * 1.4
+        } else {
+            MARKER
+        },
+        mark: verdict_mark(result.verdict),
+    });
+    match (&probe.query, &result.hits) {
+        (ProbeQuery::Ray { from, to, .. }, Hits::Ray(hits)) => {
+            let first = hits.first().map(|h| DVec3::from(h.point));
+            path_lines(&[*from, *to], first.map(|p| (0, p)), colour, width, out);
+            for (i, hit) in hits.iter().enumerate() {
+                hit_marks(hit.point.into(), hit.normal.into(), i, emphasis, out);
+            }
+        }
+        (
+            ProbeQuery::Sweep {
+                shape,
+                rotation,
+                path,
+                ..
+            },
+            Hits::Sweep(hits),
+        ) => {
+            let first = hits.first().map(|h| (h.segment, DVec3::from(h.position)));
+            path_lines(path, first, colour, width, out);
+            let ghost = ShapeGhost::new(shape, *rotation);
+            if emphasis.selected {
+                ghost.place(path[0], colour, 50, out);
+                ghost.place(path[path.len() - 1], colour, 50, out);
+            }
+            for (i, hit) in hits.iter().enumerate() {
+                if i == 0 || emphasis.selected {
+                    ghost.place(hit.position.into(), HIT, 110, out);
+                }
+                hit_marks(hit.point.into(), hit.normal.into(), i, emphasis, out);
+            }
+            if let Some(clearance) = &result.clearance {
+                out.push(Mark::Point {
+                    at: clearance.position.into(),
+                    colour: SELECTED,
+                    size: HIT_SIZE,
+                    mark: super::palette::StateMark::Diamond,
+                });
+                out.push(Mark::Line {
+                    from: clearance.position.into(),
+                    to: clearance.point.into(),
+                    colour: SELECTED,
+                    width: 2.0,
+                    dashed: true,
+                });
+            }
+        }
+        (
+            ProbeQuery::Closest {
+                shape,
+                at,
+                rotation,
+                ..
+            },
+            Hits::Closest(hits),
+        ) => {
+            if emphasis.selected {
+                ShapeGhost::new(shape, *rotation).place(*at, colour, 70, out);
+            }
+            for (i, hit) in hits.iter().enumerate() {
+                out.push(Mark::Line {
+                    from: hit.shape_point.into(),
+                    to: hit.point.into(),
+                    colour,
+                    width,
+                    dashed: false,
+                });
+                hit_marks(hit.point.into(), hit.normal.into(), i, emphasis, out);
+            }
+        }
+        (
+            ProbeQuery::Overlap {
+                shape,
+                at,
+                rotation,
+            },
+            Hits::Overlap(hits),
+        ) => {
+            ShapeGhost::new(shape, *rotation).place(*at, colour, 90, out);
+            for (i, hit) in hits.iter().enumerate() {
+                let point = DVec3::from(hit.point);
+                let direction = DVec3::from(hit.direction);
+                out.push(Mark::Line {
+                    from: point,
+                    to: point + direction * hit.depth,
+                    colour: SELECTED,
+                    width: SELECTED_WIDTH,
+                    dashed: false,
+                });
+                hit_marks(point, direction, i, emphasis, out);
+            }
+        }
+        _ => {}
+    }
+}
+
+/// Where a probe's verdict marker goes: the ray's start, the path's first point, the placed shape.
+pub fn start_point(query: &ProbeQuery) -> DVec3 {
+    match query {
+        ProbeQuery::Ray { from, .. } => *from,
+        ProbeQuery::Sweep { path, .. } => path[0],
+        ProbeQuery::Closest { at, .. } | ProbeQuery::Overlap { at, .. } => *at,
+    }
+}
+
+/// Every point that should be in view when the probe is framed.
+pub fn probe_points(probe: &Probe, result: Option<&ProbeResult>) -> Vec<DVec3> {
+    let mut points = match &probe.query {
+        ProbeQuery::Ray { from, to, .. } => vec![*from, *to],
+        ProbeQuery::Sweep { path, .. } => path.clone(),
+        ProbeQuery::Closest { at, .. } | ProbeQuery::Overlap { at, .. } => vec![*at],
+    };
+    if let Some(Hits::Closest(hits)) = result.map(|r| &r.hits) {
+        points.extend(hits.iter().map(|h| DVec3::from(h.point)));
+    }
+    points
+}
+
+/// The polyline, solid up to the first hit (on segment `first.0` at `first.1`) and dashed after it.
+fn path_lines(
+    path: &[DVec3],
+    first: Option<(usize, DVec3)>,
+    colour: [u8; 3],
+    width: f64,
+    out: &mut Vec<Mark>,
+) {
+    for (s, pair) in path.windows(2).enumerate() {
+        let line = |from, to, dashed, width| Mark::Line {
+            from,
+            to,
+            colour,
+            width,
+            dashed,
+        };
+        match first {
+            Some((hit_segment, at)) if s == hit_segment => {
+                out.push(line(pair[0], at, false, width));
+                out.push(line(at, pair[1], true, width * 0.6));
+            }
+            Some((hit_segment, _)) if s > hit_segment => {
+                out.push(line(pair[0], pair[1], true, width * 0.6))
+            }
+            _ => out.push(line(pair[0], pair[1], false, width)),
+        }
+    }
+}
+
+/// A hit's ball and normal arrow; the selected hit is larger and orange.
+fn hit_marks(point: DVec3, normal: DVec3, index: usize, emphasis: Emphasis, out: &mut Vec<Mark>) {
+    let picked = emphasis.selected && emphasis.hit == Some(index);
+    out.push(Mark::Point {
+        at: point,
+        colour: if picked { SELECTED } else { HIT },
+        size: if picked { HIT_SIZE * 1.8 } else { HIT_SIZE },
+        mark: super::palette::StateMark::Round,
+    });
+    if emphasis.selected || index == 0 {
+        out.push(Mark::Arrow {
+            from: point,
+            direction: normal,
+            length: if picked { ARROW * 1.5 } else { ARROW },
+            colour: NORMAL,
+            width: 2.5,
+        });
+    }
+}
+
+/// A probe shape's surface, ready to be placed as see-through ghosts.
+struct ShapeGhost {
+    surface: Option<(Vec<DVec3>, Vec<[u32; 3]>)>,
+}
+
+impl ShapeGhost {
+    fn new(spec: &ShapeSpec, rotation: Option<DQuat>) -> ShapeGhost {
+        let surface = ProbeShape::new(spec, rotation.unwrap_or(DQuat::IDENTITY))
+            .ok()
+            .map(|shape| shape.surface());
+        ShapeGhost { surface }
+    }
+
+    fn place(&self, at: DVec3, colour: [u8; 3], alpha: u8, out: &mut Vec<Mark>) {
+        if let Some((vertices, triangles)) = &self.surface {
+            out.push(Mark::Ghost {
+                vertices: vertices.iter().map(|v| at + *v).collect(),
+                triangles: triangles.clone(),
+                colour,
+                alpha,
+            });
+        }
+    }
+}
