@@ -51,6 +51,10 @@ pub struct Capture {
     frame: usize,
     image: Arc<Mutex<Option<Arc<egui::ColorImage>>>>,
     requested: bool,
+    done: bool,
+    /// Start of the previous frame and its phase, for whole-frame times.
+    previous: Option<(std::time::Instant, Phase)>,
+    whole_frames: Vec<(Phase, f64)>,
     log: Arc<Mutex<FrameLog>>,
     outcome: Outcome,
 }
@@ -64,6 +68,9 @@ impl Capture {
             frame: 0,
             image: Arc::default(),
             requested: false,
+            done: false,
+            previous: None,
+            whole_frames: Vec::new(),
             log: Arc::default(),
             outcome: Outcome::default(),
         }
@@ -76,7 +83,7 @@ impl Capture {
 
     /// Called at the start of every frame.
     pub fn before_frame(&mut self, ctx: &egui::Context, workbench: &mut Workbench) {
-        if self.screenshot.is_none() && self.bench_frames.is_none() {
+        if self.done || (self.screenshot.is_none() && self.bench_frames.is_none()) {
             return;
         }
         self.frame += 1;
@@ -115,6 +122,7 @@ impl Capture {
                 );
             }
             self.outcome.set(result);
+            self.done = true;
             ctx.send_viewport_cmd(egui::ViewportCommand::Close);
         }
     }
@@ -125,22 +133,33 @@ impl Capture {
         }
         // Frame 1 lays out, frame 2 draws the level once; timing starts after.
         let step = self.frame.saturating_sub(SETTLE_FRAMES);
+        let now = std::time::Instant::now();
+        if let Some((started, phase)) = self.previous.take() {
+            self.whole_frames
+                .push((phase, (now - started).as_secs_f64()));
+        }
         let phase = match step / n.max(1) {
-            0 => Phase::Marks,
-            1 => Phase::Motion,
-            2 => Phase::Redraw,
+            _ if self.frame <= SETTLE_FRAMES => None,
+            0 => Some(Phase::Marks),
+            1 => Some(Phase::Motion),
+            2 => Some(Phase::Redraw),
             _ => {
                 self.outcome.set(Ok(()));
+                self.done = true;
                 println!("{}", self.report(workbench));
                 ctx.send_viewport_cmd(egui::ViewportCommand::Close);
                 return;
             }
         };
+        let Some(phase) = phase else {
+            return;
+        };
+        self.previous = Some((now, phase));
         let probes = workbench.document.probes.probes.len();
         match phase {
             Phase::Marks => {
                 // Only the selection changes: the level must come from its cache.
-                workbench.viewport.force_moving = false;
+                workbench.viewport.force_moving = Some(false);
                 let next = if probes == 0 {
                     None
                 } else {
@@ -149,25 +168,25 @@ impl Capture {
                 workbench.selection.probe = next;
             }
             Phase::Motion => {
-                workbench.viewport.force_moving = true;
+                workbench.viewport.force_moving = Some(true);
                 workbench.viewport.camera.orbit(0.02, 0.0);
             }
             Phase::Redraw => {
-                workbench.viewport.force_moving = false;
+                workbench.viewport.force_moving = Some(false);
                 workbench.viewport.camera.orbit(0.02, 0.0);
             }
         }
     }
 
     fn report(&self, workbench: &Workbench) -> String {
-        let log = self
+        let (log, [width, height]) = self
             .log
             .lock()
-            .map(|l| l.frames.clone())
+            .map(|l| (l.frames.clone(), l.view_size))
             .unwrap_or_default();
         let document = &workbench.document;
         let mut out = format!(
-            "frame times of the 3D view (paint callback to glFinish), level {} with {} triangles:\n",
+            "frame times of the {width}×{height} 3D view (paint callback to glFinish), level {} with {} triangles:\n",
             document.level_path.display(),
             document.level.triangle_count()
         );
@@ -179,26 +198,45 @@ impl Capture {
             (FrameKind::Proxy, "camera moving (level proxy)"),
             (FrameKind::Level, "full level drawn"),
         ] {
-            let mut times: Vec<f64> = log
+            let times: Vec<f64> = log
                 .iter()
                 .filter(|(k, _)| *k == kind)
-                .map(|(_, t)| t * 1e3)
+                .map(|(_, t)| *t)
                 .collect();
-            if times.is_empty() {
-                continue;
-            }
-            times.sort_by(f64::total_cmp);
-            let at = |q: f64| times[((times.len() - 1) as f64 * q).round() as usize];
-            out.push_str(&format!(
-                "  {words}: {} frames, median {:.1} ms, 90th percentile {:.1} ms, max {:.1} ms\n",
-                times.len(),
-                at(0.5),
-                at(0.9),
-                at(1.0)
-            ));
+            out.push_str(&figures(words, times));
+        }
+        out.push_str("whole frames (egui, marks and the 3D view, start to start):\n");
+        for (phase, words) in [
+            (Phase::Marks, "selection changes every frame"),
+            (Phase::Motion, "camera orbits every frame, drawn as moving"),
+            (Phase::Redraw, "camera orbits every frame, full level"),
+        ] {
+            let times: Vec<f64> = self
+                .whole_frames
+                .iter()
+                .filter(|(p, _)| *p == phase)
+                .map(|(_, t)| *t)
+                .collect();
+            out.push_str(&figures(words, times));
         }
         out
     }
+}
+
+/// One line of figures: count, median, 90th percentile and maximum, in milliseconds.
+fn figures(words: &str, mut seconds: Vec<f64>) -> String {
+    if seconds.is_empty() {
+        return String::new();
+    }
+    seconds.sort_by(f64::total_cmp);
+    let at = |q: f64| seconds[((seconds.len() - 1) as f64 * q).round() as usize] * 1e3;
+    format!(
+        "  {words}: {} frames, median {:.1} ms, 90th percentile {:.1} ms, max {:.1} ms\n",
+        seconds.len(),
+        at(0.5),
+        at(0.9),
+        at(1.0)
+    )
 }
 
 /// Writes an egui image as an 8-bit RGBA PNG, atomically.

@@ -17,7 +17,7 @@ use crate::view::palette::{okabe_ito, verdict_word};
 use crate::view::probe_marks::{probe_points, start_point};
 use crate::view::renderer::FrameKind;
 use crate::view::{
-    Emphasis, FrameInput, LevelDrawing, Mark, MarkSurfaces, OrbitCamera, Renderer, Sizing,
+    Emphasis, FrameInput, LevelDrawing, Mark, MarkSurfaces, OrbitCamera, Renderer, Sizing, Target,
     mark_surfaces, probe_marks,
 };
 
@@ -52,6 +52,8 @@ pub struct Hover {
 pub struct FrameLog {
     /// (kind, seconds spent in the paint callback, finished with `glFinish`) per frame.
     pub frames: Vec<(FrameKind, f64)>,
+    /// The 3D view's size in pixels.
+    pub view_size: [u32; 2],
 }
 
 /// The viewport's state.
@@ -70,8 +72,9 @@ pub struct Viewport {
     last_camera: OrbitCamera,
     /// When set, every frame's draw time is recorded (with a `glFinish`).
     pub frame_log: Option<Arc<Mutex<FrameLog>>>,
-    /// Draw as if the camera were moving (benchmarks of motion frames).
-    pub force_moving: bool,
+    /// Draw as if the camera were moving (`Some(true)`) or resting (`Some(false)`) whatever it does
+    /// (for the frame benchmark).
+    pub force_moving: Option<bool>,
 }
 
 #[derive(Clone, PartialEq)]
@@ -100,7 +103,7 @@ impl Viewport {
             hover: None,
             last_camera: camera,
             frame_log: None,
-            force_moving: false,
+            force_moving: None,
         }
     }
 
@@ -134,10 +137,11 @@ impl Viewport {
         let (rect, response) = ui.allocate_exact_size(ui.available_size(), Sense::click_and_drag());
         let size = DVec2::new(rect.width() as f64, rect.height() as f64);
         self.handle_camera_input(ui, &response, size);
-        let moving = self.force_moving
-            || self.camera != self.last_camera
-            || response.dragged()
-            || ui.input(|i| i.smooth_scroll_delta != Vec2::ZERO);
+        let moving = self.force_moving.unwrap_or_else(|| {
+            self.camera != self.last_camera
+                || response.dragged()
+                || ui.input(|i| i.smooth_scroll_delta != Vec2::ZERO)
+        });
         if self.camera != self.last_camera {
             // One more frame once the camera rests, to replace the proxy with the full level.
             ui.ctx().request_repaint();
@@ -176,7 +180,7 @@ impl Viewport {
                 width: pixels.width_px.max(1) as u32,
                 height: pixels.height_px.max(1) as u32,
             };
-            let started = Instant::now();
+            let mut started = Instant::now();
             RENDERER.with(|cell| {
                 let mut slot = cell.borrow_mut();
                 if slot.is_none() {
@@ -186,13 +190,28 @@ impl Viewport {
                     }
                 }
                 if let Some(renderer) = slot.as_mut() {
+                    if log.is_some() {
+                        // Time the view alone: let the window's earlier drawing finish first.
+                        renderer.finish();
+                        started = Instant::now();
+                    }
                     let [w, h] = info.screen_size_px;
-                    let target = three_d::RenderTarget::screen(renderer.context(), w, h);
-                    let kind = renderer.render(&target, viewport, &frame);
+                    let target = Target::Window {
+                        width: w,
+                        height: h,
+                    };
+                    let kind = match renderer.render(target, viewport, &frame) {
+                        Ok(kind) => kind,
+                        Err(e) => {
+                            eprintln!("plumbline: cannot draw the 3D view: {e}");
+                            return;
+                        }
+                    };
                     if let Some(log) = &log {
                         renderer.finish();
                         if let Ok(mut log) = log.lock() {
                             log.frames.push((kind, started.elapsed().as_secs_f64()));
+                            log.view_size = [viewport.width, viewport.height];
                         }
                     }
                 }

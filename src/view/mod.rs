@@ -3,6 +3,7 @@
 //! module converts the core's f64 geometry to f32.
 
 pub mod camera;
+pub mod framebuffer;
 pub mod level_drawing;
 pub mod marks;
 pub mod palette;
@@ -14,4 +15,4 @@ pub use camera::OrbitCamera;
 pub use level_drawing::LevelDrawing;
 pub use marks::{Mark, MarkSurfaces, Sizing, mark_surfaces};
 pub use probe_marks::{Emphasis, probe_marks};
-pub use renderer::{FrameInput, FrameKind, Renderer};
+pub use renderer::{FrameInput, FrameKind, Renderer, Target};

@@ -79,9 +79,9 @@ pub const SELECTED: Rgb = okabe_ito::ORANGE;
 
 /// Surface tones for well-known tags; anything else gets one of [`SPARE_TONES`] by its tag's name.
 const TAG_TONES: &[(&str, Rgb)] = &[
-    ("ground", [164, 160, 142]),
-    ("terrain", [164, 160, 142]),
-    ("building", [196, 186, 170]),
+    ("ground", [150, 154, 134]),
+    ("terrain", [150, 154, 134]),
+    ("building", [214, 204, 188]),
     ("structure", [150, 156, 166]),
     ("glass", [176, 214, 222]),
     ("foliage", [128, 146, 104]),

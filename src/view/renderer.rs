@@ -8,13 +8,12 @@
 use std::sync::Arc;
 
 use three_d::{
-    Blend, Camera, ClearState, ColorMaterial, ColorTexture, Context, CopyEffect, CpuMesh, Cull,
-    DepthTest, DepthTexture, DepthTexture2D, Gm, Indices, Interpolation, Mesh, Positions,
-    RenderStates, RenderTarget, ScissorBox, Srgba, Texture2D, Viewport, Wrapping, WriteMask,
-    degrees, vec3,
+    Blend, Camera, ClearState, ColorMaterial, Context, CpuMesh, Cull, DepthTest, Gm, Indices, Mesh,
+    Positions, RenderStates, RenderTarget, ScissorBox, Srgba, Viewport, WriteMask, degrees, vec3,
 };
 
 use super::camera::{FIELD_OF_VIEW, OrbitCamera};
+use super::framebuffer::{DepthFormat, Offscreen, block_copy};
 use super::level_drawing::LevelDrawing;
 use super::marks::MarkSurfaces;
 use super::surface::Surface;
@@ -50,8 +49,20 @@ struct CacheKey {
 
 struct LevelCache {
     key: CacheKey,
-    colour: Texture2D,
-    depth: DepthTexture2D,
+    buffer: Offscreen,
+}
+
+/// Where a frame is drawn.
+pub enum Target<'a> {
+    /// The window's own framebuffer, of this size in pixels.
+    Window {
+        /// Width.
+        width: u32,
+        /// Height.
+        height: u32,
+    },
+    /// An offscreen framebuffer.
+    Offscreen(&'a Offscreen),
 }
 
 struct GpuLevel {
@@ -84,6 +95,8 @@ pub struct Renderer {
     level: Option<GpuLevel>,
     marks: Option<GpuMarks>,
     cache: Option<LevelCache>,
+    window_depth: Option<DepthFormat>,
+    depth_copy_refused: bool,
 }
 
 impl Renderer {
@@ -94,6 +107,8 @@ impl Renderer {
             level: None,
             marks: None,
             cache: None,
+            window_depth: None,
+            depth_copy_refused: false,
         }
     }
 
@@ -114,13 +129,84 @@ impl Renderer {
     /// drawn.
     pub fn render(
         &mut self,
-        target: &RenderTarget,
+        target: Target,
         viewport: Viewport,
         frame: &FrameInput,
-    ) -> FrameKind {
+    ) -> Result<FrameKind, String> {
         self.upload(frame);
-        let (Some(level), Some(marks)) = (&self.level, &self.marks) else {
-            return FrameKind::MarksOnly;
+        let depth_format = match target {
+            Target::Window { .. } => *self
+                .window_depth
+                .get_or_insert_with(|| DepthFormat::of_window(&self.context)),
+            Target::Offscreen(buffer) => buffer.depth_format,
+        };
+        let kind = self.draw_level(viewport, depth_format, frame)?;
+        let Some(cache) = &self.cache else {
+            return Ok(kind);
+        };
+        let (framebuffer, width, height) = match target {
+            Target::Window { width, height } => (None, width, height),
+            Target::Offscreen(buffer) => (Some(buffer.framebuffer), buffer.width, buffer.height),
+        };
+        let rect = [
+            viewport.x,
+            viewport.y,
+            viewport.width as i32,
+            viewport.height as i32,
+        ];
+        if self.depth_copy_refused
+            || !block_copy(&self.context, &cache.buffer, framebuffer, rect, true)
+        {
+            if !self.depth_copy_refused {
+                eprintln!(
+                    "plumbline: the driver refused to copy depth; probe marks are drawn without hiding"
+                );
+                self.depth_copy_refused = true;
+            }
+            block_copy(&self.context, &cache.buffer, framebuffer, rect, false);
+        }
+        let screen = match framebuffer {
+            None => RenderTarget::screen(&self.context, width, height),
+            Some(fb) => RenderTarget::from_framebuffer(&self.context, width, height, fb),
+        };
+        self.draw_marks(&screen, viewport, frame);
+        // The framebuffer belongs to its owner, not to this render target.
+        let _ = screen.into_framebuffer();
+        Ok(kind)
+    }
+
+    /// Draws a frame into a new offscreen image of the given size: RGBA rows from the top down.
+    pub fn render_image(
+        &mut self,
+        width: u32,
+        height: u32,
+        frame: &FrameInput,
+    ) -> Result<Vec<u8>, String> {
+        let buffer = Offscreen::new(&self.context, width, height, DepthFormat::Depth24)?;
+        self.render(
+            Target::Offscreen(&buffer),
+            Viewport::new_at_origo(width, height),
+            frame,
+        )?;
+        let bottom_up = buffer.read_colour();
+        let row = width as usize * 4;
+        Ok(bottom_up
+            .chunks_exact(row)
+            .rev()
+            .flatten()
+            .copied()
+            .collect())
+    }
+
+    /// Draws the level into the cache unless the cache already holds this view of it.
+    fn draw_level(
+        &mut self,
+        viewport: Viewport,
+        depth_format: DepthFormat,
+        frame: &FrameInput,
+    ) -> Result<FrameKind, String> {
+        let Some(level) = &self.level else {
+            return Ok(FrameKind::MarksOnly);
         };
         let proxy = frame.moving && level.proxy.is_some();
         let key = CacheKey {
@@ -129,51 +215,55 @@ impl Renderer {
             size: (viewport.width, viewport.height),
             proxy,
         };
-        let kind = if self.cache.as_ref().is_some_and(|c| c.key == key) {
-            FrameKind::MarksOnly
-        } else {
-            let cache = self.cache.take().filter(|c| c.key.size == key.size);
-            let cache = cache.unwrap_or_else(|| new_cache(&self.context, key));
-            let local = Viewport::new_at_origo(viewport.width, viewport.height);
-            let camera = three_d_camera(&frame.camera, &frame.level, local);
-            {
-                let [r, g, b] = BACKGROUND;
-                let offscreen = RenderTarget::new(
-                    cache.colour.as_color_target(None),
-                    cache.depth.as_depth_target(),
-                );
-                offscreen.clear(ClearState::color_and_depth(
-                    r as f32 / 255.0,
-                    g as f32 / 255.0,
-                    b as f32 / 255.0,
-                    1.0,
-                    1.0,
-                ));
-                let surface = if proxy {
-                    level.proxy.as_ref().unwrap_or(&level.surface)
-                } else {
-                    &level.surface
-                };
-                offscreen.render(&camera, [surface, &level.grid], &[]);
-            }
-            self.cache = Some(LevelCache { key, ..cache });
-            if proxy {
-                FrameKind::Proxy
-            } else {
-                FrameKind::Level
-            }
+        if self
+            .cache
+            .as_ref()
+            .is_some_and(|c| c.key == key && c.buffer.depth_format == depth_format)
+        {
+            return Ok(FrameKind::MarksOnly);
+        }
+        let buffer = match self.cache.take() {
+            Some(c) if c.key.size == key.size && c.buffer.depth_format == depth_format => c.buffer,
+            _ => Offscreen::new(&self.context, viewport.width, viewport.height, depth_format)?,
         };
-        let cache = self.cache.as_ref().expect("the level pass leaves a cache");
+        let local = Viewport::new_at_origo(viewport.width, viewport.height);
+        let camera = three_d_camera(&frame.camera, &frame.level, local);
+        let [r, g, b] = BACKGROUND;
+        let offscreen = RenderTarget::from_framebuffer(
+            &self.context,
+            viewport.width,
+            viewport.height,
+            buffer.framebuffer,
+        );
+        offscreen.clear(ClearState::color_and_depth(
+            r as f32 / 255.0,
+            g as f32 / 255.0,
+            b as f32 / 255.0,
+            1.0,
+            1.0,
+        ));
+        let surface = if proxy {
+            level.proxy.as_ref().unwrap_or(&level.surface)
+        } else {
+            &level.surface
+        };
+        offscreen.render(&camera, [surface, &level.grid], &[]);
+        let _ = offscreen.into_framebuffer();
+        self.cache = Some(LevelCache { key, buffer });
+        Ok(if proxy {
+            FrameKind::Proxy
+        } else {
+            FrameKind::Level
+        })
+    }
+
+    /// Draws the marks over the copied level: solid, then see-through, then faintly where hidden.
+    fn draw_marks(&self, target: &RenderTarget, viewport: Viewport, frame: &FrameInput) {
+        let Some(marks) = &self.marks else {
+            return;
+        };
         let camera = three_d_camera(&frame.camera, &frame.level, viewport);
         let scissor = ScissorBox::from(viewport);
-        target.apply_screen_effect_partially(
-            scissor,
-            &CopyEffect::default(),
-            &camera,
-            &[],
-            Some(ColorTexture::Single(&cache.colour)),
-            Some(DepthTexture::Single(&cache.depth)),
-        );
         if let Some(solid) = &marks.solid {
             target.render_partially_with_material(
                 scissor,
@@ -201,7 +291,6 @@ impl Renderer {
                 &[],
             );
         }
-        kind
     }
 
     fn upload(&mut self, frame: &FrameInput) {
@@ -231,30 +320,6 @@ impl Renderer {
                 see_through: mesh(&frame.marks.see_through),
             });
         }
-    }
-}
-
-fn new_cache(context: &Context, key: CacheKey) -> LevelCache {
-    let (width, height) = key.size;
-    LevelCache {
-        key,
-        colour: Texture2D::new_empty::<[u8; 4]>(
-            context,
-            width,
-            height,
-            Interpolation::Nearest,
-            Interpolation::Nearest,
-            None,
-            Wrapping::ClampToEdge,
-            Wrapping::ClampToEdge,
-        ),
-        depth: DepthTexture2D::new::<f32>(
-            context,
-            width,
-            height,
-            Wrapping::ClampToEdge,
-            Wrapping::ClampToEdge,
-        ),
     }
 }
 
