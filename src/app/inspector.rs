@@ -10,6 +10,7 @@ use super::Selection;
 use super::badge::badge;
 use super::document::Document;
 use crate::check::{Hits, ProbeResult, metres};
+use crate::level::ShapeSpec;
 use crate::probe::{Expect, Probe, ProbeQuery};
 use crate::query::ProbeShape;
 use crate::view::palette::{SELECTED, okabe_ito};
@@ -177,15 +178,65 @@ fn question_grid(ui: &mut egui::Ui, probe: &Probe) {
         });
 }
 
-fn shape_words(shape: &crate::level::ShapeSpec) -> String {
-    serde_json::to_string(shape).unwrap_or_else(|_| shape.type_name().to_string())
+fn shape_words(shape: &ShapeSpec) -> String {
+    match shape {
+        ShapeSpec::Sphere { radius } => format!("sphere, radius {}", metres(*radius)),
+        ShapeSpec::Box { half_extents: [x, y, z] } => {
+            format!("box, {} × {} × {}", metres(2.0 * x), metres(2.0 * y), metres(2.0 * z))
+        }
+        ShapeSpec::Capsule {
+            radius,
+            half_height,
+        } => format!(
+            "capsule, radius {}, {} tall",
+            metres(*radius),
+            metres(2.0 * (half_height + radius))
+        ),
+        ShapeSpec::Cylinder {
+            radius,
+            half_height,
+        } => format!(
+            "cylinder, radius {}, {} tall",
+            metres(*radius),
+            metres(2.0 * half_height)
+        ),
+        ShapeSpec::Convex { points } => format!("convex hull of {} points", points.len()),
+        other => other.type_name().to_string(),
+    }
 }
 
 fn expect_words(expect: Option<&Expect>) -> String {
-    match expect {
-        None => "nothing (unchecked)".into(),
-        Some(e) => serde_json::to_string(e).unwrap_or_default(),
+    let Some(expect) = expect else {
+        return "nothing (unchecked)".into();
+    };
+    let c = expect.conditions();
+    let mut words = Vec::new();
+    match c.blocked {
+        Some(true) => words.push("blocked".to_string()),
+        Some(false) => words.push("clear".to_string()),
+        None => {}
     }
+    if let Some(name) = &c.first_object {
+        words.push(format!("first object {name}"));
+    }
+    if let Some(tag) = &c.first_tag {
+        words.push(format!("first object tagged {tag}"));
+    }
+    if let Some(range) = c.distance {
+        match (range.min, range.max) {
+            (Some(lo), Some(hi)) => words.push(format!("distance {} to {}", metres(lo), metres(hi))),
+            (Some(lo), None) => words.push(format!("distance at least {}", metres(lo))),
+            (None, Some(hi)) => words.push(format!("distance at most {}", metres(hi))),
+            (None, None) => {}
+        }
+    }
+    if let Some(m) = c.min_clearance {
+        words.push(format!("clearance at least {}", metres(m)));
+    }
+    if let Some(m) = c.max_depth {
+        words.push(format!("depth at most {}", metres(m)));
+    }
+    words.join("; ")
 }
 
 /// The hits as a table; clicking a row marks that hit in the view.

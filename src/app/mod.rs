@@ -267,6 +267,8 @@ pub struct WindowOptions {
     pub size: Option<[u32; 2]>,
     /// Draw this many frames of each kind, print the frame times, then exit.
     pub bench_frames: Option<usize>,
+    /// The id of a probe to select at the start.
+    pub select: Option<String>,
 }
 
 struct WorkbenchApp {
@@ -284,6 +286,17 @@ impl eframe::App for WorkbenchApp {
 /// Opens the window on a probe set or level and runs until it is closed.
 pub fn run(path: &std::path::Path, options: WindowOptions) -> Result<(), String> {
     let document = Document::open(path)?;
+    let selected = match &options.select {
+        None => None,
+        Some(id) => Some(
+            document
+                .probes
+                .probes
+                .iter()
+                .position(|p| p.id == *id)
+                .ok_or_else(|| format!("{}: no probe with id \"{id}\"", path.display()))?,
+        ),
+    };
     let capture = Capture::new(&options);
     let outcome = capture.outcome();
     let size = options.size.unwrap_or([1440, 860]);
@@ -307,10 +320,12 @@ pub fn run(path: &std::path::Path, options: WindowOptions) -> Result<(), String>
         "plumbline",
         native,
         Box::new(move |_cc| {
-            Ok(Box::new(WorkbenchApp {
-                workbench: Workbench::new(document),
-                capture,
-            }))
+            let mut workbench = Workbench::new(document);
+            if selected.is_some() {
+                workbench.select_probe(selected);
+                workbench.scroll_list = true;
+            }
+            Ok(Box::new(WorkbenchApp { workbench, capture }))
         }),
     )
     .map_err(|e| {

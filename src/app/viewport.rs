@@ -365,6 +365,7 @@ impl Viewport {
             };
             let emphasis = Emphasis {
                 selected: selection.probe == Some(i),
+                muted: selection.probe.is_some_and(|s| s != i),
                 hit: selection.hit,
             };
             probe_marks(probe, result, emphasis, &mut marks);
@@ -485,34 +486,45 @@ impl Viewport {
     }
 }
 
-/// Highlights the objects an overlap probe overlaps (see-through copies of their triangles).
-fn overlapped_objects(
-    document: &Document,
-    result: &crate::check::ProbeResult,
-    marks: &mut Vec<Mark>,
-) {
+/// Highlights the objects an overlap probe overlaps (see-through copies of their surfaces).
+fn overlapped_objects(document: &Document, result: &crate::check::ProbeResult, marks: &mut Vec<Mark>) {
     let Hits::Overlap(hits) = &result.hits else {
         return;
     };
     for hit in hits {
-        let Some(object) = document
-            .level
-            .objects
-            .iter()
-            .find(|o| *o.name == *hit.object)
-        else {
+        let Some(object) = document.level.objects.iter().find(|o| *o.name == *hit.object) else {
             continue;
         };
-        if let crate::level::Geometry::Mesh(mesh) = &object.geometry
-            && mesh.triangles.len() <= 20_000
-        {
-            marks.push(Mark::Ghost {
-                vertices: mesh.vertices.clone(),
-                triangles: mesh.triangles.clone(),
-                colour: okabe_ito::ORANGE,
-                alpha: 120,
-            });
-        }
+        let (vertices, triangles) = match &object.geometry {
+            crate::level::Geometry::Mesh(mesh) if mesh.triangles.len() <= 20_000 => {
+                (mesh.vertices.clone(), mesh.triangles.clone())
+            }
+            crate::level::Geometry::Mesh(_) => continue,
+            crate::level::Geometry::Primitive {
+                shape,
+                translation,
+                rotation,
+            } => {
+                let Ok(parry) = crate::query::primitive_shape(shape) else {
+                    continue;
+                };
+                let (vertices, triangles) = crate::query::shape_surface(&parry);
+                let placed = vertices.iter().map(|v| *translation + *rotation * *v).collect();
+                (placed, triangles)
+            }
+        };
+        // Pushed out by 2 cm so the highlight does not fight the object's own surface for depth.
+        let centre = vertices.iter().copied().sum::<DVec3>() / vertices.len().max(1) as f64;
+        let vertices = vertices
+            .iter()
+            .map(|v| *v + (*v - centre).normalize_or_zero() * 0.02)
+            .collect();
+        marks.push(Mark::Ghost {
+            vertices,
+            triangles,
+            colour: okabe_ito::ORANGE,
+            alpha: 130,
+        });
     }
 }
 

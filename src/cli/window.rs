@@ -13,6 +13,9 @@ pub struct WindowArgs {
     /// Window size in pixels, e.g. 1280x720.
     #[arg(long, value_name = "WxH", value_parser = parse_size)]
     pub size: Option<[u32; 2]>,
+    /// Select this probe (by id) at the start, framed in the view.
+    #[arg(long, value_name = "PROBE")]
+    pub select: Option<String>,
     /// Draw N frames of each kind (overlay change, camera motion, full redraw), print their times,
     /// then exit.
     #[arg(long, value_name = "N", value_parser = clap::value_parser!(u32).range(1..))]
@@ -26,6 +29,7 @@ impl WindowArgs {
             screenshot: self.screenshot.clone(),
             size: self.size,
             bench_frames: self.bench_frames.map(|n| n as usize),
+            select: self.select.clone(),
         })
     }
 }

@@ -16,6 +16,8 @@ use crate::query::ProbeShape;
 
 /// Line width of probes, pixels.
 const WIDTH: f64 = 3.0;
+/// Line width of probes while another is selected, pixels.
+const MUTED_WIDTH: f64 = 1.5;
 /// Line width of the selected probe, pixels.
 const SELECTED_WIDTH: f64 = 5.0;
 /// Size of a probe's verdict marker, pixels.
@@ -30,6 +32,8 @@ const ARROW: f64 = 36.0;
 pub struct Emphasis {
     /// The probe is selected.
     pub selected: bool,
+    /// Another probe is selected: this one steps back (thin lines, no normals).
+    pub muted: bool,
     /// Index of the selected hit.
     pub hit: Option<usize>,
 }
@@ -39,6 +43,8 @@ pub fn probe_marks(probe: &Probe, result: &ProbeResult, emphasis: Emphasis, out:
     let colour = verdict_colour(result.verdict);
     let width = if emphasis.selected {
         SELECTED_WIDTH
+    } else if emphasis.muted {
+        MUTED_WIDTH
     } else {
         WIDTH
     };
@@ -208,7 +214,7 @@ fn hit_marks(point: DVec3, normal: DVec3, index: usize, emphasis: Emphasis, out:
         size: if picked { HIT_SIZE * 1.8 } else { HIT_SIZE },
         mark: super::palette::StateMark::Round,
     });
-    if emphasis.selected || index == 0 {
+    if emphasis.selected || (index == 0 && !emphasis.muted) {
         out.push(Mark::Arrow {
             from: point,
             direction: normal,
