@@ -91,11 +91,11 @@ impl Capture {
         if let Some(n) = self.bench_frames {
             self.bench_step(ctx, workbench, n);
         } else {
-            self.screenshot_step(ctx);
+            self.screenshot_step(ctx, workbench);
         }
     }
 
-    fn screenshot_step(&mut self, ctx: &egui::Context) {
+    fn screenshot_step(&mut self, ctx: &egui::Context, workbench: &Workbench) {
         let Some(path) = self.screenshot.clone() else {
             return;
         };
@@ -112,7 +112,8 @@ impl Capture {
         }
         let taken = self.image.lock().ok().and_then(|mut s| s.take());
         if let Some(image) = taken {
-            let result = write_png(&path, &image);
+            let result = write_png(&path, &image)
+                .and_then(|()| write_marks(&path, workbench, ctx.pixels_per_point()));
             if result.is_ok() {
                 println!(
                     "wrote {} ({}×{})",
@@ -237,6 +238,50 @@ fn figures(words: &str, mut seconds: Vec<f64>) -> String {
         at(0.9),
         at(1.0)
     )
+}
+
+/// The file beside a screenshot that says where each probe's marker landed in it.
+pub fn marks_path(screenshot: &Path) -> PathBuf {
+    screenshot.with_extension("marks.json")
+}
+
+/// Writes where the view is in the screenshot and where each drawn probe's verdict marker landed (in
+/// image pixels), so a screenshot can be annotated or checked.
+fn write_marks(
+    screenshot: &Path,
+    workbench: &Workbench,
+    pixels_per_point: f32,
+) -> Result<(), String> {
+    use crate::view::probe_marks::start_point;
+    let viewport = &workbench.viewport;
+    let rect = viewport.last_rect;
+    let px = |v: f32| f64::from((v * pixels_per_point).round());
+    let document = &workbench.document;
+    let shown = workbench.filter.shown(document);
+    let probes: Vec<serde_json::Value> = shown
+        .iter()
+        .take(super::viewport::MAX_DRAWN_PROBES)
+        .filter_map(|&i| {
+            let probe = &document.probes.probes[i];
+            let at = viewport.to_screen(rect, start_point(&probe.query))?;
+            rect.contains(at).then(|| {
+                serde_json::json!({
+                    "id": probe.id,
+                    "verdict": document.results[i].verdict.word(),
+                    "x": px(at.x),
+                    "y": px(at.y),
+                })
+            })
+        })
+        .collect();
+    let marks = serde_json::json!({
+        "view": [px(rect.left()), px(rect.top()), px(rect.right()), px(rect.bottom())],
+        "probes": probes,
+    });
+    let path = marks_path(screenshot);
+    let text = crate::json_text::to_pretty(&marks);
+    crate::atomic::write_atomic(&path, text.as_bytes())
+        .map_err(|e| format!("{}: {e}", path.display()))
 }
 
 /// Writes an egui image as an 8-bit RGBA PNG, atomically.

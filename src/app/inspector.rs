@@ -181,8 +181,15 @@ fn question_grid(ui: &mut egui::Ui, probe: &Probe) {
 fn shape_words(shape: &ShapeSpec) -> String {
     match shape {
         ShapeSpec::Sphere { radius } => format!("sphere, radius {}", metres(*radius)),
-        ShapeSpec::Box { half_extents: [x, y, z] } => {
-            format!("box, {} × {} × {}", metres(2.0 * x), metres(2.0 * y), metres(2.0 * z))
+        ShapeSpec::Box {
+            half_extents: [x, y, z],
+        } => {
+            format!(
+                "box, {} × {} × {}",
+                metres(2.0 * x),
+                metres(2.0 * y),
+                metres(2.0 * z)
+            )
         }
         ShapeSpec::Capsule {
             radius,
@@ -224,7 +231,9 @@ fn expect_words(expect: Option<&Expect>) -> String {
     }
     if let Some(range) = c.distance {
         match (range.min, range.max) {
-            (Some(lo), Some(hi)) => words.push(format!("distance {} to {}", metres(lo), metres(hi))),
+            (Some(lo), Some(hi)) => {
+                words.push(format!("distance {} to {}", metres(lo), metres(hi)))
+            }
             (Some(lo), None) => words.push(format!("distance at least {}", metres(lo))),
             (None, Some(hi)) => words.push(format!("distance at most {}", metres(hi))),
             (None, None) => {}

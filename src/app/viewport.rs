@@ -72,6 +72,8 @@ pub struct Viewport {
     last_camera: OrbitCamera,
     /// When set, every frame's draw time is recorded (with a `glFinish`).
     pub frame_log: Option<Arc<Mutex<FrameLog>>>,
+    /// Where the view was on screen in the last frame, in points.
+    pub last_rect: Rect,
     /// Draw as if the camera were moving (`Some(true)`) or resting (`Some(false)`) whatever it does
     /// (for the frame benchmark).
     pub force_moving: Option<bool>,
@@ -104,6 +106,7 @@ impl Viewport {
             last_camera: camera,
             frame_log: None,
             force_moving: None,
+            last_rect: Rect::NOTHING,
         }
     }
 
@@ -135,6 +138,7 @@ impl Viewport {
         selection: &mut Selection,
     ) -> bool {
         let (rect, response) = ui.allocate_exact_size(ui.available_size(), Sense::click_and_drag());
+        self.last_rect = rect;
         let size = DVec2::new(rect.width() as f64, rect.height() as f64);
         self.handle_camera_input(ui, &response, size);
         let moving = self.force_moving.unwrap_or_else(|| {
@@ -487,12 +491,21 @@ impl Viewport {
 }
 
 /// Highlights the objects an overlap probe overlaps (see-through copies of their surfaces).
-fn overlapped_objects(document: &Document, result: &crate::check::ProbeResult, marks: &mut Vec<Mark>) {
+fn overlapped_objects(
+    document: &Document,
+    result: &crate::check::ProbeResult,
+    marks: &mut Vec<Mark>,
+) {
     let Hits::Overlap(hits) = &result.hits else {
         return;
     };
     for hit in hits {
-        let Some(object) = document.level.objects.iter().find(|o| *o.name == *hit.object) else {
+        let Some(object) = document
+            .level
+            .objects
+            .iter()
+            .find(|o| *o.name == *hit.object)
+        else {
             continue;
         };
         let (vertices, triangles) = match &object.geometry {
@@ -509,7 +522,10 @@ fn overlapped_objects(document: &Document, result: &crate::check::ProbeResult, m
                     continue;
                 };
                 let (vertices, triangles) = crate::query::shape_surface(&parry);
-                let placed = vertices.iter().map(|v| *translation + *rotation * *v).collect();
+                let placed = vertices
+                    .iter()
+                    .map(|v| *translation + *rotation * *v)
+                    .collect();
                 (placed, triangles)
             }
         };

@@ -7,7 +7,8 @@ use plumbline::app::WindowOptions;
 /// Options of `plumbline` and `plumbline open`.
 #[derive(clap::Args, Debug, Clone, Default)]
 pub struct WindowArgs {
-    /// Write a PNG of the window after the first complete frame, then exit.
+    /// Write a PNG of the window after the first complete frame, and beside it PATH with the
+    /// extension .marks.json (where each probe's marker landed), then exit.
     #[arg(long, value_name = "PATH")]
     pub screenshot: Option<PathBuf>,
     /// Window size in pixels, e.g. 1280x720.

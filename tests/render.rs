@@ -1,0 +1,289 @@
+//! Rendering without any window system: an EGL surfaceless OpenGL context (Mesa's CPU rasteriser on
+//! machines without a GPU) draws the viewport offscreen, and the pixels are checked against the
+//! analytic projection of the scene.
+//!
+//! References: the perspective and viewport transforms of Segal, M. & Akeley, K., "The OpenGL Graphics
+//! System: A Specification (Version 4.5, Core Profile)", 2016, §13.6 (clip → window coordinates), and
+//! its polygon rasterisation rule, §14.6.1: a pixel is covered when its centre lies inside the
+//! triangle. The silhouette of a convex solid under a central projection is the convex hull of its
+//! projected corners (elementary projective geometry).
+
+use std::sync::Arc;
+
+use glam::{DQuat, DVec2, DVec3};
+use plumbline::check::answer_probe;
+use plumbline::level::{Geometry, Level, LevelObject, Primitive};
+use plumbline::probe::{Probe, ProbeQuery};
+use plumbline::query::{Filter, World};
+use plumbline::view::renderer::BACKGROUND;
+use plumbline::view::surface::Surface;
+use plumbline::view::{
+    Emphasis, FrameInput, LevelDrawing, MarkSurfaces, OrbitCamera, Renderer, Sizing, mark_surfaces,
+    probe_marks,
+};
+
+const WIDTH: u32 = 320;
+const HEIGHT: u32 = 240;
+
+/// An OpenGL 3.3 context with no surface, current on this thread for the test's lifetime.
+struct Headless {
+    renderer: Renderer,
+    _context: glutin::api::egl::context::PossiblyCurrentContext,
+}
+
+fn headless() -> Headless {
+    use glutin::api::egl::{device::Device, display::Display};
+    use glutin::config::{ConfigSurfaceTypes, ConfigTemplateBuilder};
+    use glutin::context::{ContextApi, ContextAttributesBuilder, Version};
+    use glutin::prelude::*;
+
+    let device = Device::query_devices()
+        .expect("EGL is available (Debian: libegl1 and libgl1-mesa-dri)")
+        .next()
+        .expect("an EGL device (Mesa offers a software one)");
+    // SAFETY: no native display is passed; the device comes from EGL itself.
+    let display = unsafe { Display::with_device(&device, None) }.expect("an EGL display");
+    // SAFETY: the template asks for no surface at all.
+    let template = ConfigTemplateBuilder::new()
+        .with_surface_type(ConfigSurfaceTypes::empty())
+        .build();
+    let config = unsafe { display.find_configs(template) }
+        .expect("EGL configs")
+        .next()
+        .expect("one EGL config");
+    let attributes = ContextAttributesBuilder::new()
+        .with_context_api(ContextApi::OpenGl(Some(Version::new(3, 3))))
+        .build(None);
+    // SAFETY: the config belongs to this display.
+    let context = unsafe { display.create_context(&config, &attributes) }
+        .expect("an OpenGL 3.3 context")
+        .make_current_surfaceless()
+        .expect("a surfaceless current context");
+    // SAFETY: the context is current on this thread and outlives every call made through `gl`.
+    let gl = unsafe {
+        three_d::context::Context::from_loader_function_cstr(|name| {
+            display.get_proc_address(name).cast()
+        })
+    };
+    let context3d =
+        three_d::Context::from_gl_context(Arc::new(gl)).expect("three-d on the context");
+    Headless {
+        renderer: Renderer::new(context3d),
+        _context: context,
+    }
+}
+
+fn unit_box_level() -> Level {
+    Level {
+        up: DVec3::Y,
+        objects: vec![LevelObject {
+            name: "crate".into(),
+            tags: vec![],
+            geometry: Geometry::Primitive {
+                shape: Primitive::Box {
+                    half_extents: DVec3::new(1.0, 0.75, 0.5),
+                },
+                translation: DVec3::new(0.3, 0.2, -0.1),
+                rotation: DQuat::from_rotation_y(0.4),
+            },
+        }],
+    }
+}
+
+fn frame(drawing: LevelDrawing, camera: OrbitCamera, marks: MarkSurfaces) -> FrameInput {
+    FrameInput {
+        camera,
+        level: Arc::new(drawing),
+        level_revision: 1,
+        marks: Arc::new(marks),
+        marks_revision: 1,
+        moving: false,
+    }
+}
+
+fn pixel(image: &[u8], x: u32, y: u32) -> [u8; 3] {
+    let i = (y * WIDTH + x) as usize * 4;
+    [image[i], image[i + 1], image[i + 2]]
+}
+
+/// Signed distance (pixels) from `p` to the boundary of a convex polygon: positive inside.
+fn inside_distance(p: DVec2, hull: &[DVec2]) -> f64 {
+    let centre = hull.iter().copied().sum::<DVec2>() / hull.len() as f64;
+    let (a, b) = (hull[0], hull[1]);
+    let turn = (b - a).perp_dot(centre - a).signum();
+    let mut d = f64::INFINITY;
+    for k in 0..hull.len() {
+        let (a, b) = (hull[k], hull[(k + 1) % hull.len()]);
+        let edge = b - a;
+        let normal = DVec2::new(-edge.y, edge.x).normalize() * turn;
+        d = d.min((p - a).dot(normal));
+    }
+    d
+}
+
+/// Convex hull (Andrew's monotone chain), corners in order around it.
+fn hull(mut points: Vec<DVec2>) -> Vec<DVec2> {
+    points.sort_by(|a, b| a.x.total_cmp(&b.x).then(a.y.total_cmp(&b.y)));
+    let cross = |o: DVec2, a: DVec2, b: DVec2| (a - o).perp_dot(b - o);
+    let mut lower: Vec<DVec2> = Vec::new();
+    for p in &points {
+        while lower.len() >= 2 && cross(lower[lower.len() - 2], lower[lower.len() - 1], *p) <= 0.0 {
+            lower.pop();
+        }
+        lower.push(*p);
+    }
+    let mut upper: Vec<DVec2> = Vec::new();
+    for p in points.iter().rev() {
+        while upper.len() >= 2 && cross(upper[upper.len() - 2], upper[upper.len() - 1], *p) <= 0.0 {
+            upper.pop();
+        }
+        upper.push(*p);
+    }
+    lower.pop();
+    upper.pop();
+    lower.extend(upper);
+    lower
+}
+
+#[test]
+fn a_box_covers_exactly_the_pixels_of_its_projected_silhouette() {
+    let mut gl = headless();
+    let level = unit_box_level();
+    let mut drawing = LevelDrawing::new(&level);
+    drawing.grid = Surface::default();
+    let camera = OrbitCamera {
+        target: DVec3::new(0.2, 0.1, 0.0),
+        distance: 5.0,
+        yaw: 0.8,
+        pitch: 0.45,
+        up: DVec3::Y,
+    };
+    let image = gl
+        .renderer
+        .render_image(
+            WIDTH,
+            HEIGHT,
+            &frame(drawing, camera, MarkSurfaces::default()),
+        )
+        .expect("an offscreen frame");
+
+    let Geometry::Primitive {
+        shape: Primitive::Box { half_extents },
+        translation,
+        rotation,
+    } = &level.objects[0].geometry
+    else {
+        unreachable!()
+    };
+    let size = DVec2::new(WIDTH as f64, HEIGHT as f64);
+    let corners: Vec<DVec2> = (0..8)
+        .map(|i| {
+            let sign = |bit: usize| if i & bit == 0 { -1.0 } else { 1.0 };
+            let local = DVec3::new(sign(1), sign(2), sign(4)) * *half_extents;
+            camera
+                .project(*translation + *rotation * local, size, 10.0)
+                .unwrap()
+        })
+        .collect();
+    let silhouette = hull(corners);
+
+    let (mut covered, mut expected, mut wrong) = (0usize, 0usize, Vec::new());
+    for y in 0..HEIGHT {
+        for x in 0..WIDTH {
+            let centre = DVec2::new(x as f64 + 0.5, y as f64 + 0.5);
+            let d = inside_distance(centre, &silhouette);
+            let drawn = pixel(&image, x, y) != BACKGROUND;
+            covered += drawn as usize;
+            expected += (d > 0.0) as usize;
+            // Pixels whose centre is within a pixel of the outline may go either way (rounding of
+            // f32 vertex positions and of the rasteriser's fixed-point grid).
+            if d.abs() > 1.0 && drawn != (d > 0.0) {
+                wrong.push((x, y, d));
+            }
+        }
+    }
+    assert!(
+        expected > 4000,
+        "the box fills a good part of the image ({expected} px)"
+    );
+    assert!(
+        wrong.is_empty(),
+        "{} pixels disagree, e.g. {:?}",
+        wrong.len(),
+        &wrong[..wrong.len().min(5)]
+    );
+    let ratio = covered as f64 / expected as f64;
+    assert!(
+        (ratio - 1.0).abs() < 0.02,
+        "covered {covered} of {expected}"
+    );
+}
+
+#[test]
+fn a_rays_hit_marker_lands_on_the_projected_hit_point() {
+    let mut gl = headless();
+    let level = unit_box_level();
+    let world = World::new(&level).unwrap();
+    let probe = Probe {
+        id: "sightline".into(),
+        label: None,
+        filter: Filter::default(),
+        query: ProbeQuery::Ray {
+            from: DVec3::new(-6.0, 0.35, 0.4),
+            to: DVec3::new(6.0, 0.1, -0.3),
+            hits: None,
+        },
+        expect: None,
+    };
+    let result = answer_probe(&world, &probe);
+    let plumbline::check::Hits::Ray(hits) = &result.hits else {
+        unreachable!()
+    };
+    let hit_point = DVec3::from(hits[0].point);
+
+    let mut drawing = LevelDrawing::new(&level);
+    drawing.grid = Surface::default();
+    // Looking at the face the ray enters through, from the ray's side.
+    let camera = OrbitCamera {
+        // Off-centre, so a wrong projection would move the marker.
+        target: hit_point + DVec3::new(0.0, 0.7, 1.1),
+        distance: 5.0,
+        yaw: std::f64::consts::PI + 0.5,
+        pitch: 0.35,
+        up: DVec3::Y,
+    };
+    let mut marks = Vec::new();
+    probe_marks(&probe, &result, Emphasis::default(), &mut marks);
+    let sizing = Sizing {
+        camera,
+        viewport_height: HEIGHT as f64,
+        origin: drawing.origin,
+    };
+    let surfaces = mark_surfaces(&marks, &sizing);
+    let image = gl
+        .renderer
+        .render_image(WIDTH, HEIGHT, &frame(drawing, camera, surfaces))
+        .expect("an offscreen frame");
+
+    // Hit markers are yellow (Okabe & Ito); shading keeps red and green high and blue low.
+    let mut sum = DVec2::ZERO;
+    let mut count = 0.0;
+    for y in 0..HEIGHT {
+        for x in 0..WIDTH {
+            let [r, g, b] = pixel(&image, x, y).map(f64::from);
+            if r > 120.0 && g > 110.0 && b < 0.45 * g && (r - g).abs() < 0.2 * r {
+                sum += DVec2::new(x as f64 + 0.5, y as f64 + 0.5);
+                count += 1.0;
+            }
+        }
+    }
+    assert!(count >= 12.0, "the hit marker is visible ({count} px)");
+    let expected = camera
+        .project(hit_point, DVec2::new(WIDTH as f64, HEIGHT as f64), 10.0)
+        .unwrap();
+    let found = sum / count;
+    assert!(
+        found.distance(expected) < 2.5,
+        "marker centre {found} vs projected hit {expected}"
+    );
+}
