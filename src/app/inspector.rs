@@ -325,29 +325,27 @@ fn hits_table(ui: &mut egui::Ui, result: &ProbeResult, selection: &mut Selection
             })
             .collect(),
     };
-    egui::ScrollArea::horizontal().show(ui, |ui| {
-        egui::Grid::new("hits")
-            .num_columns(5)
-            .striped(true)
-            .min_col_width(24.0)
-            .show(ui, |ui| {
-                for h in header {
-                    ui.label(RichText::new(h).strong());
+    egui::Grid::new("hits")
+        .num_columns(5)
+        .striped(true)
+        .min_col_width(24.0)
+        .show(ui, |ui| {
+            for h in header {
+                ui.label(RichText::new(h).strong());
+            }
+            ui.end_row();
+            for (i, row) in rows.iter().enumerate() {
+                let selected = selection.hit == Some(i);
+                if ui.selectable_label(selected, &row[0]).clicked() {
+                    selection.hit = if selected { None } else { Some(i) };
+                    picked = true;
+                }
+                for cell in &row[1..] {
+                    ui.label(cell);
                 }
                 ui.end_row();
-                for (i, row) in rows.iter().enumerate() {
-                    let selected = selection.hit == Some(i);
-                    if ui.selectable_label(selected, &row[0]).clicked() {
-                        selection.hit = if selected { None } else { Some(i) };
-                        picked = true;
-                    }
-                    for cell in &row[1..] {
-                        ui.label(cell);
-                    }
-                    ui.end_row();
-                }
-            });
-    });
+            }
+        });
     picked
 }
 

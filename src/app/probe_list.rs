@@ -75,18 +75,18 @@ pub fn probe_list_ui(
             .desired_width(f32::INFINITY),
     );
     ui.horizontal(|ui| {
-        egui::ComboBox::from_id_salt("kind-filter")
+        egui::ComboBox::from_label("Kind")
             .selected_text(filter.kind.unwrap_or("every kind"))
-            .width(100.0)
+            .width(92.0)
             .show_ui(ui, |ui| {
                 ui.selectable_value(&mut filter.kind, None, "every kind");
                 for kind in KINDS {
                     ui.selectable_value(&mut filter.kind, Some(kind), kind);
                 }
             });
-        egui::ComboBox::from_id_salt("verdict-filter")
+        egui::ComboBox::from_label("Verdict")
             .selected_text(filter.verdict.map_or("every verdict", verdict_word))
-            .width(110.0)
+            .width(92.0)
             .show_ui(ui, |ui| {
                 ui.selectable_value(&mut filter.verdict, None, "every verdict");
                 for verdict in VERDICTS {
@@ -105,24 +105,29 @@ pub fn probe_list_ui(
     ui.separator();
     let mut picked = false;
     let row_height = ui.text_style_height(&egui::TextStyle::Body) * 2.0 + 8.0;
-    egui::ScrollArea::vertical()
-        .auto_shrink([false, false])
-        .show_rows(ui, row_height, shown.len(), |ui, rows| {
-            for &i in &shown[rows] {
-                let probe = &document.probes.probes[i];
-                let verdict = document.results[i].verdict;
-                let selected = selection.probe == Some(i);
-                let response = probe_row(ui, row_height - 2.0, probe, verdict, selected);
-                if selected && scroll_to_selection {
-                    response.scroll_to_me(Some(egui::Align::Center));
-                }
-                if response.clicked() {
-                    selection.probe = Some(i);
-                    selection.hit = None;
-                    picked = true;
-                }
+    let mut area = egui::ScrollArea::vertical().auto_shrink([false, false]);
+    // Rows off screen are never built, so bring the selected one into view by offset.
+    if scroll_to_selection
+        && let Some(position) = selection
+            .probe
+            .and_then(|p| shown.iter().position(|&i| i == p))
+    {
+        let pitch = row_height + ui.spacing().item_spacing.y;
+        area = area.vertical_scroll_offset((position as f32 - 3.0).max(0.0) * pitch);
+    }
+    area.show_rows(ui, row_height, shown.len(), |ui, rows| {
+        for &i in &shown[rows] {
+            let probe = &document.probes.probes[i];
+            let verdict = document.results[i].verdict;
+            let selected = selection.probe == Some(i);
+            let response = probe_row(ui, row_height - 2.0, probe, verdict, selected);
+            if response.clicked() {
+                selection.probe = Some(i);
+                selection.hit = None;
+                picked = true;
             }
-        });
+        }
+    });
     picked
 }
 

@@ -1,0 +1,191 @@
+//! The workbench's panels driven headlessly by widget label (egui_kittest): the probe list, its
+//! filters, the inspector and its hit rows. No window, GPU or file dialog is involved.
+
+use std::path::PathBuf;
+
+use egui_kittest::Harness;
+use egui_kittest::kittest::Queryable;
+use plumbline::app::Workbench;
+use plumbline::app::document::Document;
+use plumbline::check::{Hits, metres};
+use plumbline::demo::files;
+
+fn demo() -> Document {
+    let path = PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+        .join("scenes")
+        .join(files::PROBES);
+    Document::open(&path).expect("the demo opens")
+}
+
+fn harness() -> Harness<'static, Workbench> {
+    let mut harness = Harness::builder()
+        .with_size([1400.0, 900.0])
+        .build_ui_state(
+            |ui, workbench: &mut Workbench| workbench.ui(ui),
+            Workbench::new(demo()),
+        );
+    harness.run_steps(2);
+    harness
+}
+
+/// A probe near the top of the list (so its row is on screen) that has hits.
+fn probe_with_hits(workbench: &Workbench) -> (usize, String) {
+    let index = workbench.document.results[..10]
+        .iter()
+        .position(|r| !r.hits.is_empty())
+        .expect("one of the first ten demo probes is blocked");
+    (index, workbench.document.probes.probes[index].id.clone())
+}
+
+#[test]
+fn selecting_a_probe_in_the_list_shows_its_hits_in_the_inspector() {
+    let mut harness = harness();
+    harness.get_by_label("No probe selected");
+    let (index, id) = probe_with_hits(harness.state());
+    harness
+        .get_by_label_contains(&format!("pass  {id}"))
+        .click();
+    harness.run_steps(2);
+
+    let workbench = harness.state();
+    assert_eq!(workbench.selection.probe, Some(index));
+    let Hits::Ray(hits) = &workbench.document.results[index].hits else {
+        panic!("{id} is a ray probe");
+    };
+    assert!(!hits.is_empty());
+    harness.get_by_label(&format!("Hits ({})", hits.len()));
+    for hit in hits {
+        assert!(
+            !harness
+                .query_all_by_label(&hit.object)
+                .collect::<Vec<_>>()
+                .is_empty()
+        );
+        harness.get_by_label(&metres(hit.distance));
+    }
+    assert!(harness.query_by_label("No probe selected").is_none());
+}
+
+#[test]
+fn clicking_a_hit_row_marks_that_hit() {
+    let mut harness = harness();
+    let (_, id) = probe_with_hits(harness.state());
+    harness
+        .get_by_label_contains(&format!("pass  {id}"))
+        .click();
+    harness.run_steps(2);
+    harness.get_by_label("1").click();
+    harness.run_steps(2);
+    assert_eq!(harness.state().selection.hit, Some(0));
+}
+
+#[test]
+fn the_text_filter_narrows_the_list() {
+    let mut harness = harness();
+    let total = harness.state().document.probes.probes.len();
+    harness.get_by_label(&format!("{total} of {total} probes"));
+
+    let field = harness.get_by_role(eframe::egui::accesskit::Role::TextInput);
+    field.focus();
+    harness.run_steps(1);
+    harness
+        .get_by_role(eframe::egui::accesskit::Role::TextInput)
+        .type_text("culvert");
+    harness.run_steps(2);
+    let shown = harness.state().filter.shown(&harness.state().document);
+    assert!(!shown.is_empty() && shown.len() < total);
+    harness.get_by_label(&format!("{} of {total} probes", shown.len()));
+    harness.get_by_label_contains("crawl-through-culvert");
+    assert!(
+        harness
+            .query_by_label_contains("gate-sees-warehouse-door")
+            .is_none()
+    );
+}
+
+#[test]
+fn the_kind_and_verdict_filters_narrow_the_list() {
+    let mut harness = harness();
+    let document = &harness.state().document;
+    let total = document.probes.probes.len();
+    let overlaps = document
+        .probes
+        .probes
+        .iter()
+        .filter(|p| p.query.kind() == "overlap")
+        .count();
+    assert!(overlaps > 0 && overlaps < total);
+
+    harness.get_by_label("Kind").click();
+    harness.run_steps(2);
+    harness.get_by_label("overlap").click();
+    harness.run_steps(2);
+    harness.get_by_label(&format!("{overlaps} of {total} probes"));
+
+    harness.get_by_label("Verdict").click();
+    harness.run_steps(2);
+    harness.get_by_label("FAIL").click();
+    harness.run_steps(2);
+    harness.get_by_label(&format!("1 of {total} probes"));
+    harness.get_by_label_contains("spawn-by-drums");
+}
+
+#[test]
+fn picking_a_probe_frames_it_in_the_view_and_clicking_it_in_the_view_finds_it_in_the_list() {
+    use eframe::egui::{Event, Modifiers, PointerButton};
+    use plumbline::view::probe_marks::start_point;
+
+    let mut harness = harness();
+    let before = harness.state().viewport.camera;
+    let (index, id) = probe_with_hits(harness.state());
+    harness
+        .get_by_label_contains(&format!("pass  {id}"))
+        .click();
+    harness.run_steps(2);
+    let camera = harness.state().viewport.camera;
+    assert_ne!(camera.target, before.target, "the view moved to the probe");
+    assert!(camera.distance < before.distance, "and came closer");
+    let probe = &harness.state().document.probes.probes[index];
+    let seen = harness.state().viewport.to_screen(
+        harness.state().viewport.last_rect,
+        start_point(&probe.query),
+    );
+    assert!(seen.is_some_and(|p| harness.state().viewport.last_rect.contains(p)));
+
+    // Back to the whole level; the failing probe is far down the list, out of sight.
+    harness.get_by_label("Frame level").click();
+    harness.run_steps(2);
+    assert!(
+        harness
+            .query_by_label_contains("FAIL  spawn-by-drums")
+            .is_none()
+    );
+    let workbench = harness.state();
+    let target = workbench
+        .document
+        .probes
+        .probes
+        .iter()
+        .position(|p| p.id == "spawn-by-drums")
+        .unwrap();
+    let at = workbench
+        .viewport
+        .to_screen(
+            workbench.viewport.last_rect,
+            start_point(&workbench.document.probes.probes[target].query),
+        )
+        .expect("the failing probe is in view");
+    for pressed in [true, false] {
+        harness.input_mut().events.push(Event::PointerMoved(at));
+        harness.input_mut().events.push(Event::PointerButton {
+            pos: at,
+            button: PointerButton::Primary,
+            pressed,
+            modifiers: Modifiers::NONE,
+        });
+        harness.step();
+    }
+    harness.run_steps(3);
+    assert_eq!(harness.state().selection.probe, Some(target));
+    harness.get_by_label_contains("FAIL  spawn-by-drums");
+}
