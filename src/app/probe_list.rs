@@ -76,19 +76,19 @@ pub fn probe_list_ui(
     );
     ui.horizontal(|ui| {
         egui::ComboBox::from_label("Kind")
-            .selected_text(filter.kind.unwrap_or("every kind"))
-            .width(92.0)
+            .selected_text(filter.kind.unwrap_or("all kinds"))
+            .width(78.0)
             .show_ui(ui, |ui| {
-                ui.selectable_value(&mut filter.kind, None, "every kind");
+                ui.selectable_value(&mut filter.kind, None, "all kinds");
                 for kind in KINDS {
                     ui.selectable_value(&mut filter.kind, Some(kind), kind);
                 }
             });
         egui::ComboBox::from_label("Verdict")
-            .selected_text(filter.verdict.map_or("every verdict", verdict_word))
-            .width(92.0)
+            .selected_text(filter.verdict.map_or("all verdicts", verdict_word))
+            .width(78.0)
             .show_ui(ui, |ui| {
-                ui.selectable_value(&mut filter.verdict, None, "every verdict");
+                ui.selectable_value(&mut filter.verdict, None, "all verdicts");
                 for verdict in VERDICTS {
                     ui.selectable_value(&mut filter.verdict, Some(verdict), verdict_word(verdict));
                 }

@@ -112,7 +112,7 @@ impl Viewport {
 
     /// Frames the whole level.
     pub fn frame_level(&mut self) {
-        self.camera.frame(self.drawing.min, self.drawing.max);
+        self.camera.frame(self.drawing.min, self.drawing.max, 0.8);
     }
 
     /// Frames a set of points (a probe and its answer), keeping the heading.
@@ -124,7 +124,7 @@ impl Viewport {
             .iter()
             .fold((*first, *first), |(lo, hi), p| (lo.min(*p), hi.max(*p)));
         let pad = DVec3::splat(1.5);
-        self.camera.frame(lo - pad, hi + pad);
+        self.camera.frame(lo - pad, hi + pad, 1.15);
     }
 
     /// Shows the viewport in `ui`. `shown` are the probe indices the list shows (drawn in the view);

@@ -34,16 +34,16 @@ impl OrbitCamera {
             pitch: 0.55,
             up: up.normalize(),
         };
-        camera.frame(min, max);
+        camera.frame(min, max, 0.8);
         camera
     }
 
-    /// Moves the target to the box centre and backs off until the whole box fits in view.
-    pub fn frame(&mut self, min: DVec3, max: DVec3) {
+    /// Moves the target to the box centre and backs off until the box's bounding ball fits in view,
+    /// times `margin` (below 1 comes closer: the ball is generous for flat levels).
+    pub fn frame(&mut self, min: DVec3, max: DVec3, margin: f64) {
         let radius = ((max - min).length() * 0.5).max(0.05);
         self.target = (min + max) * 0.5;
-        // The bounding ball is generous for flat levels: come in a little closer than it needs.
-        self.distance = radius / (FIELD_OF_VIEW * 0.5).sin() * 0.8;
+        self.distance = radius / (FIELD_OF_VIEW * 0.5).sin() * margin;
     }
 
     /// Two horizontal unit axes that, with `up`, make a right-handed frame.

@@ -165,15 +165,16 @@ fn proxy_surface(
 }
 
 /// A grid of thin strips on the ground plane: the plane through the origin along `up` when the level
-/// straddles it, else through the level's lowest point. About 20–50 lines a side, at 1-2-5 steps.
+/// straddles it, else through the level's lowest point (just below either). About 20–50 lines a side, at 1-2-5 steps.
 fn ground_grid(min: DVec3, max: DVec3, up: DVec3, origin: DVec3) -> (Surface, f64) {
     let helper = if up.x.abs() < 0.9 { DVec3::X } else { DVec3::Y };
     let a = (helper - up * helper.dot(up)).normalize();
     let b = up.cross(a);
     let low = min.dot(up).min(max.dot(up));
     let high = min.dot(up).max(max.dot(up));
-    let height = if low <= 0.0 && high >= 0.0 { 0.0 } else { low };
     let span = (max - min).length().max(1.0);
+    // A little below the plane, so a floor lying on it hides the grid instead of flickering with it.
+    let height = if low <= 0.0 && high >= 0.0 { 0.0 } else { low } - 0.01 - span * 1e-4;
     let step = nice_step(span / 30.0);
     let centre = (min + max) * 0.5;
     let extent = (span * 0.65 / step).ceil() * step;
