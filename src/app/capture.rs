@@ -39,6 +39,7 @@ impl Outcome {
 /// The benchmark's phases, in order.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 enum Phase {
+    Idle,
     Marks,
     Motion,
     Redraw,
@@ -141,9 +142,10 @@ impl Capture {
         }
         let phase = match step / n.max(1) {
             _ if self.frame <= SETTLE_FRAMES => None,
-            0 => Some(Phase::Marks),
-            1 => Some(Phase::Motion),
-            2 => Some(Phase::Redraw),
+            0 => Some(Phase::Idle),
+            1 => Some(Phase::Marks),
+            2 => Some(Phase::Motion),
+            3 => Some(Phase::Redraw),
             _ => {
                 self.outcome.set(Ok(()));
                 self.done = true;
@@ -158,6 +160,7 @@ impl Capture {
         self.previous = Some((now, phase));
         let probes = workbench.document.probes.probes.len();
         match phase {
+            Phase::Idle => workbench.viewport.force_moving = Some(false),
             Phase::Marks => {
                 // Only the selection changes: the level must come from its cache.
                 workbench.viewport.force_moving = Some(false);
@@ -187,9 +190,18 @@ impl Capture {
             .unwrap_or_default();
         let document = &workbench.document;
         let mut out = format!(
-            "frame times of the {width}×{height} 3D view (paint callback to glFinish), level {} with {} triangles:\n",
+            "frame times of the {width}×{height} 3D view (paint callback to glFinish), level {} with {} triangles (proxy: {}):\n",
             document.level_path.display(),
-            document.level.triangle_count()
+            document.level.triangle_count(),
+            workbench
+                .viewport
+                .drawing()
+                .proxy
+                .as_ref()
+                .map_or("none".to_string(), |p| format!(
+                    "{} triangles",
+                    p.triangle_count()
+                ))
         );
         for (kind, words) in [
             (
@@ -208,6 +220,10 @@ impl Capture {
         }
         out.push_str("whole frames (egui, marks and the 3D view, start to start):\n");
         for (phase, words) in [
+            (
+                Phase::Idle,
+                "nothing changes (the floor: egui and the buffer swap)",
+            ),
             (Phase::Marks, "selection changes every frame"),
             (Phase::Motion, "camera orbits every frame, drawn as moving"),
             (Phase::Redraw, "camera orbits every frame, full level"),

@@ -313,6 +313,8 @@ pub fn run(path: &std::path::Path, options: WindowOptions) -> Result<(), String>
         persist_window: !unattended && options.size.is_none(),
         ..Default::default()
     };
+    // Frame times of an unattended benchmark must not include waiting for the display.
+    native.glow_options.vsync = !unattended;
     if unattended {
         native.persistence_path = Some(std::env::temp_dir().join("plumbline-unattended.ron"));
     }

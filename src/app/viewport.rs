@@ -110,6 +110,11 @@ impl Viewport {
         }
     }
 
+    /// The level as drawn.
+    pub fn drawing(&self) -> &LevelDrawing {
+        &self.drawing
+    }
+
     /// Frames the whole level.
     pub fn frame_level(&mut self) {
         self.camera.frame(self.drawing.min, self.drawing.max, 0.8);

@@ -206,7 +206,11 @@ fn path_lines(
 }
 
 /// A hit's ball and normal arrow; the selected hit is larger and orange.
+/// While another probe is selected, only the first hit is marked.
 fn hit_marks(point: DVec3, normal: DVec3, index: usize, emphasis: Emphasis, out: &mut Vec<Mark>) {
+    if emphasis.muted && index > 0 {
+        return;
+    }
     let picked = emphasis.selected && emphasis.hit == Some(index);
     out.push(Mark::Point {
         at: point,
