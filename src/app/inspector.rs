@@ -112,6 +112,11 @@ fn v3(v: DVec3) -> String {
     format!("{:.3}, {:.3}, {:.3}", v.x, v.y, v.z)
 }
 
+/// A unit direction, compactly (two decimals are enough to read which way it points).
+fn direction(v: DVec3) -> String {
+    format!("{:.2}, {:.2}, {:.2}", v.x, v.y, v.z)
+}
+
 fn question_grid(ui: &mut egui::Ui, probe: &Probe) {
     egui::Grid::new("question")
         .num_columns(2)
@@ -267,12 +272,12 @@ fn hits_table(ui: &mut egui::Ui, result: &ProbeResult, selection: &mut Selection
             .enumerate()
             .map(|(i, x)| {
                 let triangle = x.triangle.map_or("—".into(), |t| t.to_string());
-                let back = if x.back_face { " (back)" } else { "" };
+                let back = if x.back_face { " back" } else { "" };
                 [
                     (i + 1).to_string(),
                     x.object.to_string(),
                     metres(x.distance),
-                    v3(x.normal.into()),
+                    direction(x.normal.into()),
                     format!("{:.4} · {triangle}{back}", x.t),
                 ]
             })
@@ -281,11 +286,12 @@ fn hits_table(ui: &mut egui::Ui, result: &ProbeResult, selection: &mut Selection
             .iter()
             .enumerate()
             .map(|(i, x)| {
-                let time = x.time.map_or(format!("t {:.4}", x.t), |s| {
-                    format!("{s:.3} s (t {:.4})", x.t)
-                });
+                // Seconds when the probe has a duration, else the fraction of the path.
+                let time = x
+                    .time
+                    .map_or(format!("t {:.4}", x.t), |s| format!("{s:.3} s"));
                 let inside = if x.started_inside {
-                    " (started inside)"
+                    ", started inside"
                 } else {
                     ""
                 };
@@ -293,7 +299,7 @@ fn hits_table(ui: &mut egui::Ui, result: &ProbeResult, selection: &mut Selection
                     (i + 1).to_string(),
                     x.object.to_string(),
                     metres(x.distance),
-                    v3(x.normal.into()),
+                    direction(x.normal.into()),
                     format!("{time}{inside}"),
                 ]
             })
@@ -306,7 +312,7 @@ fn hits_table(ui: &mut egui::Ui, result: &ProbeResult, selection: &mut Selection
                     (i + 1).to_string(),
                     x.object.to_string(),
                     metres(x.distance),
-                    v3(x.normal.into()),
+                    direction(x.normal.into()),
                     if x.overlapping { "yes" } else { "no" }.into(),
                 ]
             })
@@ -319,7 +325,7 @@ fn hits_table(ui: &mut egui::Ui, result: &ProbeResult, selection: &mut Selection
                     (i + 1).to_string(),
                     x.object.to_string(),
                     metres(x.depth),
-                    v3(x.direction.into()),
+                    direction(x.direction.into()),
                     if x.enclosed { "yes" } else { "no" }.into(),
                 ]
             })

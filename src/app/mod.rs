@@ -184,13 +184,17 @@ impl Workbench {
         if ctx.egui_wants_keyboard_input() {
             return;
         }
-        let (home, frame, fly) = ctx.input(|i| {
+        let (home, frame, fly, quit) = ctx.input(|i| {
             (
                 i.key_pressed(egui::Key::Home),
                 i.key_pressed(egui::Key::F),
                 i.key_pressed(egui::Key::G),
+                i.modifiers.command && i.key_pressed(egui::Key::Q),
             )
         });
+        if quit {
+            ctx.send_viewport_cmd(egui::ViewportCommand::Close);
+        }
         if home {
             self.viewport.frame_level();
         }
