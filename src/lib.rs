@@ -2,9 +2,10 @@
 //! geometry and answers ray, sweep, closest-point and overlap probes exactly, keeps probes with their
 //! expectations in probe sets, and says what changed between runs.
 //!
-//! The library holds everything the command line shares: [`level`] loads and validates geometry,
-//! [`query`] answers probes over it, [`probe`] reads and writes probe sets, [`check`] runs them and
-//! compares runs, [`report`] writes JUnit XML and Markdown, [`demo`] generates the demo level.
+//! The library holds everything the command line and the window share: [`level`] loads and validates
+//! geometry, [`query`] answers probes over it, [`probe`] reads and writes probe sets, [`check`] runs
+//! them and compares runs, [`report`] writes JUnit XML and Markdown, [`demo`] generates the demo level,
+//! [`view`] draws the level and the probes, and [`app`] is the workbench window.
 //!
 //! ```
 //! use glam::{DQuat, DVec3};
