@@ -50,6 +50,15 @@ pub fn shape_surface(shape: &SharedShape) -> (Vec<DVec3>, Vec<[u32; 3]>) {
     }
 }
 
+/// The surface of a box with the given half extents, centred on the origin.
+pub fn box_surface(half_extents: DVec3) -> (Vec<DVec3>, Vec<[u32; 3]>) {
+    shape_surface(&SharedShape::cuboid(
+        half_extents.x,
+        half_extents.y,
+        half_extents.z,
+    ))
+}
+
 /// A convex shape a probe places or moves, with its turn.
 #[derive(Clone)]
 pub struct ProbeShape {

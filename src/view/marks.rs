@@ -252,21 +252,17 @@ fn marker(
     let (x, y, z) = (camera.right(), camera.screen_up(), camera.backward());
     let to_world = |p: DVec3| at + (x * p.x + y * p.y + z * p.z) * r;
     match mark {
-        StateMark::Round => {
-            let (vertices, triangles) = unit_ball();
+        StateMark::Round | StateMark::Square => {
+            let (vertices, triangles) = if mark == StateMark::Round {
+                unit_ball()
+            } else {
+                crate::query::box_surface(DVec3::splat(0.8))
+            };
             for t in triangles {
-                let corners = t.map(|i| to_world(vertices[i]));
+                let corners = t.map(|i| to_world(vertices[i as usize]));
                 push_lit(surface, corners, colour, 255, sizing);
             }
         }
-        StateMark::Square => box_between(
-            surface,
-            DVec3::splat(-0.8),
-            DVec3::splat(0.8),
-            colour,
-            &to_world,
-            sizing,
-        ),
         StateMark::Diamond => {
             let tips = [DVec3::X, DVec3::Y, -DVec3::X, -DVec3::Y];
             for k in 0..4 {
@@ -296,38 +292,8 @@ fn marker(
     }
 }
 
-fn box_between(
-    surface: &mut Surface,
-    lo: DVec3,
-    hi: DVec3,
-    colour: Rgb,
-    to_world: &dyn Fn(DVec3) -> DVec3,
-    sizing: &Sizing,
-) {
-    let corner = |i: usize| {
-        to_world(DVec3::new(
-            if i & 1 == 0 { lo.x } else { hi.x },
-            if i & 2 == 0 { lo.y } else { hi.y },
-            if i & 4 == 0 { lo.z } else { hi.z },
-        ))
-    };
-    const FACES: [[usize; 4]; 6] = [
-        [0, 2, 3, 1],
-        [4, 5, 7, 6],
-        [0, 1, 5, 4],
-        [2, 6, 7, 3],
-        [0, 4, 6, 2],
-        [1, 3, 7, 5],
-    ];
-    for f in FACES {
-        let q = f.map(corner);
-        push_lit(surface, [q[0], q[1], q[2]], colour, 255, sizing);
-        push_lit(surface, [q[0], q[2], q[3]], colour, 255, sizing);
-    }
-}
-
 /// A unit ball: an octahedron split once and pushed out to the sphere.
-fn unit_ball() -> (Vec<DVec3>, Vec<[usize; 3]>) {
+fn unit_ball() -> (Vec<DVec3>, Vec<[u32; 3]>) {
     let tips = [DVec3::X, DVec3::Y, -DVec3::X, -DVec3::Y];
     let mut vertices = Vec::new();
     let mut triangles = Vec::new();
@@ -340,7 +306,7 @@ fn unit_ball() -> (Vec<DVec3>, Vec<[usize; 3]>) {
                 (c + a).normalize(),
             );
             for t in [[a, ab, ca], [ab, b, bc], [ca, bc, c], [ab, bc, ca]] {
-                let base = vertices.len();
+                let base = vertices.len() as u32;
                 vertices.extend(t);
                 triangles.push([base, base + 1, base + 2]);
             }
