@@ -4,9 +4,12 @@
 use std::path::{Path, PathBuf};
 use std::time::SystemTime;
 
-use crate::check::{ProbeResult, Summary, run_probes};
+use crate::atomic::{write_atomic, write_with_backup};
+use crate::check::{
+    Aspect, DEFAULT_TOLERANCE, ProbeResult, Summary, answer_probe, changes, run_probes,
+};
 use crate::level::{Geometry, Level, level_digest, load_level};
-use crate::probe::{ProbeSet, load_probe_set};
+use crate::probe::{Probe, ProbeSet, load_probe_set, parse_probe_set, probe_set_to_json};
 use crate::query::World;
 
 /// An open level with its probes answered.
@@ -28,6 +31,9 @@ pub struct Document {
     /// Load warnings, as `file: place: message` lines.
     pub warnings: Vec<String>,
     stamps: Vec<(PathBuf, Option<SystemTime>)>,
+    /// Edits made since opening; compared with `saved_edits` to tell unsaved changes.
+    edits: u64,
+    saved_edits: u64,
 }
 
 impl Document {
@@ -68,7 +74,131 @@ impl Document {
             level_digest,
             warnings,
             stamps,
+            edits: 0,
+            saved_edits: 0,
         })
+    }
+
+    /// Replaces the probes, answering the ones that changed (a probe equal to one with its id before
+    /// keeps that answer), and counts an edit.
+    pub fn set_probes(&mut self, probes: Vec<Probe>) {
+        let old: std::collections::HashMap<&str, (&Probe, &ProbeResult)> = self
+            .probes
+            .probes
+            .iter()
+            .zip(&self.results)
+            .map(|(p, r)| (p.id.as_str(), (p, r)))
+            .collect();
+        let results = probes
+            .iter()
+            .map(|probe| match old.get(probe.id.as_str()) {
+                Some((was, result)) if *was == probe => (*result).clone(),
+                _ => answer_probe(&self.world, probe),
+            })
+            .collect();
+        self.results = results;
+        self.probes.probes = probes;
+        self.edits += 1;
+    }
+
+    /// True when there are edits that are not saved.
+    pub fn is_dirty(&self) -> bool {
+        self.edits != self.saved_edits
+    }
+
+    /// An id not used by any probe: `base`, or `base-2`, `base-3`, …
+    pub fn unused_id(&self, base: &str) -> String {
+        let taken = |id: &str| self.probes.probes.iter().any(|p| p.id == id);
+        if !taken(base) {
+            return base.to_string();
+        }
+        (2..)
+            .map(|n| format!("{base}-{n}"))
+            .find(|id| !taken(id))
+            .expect("some number is free")
+    }
+
+    /// The probe set as it would be saved to `path`: the level named relative to that file's folder.
+    fn probe_set_for(&self, path: &Path) -> ProbeSet {
+        ProbeSet {
+            level: level_reference(path, &self.level_path),
+            probes: self.probes.probes.clone(),
+        }
+    }
+
+    /// Saves the probe set to `path` atomically, keeping the file it replaces as `.bak`, and forgets
+    /// the recovery file. The document then belongs to `path`.
+    pub fn save(&mut self, path: &Path) -> Result<(), String> {
+        let set = self.probe_set_for(path);
+        let text = probe_set_to_json(&set);
+        write_with_backup(path, text.as_bytes())
+            .map_err(|e| format!("{}: cannot save: {e}", path.display()))?;
+        // The recovery file of the name the document had until now.
+        self.forget_recovery();
+        self.probes.level = set.level;
+        self.probes_path = Some(path.to_path_buf());
+        self.saved_edits = self.edits;
+        Ok(())
+    }
+
+    /// Where unsaved changes are kept against a crash: beside the probe set (or the level, for a set
+    /// not saved yet), named `<file>.recovery`.
+    pub fn recovery_path(&self) -> PathBuf {
+        let base = match &self.probes_path {
+            Some(p) => p.clone(),
+            None => self.level_path.with_extension("untitled.probes.json"),
+        };
+        let mut name = base.file_name().unwrap_or_default().to_os_string();
+        name.push(".recovery");
+        base.with_file_name(name)
+    }
+
+    /// Writes the current probes to the recovery file (atomically).
+    pub fn write_recovery(&self) -> Result<(), String> {
+        let path = self.recovery_path();
+        let text = probe_set_to_json(&self.probe_set_for(&path));
+        write_atomic(&path, text.as_bytes()).map_err(|e| format!("{}: {e}", path.display()))
+    }
+
+    /// The probes kept in a recovery file from an earlier session, when there is one that differs
+    /// from what is open.
+    pub fn recovered(&self) -> Option<Vec<Probe>> {
+        let path = self.recovery_path();
+        let text = std::fs::read_to_string(&path).ok()?;
+        let set = parse_probe_set(&path, &text).ok()?;
+        (set.probes != self.probes.probes).then_some(set.probes)
+    }
+
+    /// Deletes the recovery file (changes saved or discarded).
+    pub fn forget_recovery(&self) {
+        let _ = std::fs::remove_file(self.recovery_path());
+    }
+
+    /// Loads the level again, answers every probe on it, and lists what changed for each probe (the
+    /// same rules as `check --baseline`, default tolerance), by probe index.
+    pub fn reload_level(&mut self) -> Result<Vec<(usize, Vec<Aspect>)>, String> {
+        let stamps = stamps(&self.level_path);
+        let (level, diagnostics) = load_level(&self.level_path).map_err(|e| e.to_string())?;
+        let world =
+            World::new(&level).map_err(|e| format!("{}: {e}", self.level_path.display()))?;
+        let results = run_probes(&world, &self.probes.probes, None, &|_| {})?;
+        let changed = self
+            .results
+            .iter()
+            .zip(&results)
+            .enumerate()
+            .filter_map(|(i, (old, new))| {
+                let aspects = changes(old, new, DEFAULT_TOLERANCE);
+                (!aspects.is_empty()).then_some((i, aspects))
+            })
+            .collect();
+        self.level_digest = level_digest(&level);
+        self.warnings = diagnostics.iter().map(|d| d.to_string()).collect();
+        self.level = level;
+        self.world = world;
+        self.results = results;
+        self.stamps = stamps;
+        Ok(changed)
     }
 
     /// Counts by verdict.
@@ -92,6 +222,21 @@ impl Document {
             }
             Geometry::Primitive { .. } => None,
         }
+    }
+}
+
+/// How a probe set saved at `probes_path` names the level: relative to its folder when the level is
+/// in that folder or below it, else the level's full path.
+fn level_reference(probes_path: &Path, level_path: &Path) -> String {
+    let absolute = |p: &Path| std::path::absolute(p).unwrap_or_else(|_| p.to_path_buf());
+    let level = absolute(level_path);
+    let folder = absolute(probes_path)
+        .parent()
+        .map(Path::to_path_buf)
+        .unwrap_or_default();
+    match level.strip_prefix(&folder) {
+        Ok(relative) => relative.to_string_lossy().replace('\\', "/"),
+        Err(_) => level.to_string_lossy().into_owned(),
     }
 }
 

@@ -5,8 +5,10 @@
 pub mod badge;
 pub mod capture;
 pub mod document;
+pub mod history;
 pub mod inspector;
 pub mod probe_list;
+pub mod tools;
 pub mod viewport;
 
 use std::path::PathBuf;

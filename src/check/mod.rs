@@ -5,6 +5,7 @@
 
 mod answer;
 mod compare;
+mod expectation;
 mod records;
 mod results_file;
 mod run;
@@ -12,6 +13,7 @@ mod verdict;
 
 pub use answer::answer_probe;
 pub use compare::{Aspect, Comparison, DEFAULT_TOLERANCE, ProbeChange, changes, compare};
+pub use expectation::expectation_from;
 pub use records::{
     ClearanceRecord, ClosestRecord, Hits, OverlapRecord, ProbeResult, RayHitRecord, Summary,
     SweepHitRecord, Verdict,

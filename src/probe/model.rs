@@ -100,6 +100,30 @@ impl ProbeQuery {
         }
     }
 
+    /// The points a user places and drags: the ray's ends, the path's points, or where the shape is.
+    pub fn points(&self) -> Vec<DVec3> {
+        match self {
+            ProbeQuery::Ray { from, to, .. } => vec![*from, *to],
+            ProbeQuery::Sweep { path, .. } => path.clone(),
+            ProbeQuery::Closest { at, .. } | ProbeQuery::Overlap { at, .. } => vec![*at],
+        }
+    }
+
+    /// The `k`th of [`Self::points`], to move it; `None` past the end.
+    pub fn point_mut(&mut self, k: usize) -> Option<&mut DVec3> {
+        match self {
+            ProbeQuery::Ray { from, to, .. } => match k {
+                0 => Some(from),
+                1 => Some(to),
+                _ => None,
+            },
+            ProbeQuery::Sweep { path, .. } => path.get_mut(k),
+            ProbeQuery::Closest { at, .. } | ProbeQuery::Overlap { at, .. } => {
+                (k == 0).then_some(at)
+            }
+        }
+    }
+
     /// True when a sweep asks for its clearance (directly or through `min_clearance`).
     pub fn wants_clearance(&self, expect: Option<&Expect>) -> bool {
         match self {

@@ -165,11 +165,7 @@ pub fn start_point(query: &ProbeQuery) -> DVec3 {
 
 /// Every point that should be in view when the probe is framed.
 pub fn probe_points(probe: &Probe, result: Option<&ProbeResult>) -> Vec<DVec3> {
-    let mut points = match &probe.query {
-        ProbeQuery::Ray { from, to, .. } => vec![*from, *to],
-        ProbeQuery::Sweep { path, .. } => path.clone(),
-        ProbeQuery::Closest { at, .. } | ProbeQuery::Overlap { at, .. } => vec![*at],
-    };
+    let mut points = probe.query.points();
     if let Some(Hits::Closest(hits)) = result.map(|r| &r.hits) {
         points.extend(hits.iter().map(|h| DVec3::from(h.point)));
     }
