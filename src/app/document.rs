@@ -101,6 +101,16 @@ impl Document {
         self.edits += 1;
     }
 
+    /// How many edits were made since opening.
+    pub fn edit_count(&self) -> u64 {
+        self.edits
+    }
+
+    /// Treats the current probes as if saved (the user chose to discard the changes).
+    pub fn discard_changes(&mut self) {
+        self.saved_edits = self.edits;
+    }
+
     /// True when there are edits that are not saved.
     pub fn is_dirty(&self) -> bool {
         self.edits != self.saved_edits

@@ -1,15 +1,20 @@
-//! The inspector: the selected probe's question, its verdict and reason, every hit in a table whose rows
-//! pick the hit in the view, and for sweeps a plot of clearance along the path.
+//! The inspector: the selected probe's verdict and reason, every hit in a table whose rows pick the
+//! hit in the view, for sweeps a plot of clearance along the path, and the probe's question to edit;
+//! with several probes selected, edits for all of them at once.
 
 use eframe::egui;
 use egui::{Color32, RichText};
 use egui_plot::{Legend, Line, MarkerShape, Plot, Points, VLine};
 use glam::{DQuat, DVec3};
 
+use std::collections::HashMap;
+
 use super::Selection;
 use super::badge::badge;
+use super::commands::{Command, tooltip};
 use super::document::Document;
-use crate::check::{Hits, ProbeResult, metres};
+use super::editor::{Edit, EditorState, probe_editor};
+use crate::check::{Aspect, Hits, ProbeResult, Verdict, metres};
 use crate::level::ShapeSpec;
 use crate::probe::{Expect, Probe, ProbeQuery};
 use crate::query::ProbeShape;
@@ -67,120 +72,191 @@ impl ClearancePlot {
     }
 }
 
-/// Shows the inspector for the selection. Returns true when a hit row was picked.
+/// What the inspector asks the workbench to do.
+#[derive(Debug, Clone, PartialEq)]
+pub enum InspectorAction {
+    /// Apply an edit of probe `.0`.
+    Edit(usize, Edit),
+    /// Run a command on the selection.
+    Run(Command),
+    /// Replace the probes with these (a bulk edit of the selection), named `.0`.
+    Bulk(String, Vec<Probe>),
+}
+
+/// Shows the inspector for the selection: one probe's answer and editor, or bulk edits for several.
 pub fn inspector_ui(
     ui: &mut egui::Ui,
     document: &Document,
     selection: &mut Selection,
+    editor: &mut EditorState,
     plot: Option<&ClearancePlot>,
-) -> bool {
+    changes: &HashMap<String, Vec<Aspect>>,
+) -> Option<InspectorAction> {
+    if !selection.others.is_empty() {
+        return bulk_ui(ui, document, selection);
+    }
     let Some(index) = selection.probe else {
         ui.add_space(8.0);
         ui.label(RichText::new("No probe selected").strong());
         ui.label("Pick one in the list, or click its marker in the view.");
-        return false;
+        ui.label("To add one, pick a tool above (Ray, Sweep, Closest, Overlap) and click in the view.");
+        return None;
     };
     let (Some(probe), Some(result)) = (
         document.probes.probes.get(index),
         document.results.get(index),
     ) else {
-        return false;
+        return None;
     };
+    let mut action = None;
     ui.heading(&probe.id);
     if let Some(label) = &probe.label {
         ui.label(RichText::new(label).italics());
     }
     badge(ui, result.verdict, "");
     ui.label(&result.reason);
+    if let Some(aspects) = changes.get(&probe.id) {
+        let words: Vec<String> = aspects.iter().map(|a| a.to_string()).collect();
+        ui.label(
+            RichText::new(format!("Changed at the level reload: {}", words.join("; ")))
+                .color(Color32::from_rgb(240, 228, 66)),
+        );
+    }
+    ui.label(
+        RichText::new(format!(
+            "{} · expects {}",
+            question_words(probe),
+            expect_words(probe.expect.as_ref())
+        ))
+        .weak(),
+    );
+    ui.horizontal(|ui| {
+        for command in [Command::ExpectAnswer, Command::Duplicate, Command::Delete] {
+            if ui
+                .button(command.name())
+                .on_hover_text(tooltip(ui.ctx(), command))
+                .clicked()
+            {
+                action = Some(InspectorAction::Run(command));
+            }
+        }
+    });
     ui.separator();
-    egui::CollapsingHeader::new("Question")
-        .default_open(true)
-        .show(ui, |ui| question_grid(ui, probe));
-    let mut picked = false;
     egui::CollapsingHeader::new(format!("Hits ({})", result.hits.len()))
         .default_open(true)
-        .show(ui, |ui| picked = hits_table(ui, result, selection));
+        .show(ui, |ui| hits_table(ui, result, selection));
     if let Some(plot) = plot.filter(|p| p.probe == index) {
         egui::CollapsingHeader::new("Clearance along the path")
             .default_open(true)
             .show(ui, |ui| clearance_plot(ui, plot));
     }
-    picked
+    egui::CollapsingHeader::new("Question")
+        .default_open(true)
+        .show(ui, |ui| {
+            let taken = |id: &str| document.probes.probes.iter().any(|p| p.id == id);
+            if let Some(edit) = probe_editor(ui, index, probe, editor, &taken) {
+                action = Some(InspectorAction::Edit(index, edit));
+            }
+        });
+    action
 }
 
-fn v3(v: DVec3) -> String {
-    format!("{:.3}, {:.3}, {:.3}", v.x, v.y, v.z)
+/// Edits for several selected probes at once.
+fn bulk_ui(
+    ui: &mut egui::Ui,
+    document: &Document,
+    selection: &Selection,
+) -> Option<InspectorAction> {
+    let chosen = selection.all();
+    let mut action = None;
+    ui.heading(format!("{} probes selected", chosen.len()));
+    let summary = crate::check::Summary::of(
+        &chosen
+            .iter()
+            .filter_map(|&i| document.results.get(i).cloned())
+            .collect::<Vec<_>>(),
+    );
+    ui.horizontal(|ui| {
+        for (verdict, count) in [
+            (Verdict::Pass, summary.pass),
+            (Verdict::Fail, summary.fail),
+            (Verdict::Error, summary.error),
+            (Verdict::Unchecked, summary.unchecked),
+        ] {
+            badge(ui, verdict, &format!(" {count}"));
+        }
+    });
+    ui.label("Ctrl+click adds or removes a probe; Shift+click selects a run.");
+    ui.separator();
+    ui.horizontal_wrapped(|ui| {
+        for command in [Command::ExpectAnswer, Command::Duplicate, Command::Delete] {
+            if ui
+                .button(command.name())
+                .on_hover_text(tooltip(ui.ctx(), command))
+                .clicked()
+            {
+                action = Some(InspectorAction::Run(command));
+            }
+        }
+        if ui.button("Expect nothing").on_hover_text("Remove their expectations").clicked() {
+            let mut probes = document.probes.probes.clone();
+            for &i in &chosen {
+                probes[i].expect = None;
+            }
+            action = Some(InspectorAction::Bulk("expect nothing".into(), probes));
+        }
+    });
+    ui.separator();
+    ui.label(RichText::new("Which objects they look at").strong());
+    let id = ui.scope_id().with("bulk-tags");
+    let mut text: String = ui.data_mut(|d| d.get_temp(id).unwrap_or_default());
+    let label = ui.label("tags (comma-separated)");
+    ui.add(egui::TextEdit::singleline(&mut text).desired_width(f32::INFINITY))
+        .labelled_by(label.id);
+    ui.data_mut(|d| d.insert_temp(id, text.clone()));
+    let tags: Vec<String> = text
+        .split(',')
+        .map(|t| t.trim().to_string())
+        .filter(|t| !t.is_empty())
+        .collect();
+    ui.horizontal(|ui| {
+        let mut apply = |what: &str, change: &dyn Fn(&mut Probe)| {
+            let mut probes = document.probes.probes.clone();
+            for &i in &chosen {
+                change(&mut probes[i]);
+            }
+            action = Some(InspectorAction::Bulk(what.into(), probes));
+        };
+        if ui.button("Only these tags").clicked() {
+            let only = (!tags.is_empty()).then(|| tags.clone());
+            apply("set only tags", &|p| p.filter.only_tags = only.clone());
+        }
+        if ui.button("Ignore these tags").clicked() {
+            apply("set ignored tags", &|p| p.filter.ignore_tags = tags.clone());
+        }
+        if ui.button("Every object").on_hover_text("Clear their tag and name filters").clicked() {
+            apply("clear filters", &|p| p.filter = Default::default());
+        }
+    });
+    action
+}
+
+/// The question in a few words.
+fn question_words(probe: &Probe) -> String {
+    match &probe.query {
+        ProbeQuery::Ray { from, to, .. } => format!("ray, {}", metres(from.distance(*to))),
+        ProbeQuery::Sweep { shape, path, .. } => {
+            let length: f64 = path.windows(2).map(|w| w[0].distance(w[1])).sum();
+            format!("{} swept {}", shape_words(shape), metres(length))
+        }
+        ProbeQuery::Closest { shape, .. } => format!("closest to a {}", shape_words(shape)),
+        ProbeQuery::Overlap { shape, .. } => format!("overlap of a {}", shape_words(shape)),
+    }
 }
 
 /// A unit direction, compactly (two decimals are enough to read which way it points).
 fn direction(v: DVec3) -> String {
     format!("{:.2}, {:.2}, {:.2}", v.x, v.y, v.z)
-}
-
-fn question_grid(ui: &mut egui::Ui, probe: &Probe) {
-    egui::Grid::new("question")
-        .num_columns(2)
-        .striped(true)
-        .show(ui, |ui| {
-            let mut row = |name: &str, value: String| {
-                ui.label(RichText::new(name).weak());
-                ui.label(value);
-                ui.end_row();
-            };
-            row("kind", probe.query.kind().to_string());
-            match &probe.query {
-                ProbeQuery::Ray { from, to, hits } => {
-                    row("from", v3(*from));
-                    row("to", v3(*to));
-                    row("length", metres(from.distance(*to)));
-                    row(
-                        "hits",
-                        format!("{:?}", hits.unwrap_or(crate::probe::HitsMode::First))
-                            .to_lowercase(),
-                    );
-                }
-                ProbeQuery::Sweep {
-                    shape,
-                    path,
-                    duration,
-                    ..
-                } => {
-                    row("shape", shape_words(shape));
-                    row("path", format!("{} points", path.len()));
-                    for (i, p) in path.iter().enumerate() {
-                        row(&format!("  point {i}"), v3(*p));
-                    }
-                    if let Some(d) = duration {
-                        row("duration", format!("{d} s"));
-                    }
-                }
-                ProbeQuery::Closest {
-                    shape,
-                    at,
-                    max_distance,
-                    ..
-                } => {
-                    row("shape", shape_words(shape));
-                    row("at", v3(*at));
-                    row("reach", metres(*max_distance));
-                }
-                ProbeQuery::Overlap { shape, at, .. } => {
-                    row("shape", shape_words(shape));
-                    row("at", v3(*at));
-                }
-            }
-            let filter = &probe.filter;
-            if let Some(only) = &filter.only_tags {
-                row("only tags", only.join(", "));
-            }
-            if !filter.ignore_tags.is_empty() {
-                row("ignores tags", filter.ignore_tags.join(", "));
-            }
-            if !filter.ignore_objects.is_empty() {
-                row("ignores objects", filter.ignore_objects.join(", "));
-            }
-            row("expects", expect_words(probe.expect.as_ref()));
-        });
 }
 
 fn shape_words(shape: &ShapeSpec) -> String {
@@ -254,12 +330,11 @@ fn expect_words(expect: Option<&Expect>) -> String {
 }
 
 /// The hits as a table; clicking a row marks that hit in the view.
-fn hits_table(ui: &mut egui::Ui, result: &ProbeResult, selection: &mut Selection) -> bool {
+fn hits_table(ui: &mut egui::Ui, result: &ProbeResult, selection: &mut Selection) {
     if result.hits.is_empty() {
         ui.label("No hits: the probe is clear.");
-        return false;
+        return;
     }
-    let mut picked = false;
     let header = match &result.hits {
         Hits::Ray(_) => ["#", "object", "distance", "normal", "t · triangle"],
         Hits::Sweep(_) => ["#", "object", "distance", "normal", "time of impact"],
@@ -344,7 +419,6 @@ fn hits_table(ui: &mut egui::Ui, result: &ProbeResult, selection: &mut Selection
                 let selected = selection.hit == Some(i);
                 if ui.selectable_label(selected, &row[0]).clicked() {
                     selection.hit = if selected { None } else { Some(i) };
-                    picked = true;
                 }
                 for cell in &row[1..] {
                     ui.label(cell);
@@ -352,7 +426,6 @@ fn hits_table(ui: &mut egui::Ui, result: &ProbeResult, selection: &mut Selection
                 ui.end_row();
             }
         });
-    picked
 }
 
 fn clearance_plot(ui: &mut egui::Ui, plot: &ClearancePlot) {

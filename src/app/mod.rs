@@ -1,40 +1,135 @@
-//! The workbench window (eframe/egui): the probe list on the left, the 3D view in the middle, the
-//! inspector on the right and a summary bar along the bottom. Each panel is a small function or type
-//! with a `ui` method, so tests drive them headlessly; [`Workbench::ui`] lays them out.
+//! The workbench window (eframe/egui): menus and tools along the top, the probe list on the left, the
+//! 3D view in the middle, the inspector on the right and a summary bar along the bottom. Each panel
+//! is a small function or type with a `ui` method, so tests drive them headlessly; [`Workbench::ui`]
+//! lays them out and applies what they ask for.
 
 pub mod badge;
 pub mod capture;
+pub mod commands;
 pub mod document;
+pub mod editor;
+pub mod files;
 pub mod history;
 pub mod inspector;
 pub mod probe_list;
 pub mod tools;
 pub mod viewport;
 
+use std::collections::HashMap;
 use std::path::PathBuf;
 use std::time::{Duration, Instant};
 
 use eframe::egui;
 use egui::{Color32, RichText};
+use glam::DVec3;
 
+use crate::check::{Aspect, expectation_from};
+use crate::probe::{Probe, validate_probe};
 use crate::view::probe_marks::probe_points;
 use capture::Capture;
+use commands::{Command, menu_item, tooltip};
 use document::Document;
-use inspector::{ClearancePlot, inspector_ui};
+use editor::{Edit, EditorState};
+use files::Dialog;
+use history::History;
+use inspector::{ClearancePlot, InspectorAction, inspector_ui};
 use probe_list::{ListFilter, probe_list_ui};
-use viewport::Viewport;
+use tools::{Authoring, DragMode, Lift, Tool, new_probe};
+use viewport::{ViewEvents, Viewport};
 
-/// The selected probe and, within it, the selected hit.
-#[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+/// The selected probes: one is inspected (`probe`, with a picked `hit`), more may be selected with
+/// it for bulk edits.
+#[derive(Debug, Clone, Default, PartialEq, Eq)]
 pub struct Selection {
-    /// Index of the selected probe.
+    /// The inspected probe.
     pub probe: Option<usize>,
-    /// Index of the selected hit within that probe's hits.
+    /// Index of the picked hit within that probe's hits.
     pub hit: Option<usize>,
+    /// Further selected probes, ascending, without `probe`.
+    pub others: Vec<usize>,
+}
+
+impl Selection {
+    /// Just probe `index`.
+    pub fn one(index: usize) -> Selection {
+        Selection {
+            probe: Some(index),
+            ..Selection::default()
+        }
+    }
+
+    /// The probe when exactly one is selected.
+    pub fn single(&self) -> Option<usize> {
+        self.probe.filter(|_| self.others.is_empty())
+    }
+
+    /// True when nothing is selected.
+    pub fn is_empty(&self) -> bool {
+        self.probe.is_none() && self.others.is_empty()
+    }
+
+    /// True when probe `index` is selected.
+    pub fn contains(&self, index: usize) -> bool {
+        self.probe == Some(index) || self.others.binary_search(&index).is_ok()
+    }
+
+    /// Every selected probe, ascending.
+    pub fn all(&self) -> Vec<usize> {
+        let mut all = self.others.clone();
+        all.extend(self.probe);
+        all.sort_unstable();
+        all.dedup();
+        all
+    }
+
+    /// Adds or removes probe `index` (Ctrl+click).
+    pub fn toggle(&mut self, index: usize) {
+        let mut all = self.all();
+        match all.binary_search(&index) {
+            Ok(at) => {
+                all.remove(at);
+            }
+            Err(at) => all.insert(at, index),
+        }
+        let probe = if all.contains(&index) {
+            Some(index)
+        } else {
+            self.probe.filter(|p| *p != index).or(all.first().copied())
+        };
+        *self = Selection::of(probe, all);
+    }
+
+    /// Selects every shown probe from the inspected one to `index` (Shift+click).
+    pub fn extend_to(&mut self, index: usize, shown: &[usize]) {
+        let from = self
+            .probe
+            .and_then(|p| shown.iter().position(|&i| i == p))
+            .unwrap_or(0);
+        let Some(to) = shown.iter().position(|&i| i == index) else {
+            return;
+        };
+        let (lo, hi) = (from.min(to), from.max(to));
+        *self = Selection::of(Some(index), shown[lo..=hi].to_vec());
+    }
+
+    /// A selection of `all`, inspecting `probe`.
+    pub fn of(probe: Option<usize>, mut all: Vec<usize>) -> Selection {
+        all.sort_unstable();
+        all.dedup();
+        all.retain(|i| Some(*i) != probe);
+        Selection {
+            probe,
+            hit: None,
+            others: all,
+        }
+    }
 }
 
 /// How often the level's files on disk are looked at.
 const DISK_CHECK: Duration = Duration::from_secs(2);
+
+/// How long a status message stays.
+const MESSAGE_FOR: Duration = Duration::from_secs(8);
 
 /// The whole window's state.
 pub struct Workbench {
@@ -46,35 +141,88 @@ pub struct Workbench {
     pub filter: ListFilter,
     /// The 3D view.
     pub viewport: Viewport,
+    /// Undo and redo.
+    pub history: History,
+    /// The tool in hand and the points placed with it so far.
+    pub tool: Tool,
+    placed: Vec<DVec3>,
+    /// Height above picked surfaces, per placing tool.
+    lifts: HashMap<&'static str, f64>,
+    lift_along_normal: bool,
+    /// How dragged handles move.
+    pub drag_mode: DragMode,
+    editor: EditorState,
     plot: Option<ClearancePlot>,
     results_revision: u64,
     scroll_list: bool,
-    level_changed: bool,
     last_disk_check: Instant,
+    /// What changed for each probe (by id) when the level was last reloaded, until dismissed.
+    pub changes: HashMap<String, Vec<Aspect>>,
+    reload_error: Option<String>,
+    /// Recently opened or saved files, newest first.
+    pub recent: Vec<PathBuf>,
+    /// The question being asked, if any.
+    pub dialog: Option<Dialog>,
+    message: Option<(String, Instant)>,
+    last_autosave: Instant,
+    autosaved: Option<u64>,
+    closing: bool,
 }
 
 impl Workbench {
     /// A workbench on an open document.
     pub fn new(document: Document) -> Workbench {
         let viewport = Viewport::new(&document);
-        Workbench {
+        let mut workbench = Workbench {
             document,
             selection: Selection::default(),
             filter: ListFilter::default(),
             viewport,
+            history: History::default(),
+            tool: Tool::Select,
+            placed: Vec::new(),
+            lifts: HashMap::new(),
+            lift_along_normal: false,
+            drag_mode: DragMode::default(),
+            editor: EditorState::default(),
             plot: None,
             results_revision: 1,
             scroll_list: false,
-            level_changed: false,
             last_disk_check: Instant::now(),
-        }
+            changes: HashMap::new(),
+            reload_error: None,
+            recent: Vec::new(),
+            dialog: None,
+            message: None,
+            last_autosave: Instant::now(),
+            autosaved: None,
+            closing: false,
+        };
+        workbench.offer_recovery();
+        workbench
+    }
+
+    fn replace_document(&mut self, document: Document) {
+        self.viewport = Viewport::new(&document);
+        self.document = document;
+        self.selection = Selection::default();
+        self.history.clear();
+        self.changes.clear();
+        self.placed.clear();
+        self.plot = None;
+        self.results_revision += 1;
+    }
+
+    /// Shows a status message in the summary bar.
+    pub fn say(&mut self, message: String) {
+        self.message = Some((message, Instant::now()));
     }
 
     /// Selects a probe (and no hit), as a click in the list does: the view frames it.
     pub fn select_probe(&mut self, index: Option<usize>) {
         self.selection = Selection {
             probe: index,
-            hit: None,
+            ..Selection::default()
         };
         self.after_selection(true);
     }
@@ -93,12 +241,183 @@ impl Workbench {
         }
     }
 
+    /// Replaces every probe as one edit (recorded for undo under `key`), answering what changed.
+    pub fn replace_probes(&mut self, key: &str, what: &str, probes: Vec<Probe>) {
+        self.history.record(key, what, &self.document.probes.probes);
+        self.set_probes(probes);
+    }
+
+    fn set_probes(&mut self, probes: Vec<Probe>) {
+        self.document.set_probes(probes);
+        self.results_revision += 1;
+        let n = self.document.probes.probes.len();
+        let kept: Vec<usize> = self.selection.all().into_iter().filter(|i| *i < n).collect();
+        let probe = self.selection.probe.filter(|i| *i < n);
+        let hit = self.selection.hit;
+        self.selection = Selection::of(probe.or(kept.first().copied()), kept);
+        self.selection.hit = hit;
+        // The plot follows the probe's new answer.
+        self.plot = self
+            .selection
+            .probe
+            .and_then(|i| ClearancePlot::measure(&self.document, i));
+    }
+
+    /// Applies an edit of one probe when it is valid; says why not otherwise.
+    pub fn edit_probe(&mut self, index: usize, field: &str, probe: Probe) {
+        if let Err(why) = validate_probe(&probe) {
+            self.say(why);
+            return;
+        }
+        let mut probes = self.document.probes.probes.clone();
+        probes[index] = probe;
+        let key = format!("{}:{field}", self.document.probes.probes[index].id);
+        self.replace_probes(&key, &format!("edit {field}"), probes);
+    }
+
+    /// Does what a menu item, button or shortcut asks.
+    pub fn run(&mut self, command: Command, ctx: &egui::Context) {
+        match command {
+            Command::Open => self.ask_open(),
+            Command::Save => self.save(),
+            Command::SaveAs => self.ask_save_as(),
+            Command::Quit => ctx.send_viewport_cmd(egui::ViewportCommand::Close),
+            Command::Undo => {
+                if let Some(probes) = self.history.undo(&self.document.probes.probes) {
+                    self.set_probes(probes);
+                }
+            }
+            Command::Redo => {
+                if let Some(probes) = self.history.redo(&self.document.probes.probes) {
+                    self.set_probes(probes);
+                }
+            }
+            Command::Duplicate => self.duplicate(),
+            Command::Delete => self.delete(),
+            Command::ExpectAnswer => self.expect_answers(),
+            Command::SelectAll => {
+                let shown = self.filter.shown(&self.document);
+                self.selection = Selection::of(shown.first().copied(), shown);
+            }
+            Command::Tool(tool) => {
+                self.tool = tool;
+                self.placed.clear();
+            }
+            Command::FinishPath => self.finish_path(),
+            Command::FrameLevel => self.viewport.frame_level(),
+            Command::FrameProbe => self.after_selection(true),
+            Command::ToggleFly => self.viewport.fly = !self.viewport.fly,
+        }
+    }
+
+    fn duplicate(&mut self) {
+        let chosen = self.selection.all();
+        if chosen.is_empty() {
+            return;
+        }
+        let mut probes = self.document.probes.probes.clone();
+        let mut copies = Vec::new();
+        for &i in &chosen {
+            let mut copy = probes[i].clone();
+            copy.id = self.document.unused_id(&format!("{}-copy", copy.id));
+            // Ids taken by earlier copies in this same action.
+            while probes.iter().any(|p| p.id == copy.id) {
+                copy.id.push('x');
+            }
+            probes.push(copy);
+            copies.push(probes.len() - 1);
+        }
+        self.replace_probes("duplicate", "duplicate", probes);
+        self.history.seal();
+        self.selection = Selection::of(copies.first().copied(), copies);
+        self.scroll_list = true;
+    }
+
+    fn delete(&mut self) {
+        let chosen = self.selection.all();
+        if chosen.is_empty() {
+            return;
+        }
+        let probes = self
+            .document
+            .probes
+            .probes
+            .iter()
+            .enumerate()
+            .filter(|(i, _)| !chosen.contains(i))
+            .map(|(_, p)| p.clone())
+            .collect();
+        self.selection = Selection::default();
+        self.replace_probes("delete", "delete", probes);
+        self.history.seal();
+        self.say(format!("Deleted {} probe(s); Ctrl+Z brings them back.", chosen.len()));
+    }
+
+    /// Sets each selected probe's expectation to what it shows now.
+    fn expect_answers(&mut self) {
+        let chosen = self.selection.all();
+        let mut probes = self.document.probes.probes.clone();
+        let mut set = 0;
+        for &i in &chosen {
+            if let Some(expect) = self.document.results.get(i).and_then(expectation_from) {
+                probes[i].expect = Some(expect);
+                set += 1;
+            }
+        }
+        if set > 0 {
+            self.replace_probes("expect", "expect this answer", probes);
+            self.history.seal();
+        }
+    }
+
+    fn lift(&self) -> Lift {
+        Lift {
+            height: self
+                .lifts
+                .get(self.tool.name())
+                .copied()
+                .unwrap_or(self.tool.default_lift()),
+            along_normal: self.lift_along_normal,
+        }
+    }
+
+    fn place(&mut self, point: DVec3) {
+        self.placed.push(point);
+        if self.tool.clicks() == Some(self.placed.len()) {
+            self.finish_path();
+        }
+    }
+
+    /// Turns the placed points into a new probe, selected.
+    fn finish_path(&mut self) {
+        let base = self.tool.name().to_lowercase();
+        let id = self.document.unused_id(&base);
+        let Some(probe) = new_probe(self.tool, id, &self.placed) else {
+            return;
+        };
+        self.placed.clear();
+        let mut probes = self.document.probes.probes.clone();
+        probes.push(probe);
+        let what = format!("new {}", self.tool.name().to_lowercase());
+        self.replace_probes("new", &what, probes);
+        self.history.seal();
+        self.selection = Selection::one(self.document.probes.probes.len() - 1);
+        self.after_selection(false);
+        self.scroll_list = true;
+    }
+
     /// Lays out and runs every panel for one frame.
     pub fn ui(&mut self, ui: &mut egui::Ui) {
-        self.check_disk(ui.ctx());
-        self.shortcuts(ui.ctx());
+        let ctx = ui.ctx().clone();
+        if ctx.input(|i| i.viewport().close_requested()) {
+            self.close_requested(&ctx);
+        }
+        self.check_disk(&ctx);
+        self.shortcuts(&ctx);
+        self.autosave();
         let shown = self.filter.shown(&self.document);
 
+        egui::Panel::top("menus").show(ui, |ui| self.menu_bar(ui));
         egui::Panel::top("toolbar").show(ui, |ui| self.toolbar(ui));
         egui::Panel::bottom("summary").show(ui, |ui| self.summary_bar(ui));
         egui::Panel::left("probes")
@@ -115,100 +434,279 @@ impl Workbench {
                     &self.document,
                     &shown,
                     &mut self.selection,
+                    &self.changes,
                     scroll,
                 );
                 if picked {
-                    self.after_selection(true);
+                    self.after_selection(self.selection.others.is_empty());
                 }
             });
         egui::Panel::right("inspector")
             .resizable(true)
-            .default_size(380.0)
-            .min_size(260.0)
+            .default_size(400.0)
+            .min_size(280.0)
             .show(ui, |ui| {
                 ui.add_space(4.0);
+                let mut action = None;
                 egui::ScrollArea::vertical()
                     .auto_shrink([false, false])
                     .show(ui, |ui| {
-                        inspector_ui(ui, &self.document, &mut self.selection, self.plot.as_ref());
+                        action = inspector_ui(
+                            ui,
+                            &self.document,
+                            &mut self.selection,
+                            &mut self.editor,
+                            self.plot.as_ref(),
+                            &self.changes,
+                        );
                     });
+                match action {
+                    Some(InspectorAction::Edit(index, Edit { field, probe })) => {
+                        self.edit_probe(index, &field, probe)
+                    }
+                    Some(InspectorAction::Run(command)) => self.run(command, &ctx),
+                    Some(InspectorAction::Bulk(what, probes)) => {
+                        self.replace_probes("bulk", &what, probes);
+                        self.history.seal();
+                    }
+                    None => {}
+                }
             });
         egui::CentralPanel::no_frame().show(ui, |ui| {
-            let clicked = self.viewport.ui(
-                ui,
-                &self.document,
-                self.results_revision,
-                &shown,
-                &mut self.selection,
-            );
-            if clicked {
+            let authoring = Authoring {
+                tool: self.tool,
+                placed: self.placed.clone(),
+                lift: self.lift(),
+                drag_mode: self.drag_mode,
+            };
+            let scene = viewport::Scene {
+                document: &self.document,
+                results_revision: self.results_revision,
+                shown: &shown,
+                selection: &self.selection,
+                authoring: &authoring,
+                changes: &self.changes,
+            };
+            let events = self.viewport.ui(ui, &scene);
+            self.view_events(events, &shown);
+        });
+        self.dialog_ui(&ctx);
+        // A gesture ends when nothing is being dragged or typed into.
+        if ctx.dragged_id().is_none() && ctx.memory(|m| m.focused().is_none()) {
+            self.history.seal();
+        }
+    }
+
+    fn view_events(&mut self, events: ViewEvents, shown: &[usize]) {
+        if let Some(picked) = events.clicked_probe {
+            let before = self.selection.clone();
+            match picked {
+                Some(i) if events.modifiers.command => self.selection.toggle(i),
+                Some(i) if events.modifiers.shift => self.selection.extend_to(i, shown),
+                Some(i) => self.selection = Selection::one(i),
+                None if events.modifiers.any() => {}
+                None => self.selection = Selection::default(),
+            }
+            if self.selection != before {
                 self.scroll_list = true;
                 self.after_selection(false);
             }
+        }
+        if let Some(point) = events.placed {
+            self.place(point);
+        }
+        if events.finish {
+            self.finish_path();
+        }
+        if let (Some((k, to)), Some(i)) = (events.moved, self.selection.single()) {
+            let mut probe = self.document.probes.probes[i].clone();
+            if let Some(p) = probe.query.point_mut(k) {
+                *p = to;
+                self.edit_probe(i, &format!("point {k}"), probe);
+            }
+        }
+    }
+
+    fn menu_bar(&mut self, ui: &mut egui::Ui) {
+        let ctx = ui.ctx().clone();
+        let mut chosen = None;
+        egui::MenuBar::new().ui(ui, |ui| {
+            ui.menu_button("File", |ui| {
+                for command in [Command::Open, Command::Save, Command::SaveAs] {
+                    if menu_item(ui, command, true) {
+                        chosen = Some(command);
+                    }
+                }
+                ui.menu_button("Open recent", |ui| {
+                    if self.recent.is_empty() {
+                        ui.label("Nothing yet");
+                    }
+                    for path in self.recent.clone() {
+                        if ui.button(path.display().to_string()).clicked()
+                            && let Err(e) = self.open(&path)
+                        {
+                            self.say(e);
+                        }
+                    }
+                });
+                ui.separator();
+                if menu_item(ui, Command::Quit, true) {
+                    chosen = Some(Command::Quit);
+                }
+            });
+            ui.menu_button("Edit", |ui| {
+                let undo = self.history.undo_name().map(|w| format!("Undo {w}"));
+                let redo = self.history.redo_name().map(|w| format!("Redo {w}"));
+                for (command, name) in [(Command::Undo, undo), (Command::Redo, redo)] {
+                    let shortcut = command.shortcut().map(|s| ctx.format_shortcut(&s)).unwrap_or_default();
+                    let text = name.clone().unwrap_or_else(|| command.name().to_string());
+                    if ui
+                        .add_enabled(name.is_some(), egui::Button::new(text).shortcut_text(shortcut))
+                        .clicked()
+                    {
+                        chosen = Some(command);
+                    }
+                }
+                ui.separator();
+                let any = !self.selection.is_empty();
+                for command in [
+                    Command::Duplicate,
+                    Command::Delete,
+                    Command::ExpectAnswer,
+                    Command::SelectAll,
+                ] {
+                    if menu_item(ui, command, any || command == Command::SelectAll) {
+                        chosen = Some(command);
+                    }
+                }
+            });
+            ui.menu_button("Probe", |ui| {
+                for tool in Tool::PLACING {
+                    if menu_item(ui, Command::Tool(tool), true) {
+                        chosen = Some(Command::Tool(tool));
+                    }
+                }
+                if menu_item(ui, Command::FinishPath, self.tool == Tool::Sweep) {
+                    chosen = Some(Command::FinishPath);
+                }
+            });
+            ui.menu_button("View", |ui| {
+                for command in [Command::FrameLevel, Command::FrameProbe, Command::ToggleFly] {
+                    if menu_item(ui, command, true) {
+                        chosen = Some(command);
+                    }
+                }
+            });
         });
+        if let Some(command) = chosen {
+            self.run(command, &ctx);
+        }
     }
 
     fn toolbar(&mut self, ui: &mut egui::Ui) {
+        let ctx = ui.ctx().clone();
         ui.horizontal(|ui| {
-            ui.label(RichText::new("Plumbline").strong());
+            let dirty = if self.document.is_dirty() { " •" } else { "" };
+            ui.label(RichText::new(format!("{}{dirty}", self.document_name())).strong())
+                .on_hover_text(if dirty.is_empty() {
+                    "Saved"
+                } else {
+                    "Unsaved changes (a recovery copy is kept every 10 s)"
+                });
             ui.separator();
-            let name = self
-                .document
-                .probes_path
-                .as_ref()
-                .unwrap_or(&self.document.level_path);
-            ui.label(name.display().to_string());
+            for tool in [Tool::Select, Tool::Ray, Tool::Sweep, Tool::Closest, Tool::Overlap] {
+                let selected = self.tool == tool;
+                if ui
+                    .selectable_label(selected, tool.name())
+                    .on_hover_text(format!(
+                        "{}\n{}",
+                        tool.help(),
+                        tooltip(&ctx, Command::Tool(tool))
+                    ))
+                    .clicked()
+                {
+                    self.run(Command::Tool(tool), &ctx);
+                }
+            }
+            ui.separator();
+            if self.tool == Tool::Select {
+                let label = ui.label("Drag handles");
+                egui::ComboBox::from_id_salt("drag-mode")
+                    .selected_text(self.drag_mode.name())
+                    .show_ui(ui, |ui| {
+                        for mode in DragMode::ALL {
+                            ui.selectable_value(&mut self.drag_mode, mode, mode.name());
+                        }
+                    })
+                    .response
+                    .labelled_by(label.id);
+            }
+            if self.tool != Tool::Select || self.drag_mode == DragMode::Surface {
+                let key = self.tool.name();
+                let mut height = self.lift().height;
+                let label = ui.label("Lift");
+                if ui
+                    .add(egui::DragValue::new(&mut height).speed(0.01).range(-100.0..=100.0).suffix(" m"))
+                    .labelled_by(label.id)
+                    .on_hover_text("How far above the picked surface points are placed")
+                    .changed()
+                {
+                    self.lifts.insert(key, height);
+                }
+                egui::ComboBox::from_id_salt("lift-along")
+                    .selected_text(if self.lift_along_normal { "along the normal" } else { "along up" })
+                    .show_ui(ui, |ui| {
+                        ui.selectable_value(&mut self.lift_along_normal, false, "along up");
+                        ui.selectable_value(&mut self.lift_along_normal, true, "along the normal");
+                    })
+                    .response
+                    .labelled_by(label.id);
+            }
+            if self.tool == Tool::Sweep && !self.placed.is_empty() {
+                ui.label(format!("{} points", self.placed.len()));
+                if ui
+                    .add_enabled(self.placed.len() >= 2, egui::Button::new("End path"))
+                    .on_hover_text(tooltip(&ctx, Command::FinishPath))
+                    .clicked()
+                {
+                    self.finish_path();
+                }
+            }
             ui.separator();
             if ui
                 .button("Frame level")
-                .on_hover_text("Show the whole level (Home)")
+                .on_hover_text(tooltip(&ctx, Command::FrameLevel))
                 .clicked()
             {
                 self.viewport.frame_level();
             }
-            let can_frame = self.selection.probe.is_some();
-            if ui
-                .add_enabled(can_frame, egui::Button::new("Frame probe"))
-                .on_hover_text("Show the selected probe (F)")
-                .clicked()
-            {
-                self.after_selection(true);
-            }
-            ui.toggle_value(&mut self.viewport.fly, "Fly")
-                .on_hover_text(
-                    "Fly mode (G): drag to look around, W/A/S/D to move, Q/E down and up.\n\
-                     Otherwise drag orbits, right or middle drag pans, the wheel zooms.",
-                );
+            ui.toggle_value(&mut self.viewport.fly, "Fly").on_hover_text(
+                "Fly mode (G): drag to look around, W/A/S/D to move, Q/E down and up.\n\
+                 Otherwise drag orbits, right or middle drag pans, the wheel zooms.",
+            );
         });
     }
 
     fn shortcuts(&mut self, ctx: &egui::Context) {
-        if ctx.egui_wants_keyboard_input() {
+        if self.dialog.is_some() {
             return;
         }
-        let (home, frame, fly, quit) = ctx.input(|i| {
-            (
-                i.key_pressed(egui::Key::Home),
-                i.key_pressed(egui::Key::F),
-                i.key_pressed(egui::Key::G),
-                i.modifiers.command && i.key_pressed(egui::Key::Q),
-            )
-        });
-        if quit {
-            ctx.send_viewport_cmd(egui::ViewportCommand::Close);
-        }
-        if home {
-            self.viewport.frame_level();
-        }
-        if frame {
-            self.after_selection(true);
-        }
-        if fly {
-            self.viewport.fly = !self.viewport.fly;
+        let typing = ctx.egui_wants_keyboard_input();
+        let flying = self.viewport.fly;
+        for command in Command::WITH_SHORTCUTS {
+            if command.is_bare_key() && (typing || flying && command != Command::ToggleFly) {
+                continue;
+            }
+            let Some(shortcut) = command.shortcut() else {
+                continue;
+            };
+            if ctx.input_mut(|i| i.consume_shortcut(&shortcut)) {
+                self.run(command, ctx);
+            }
         }
     }
 
-    fn summary_bar(&self, ui: &mut egui::Ui) {
+    fn summary_bar(&mut self, ui: &mut egui::Ui) {
         let summary = self.document.summary();
         ui.horizontal(|ui| {
             for (verdict, count) in [
@@ -233,16 +731,23 @@ impl Workbench {
                 self.document.level.triangle_count()
             ));
             ui.separator();
-            if self.level_changed {
+            let warn = Color32::from_rgb(240, 228, 66);
+            if let Some(e) = &self.reload_error {
+                ui.label(RichText::new("The level on disk cannot be read").color(warn).strong())
+                    .on_hover_text(format!("{e}\nThe answers shown are for the level as it was."));
+            } else if !self.changes.is_empty() {
                 ui.label(
-                    RichText::new("The level changed on disk since these answers")
-                        .color(Color32::from_rgb(240, 228, 66))
-                        .strong(),
-                )
-                .on_hover_text(format!(
-                    "Answered on level digest {}; reopen to answer again.",
-                    self.document.level_digest
-                ));
+                    RichText::new(format!(
+                        "Level reloaded: {} probe(s) changed",
+                        self.changes.len()
+                    ))
+                    .color(warn)
+                    .strong(),
+                );
+                if ui.button("Dismiss").clicked() {
+                    self.changes.clear();
+                    self.results_revision += 1;
+                }
             } else {
                 ui.label("Answers match the level on disk")
                     .on_hover_text(format!("level digest {}", self.document.level_digest));
@@ -252,15 +757,47 @@ impl Workbench {
                 ui.label(format!("{} load warnings", self.document.warnings.len()))
                     .on_hover_text(self.document.warnings.join("\n"));
             }
+            if let Some((message, since)) = &self.message {
+                if since.elapsed() < MESSAGE_FOR {
+                    ui.separator();
+                    ui.label(RichText::new(message).italics());
+                } else {
+                    self.message = None;
+                }
+            }
         });
     }
 
+    /// Reloads the level when its files change on disk, answers every probe again and keeps what
+    /// changed to show until dismissed.
     fn check_disk(&mut self, ctx: &egui::Context) {
         if self.last_disk_check.elapsed() >= DISK_CHECK {
             self.last_disk_check = Instant::now();
-            self.level_changed = self.document.level_changed_on_disk();
+            if self.document.level_changed_on_disk() {
+                self.reload_level();
+            }
         }
         ctx.request_repaint_after(DISK_CHECK);
+    }
+
+    /// Loads the level again and answers every probe on it.
+    pub fn reload_level(&mut self) {
+        match self.document.reload_level() {
+            Ok(changed) => {
+                self.reload_error = None;
+                self.changes = changed
+                    .into_iter()
+                    .map(|(i, aspects)| (self.document.probes.probes[i].id.clone(), aspects))
+                    .collect();
+                self.viewport.set_level(&self.document);
+                self.results_revision += 1;
+                self.plot = self
+                    .selection
+                    .probe
+                    .and_then(|i| ClearancePlot::measure(&self.document, i));
+            }
+            Err(e) => self.reload_error = Some(e),
+        }
     }
 }
 
@@ -277,6 +814,9 @@ pub struct WindowOptions {
     pub select: Option<String>,
 }
 
+/// Where the recent files are kept in the window's saved state.
+const RECENT_KEY: &str = "recent-files";
+
 struct WorkbenchApp {
     workbench: Workbench,
     capture: Capture,
@@ -286,6 +826,12 @@ impl eframe::App for WorkbenchApp {
     fn ui(&mut self, ui: &mut egui::Ui, _frame: &mut eframe::Frame) {
         self.capture.before_frame(ui.ctx(), &mut self.workbench);
         self.workbench.ui(ui);
+    }
+
+    fn save(&mut self, storage: &mut dyn eframe::Storage) {
+        if let Ok(text) = serde_json::to_string(&self.workbench.recent) {
+            storage.set_string(RECENT_KEY, text);
+        }
     }
 }
 
@@ -324,11 +870,22 @@ pub fn run(path: &std::path::Path, options: WindowOptions) -> Result<(), String>
     if unattended {
         native.persistence_path = Some(std::env::temp_dir().join("plumbline-unattended.ron"));
     }
+    let opened = std::path::absolute(path).unwrap_or_else(|_| path.to_path_buf());
     eframe::run_native(
         "plumbline",
         native,
-        Box::new(move |_cc| {
+        Box::new(move |cc| {
             let mut workbench = Workbench::new(document);
+            if let Some(storage) = cc.storage
+                && let Some(text) = storage.get_string(RECENT_KEY)
+            {
+                workbench.recent = serde_json::from_str(&text).unwrap_or_default();
+            }
+            workbench.recent.retain(|p| *p != opened);
+            workbench.recent.insert(0, opened);
+            if unattended {
+                workbench.dialog = None;
+            }
             if selected.is_some() {
                 workbench.select_probe(selected);
                 workbench.scroll_list = true;

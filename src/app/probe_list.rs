@@ -4,7 +4,10 @@
 use eframe::egui;
 use egui::{Color32, RichText};
 
+use std::collections::HashMap;
+
 use super::Selection;
+use crate::check::Aspect;
 use super::badge::{paint_mark, verdict_color32};
 use super::document::Document;
 use crate::check::Verdict;
@@ -60,13 +63,16 @@ impl ListFilter {
     }
 }
 
-/// Shows the filters and the list. Returns true when the user picked a probe here.
+/// Shows the filters and the list. Returns true when the user picked a probe here. Ctrl+click adds
+/// or removes a probe, Shift+click selects a run of them. Probes whose answer changed when the level
+/// was reloaded say so.
 pub fn probe_list_ui(
     ui: &mut egui::Ui,
     filter: &mut ListFilter,
     document: &Document,
     shown: &[usize],
     selection: &mut Selection,
+    changes: &HashMap<String, Vec<Aspect>>,
     scroll_to_selection: bool,
 ) -> bool {
     ui.add(
@@ -119,11 +125,22 @@ pub fn probe_list_ui(
         for &i in &shown[rows] {
             let probe = &document.probes.probes[i];
             let verdict = document.results[i].verdict;
-            let selected = selection.probe == Some(i);
-            let response = probe_row(ui, row_height - 2.0, probe, verdict, selected);
+            let selected = selection.contains(i);
+            let changed = changes.get(&probe.id);
+            let mut response = probe_row(ui, row_height - 2.0, probe, verdict, selected, changed.is_some());
+            if let Some(aspects) = changed {
+                let words: Vec<String> = aspects.iter().map(|a| a.to_string()).collect();
+                response = response.on_hover_text(format!("Changed at the reload: {}", words.join("; ")));
+            }
             if response.clicked() {
-                selection.probe = Some(i);
-                selection.hit = None;
+                let modifiers = ui.input(|i| i.modifiers);
+                if modifiers.command {
+                    selection.toggle(i);
+                } else if modifiers.shift {
+                    selection.extend_to(i, shown);
+                } else {
+                    *selection = Selection::one(i);
+                }
                 picked = true;
             }
         }
@@ -138,10 +155,12 @@ fn probe_row(
     probe: &crate::probe::Probe,
     verdict: Verdict,
     selected: bool,
+    changed: bool,
 ) -> egui::Response {
     let width = ui.available_width();
     let (rect, response) = ui.allocate_exact_size(egui::vec2(width, height), egui::Sense::click());
-    let title = format!("{}  {}", verdict_word(verdict), probe.id);
+    let changed_word = if changed { " changed" } else { "" };
+    let title = format!("{}  {}{changed_word}", verdict_word(verdict), probe.id);
     let label = probe.label.as_deref().unwrap_or("(no label)");
     response.widget_info(|| {
         egui::WidgetInfo::selected(
@@ -180,13 +199,22 @@ fn probe_row(
         egui::FontId::proportional(13.0),
         ui.visuals().strong_text_color(),
     );
-    painter.text(
+    let kind = painter.text(
         egui::pos2(id.right() + 8.0, top),
         egui::Align2::LEFT_TOP,
         probe.query.kind(),
         egui::FontId::proportional(11.5),
         ui.visuals().weak_text_color(),
     );
+    if changed {
+        painter.text(
+            egui::pos2(kind.right() + 8.0, top),
+            egui::Align2::LEFT_TOP,
+            "changed",
+            egui::FontId::proportional(11.5),
+            Color32::from_rgb(240, 228, 66),
+        );
+    }
     let mut job = egui::text::LayoutJob::simple(
         label.to_string(),
         egui::FontId::proportional(12.0),

@@ -86,6 +86,19 @@ impl Tool {
     }
 }
 
+/// What the view needs to know of the authoring tools.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Authoring {
+    /// The tool in hand.
+    pub tool: Tool,
+    /// Points placed so far with a placing tool.
+    pub placed: Vec<DVec3>,
+    /// How picked points are raised.
+    pub lift: Lift,
+    /// How dragged handles move.
+    pub drag_mode: DragMode,
+}
+
 /// How a picked surface point is raised before it becomes a probe point.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Lift {

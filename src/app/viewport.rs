@@ -2,6 +2,7 @@
 //! three-d paint callback with labels and an axis marker painted over it by egui.
 
 use std::cell::RefCell;
+use std::collections::HashMap;
 use std::sync::{Arc, Mutex};
 use std::time::Instant;
 
@@ -12,8 +13,9 @@ use glam::{DVec2, DVec3};
 use super::Selection;
 use super::badge::{paint_mark, verdict_color32};
 use super::document::Document;
-use crate::check::{Hits, Verdict};
-use crate::view::palette::{okabe_ito, verdict_word};
+use super::tools::{Authoring, DragMode, Tool, drag_along_axis, drag_in_view_plane};
+use crate::check::{Aspect, Hits, Verdict};
+use crate::view::palette::{StateMark, okabe_ito, verdict_word};
 use crate::view::probe_marks::{probe_points, start_point};
 use crate::view::renderer::FrameKind;
 use crate::view::{
@@ -23,6 +25,9 @@ use crate::view::{
 
 /// At most this many probes are drawn at once (the list filter picks which).
 pub const MAX_DRAWN_PROBES: usize = 600;
+
+/// Handles of the selected probe and points being placed.
+const HANDLE: [u8; 3] = [245, 245, 245];
 
 /// Pixels within which a click picks a probe's marker.
 const CLICK_REACH: f32 = 14.0;
@@ -43,6 +48,8 @@ pub struct Hover {
     pub triangle: Option<u32>,
     /// The point under the pointer.
     pub point: DVec3,
+    /// The surface normal there, facing the eye.
+    pub normal: DVec3,
     /// Metres from the eye.
     pub distance: f64,
 }
@@ -54,6 +61,38 @@ pub struct FrameLog {
     pub frames: Vec<(FrameKind, f64)>,
     /// The 3D view's size in pixels.
     pub view_size: [u32; 2],
+}
+
+/// What the view shows this frame.
+#[derive(Clone, Copy)]
+pub struct Scene<'a> {
+    /// What is open.
+    pub document: &'a Document,
+    /// Changes whenever any answer changed.
+    pub results_revision: u64,
+    /// The probes the list shows (these are drawn).
+    pub shown: &'a [usize],
+    /// What is selected.
+    pub selection: &'a Selection,
+    /// The tool in hand.
+    pub authoring: &'a Authoring,
+    /// What changed per probe id at the last level reload.
+    pub changes: &'a HashMap<String, Vec<Aspect>>,
+}
+
+/// What the user did in the view this frame, for the workbench to act on.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct ViewEvents {
+    /// A click with the select tool: the probe under it, or none.
+    pub clicked_probe: Option<Option<usize>>,
+    /// The modifier keys held at that click (Ctrl or Shift add to the selection).
+    pub modifiers: egui::Modifiers,
+    /// A click while placing: the picked surface point, lifted.
+    pub placed: Option<DVec3>,
+    /// A double click while placing: end the path.
+    pub finish: bool,
+    /// A handle of the selected probe was dragged: its point index and new position.
+    pub moved: Option<(usize, DVec3)>,
 }
 
 /// The viewport's state.
@@ -72,6 +111,8 @@ pub struct Viewport {
     last_camera: OrbitCamera,
     /// When set, every frame's draw time is recorded (with a `glFinish`).
     pub frame_log: Option<Arc<Mutex<FrameLog>>>,
+    /// The handle being dragged: index into the selected probe's points.
+    dragging: Option<usize>,
     /// Where the view was on screen in the last frame, in points.
     pub last_rect: Rect,
     /// Draw as if the camera were moving (`Some(true)`) or resting (`Some(false)`) whatever it does
@@ -85,6 +126,7 @@ struct MarksKey {
     height: u32,
     selection: Selection,
     hover_triangle: Option<[DVec3; 3]>,
+    preview: Vec<DVec3>,
     results_revision: u64,
     shown: Vec<usize>,
 }
@@ -107,7 +149,15 @@ impl Viewport {
             frame_log: None,
             force_moving: None,
             last_rect: Rect::NOTHING,
+            dragging: None,
         }
+    }
+
+    /// Draws the document's level anew (after a reload), keeping the camera.
+    pub fn set_level(&mut self, document: &Document) {
+        self.drawing = Arc::new(LevelDrawing::new(&document.level));
+        self.level_revision += 1;
+        self.marks_key = None;
     }
 
     /// The level as drawn.
@@ -132,23 +182,32 @@ impl Viewport {
         self.camera.frame(lo - pad, hi + pad, 1.15);
     }
 
-    /// Shows the viewport in `ui`. `shown` are the probe indices the list shows (drawn in the view);
-    /// returns true when the selection changed by a click in the view.
-    pub fn ui(
-        &mut self,
-        ui: &mut egui::Ui,
-        document: &Document,
-        results_revision: u64,
-        shown: &[usize],
-        selection: &mut Selection,
-    ) -> bool {
+    /// Shows the viewport in `ui`.
+    pub fn ui(&mut self, ui: &mut egui::Ui, scene: &Scene) -> ViewEvents {
+        let Scene {
+            document,
+            results_revision,
+            shown,
+            selection,
+            authoring,
+            changes,
+        } = *scene;
         let (rect, response) = ui.allocate_exact_size(ui.available_size(), Sense::click_and_drag());
         self.last_rect = rect;
         let size = DVec2::new(rect.width() as f64, rect.height() as f64);
-        self.handle_camera_input(ui, &response, size);
+        let mut events = ViewEvents::default();
+        let handles = match (authoring.tool, selection.single()) {
+            (Tool::Select, Some(i)) => document.probes.probes.get(i).map(|p| p.query.points()),
+            _ => None,
+        }
+        .unwrap_or_default();
+        self.drag_handle(ui, document, &response, rect, &handles, authoring, &mut events);
+        if self.dragging.is_none() {
+            self.handle_camera_input(ui, &response, size);
+        }
         let moving = self.force_moving.unwrap_or_else(|| {
             self.camera != self.last_camera
-                || response.dragged()
+                || (response.dragged() && self.dragging.is_none())
                 || ui.input(|i| i.smooth_scroll_delta != Vec2::ZERO)
         });
         if self.camera != self.last_camera {
@@ -159,19 +218,30 @@ impl Viewport {
 
         let pointer = response.hover_pos().filter(|_| !response.dragged());
         self.hover = pointer.and_then(|p| self.pick(document, rect, p));
-        let mut clicked = false;
-        if response.clicked()
+        let lifted = |hover: &Hover| authoring.lift.apply(hover.point, hover.normal, document.world.up());
+        if response.double_clicked() && authoring.tool != Tool::Select {
+            events.finish = true;
+        } else if response.clicked()
             && let Some(p) = response.interact_pointer_pos()
         {
-            let picked = self.probe_at(document, shown, rect, p);
-            if picked != selection.probe {
-                selection.probe = picked;
-                selection.hit = None;
-                clicked = true;
+            events.modifiers = ui.input(|i| i.modifiers);
+            if authoring.tool == Tool::Select {
+                events.clicked_probe = Some(self.probe_at(document, shown, rect, p));
+            } else if let Some(hover) = self.pick(document, rect, p) {
+                events.placed = Some(lifted(&hover));
             }
         }
+        let mut preview = authoring.placed.clone();
+        if authoring.tool != Tool::Select
+            && let Some(hover) = &self.hover
+        {
+            preview.push(lifted(hover));
+        }
+        if authoring.tool != Tool::Select {
+            ui.ctx().set_cursor_icon(egui::CursorIcon::Crosshair);
+        }
 
-        self.update_marks(document, results_revision, shown, *selection, rect);
+        self.update_marks(document, results_revision, shown, selection, &handles, preview, rect);
         let frame = FrameInput {
             camera: self.camera,
             level: self.drawing.clone(),
@@ -230,12 +300,62 @@ impl Viewport {
             rect,
             callback: Arc::new(callback),
         });
-        self.paint_labels(ui, document, shown, *selection, rect);
+        self.paint_labels(ui, document, shown, selection, changes, rect);
         self.paint_axes(ui, rect);
         if let Some(hover) = &self.hover {
             paint_hover(ui, rect, pointer, hover);
         }
-        clicked
+        events
+    }
+
+    /// Starts, continues and ends dragging a handle of the selected probe.
+    #[allow(clippy::too_many_arguments)]
+    fn drag_handle(
+        &mut self,
+        ui: &egui::Ui,
+        document: &Document,
+        response: &egui::Response,
+        rect: Rect,
+        handles: &[DVec3],
+        authoring: &Authoring,
+        events: &mut ViewEvents,
+    ) {
+        if response.drag_started_by(egui::PointerButton::Primary)
+            && let Some(p) = response.interact_pointer_pos()
+        {
+            self.dragging = handles
+                .iter()
+                .enumerate()
+                .filter_map(|(k, h)| Some((k, self.to_screen(rect, *h)?.distance(p))))
+                .filter(|(_, d)| *d <= CLICK_REACH)
+                .min_by(|a, b| a.1.total_cmp(&b.1))
+                .map(|(k, _)| k);
+        }
+        if !response.dragged_by(egui::PointerButton::Primary) {
+            self.dragging = None;
+            return;
+        }
+        let (Some(k), Some(p)) = (self.dragging, ui.input(|i| i.pointer.latest_pos())) else {
+            return;
+        };
+        let Some(anchor) = handles.get(k).copied() else {
+            return;
+        };
+        let size = DVec2::new(rect.width() as f64, rect.height() as f64);
+        let pixel = DVec2::new((p.x - rect.left()) as f64, (p.y - rect.top()) as f64);
+        let moved = match authoring.drag_mode {
+            DragMode::ViewPlane => drag_in_view_plane(&self.camera, pixel, size, anchor),
+            DragMode::Axis(a) => {
+                let axis = [DVec3::X, DVec3::Y, DVec3::Z][a.min(2)];
+                drag_along_axis(&self.camera, pixel, size, anchor, axis)
+            }
+            DragMode::Surface => self
+                .pick(document, rect, p)
+                .map(|h| authoring.lift.apply(h.point, h.normal, document.world.up())),
+        };
+        if let Some(to) = moved.filter(|to| to.is_finite() && *to != anchor) {
+            events.moved = Some((k, to));
+        }
     }
 
     fn handle_camera_input(&mut self, ui: &egui::Ui, response: &egui::Response, size: DVec2) {
@@ -300,6 +420,7 @@ impl Viewport {
             tags: document.world.tags(hit.object).to_vec(),
             triangle: hit.triangle,
             point: hit.point,
+            normal: hit.normal,
             distance: hit.distance,
         })
     }
@@ -342,12 +463,15 @@ impl Viewport {
         Some(Pos2::new(rect.left() + p.x as f32, rect.top() + p.y as f32))
     }
 
+    #[allow(clippy::too_many_arguments)]
     fn update_marks(
         &mut self,
         document: &Document,
         results_revision: u64,
         shown: &[usize],
-        selection: Selection,
+        selection: &Selection,
+        handles: &[DVec3],
+        preview: Vec<DVec3>,
         rect: Rect,
     ) {
         let hover_triangle = self
@@ -357,8 +481,9 @@ impl Viewport {
         let key = MarksKey {
             camera: self.camera,
             height: rect.height() as u32,
-            selection,
+            selection: selection.clone(),
             hover_triangle,
+            preview,
             results_revision,
             shown: shown.iter().take(MAX_DRAWN_PROBES).copied().collect(),
         };
@@ -374,12 +499,37 @@ impl Viewport {
             };
             let emphasis = Emphasis {
                 selected: selection.probe == Some(i),
-                muted: selection.probe.is_some_and(|s| s != i),
+                muted: !selection.is_empty() && !selection.contains(i),
                 hit: selection.hit,
             };
             probe_marks(probe, result, emphasis, &mut marks);
             if emphasis.selected {
                 overlapped_objects(document, result, &mut marks);
+            }
+        }
+        for h in handles {
+            marks.push(Mark::Point {
+                at: *h,
+                colour: HANDLE,
+                size: 11.0,
+                mark: StateMark::Square,
+            });
+        }
+        for (k, p) in key.preview.iter().enumerate() {
+            marks.push(Mark::Point {
+                at: *p,
+                colour: HANDLE,
+                size: 9.0,
+                mark: StateMark::Round,
+            });
+            if k > 0 {
+                marks.push(Mark::Line {
+                    from: key.preview[k - 1],
+                    to: *p,
+                    colour: HANDLE,
+                    width: 2.5,
+                    dashed: k + 1 == key.preview.len(),
+                });
             }
         }
         if let Some(t) = hover_triangle {
@@ -409,7 +559,8 @@ impl Viewport {
         ui: &egui::Ui,
         document: &Document,
         shown: &[usize],
-        selection: Selection,
+        selection: &Selection,
+        changes: &HashMap<String, Vec<Aspect>>,
         rect: Rect,
     ) {
         let painter = ui.painter().with_clip_rect(rect);
@@ -421,13 +572,18 @@ impl Viewport {
                 continue;
             };
             let selected = selection.probe == Some(i);
-            if !selected && !matches!(result.verdict, Verdict::Fail | Verdict::Error) {
+            let changed = changes.contains_key(&probe.id);
+            if !selected && !changed && !matches!(result.verdict, Verdict::Fail | Verdict::Error) {
                 continue;
             }
             let Some(at) = self.to_screen(rect, start_point(&probe.query)) else {
                 continue;
             };
-            let text = format!("{}  {}", verdict_word(result.verdict), probe.id);
+            let text = if changed {
+                format!("{}  {}  · changed", verdict_word(result.verdict), probe.id)
+            } else {
+                format!("{}  {}", verdict_word(result.verdict), probe.id)
+            };
             let galley = painter.layout_no_wrap(text, font.clone(), Color32::WHITE);
             let pos = at + Vec2::new(26.0, -galley.size().y - 6.0);
             let frame = Rect::from_min_size(

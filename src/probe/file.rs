@@ -79,6 +79,19 @@ pub fn parse_probe_set(path: &Path, text: &str) -> Result<ProbeSet, InputError> 
     })
 }
 
+/// Checks one probe against every rule of the file format (by writing it as a file and reading it
+/// back, so editing in the window and loading from disk can never disagree). The message names the
+/// probe and what is wrong.
+pub fn validate_probe(probe: &Probe) -> Result<(), String> {
+    let set = ProbeSet {
+        level: "level".into(),
+        probes: vec![probe.clone()],
+    };
+    parse_probe_set(Path::new("probe"), &probe_set_to_json(&set))
+        .map(|_| ())
+        .map_err(|e| e.message)
+}
+
 /// Serialises a probe set in the file format, stable and ready to save.
 pub fn probe_set_to_json(set: &ProbeSet) -> String {
     let probes: Vec<Value> = set.probes.iter().map(probe_to_value).collect();

@@ -1,0 +1,439 @@
+//! Editing one probe in the inspector: its id and label, every number of its question (with units),
+//! its shape, which objects it looks at, and what it expects. The editor works on a copy and hands
+//! back the edited probe with the name of the field that changed; the workbench validates it,
+//! records it for undo and answers it again.
+
+use eframe::egui;
+use egui::{DragValue, RichText};
+use glam::DVec3;
+
+use crate::level::ShapeSpec;
+use crate::probe::{Conditions, Expect, ExpectWord, HitsMode, Probe, ProbeQuery, Range};
+
+/// An edit made in the inspector.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Edit {
+    /// The field that changed (edits of one field in a row make one undo step).
+    pub field: String,
+    /// The probe after the edit.
+    pub probe: Probe,
+}
+
+/// Text boxes whose words are applied only when valid (the id), kept between frames.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct EditorState {
+    /// Which probe the id box belongs to.
+    pub probe: Option<usize>,
+    /// The id being typed.
+    pub id_text: String,
+}
+
+/// Shows the editor for probe `index`; returns the edit, if any.
+pub fn probe_editor(
+    ui: &mut egui::Ui,
+    index: usize,
+    probe: &Probe,
+    state: &mut EditorState,
+    id_taken: &dyn Fn(&str) -> bool,
+) -> Option<Edit> {
+    if state.probe != Some(index) {
+        *state = EditorState {
+            probe: Some(index),
+            id_text: probe.id.clone(),
+        };
+    }
+    let mut draft = probe.clone();
+    let mut field = None;
+    egui::Grid::new("probe-editor")
+        .num_columns(2)
+        .striped(true)
+        .show(ui, |ui| {
+            let label = ui.label("id");
+            let response = ui
+                .add(egui::TextEdit::singleline(&mut state.id_text).desired_width(180.0))
+                .labelled_by(label.id);
+            if response.changed() {
+                let text = state.id_text.trim();
+                if text != probe.id && !text.is_empty() && !id_taken(text) {
+                    draft.id = text.to_string();
+                    field = Some("id".to_string());
+                }
+            }
+            ui.end_row();
+            let label = ui.label("label");
+            let mut text = probe.label.clone().unwrap_or_default();
+            if ui
+                .add(egui::TextEdit::singleline(&mut text).desired_width(f32::INFINITY))
+                .labelled_by(label.id)
+                .changed()
+            {
+                draft.label = (!text.trim().is_empty()).then_some(text);
+                field = Some("label".into());
+            }
+            ui.end_row();
+            if let Some(f) = query_fields(ui, &mut draft.query) {
+                field = Some(f);
+            }
+            if let Some(f) = filter_fields(ui, &mut draft) {
+                field = Some(f);
+            }
+        });
+    if state.id_text.trim() != probe.id && field.as_deref() != Some("id") {
+        let text = state.id_text.trim();
+        let why = if text.is_empty() {
+            "An id cannot be empty.".to_string()
+        } else if id_taken(text) {
+            format!("Another probe is called \"{text}\".")
+        } else {
+            String::new()
+        };
+        if !why.is_empty() {
+            ui.label(RichText::new(why).color(egui::Color32::from_rgb(230, 159, 0)));
+        }
+    }
+    ui.add_space(4.0);
+    ui.label(RichText::new("Expects").strong());
+    if let Some(expect) = expect_editor(ui, &probe.query, probe.expect.as_ref()) {
+        draft.expect = expect;
+        field = Some("expect".into());
+    }
+    field.map(|field| Edit {
+        field,
+        probe: draft,
+    })
+}
+
+/// A labelled number in metres (or seconds), editable by dragging or typing.
+fn number(ui: &mut egui::Ui, name: &str, value: &mut f64, unit: &str, min: f64) -> bool {
+    let label = ui.label(name);
+    let changed = ui
+        .add(
+            DragValue::new(value)
+                .speed(0.01)
+                .range(min..=1.0e6)
+                .max_decimals(3)
+                .suffix(unit),
+        )
+        .labelled_by(label.id)
+        .changed();
+    ui.end_row();
+    changed
+}
+
+/// Three labelled coordinates, `name x`, `name y`, `name z`.
+fn point(ui: &mut egui::Ui, name: &str, p: &mut DVec3) -> bool {
+    let label = ui.label(name);
+    let mut changed = false;
+    ui.horizontal(|ui| {
+        for (axis, value) in ["x", "y", "z"].into_iter().zip([&mut p.x, &mut p.y, &mut p.z]) {
+            let response = ui
+                .add(
+                    DragValue::new(value)
+                        .speed(0.01)
+                        .range(-1.0e7..=1.0e7)
+                        .max_decimals(3)
+                        .suffix(" m"),
+                )
+                .on_hover_text(format!("{name} {axis}, metres"));
+            response.widget_info(|| {
+                egui::WidgetInfo::labeled(egui::Role::SpinButton, true, format!("{name} {axis}"))
+            });
+            changed |= response.changed();
+        }
+    })
+    .response
+    .labelled_by(label.id);
+    ui.end_row();
+    changed
+}
+
+fn query_fields(ui: &mut egui::Ui, query: &mut ProbeQuery) -> Option<String> {
+    let mut field = None;
+    let mut mark = |changed: bool, name: &str| {
+        if changed {
+            field = Some(name.to_string());
+        }
+    };
+    match query {
+        ProbeQuery::Ray { from, to, hits } => {
+            mark(point(ui, "from", from), "from");
+            mark(point(ui, "to", to), "to");
+            mark(hits_mode(ui, hits), "hits");
+        }
+        ProbeQuery::Sweep {
+            shape,
+            path,
+            hits,
+            duration,
+            clearance,
+            ..
+        } => {
+            mark(shape_editor(ui, shape, false), "shape");
+            for (i, p) in path.iter_mut().enumerate() {
+                mark(point(ui, &format!("point {i}"), p), &format!("point {i}"));
+            }
+            ui.label("");
+            ui.horizontal(|ui| {
+                if ui.button("Add point").on_hover_text("A new last point, 1 m further on").clicked() {
+                    let n = path.len();
+                    let step = (path[n - 1] - path[n - 2]).normalize_or(DVec3::X);
+                    path.push(path[n - 1] + step);
+                    mark(true, "path");
+                }
+                if ui
+                    .add_enabled(path.len() > 2, egui::Button::new("Remove last point"))
+                    .clicked()
+                {
+                    path.pop();
+                    mark(true, "path");
+                }
+            });
+            ui.end_row();
+            mark(hits_mode(ui, hits), "hits");
+            let label = ui.label("duration");
+            ui.horizontal(|ui| {
+                let mut timed = duration.is_some();
+                if ui.checkbox(&mut timed, "").labelled_by(label.id).changed() {
+                    *duration = timed.then_some(1.0);
+                    mark(true, "duration");
+                }
+                if let Some(d) = duration {
+                    let changed = ui
+                        .add(DragValue::new(d).speed(0.05).range(0.001..=1.0e6).suffix(" s"))
+                        .changed();
+                    mark(changed, "duration");
+                }
+            });
+            ui.end_row();
+            let label = ui.label("clearance");
+            let mut wanted = clearance.unwrap_or(false);
+            if ui
+                .checkbox(&mut wanted, "report the least clearance")
+                .labelled_by(label.id)
+                .changed()
+            {
+                *clearance = Some(wanted);
+                mark(true, "clearance");
+            }
+            ui.end_row();
+        }
+        ProbeQuery::Closest {
+            shape,
+            at,
+            max_distance,
+            ..
+        } => {
+            mark(shape_editor(ui, shape, true), "shape");
+            mark(point(ui, "at", at), "at");
+            mark(number(ui, "reach", max_distance, " m", 0.0), "reach");
+        }
+        ProbeQuery::Overlap { shape, at, .. } => {
+            mark(shape_editor(ui, shape, false), "shape");
+            mark(point(ui, "at", at), "at");
+        }
+    }
+    field
+}
+
+fn hits_mode(ui: &mut egui::Ui, hits: &mut Option<HitsMode>) -> bool {
+    let label = ui.label("hits");
+    let mut mode = hits.unwrap_or(HitsMode::First);
+    let before = mode;
+    ui.horizontal(|ui| {
+        ui.selectable_value(&mut mode, HitsMode::First, "first");
+        ui.selectable_value(&mut mode, HitsMode::All, "all");
+    })
+    .response
+    .labelled_by(label.id);
+    ui.end_row();
+    if mode != before {
+        *hits = Some(mode);
+        true
+    } else {
+        false
+    }
+}
+
+/// The shape's kind and sizes. `point_allowed` for closest-point probes.
+fn shape_editor(ui: &mut egui::Ui, shape: &mut ShapeSpec, point_allowed: bool) -> bool {
+    let label = ui.label("shape");
+    let mut kind = shape.type_name();
+    let mut kinds = vec!["sphere", "box", "capsule", "cylinder"];
+    if point_allowed {
+        kinds.insert(0, "point");
+    }
+    egui::ComboBox::from_id_salt("shape-kind")
+        .selected_text(kind)
+        .show_ui(ui, |ui| {
+            for k in &kinds {
+                ui.selectable_value(&mut kind, k, *k);
+            }
+        })
+        .response
+        .labelled_by(label.id);
+    ui.end_row();
+    let mut changed = false;
+    if kind != shape.type_name() {
+        *shape = match kind {
+            "point" => ShapeSpec::Point,
+            "sphere" => ShapeSpec::Sphere { radius: 0.35 },
+            "box" => ShapeSpec::Box {
+                half_extents: [0.5, 0.5, 0.5],
+            },
+            "cylinder" => ShapeSpec::Cylinder {
+                radius: 0.35,
+                half_height: 0.9,
+            },
+            _ => ShapeSpec::Capsule {
+                radius: 0.35,
+                half_height: 0.55,
+            },
+        };
+        changed = true;
+    }
+    match shape {
+        ShapeSpec::Sphere { radius } => changed |= number(ui, "radius", radius, " m", 0.001),
+        ShapeSpec::Box { half_extents } => {
+            for (name, h) in ["half x", "half y", "half z"].into_iter().zip(half_extents.iter_mut()) {
+                changed |= number(ui, name, h, " m", 0.001);
+            }
+        }
+        ShapeSpec::Capsule {
+            radius,
+            half_height,
+        }
+        | ShapeSpec::Cylinder {
+            radius,
+            half_height,
+        } => {
+            changed |= number(ui, "radius", radius, " m", 0.001);
+            changed |= number(ui, "half height", half_height, " m", 0.0);
+        }
+        _ => {}
+    }
+    changed
+}
+
+/// A comma-separated list of tags or names; returns the new list when it was edited.
+fn name_list(ui: &mut egui::Ui, name: &str, hint: &str, values: &[String]) -> Option<Vec<String>> {
+    let label = ui.label(name);
+    let mut text = values.join(", ");
+    let changed = ui
+        .add(
+            egui::TextEdit::singleline(&mut text)
+                .hint_text(hint)
+                .desired_width(f32::INFINITY),
+        )
+        .labelled_by(label.id)
+        .changed();
+    ui.end_row();
+    changed.then(|| {
+        text.split(',')
+            .map(|t| t.trim().to_string())
+            .filter(|t| !t.is_empty())
+            .collect()
+    })
+}
+
+/// Which objects the probe looks at.
+fn filter_fields(ui: &mut egui::Ui, probe: &mut Probe) -> Option<String> {
+    let filter = &mut probe.filter;
+    let mut field = None;
+    let only = filter.only_tags.clone().unwrap_or_default();
+    if let Some(only) = name_list(ui, "only tags", "every object", &only) {
+        filter.only_tags = (!only.is_empty()).then_some(only);
+        field = Some("only tags".to_string());
+    }
+    if let Some(tags) = name_list(ui, "ignores tags", "none", &filter.ignore_tags) {
+        filter.ignore_tags = tags;
+        field = Some("ignores tags".to_string());
+    }
+    if let Some(names) = name_list(ui, "ignores objects", "none", &filter.ignore_objects) {
+        filter.ignore_objects = names;
+        field = Some("ignores objects".to_string());
+    }
+    field
+}
+
+/// The expectation: none, clear, blocked, or conditions. Returns the new one when it changed.
+fn expect_editor(
+    ui: &mut egui::Ui,
+    query: &ProbeQuery,
+    expect: Option<&Expect>,
+) -> Option<Option<Expect>> {
+    let choice = match expect {
+        None => "nothing",
+        Some(Expect::Word(ExpectWord::Clear)) => "clear",
+        Some(Expect::Word(ExpectWord::Blocked)) => "blocked",
+        Some(Expect::Conditions(_)) => "conditions",
+    };
+    let mut picked = choice;
+    ui.horizontal(|ui| {
+        for option in ["nothing", "clear", "blocked", "conditions"] {
+            ui.selectable_value(&mut picked, option, option);
+        }
+    });
+    if picked != choice {
+        return Some(match picked {
+            "nothing" => None,
+            "clear" => Some(Expect::Word(ExpectWord::Clear)),
+            "blocked" => Some(Expect::Word(ExpectWord::Blocked)),
+            _ => Some(Expect::Conditions(
+                expect.map(Expect::conditions).unwrap_or_default(),
+            )),
+        });
+    }
+    let Some(Expect::Conditions(conditions)) = expect else {
+        return None;
+    };
+    let mut c = conditions.clone();
+    egui::Grid::new("conditions").num_columns(2).show(ui, |ui| {
+        optional_text(ui, "first object", &mut c.first_object);
+        optional_text(ui, "first tag", &mut c.first_tag);
+        let mut range = c.distance.unwrap_or_default();
+        let changed_min = optional_number(ui, "distance at least", &mut range.min);
+        let changed_max = optional_number(ui, "distance at most", &mut range.max);
+        if changed_min || changed_max {
+            c.distance = (range != Range::default()).then_some(range);
+        }
+        if matches!(query, ProbeQuery::Sweep { .. }) {
+            optional_number(ui, "clearance at least", &mut c.min_clearance);
+        }
+        if matches!(query, ProbeQuery::Overlap { .. }) {
+            optional_number(ui, "depth at most", &mut c.max_depth);
+        }
+    });
+    (c != *conditions).then_some(Some(Expect::Conditions(Conditions { ..c })))
+}
+
+fn optional_text(ui: &mut egui::Ui, name: &str, value: &mut Option<String>) {
+    let label = ui.label(name);
+    let mut text = value.clone().unwrap_or_default();
+    if ui
+        .add(egui::TextEdit::singleline(&mut text).hint_text("any"))
+        .labelled_by(label.id)
+        .changed()
+    {
+        *value = (!text.trim().is_empty()).then(|| text.trim().to_string());
+    }
+    ui.end_row();
+}
+
+fn optional_number(ui: &mut egui::Ui, name: &str, value: &mut Option<f64>) -> bool {
+    let label = ui.label(name);
+    let mut changed = false;
+    ui.horizontal(|ui| {
+        let mut on = value.is_some();
+        if ui.checkbox(&mut on, "").labelled_by(label.id).changed() {
+            *value = on.then_some(0.0);
+            changed = true;
+        }
+        if let Some(v) = value {
+            changed |= ui
+                .add(DragValue::new(v).speed(0.01).range(0.0..=1.0e6).max_decimals(3).suffix(" m"))
+                .changed();
+        }
+    });
+    ui.end_row();
+    changed
+}
