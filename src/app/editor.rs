@@ -125,7 +125,10 @@ fn point(ui: &mut egui::Ui, name: &str, p: &mut DVec3) -> bool {
     let label = ui.label(name);
     let mut changed = false;
     ui.horizontal(|ui| {
-        for (axis, value) in ["x", "y", "z"].into_iter().zip([&mut p.x, &mut p.y, &mut p.z]) {
+        for (axis, value) in ["x", "y", "z"]
+            .into_iter()
+            .zip([&mut p.x, &mut p.y, &mut p.z])
+        {
             let response = ui
                 .add(
                     DragValue::new(value)
@@ -174,7 +177,11 @@ fn query_fields(ui: &mut egui::Ui, query: &mut ProbeQuery) -> Option<String> {
             }
             ui.label("");
             ui.horizontal(|ui| {
-                if ui.button("Add point").on_hover_text("A new last point, 1 m further on").clicked() {
+                if ui
+                    .button("Add point")
+                    .on_hover_text("A new last point, 1 m further on")
+                    .clicked()
+                {
                     let n = path.len();
                     let step = (path[n - 1] - path[n - 2]).normalize_or(DVec3::X);
                     path.push(path[n - 1] + step);
@@ -199,7 +206,12 @@ fn query_fields(ui: &mut egui::Ui, query: &mut ProbeQuery) -> Option<String> {
                 }
                 if let Some(d) = duration {
                     let changed = ui
-                        .add(DragValue::new(d).speed(0.05).range(0.001..=1.0e6).suffix(" s"))
+                        .add(
+                            DragValue::new(d)
+                                .speed(0.05)
+                                .range(0.001..=1.0e6)
+                                .suffix(" s"),
+                        )
                         .changed();
                     mark(changed, "duration");
                 }
@@ -294,7 +306,10 @@ fn shape_editor(ui: &mut egui::Ui, shape: &mut ShapeSpec, point_allowed: bool) -
     match shape {
         ShapeSpec::Sphere { radius } => changed |= number(ui, "radius", radius, " m", 0.001),
         ShapeSpec::Box { half_extents } => {
-            for (name, h) in ["half x", "half y", "half z"].into_iter().zip(half_extents.iter_mut()) {
+            for (name, h) in ["half x", "half y", "half z"]
+                .into_iter()
+                .zip(half_extents.iter_mut())
+            {
                 changed |= number(ui, name, h, " m", 0.001);
             }
         }
@@ -430,7 +445,13 @@ fn optional_number(ui: &mut egui::Ui, name: &str, value: &mut Option<f64>) -> bo
         }
         if let Some(v) = value {
             changed |= ui
-                .add(DragValue::new(v).speed(0.01).range(0.0..=1.0e6).max_decimals(3).suffix(" m"))
+                .add(
+                    DragValue::new(v)
+                        .speed(0.01)
+                        .range(0.0..=1.0e6)
+                        .max_decimals(3)
+                        .suffix(" m"),
+                )
                 .changed();
         }
     });

@@ -182,7 +182,11 @@ impl Workbench {
             } => {
                 let mut chosen = None;
                 egui::Modal::new(egui::Id::unique("path-dialog")).show(ctx, |ui| {
-                    ui.heading(if saving { "Save the probe set as" } else { "Open" });
+                    ui.heading(if saving {
+                        "Save the probe set as"
+                    } else {
+                        "Open"
+                    });
                     ui.label(if saving {
                         "A *.probes.json file; the level is named relative to it."
                     } else {
@@ -192,7 +196,8 @@ impl Workbench {
                     let field = ui
                         .add(egui::TextEdit::singleline(&mut text).desired_width(460.0))
                         .labelled_by(label.id);
-                    let entered = field.lost_focus() && ui.input(|i| i.key_pressed(egui::Key::Enter));
+                    let entered =
+                        field.lost_focus() && ui.input(|i| i.key_pressed(egui::Key::Enter));
                     if let Some(e) = &error {
                         ui.label(RichText::new(e).color(egui::Color32::from_rgb(230, 159, 0)));
                     }
@@ -201,7 +206,10 @@ impl Workbench {
                         if ui.button(go).clicked() || entered {
                             chosen = Some(PathBuf::from(text.trim()));
                         }
-                        if ui.button("Browse…").on_hover_text("The system's file dialog").clicked()
+                        if ui
+                            .button("Browse…")
+                            .on_hover_text("The system's file dialog")
+                            .clicked()
                         {
                             chosen = system_dialog(saving, &text);
                         }
@@ -289,7 +297,11 @@ impl Workbench {
                     ui.horizontal(|ui| {
                         if ui.button("Restore").clicked() {
                             if let Some(recovered) = self.document.recovered() {
-                                self.replace_probes("restore", "restore recovered changes", recovered);
+                                self.replace_probes(
+                                    "restore",
+                                    "restore recovered changes",
+                                    recovered,
+                                );
                                 self.say("Recovered changes restored; save to keep them.".into());
                             }
                             close = true;

@@ -99,7 +99,9 @@ pub fn inspector_ui(
         ui.add_space(8.0);
         ui.label(RichText::new("No probe selected").strong());
         ui.label("Pick one in the list, or click its marker in the view.");
-        ui.label("To add one, pick a tool above (Ray, Sweep, Closest, Overlap) and click in the view.");
+        ui.label(
+            "To add one, pick a tool above (Ray, Sweep, Closest, Overlap) and click in the view.",
+        );
         return None;
     };
     let (Some(probe), Some(result)) = (
@@ -198,7 +200,11 @@ fn bulk_ui(
                 action = Some(InspectorAction::Run(command));
             }
         }
-        if ui.button("Expect nothing").on_hover_text("Remove their expectations").clicked() {
+        if ui
+            .button("Expect nothing")
+            .on_hover_text("Remove their expectations")
+            .clicked()
+        {
             let mut probes = document.probes.probes.clone();
             for &i in &chosen {
                 probes[i].expect = None;
@@ -234,7 +240,11 @@ fn bulk_ui(
         if ui.button("Ignore these tags").clicked() {
             apply("set ignored tags", &|p| p.filter.ignore_tags = tags.clone());
         }
-        if ui.button("Every object").on_hover_text("Clear their tag and name filters").clicked() {
+        if ui
+            .button("Every object")
+            .on_hover_text("Clear their tag and name filters")
+            .clicked()
+        {
             apply("clear filters", &|p| p.filter = Default::default());
         }
     });

@@ -251,7 +251,12 @@ impl Workbench {
         self.document.set_probes(probes);
         self.results_revision += 1;
         let n = self.document.probes.probes.len();
-        let kept: Vec<usize> = self.selection.all().into_iter().filter(|i| *i < n).collect();
+        let kept: Vec<usize> = self
+            .selection
+            .all()
+            .into_iter()
+            .filter(|i| *i < n)
+            .collect();
         let probe = self.selection.probe.filter(|i| *i < n);
         let hit = self.selection.hit;
         self.selection = Selection::of(probe.or(kept.first().copied()), kept);
@@ -350,7 +355,10 @@ impl Workbench {
         self.selection = Selection::default();
         self.replace_probes("delete", "delete", probes);
         self.history.seal();
-        self.say(format!("Deleted {} probe(s); Ctrl+Z brings them back.", chosen.len()));
+        self.say(format!(
+            "Deleted {} probe(s); Ctrl+Z brings them back.",
+            chosen.len()
+        ));
     }
 
     /// Sets each selected probe's expectation to what it shows now.
@@ -558,10 +566,16 @@ impl Workbench {
                 let undo = self.history.undo_name().map(|w| format!("Undo {w}"));
                 let redo = self.history.redo_name().map(|w| format!("Redo {w}"));
                 for (command, name) in [(Command::Undo, undo), (Command::Redo, redo)] {
-                    let shortcut = command.shortcut().map(|s| ctx.format_shortcut(&s)).unwrap_or_default();
+                    let shortcut = command
+                        .shortcut()
+                        .map(|s| ctx.format_shortcut(&s))
+                        .unwrap_or_default();
                     let text = name.clone().unwrap_or_else(|| command.name().to_string());
                     if ui
-                        .add_enabled(name.is_some(), egui::Button::new(text).shortcut_text(shortcut))
+                        .add_enabled(
+                            name.is_some(),
+                            egui::Button::new(text).shortcut_text(shortcut),
+                        )
                         .clicked()
                     {
                         chosen = Some(command);
@@ -614,7 +628,13 @@ impl Workbench {
                     "Unsaved changes (a recovery copy is kept every 10 s)"
                 });
             ui.separator();
-            for tool in [Tool::Select, Tool::Ray, Tool::Sweep, Tool::Closest, Tool::Overlap] {
+            for tool in [
+                Tool::Select,
+                Tool::Ray,
+                Tool::Sweep,
+                Tool::Closest,
+                Tool::Overlap,
+            ] {
                 let selected = self.tool == tool;
                 if ui
                     .selectable_label(selected, tool.name())
@@ -646,7 +666,12 @@ impl Workbench {
                 let mut height = self.lift().height;
                 let label = ui.label("Lift");
                 if ui
-                    .add(egui::DragValue::new(&mut height).speed(0.01).range(-100.0..=100.0).suffix(" m"))
+                    .add(
+                        egui::DragValue::new(&mut height)
+                            .speed(0.01)
+                            .range(-100.0..=100.0)
+                            .suffix(" m"),
+                    )
                     .labelled_by(label.id)
                     .on_hover_text("How far above the picked surface points are placed")
                     .changed()
@@ -654,7 +679,11 @@ impl Workbench {
                     self.lifts.insert(key, height);
                 }
                 egui::ComboBox::from_id_salt("lift-along")
-                    .selected_text(if self.lift_along_normal { "along the normal" } else { "along up" })
+                    .selected_text(if self.lift_along_normal {
+                        "along the normal"
+                    } else {
+                        "along up"
+                    })
                     .show_ui(ui, |ui| {
                         ui.selectable_value(&mut self.lift_along_normal, false, "along up");
                         ui.selectable_value(&mut self.lift_along_normal, true, "along the normal");
@@ -680,10 +709,11 @@ impl Workbench {
             {
                 self.viewport.frame_level();
             }
-            ui.toggle_value(&mut self.viewport.fly, "Fly").on_hover_text(
-                "Fly mode (G): drag to look around, W/A/S/D to move, Q/E down and up.\n\
+            ui.toggle_value(&mut self.viewport.fly, "Fly")
+                .on_hover_text(
+                    "Fly mode (G): drag to look around, W/A/S/D to move, Q/E down and up.\n\
                  Otherwise drag orbits, right or middle drag pans, the wheel zooms.",
-            );
+                );
         });
     }
 
@@ -733,8 +763,14 @@ impl Workbench {
             ui.separator();
             let warn = Color32::from_rgb(240, 228, 66);
             if let Some(e) = &self.reload_error {
-                ui.label(RichText::new("The level on disk cannot be read").color(warn).strong())
-                    .on_hover_text(format!("{e}\nThe answers shown are for the level as it was."));
+                ui.label(
+                    RichText::new("The level on disk cannot be read")
+                        .color(warn)
+                        .strong(),
+                )
+                .on_hover_text(format!(
+                    "{e}\nThe answers shown are for the level as it was."
+                ));
             } else if !self.changes.is_empty() {
                 ui.label(
                     RichText::new(format!(

@@ -7,9 +7,9 @@ use egui::{Color32, RichText};
 use std::collections::HashMap;
 
 use super::Selection;
-use crate::check::Aspect;
 use super::badge::{paint_mark, verdict_color32};
 use super::document::Document;
+use crate::check::Aspect;
 use crate::check::Verdict;
 use crate::view::palette::verdict_word;
 
@@ -127,10 +127,18 @@ pub fn probe_list_ui(
             let verdict = document.results[i].verdict;
             let selected = selection.contains(i);
             let changed = changes.get(&probe.id);
-            let mut response = probe_row(ui, row_height - 2.0, probe, verdict, selected, changed.is_some());
+            let mut response = probe_row(
+                ui,
+                row_height - 2.0,
+                probe,
+                verdict,
+                selected,
+                changed.is_some(),
+            );
             if let Some(aspects) = changed {
                 let words: Vec<String> = aspects.iter().map(|a| a.to_string()).collect();
-                response = response.on_hover_text(format!("Changed at the reload: {}", words.join("; ")));
+                response =
+                    response.on_hover_text(format!("Changed at the reload: {}", words.join("; ")));
             }
             if response.clicked() {
                 let modifiers = ui.input(|i| i.modifiers);

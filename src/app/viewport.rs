@@ -201,7 +201,15 @@ impl Viewport {
             _ => None,
         }
         .unwrap_or_default();
-        self.drag_handle(ui, document, &response, rect, &handles, authoring, &mut events);
+        self.drag_handle(
+            ui,
+            document,
+            &response,
+            rect,
+            &handles,
+            authoring,
+            &mut events,
+        );
         if self.dragging.is_none() {
             self.handle_camera_input(ui, &response, size);
         }
@@ -218,7 +226,11 @@ impl Viewport {
 
         let pointer = response.hover_pos().filter(|_| !response.dragged());
         self.hover = pointer.and_then(|p| self.pick(document, rect, p));
-        let lifted = |hover: &Hover| authoring.lift.apply(hover.point, hover.normal, document.world.up());
+        let lifted = |hover: &Hover| {
+            authoring
+                .lift
+                .apply(hover.point, hover.normal, document.world.up())
+        };
         if response.double_clicked() && authoring.tool != Tool::Select {
             events.finish = true;
         } else if response.clicked()
@@ -241,7 +253,15 @@ impl Viewport {
             ui.ctx().set_cursor_icon(egui::CursorIcon::Crosshair);
         }
 
-        self.update_marks(document, results_revision, shown, selection, &handles, preview, rect);
+        self.update_marks(
+            document,
+            results_revision,
+            shown,
+            selection,
+            &handles,
+            preview,
+            rect,
+        );
         let frame = FrameInput {
             camera: self.camera,
             level: self.drawing.clone(),

@@ -1,0 +1,296 @@
+//! Authoring probes in the workbench, driven headlessly by widget label (egui_kittest): placing a ray
+//! with clicks in the view, undo and redo, saving and reopening, expectations from answers, editing a
+//! number, the recovery file, a save that fails, the unsaved-changes guard, and a level reload. Every
+//! test works on a copy of the demo in a temporary folder; no file dialog is opened.
+
+use std::path::{Path, PathBuf};
+
+use eframe::egui::{self, Event, Key, Modifiers, PointerButton, Pos2};
+use egui_kittest::Harness;
+use egui_kittest::kittest::Queryable;
+use plumbline::app::Workbench;
+use plumbline::app::document::Document;
+use plumbline::check::Verdict;
+use plumbline::demo::files;
+use plumbline::probe::{ProbeSet, load_probe_set, probe_set_to_json};
+
+/// The demo copied into a fresh folder; returns the folder and the probe set's path.
+fn demo_copy() -> (tempfile::TempDir, PathBuf) {
+    let scenes = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("scenes");
+    let folder = tempfile::tempdir().unwrap();
+    for name in [files::GLB, files::LEVEL, files::EDITED_LEVEL, files::PROBES] {
+        std::fs::copy(scenes.join(name), folder.path().join(name)).unwrap();
+    }
+    let probes = folder.path().join(files::PROBES);
+    (folder, probes)
+}
+
+fn harness(path: &Path) -> Harness<'static, Workbench> {
+    let workbench = Workbench::new(Document::open(path).expect("the copy opens"));
+    let mut harness = Harness::builder()
+        .with_size([1400.0, 900.0])
+        .build_ui_state(|ui, workbench: &mut Workbench| workbench.ui(ui), workbench);
+    harness.run_steps(2);
+    harness
+}
+
+/// A click of the primary button at `at`.
+fn click_at(harness: &mut Harness<'static, Workbench>, at: Pos2) {
+    for pressed in [true, false] {
+        harness.input_mut().events.push(Event::PointerMoved(at));
+        harness.input_mut().events.push(Event::PointerButton {
+            pos: at,
+            button: PointerButton::Primary,
+            pressed,
+            modifiers: Modifiers::NONE,
+        });
+        harness.step();
+    }
+    harness.run_steps(2);
+}
+
+fn probes_of(harness: &Harness<'static, Workbench>) -> Vec<plumbline::probe::Probe> {
+    harness.state().document.probes.probes.clone()
+}
+
+#[test]
+fn a_ray_placed_in_the_view_can_be_undone_redone_saved_and_reopened_unchanged() {
+    let (folder, path) = demo_copy();
+    let mut harness = harness(&path);
+    let before = probes_of(&harness);
+
+    harness.get_by_label("Ray").click();
+    harness.run_steps(2);
+    let view = harness.state().viewport.last_rect;
+    click_at(&mut harness, view.center());
+    click_at(&mut harness, view.center() + egui::vec2(80.0, 30.0));
+
+    let after = probes_of(&harness);
+    assert_eq!(after.len(), before.len() + 1, "one new probe");
+    let new = after.last().unwrap();
+    assert_eq!(new.id, "ray");
+    assert_eq!(new.query.kind(), "ray");
+    // Both ends sit 1.7 m (eye height) above surfaces of the level.
+    let world = &harness.state().document.world;
+    for end in new.query.points() {
+        let below = world
+            .everything()
+            .ray_first(end, end - harness.state().document.world.up() * 1.7001)
+            .unwrap();
+        assert!(
+            below.is_some_and(|h| (h.distance - 1.7).abs() < 1e-6),
+            "{end}"
+        );
+    }
+    assert_eq!(harness.state().selection.probe, Some(after.len() - 1));
+    assert!(harness.state().document.is_dirty());
+
+    harness.key_press_modifiers(Modifiers::COMMAND, Key::Z);
+    harness.run_steps(2);
+    assert_eq!(probes_of(&harness), before, "undo removes it");
+    harness.key_press_modifiers(Modifiers::COMMAND | Modifiers::SHIFT, Key::Z);
+    harness.run_steps(2);
+    assert_eq!(probes_of(&harness), after, "redo brings it back");
+
+    // File ▸ Save as… with a typed path.
+    let saved = folder.path().join("yard-edit.probes.json");
+    harness.get_by_label("File").click();
+    harness.run_steps(2);
+    harness.get_by_label_contains("Save as…").click();
+    harness.run_steps(2);
+    harness.get_by_label("Path").focus();
+    harness.run_steps(1);
+    harness.key_press_modifiers(Modifiers::COMMAND, Key::A);
+    harness.run_steps(1);
+    harness
+        .get_by_label("Path")
+        .type_text(saved.to_str().unwrap());
+    harness.run_steps(1);
+    harness.get_by_label("Save").click();
+    harness.run_steps(2);
+    assert!(!harness.state().document.is_dirty());
+    assert_eq!(
+        harness.state().document.probes_path.as_deref(),
+        Some(saved.as_path())
+    );
+
+    let reopened = load_probe_set(&saved).unwrap();
+    assert_eq!(reopened.probes, after);
+    assert_eq!(reopened.level, files::LEVEL);
+    let bytes = std::fs::read_to_string(&saved).unwrap();
+    assert_eq!(
+        bytes,
+        probe_set_to_json(&reopened),
+        "saving the reopened set gives the same file"
+    );
+}
+
+#[test]
+fn expect_this_answer_makes_an_unchecked_probe_pass() {
+    let (_folder, path) = demo_copy();
+    let mut harness = harness(&path);
+    let index = probes_of(&harness)
+        .iter()
+        .position(|p| p.expect.is_none())
+        .expect("the demo has an unchecked probe");
+    let id = probes_of(&harness)[index].id.clone();
+    harness.state_mut().select_probe(Some(index));
+    harness.run_steps(2);
+    assert_eq!(
+        harness.state().document.results[index].verdict,
+        Verdict::Unchecked
+    );
+
+    harness.get_by_label("Expect this answer").click();
+    harness.run_steps(2);
+    let workbench = harness.state();
+    assert!(
+        workbench.document.probes.probes[index].expect.is_some(),
+        "{id}"
+    );
+    assert_eq!(workbench.document.results[index].verdict, Verdict::Pass);
+    harness.get_by_label_contains(&format!("pass  {id}"));
+}
+
+#[test]
+fn editing_a_number_in_the_inspector_answers_the_probe_again() {
+    let (_folder, path) = demo_copy();
+    let mut harness = harness(&path);
+    let index = probes_of(&harness)
+        .iter()
+        .position(|p| p.id == "gate-view-of-office-blocked")
+        .unwrap();
+    harness.state_mut().select_probe(Some(index));
+    harness.run_steps(2);
+    assert!(!harness.state().document.results[index].hits.is_empty());
+    assert_eq!(
+        harness.state().document.results[index].verdict,
+        Verdict::Pass
+    );
+
+    // Lift the ray's start 40 m up: it now passes over every container.
+    harness.get_by_label("from y").set_value_accesskit(40.0);
+    harness.run_steps(2);
+    let workbench = harness.state();
+    let plumbline::probe::ProbeQuery::Ray { from, .. } =
+        workbench.document.probes.probes[index].query
+    else {
+        unreachable!()
+    };
+    assert_eq!(from.y, 40.0);
+    assert_eq!(workbench.document.results[index].verdict, Verdict::Fail);
+    harness.get_by_label_contains("FAIL  gate-view-of-office-blocked");
+    assert_eq!(harness.state().history.undo_name(), Some("edit from"));
+}
+
+#[test]
+fn a_recovery_file_is_offered_at_start_and_restored() {
+    let (_folder, path) = demo_copy();
+    let document = Document::open(&path).unwrap();
+    // A session that had deleted the first probe, then stopped without saving.
+    let mut probes = document.probes.clone();
+    probes.probes.remove(0);
+    let recovery = document.recovery_path();
+    std::fs::write(
+        &recovery,
+        probe_set_to_json(&ProbeSet {
+            level: files::LEVEL.into(),
+            probes: probes.probes.clone(),
+        }),
+    )
+    .unwrap();
+
+    let mut harness = harness(&path);
+    harness.get_by_label("Recover unsaved changes?");
+    harness.get_by_label("Restore").click();
+    harness.run_steps(2);
+    assert_eq!(probes_of(&harness), probes.probes);
+    assert!(harness.state().document.is_dirty());
+    assert!(harness.query_by_label("Recover unsaved changes?").is_none());
+
+    // Saving keeps the changes and retires the recovery file.
+    harness.key_press_modifiers(Modifiers::COMMAND, Key::S);
+    harness.run_steps(2);
+    assert!(!recovery.exists());
+    assert_eq!(load_probe_set(&path).unwrap().probes, probes.probes);
+}
+
+#[test]
+fn a_save_that_fails_leaves_the_file_on_disk_intact_and_says_why() {
+    let (folder, path) = demo_copy();
+    let original = std::fs::read(&path).unwrap();
+    let mut harness = harness(&path);
+    harness.state_mut().select_probe(Some(0));
+    harness.run_steps(1);
+    harness.get_by_label("Delete").click();
+    harness.run_steps(2);
+    assert!(harness.state().document.is_dirty());
+
+    // Something already sits where the save's temporary file must go.
+    let blocker = folder
+        .path()
+        .join(format!(".{}.{}.tmp", files::PROBES, std::process::id()));
+    std::fs::create_dir(&blocker).unwrap();
+    harness.key_press_modifiers(Modifiers::COMMAND, Key::S);
+    harness.run_steps(2);
+
+    assert_eq!(
+        std::fs::read(&path).unwrap(),
+        original,
+        "the probe set on disk is untouched"
+    );
+    assert!(
+        harness.state().document.is_dirty(),
+        "the edit is still unsaved, not lost"
+    );
+    harness.get_by_label_contains("cannot save");
+}
+
+#[test]
+fn closing_with_unsaved_changes_asks_first() {
+    let (_folder, path) = demo_copy();
+    let mut harness = harness(&path);
+    harness.state_mut().select_probe(Some(0));
+    harness.run_steps(1);
+    harness.get_by_label("Duplicate").click();
+    harness.run_steps(2);
+
+    harness
+        .input_mut()
+        .viewports
+        .entry(egui::ViewportId::ROOT)
+        .or_default()
+        .events
+        .push(egui::ViewportEvent::Close);
+    harness.run_steps(2);
+    harness.get_by_label("Unsaved changes");
+    harness.get_by_label("Cancel").click();
+    harness.run_steps(2);
+    assert!(harness.query_by_label("Unsaved changes").is_none());
+    assert!(harness.state().document.is_dirty());
+}
+
+#[test]
+fn a_level_edited_on_disk_is_reloaded_and_what_changed_is_shown_until_dismissed() {
+    let (folder, path) = demo_copy();
+    let mut harness = harness(&path);
+    // Someone saves the edited level over the one the probes use.
+    std::fs::copy(
+        folder.path().join(files::EDITED_LEVEL),
+        folder.path().join(files::LEVEL),
+    )
+    .unwrap();
+    harness.state_mut().reload_level();
+    harness.run_steps(2);
+
+    let changes = harness.state().changes.clone();
+    assert_eq!(changes.len(), 3, "{changes:?}");
+    assert!(changes.contains_key("gate-sees-warehouse-door"));
+    harness.get_by_label("Level reloaded: 3 probe(s) changed");
+    harness.get_by_label_contains("gate-sees-warehouse-door changed");
+
+    harness.get_by_label("Dismiss").click();
+    harness.run_steps(2);
+    assert!(harness.state().changes.is_empty());
+    harness.get_by_label("Answers match the level on disk");
+}
