@@ -100,7 +100,7 @@ impl Capture {
         let Some(path) = self.screenshot.clone() else {
             return;
         };
-        if self.frame >= SETTLE_FRAMES && !self.requested {
+        if self.frame >= SETTLE_FRAMES && !self.requested && !workbench.is_busy() {
             self.requested = true;
             let slot = self.image.clone();
             let wake = ctx.clone();

@@ -2,6 +2,7 @@
 //! whether the level on disk still matches what was answered.
 
 use std::path::{Path, PathBuf};
+use std::sync::Arc;
 use std::time::SystemTime;
 
 use crate::atomic::{write_atomic, write_with_backup};
@@ -20,8 +21,8 @@ pub struct Document {
     pub probes_path: Option<PathBuf>,
     /// The level as loaded (kept for drawing and for naming triangles).
     pub level: Level,
-    /// The query world built from it.
-    pub world: World,
+    /// The query world built from it (shared with background work such as clearance plots).
+    pub world: Arc<World>,
     /// The probes.
     pub probes: ProbeSet,
     /// One answer per probe, in probe order.
@@ -62,7 +63,8 @@ impl Document {
         let (level, diagnostics) = load_level(&level_path).map_err(|e| e.to_string())?;
         let warnings = diagnostics.iter().map(|d| d.to_string()).collect();
         let level_digest = level_digest(&level);
-        let world = World::new(&level).map_err(|e| format!("{}: {e}", level_path.display()))?;
+        let world =
+            Arc::new(World::new(&level).map_err(|e| format!("{}: {e}", level_path.display()))?);
         let results = run_probes(&world, &probes.probes, None, &|_| {})?;
         Ok(Document {
             level_path,
@@ -205,7 +207,7 @@ impl Document {
         self.level_digest = level_digest(&level);
         self.warnings = diagnostics.iter().map(|d| d.to_string()).collect();
         self.level = level;
-        self.world = world;
+        self.world = Arc::new(world);
         self.results = results;
         self.stamps = stamps;
         Ok(changed)

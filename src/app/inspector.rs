@@ -17,7 +17,7 @@ use super::editor::{Edit, EditorState, probe_editor};
 use crate::check::{Aspect, Hits, ProbeResult, Verdict, metres};
 use crate::level::ShapeSpec;
 use crate::probe::{Expect, Probe, ProbeQuery};
-use crate::query::ProbeShape;
+use crate::query::{ProbeShape, World};
 use crate::view::palette::{SELECTED, okabe_ito};
 
 /// Places along the path where the clearance plot measures the distance to the level.
@@ -37,10 +37,13 @@ pub struct ClearancePlot {
 }
 
 impl ClearancePlot {
-    /// Measures the clearance of a sweep probe; `None` for other kinds or when it cannot be answered.
-    pub fn measure(document: &Document, index: usize) -> Option<ClearancePlot> {
-        let probe = document.probes.probes.get(index)?;
-        let result = document.results.get(index)?;
+    /// The plot of `probe` (number `index`) with its answer `result`.
+    pub fn of(
+        world: &World,
+        probe: &Probe,
+        result: &ProbeResult,
+        index: usize,
+    ) -> Option<ClearancePlot> {
         let ProbeQuery::Sweep {
             shape,
             rotation,
@@ -51,14 +54,18 @@ impl ClearancePlot {
             return None;
         };
         let shape = ProbeShape::new(shape, rotation.unwrap_or(DQuat::IDENTITY)).ok()?;
-        let view = document.world.view(&probe.filter);
+        let view = world.view(&probe.filter);
         let profile = view.clearance_profile(&shape, path, PROFILE_SAMPLES).ok()?;
         let length: f64 = path.windows(2).map(|w| w[0].distance(w[1])).sum();
-        let minimum = view
-            .sweep_clearance(&shape, path, None)
-            .ok()
-            .flatten()
-            .map(|c| (c.t * length, c.distance));
+        // The answer's own least clearance when it has one, else measured here (exactly, too).
+        let minimum = match &result.clearance {
+            Some(c) => Some((c.t * length, c.distance)),
+            None => view
+                .sweep_clearance(&shape, path, None)
+                .ok()
+                .flatten()
+                .map(|c| (c.t * length, c.distance)),
+        };
         let impacts = match &result.hits {
             Hits::Sweep(hits) => hits.iter().map(|h| h.distance).collect(),
             _ => Vec::new(),
@@ -76,7 +83,7 @@ impl ClearancePlot {
 #[derive(Debug, Clone, PartialEq)]
 pub enum InspectorAction {
     /// Apply an edit of probe `.0`.
-    Edit(usize, Edit),
+    Edit(usize, Box<Edit>),
     /// Run a command on the selection.
     Run(Command),
     /// Replace the probes with these (a bulk edit of the selection), named `.0`.
@@ -157,7 +164,7 @@ pub fn inspector_ui(
         .show(ui, |ui| {
             let taken = |id: &str| document.probes.probes.iter().any(|p| p.id == id);
             if let Some(edit) = probe_editor(ui, index, probe, editor, &taken) {
-                action = Some(InspectorAction::Edit(index, edit));
+                action = Some(InspectorAction::Edit(index, Box::new(edit)));
             }
         });
     action

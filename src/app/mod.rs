@@ -11,6 +11,7 @@ pub mod editor;
 pub mod files;
 pub mod history;
 pub mod inspector;
+pub mod plotting;
 pub mod probe_list;
 pub mod tools;
 pub mod viewport;
@@ -32,7 +33,7 @@ use document::Document;
 use editor::{Edit, EditorState};
 use files::Dialog;
 use history::History;
-use inspector::{ClearancePlot, InspectorAction, inspector_ui};
+use inspector::{InspectorAction, inspector_ui};
 use probe_list::{ListFilter, probe_list_ui};
 use tools::{Authoring, DragMode, Lift, Tool, new_probe};
 use viewport::{ViewEvents, Viewport};
@@ -152,7 +153,8 @@ pub struct Workbench {
     /// How dragged handles move.
     pub drag_mode: DragMode,
     editor: EditorState,
-    plot: Option<ClearancePlot>,
+    plots: plotting::PlotWorker,
+    plot_wanted: bool,
     results_revision: u64,
     scroll_list: bool,
     last_disk_check: Instant,
@@ -185,7 +187,8 @@ impl Workbench {
             lift_along_normal: false,
             drag_mode: DragMode::default(),
             editor: EditorState::default(),
-            plot: None,
+            plots: plotting::PlotWorker::default(),
+            plot_wanted: false,
             results_revision: 1,
             scroll_list: false,
             last_disk_check: Instant::now(),
@@ -209,8 +212,13 @@ impl Workbench {
         self.history.clear();
         self.changes.clear();
         self.placed.clear();
-        self.plot = None;
+        self.plot_wanted = true;
         self.results_revision += 1;
+    }
+
+    /// True while background work (a clearance plot) is still running.
+    pub fn is_busy(&self) -> bool {
+        self.plot_wanted || self.plots.is_busy()
     }
 
     /// Shows a status message in the summary bar.
@@ -228,16 +236,13 @@ impl Workbench {
     }
 
     fn after_selection(&mut self, frame_it: bool) {
+        self.plot_wanted = true;
         let Some(index) = self.selection.probe else {
-            self.plot = None;
             return;
         };
         if frame_it && let Some(probe) = self.document.probes.probes.get(index) {
             self.viewport
                 .frame_points(&probe_points(probe, self.document.results.get(index)));
-        }
-        if self.plot.as_ref().is_none_or(|p| p.probe != index) {
-            self.plot = ClearancePlot::measure(&self.document, index);
         }
     }
 
@@ -262,10 +267,7 @@ impl Workbench {
         self.selection = Selection::of(probe.or(kept.first().copied()), kept);
         self.selection.hit = hit;
         // The plot follows the probe's new answer.
-        self.plot = self
-            .selection
-            .probe
-            .and_then(|i| ClearancePlot::measure(&self.document, i));
+        self.plot_wanted = true;
     }
 
     /// Applies an edit of one probe when it is valid; says why not otherwise.
@@ -423,6 +425,7 @@ impl Workbench {
         self.check_disk(&ctx);
         self.shortcuts(&ctx);
         self.autosave();
+        self.plots.poll();
         let shown = self.filter.shown(&self.document);
 
         egui::Panel::top("menus").show(ui, |ui| self.menu_bar(ui));
@@ -464,12 +467,13 @@ impl Workbench {
                             &self.document,
                             &mut self.selection,
                             &mut self.editor,
-                            self.plot.as_ref(),
+                            self.plots.plot(),
                             &self.changes,
                         );
                     });
                 match action {
-                    Some(InspectorAction::Edit(index, Edit { field, probe })) => {
+                    Some(InspectorAction::Edit(index, edit)) => {
+                        let Edit { field, probe } = *edit;
                         self.edit_probe(index, &field, probe)
                     }
                     Some(InspectorAction::Run(command)) => self.run(command, &ctx),
@@ -499,6 +503,12 @@ impl Workbench {
             self.view_events(events, &shown);
         });
         self.dialog_ui(&ctx);
+        // One measurement at a time; changes made meanwhile are measured when it is done.
+        if self.plot_wanted && !self.plots.is_busy() {
+            self.plot_wanted = false;
+            self.plots
+                .request(&self.document, self.selection.probe, &ctx);
+        }
         // A gesture ends when nothing is being dragged or typed into.
         if ctx.dragged_id().is_none() && ctx.memory(|m| m.focused().is_none()) {
             self.history.seal();
@@ -827,10 +837,7 @@ impl Workbench {
                     .collect();
                 self.viewport.set_level(&self.document);
                 self.results_revision += 1;
-                self.plot = self
-                    .selection
-                    .probe
-                    .and_then(|i| ClearancePlot::measure(&self.document, i));
+                self.plot_wanted = true;
             }
             Err(e) => self.reload_error = Some(e),
         }
