@@ -75,7 +75,7 @@ fn a_ray_placed_in_the_view_can_be_undone_redone_saved_and_reopened_unchanged() 
     for end in new.query.points() {
         let below = world
             .everything()
-            .ray_first(end, end - harness.state().document.world.up() * 1.7001)
+            .ray_first(end, end - harness.state().document.world.up() * 1.71)
             .unwrap();
         assert!(
             below.is_some_and(|h| (h.distance - 1.7).abs() < 1e-6),

@@ -585,6 +585,8 @@ impl Viewport {
     ) {
         let painter = ui.painter().with_clip_rect(rect);
         let font = FontId::proportional(13.0);
+        // Labels already placed; a label that would cover one moves down below it.
+        let mut taken: Vec<Rect> = Vec::new();
         for &i in shown.iter().take(MAX_DRAWN_PROBES) {
             let (Some(probe), Some(result)) =
                 (document.probes.probes.get(i), document.results.get(i))
@@ -605,12 +607,19 @@ impl Viewport {
                 format!("{}  {}", verdict_word(result.verdict), probe.id)
             };
             let galley = painter.layout_no_wrap(text, font.clone(), Color32::WHITE);
-            let pos = at + Vec2::new(26.0, -galley.size().y - 6.0);
-            let frame = Rect::from_min_size(
-                pos - Vec2::new(16.0, 0.0),
-                galley.size() + Vec2::new(16.0, 0.0),
-            )
-            .expand2(Vec2::new(5.0, 2.0));
+            let mut pos = at + Vec2::new(26.0, -galley.size().y - 6.0);
+            let frame_at = |pos: Pos2| {
+                Rect::from_min_size(
+                    pos - Vec2::new(16.0, 0.0),
+                    galley.size() + Vec2::new(16.0, 0.0),
+                )
+                .expand2(Vec2::new(5.0, 2.0))
+            };
+            while let Some(below) = taken.iter().find(|r| r.intersects(frame_at(pos))) {
+                pos.y = below.bottom() + 3.0;
+            }
+            let frame = frame_at(pos);
+            taken.push(frame);
             painter.rect_filled(frame, 3.0, Color32::from_rgba_unmultiplied(20, 22, 28, 225));
             painter.rect_stroke(
                 frame,
