@@ -1,7 +1,8 @@
-//! Live answers while a probe is edited in the window: the work done for every change of a probe (a
-//! dragged point, a typed number) on the 1M-triangle level. For a ray that is answering it; for a
-//! 10 m capsule sweep it is answering it (with its least clearance) and measuring the clearance plot
-//! (240 distance samples along the path and the exact minimum). Target: ≤ 16 ms per change.
+//! Live answers while a probe is edited in the window: the work done on the UI thread for every change
+//! of a probe (a dragged point, a typed number) on the 1M-triangle level: answering it, for a ray, or
+//! for a 10 m capsule sweep with its exact least clearance. Target: ≤ 16 ms per change. The sweep's
+//! clearance plot (240 distance samples along the path) is measured too; the window draws it from a
+//! background thread.
 
 mod common;
 
@@ -73,13 +74,20 @@ fn live(c: &mut Criterion) {
         })
     });
     let mut k = 0;
+    group.bench_function(BenchmarkId::new("10 m capsule sweep", "answer"), |b| {
+        b.iter(|| {
+            k = (k + 1) % sweeps.len();
+            black_box(answer_probe(&world, &sweeps[k]))
+        })
+    });
+    let answers: Vec<_> = sweeps.iter().map(|p| answer_probe(&world, p)).collect();
+    let mut k = 0;
     group.bench_function(
-        BenchmarkId::new("10 m capsule sweep", "answer + clearance plot"),
+        BenchmarkId::new("10 m capsule sweep", "clearance plot"),
         |b| {
             b.iter(|| {
                 k = (k + 1) % sweeps.len();
-                let result = answer_probe(&world, &sweeps[k]);
-                black_box(ClearancePlot::of(&world, &sweeps[k], &result, k))
+                black_box(ClearancePlot::of(&world, &sweeps[k], &answers[k], k))
             })
         },
     );
