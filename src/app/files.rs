@@ -63,7 +63,11 @@ impl Workbench {
     /// Saves to the probe set's own file, or asks where when it has none yet.
     pub fn save(&mut self) {
         match self.document.probes_path.clone() {
-            Some(path) => self.save_to(&path),
+            Some(path) => {
+                if let Err(e) = self.save_to(&path) {
+                    self.say(e);
+                }
+            }
             None => self.ask_save_as(),
         }
     }
@@ -89,15 +93,12 @@ impl Workbench {
         });
     }
 
-    /// Saves to `path` (atomically, the old file kept as `.bak`); reports how it went.
-    pub fn save_to(&mut self, path: &Path) {
-        match self.document.save(path) {
-            Ok(()) => {
-                self.remember_recent(path);
-                self.say(format!("Saved {}", path.display()));
-            }
-            Err(e) => self.say(e),
-        }
+    /// Saves to `path` (atomically, the old file kept as `.bak`).
+    pub fn save_to(&mut self, path: &Path) -> Result<(), String> {
+        self.document.save(path)?;
+        self.remember_recent(path);
+        self.say(format!("Saved {}", path.display()));
+        Ok(())
     }
 
     /// Opens `path` in place of the current document, unless there are unsaved changes to ask about.
@@ -319,15 +320,13 @@ impl Workbench {
         }
     }
 
+    /// Saves to a path the user typed or picked, which must name a probe set.
     fn save_to_checked(&mut self, path: &Path) -> Result<(), String> {
         let name = path.file_name().and_then(|n| n.to_str()).unwrap_or("");
         if !name.ends_with(".probes.json") {
             return Err("A probe set's file name ends in .probes.json.".into());
         }
-        self.document.save(path)?;
-        self.remember_recent(path);
-        self.say(format!("Saved {}", path.display()));
-        Ok(())
+        self.save_to(path)
     }
 
     /// The open file's name, for messages.
