@@ -113,6 +113,9 @@ pub struct Viewport {
     pub frame_log: Option<Arc<Mutex<FrameLog>>>,
     /// The handle being dragged: index into the selected probe's points.
     dragging: Option<usize>,
+    /// The opening view, framed before the view's shape was known; framed again on the first frame
+    /// unless something moved the camera meanwhile.
+    opening: Option<OrbitCamera>,
     /// Where the view was on screen in the last frame, in points.
     pub last_rect: Rect,
     /// Draw as if the camera were moving (`Some(true)`) or resting (`Some(false)`) whatever it does
@@ -150,6 +153,7 @@ impl Viewport {
             force_moving: None,
             last_rect: Rect::NOTHING,
             dragging: None,
+            opening: Some(camera),
         }
     }
 
@@ -165,9 +169,21 @@ impl Viewport {
         &self.drawing
     }
 
+    /// Width over height of the view as last drawn (1 before the first frame).
+    fn aspect(&self) -> f64 {
+        let size = self.last_rect.size();
+        if size.x > 0.0 && size.y > 0.0 {
+            (size.x / size.y) as f64
+        } else {
+            1.0
+        }
+    }
+
     /// Frames the whole level.
     pub fn frame_level(&mut self) {
-        self.camera.frame(self.drawing.min, self.drawing.max, 0.8);
+        let aspect = self.aspect();
+        self.camera
+            .frame(self.drawing.min, self.drawing.max, 0.8, aspect);
     }
 
     /// Frames a set of points (a probe and its answer), keeping the heading.
@@ -179,7 +195,8 @@ impl Viewport {
             .iter()
             .fold((*first, *first), |(lo, hi), p| (lo.min(*p), hi.max(*p)));
         let pad = DVec3::splat(1.5);
-        self.camera.frame(lo - pad, hi + pad, 1.15);
+        let aspect = self.aspect();
+        self.camera.frame(lo - pad, hi + pad, 1.15, aspect);
     }
 
     /// Shows the viewport in `ui`.
@@ -194,6 +211,10 @@ impl Viewport {
         } = *scene;
         let (rect, response) = ui.allocate_exact_size(ui.available_size(), Sense::click_and_drag());
         self.last_rect = rect;
+        if self.opening.take() == Some(self.camera) {
+            self.frame_level();
+            self.last_camera = self.camera;
+        }
         let size = DVec2::new(rect.width() as f64, rect.height() as f64);
         let mut events = ViewEvents::default();
         let handles = match (authoring.tool, selection.single()) {

@@ -34,16 +34,20 @@ impl OrbitCamera {
             pitch: 0.55,
             up: up.normalize(),
         };
-        camera.frame(min, max, 0.8);
+        camera.frame(min, max, 0.8, 1.0);
         camera
     }
 
-    /// Moves the target to the box centre and backs off until the box's bounding ball fits in view,
-    /// times `margin` (below 1 comes closer: the ball is generous for flat levels).
-    pub fn frame(&mut self, min: DVec3, max: DVec3, margin: f64) {
+    /// Moves the target to the box centre and backs off until the box's bounding ball fits in a view
+    /// of the given aspect ratio (width / height), times `margin` (below 1 comes closer: the ball is
+    /// generous for flat levels).
+    pub fn frame(&mut self, min: DVec3, max: DVec3, margin: f64, aspect: f64) {
         let radius = ((max - min).length() * 0.5).max(0.05);
+        let half_tan = (FIELD_OF_VIEW * 0.5).tan();
+        // The narrower of the two fields of view decides.
+        let half_angle = half_tan.min(half_tan * aspect.max(0.1)).atan();
         self.target = (min + max) * 0.5;
-        self.distance = radius / (FIELD_OF_VIEW * 0.5).sin() * margin;
+        self.distance = radius / half_angle.sin() * margin;
     }
 
     /// Two horizontal unit axes that, with `up`, make a right-handed frame.
