@@ -294,3 +294,73 @@ fn a_level_edited_on_disk_is_reloaded_and_what_changed_is_shown_until_dismissed(
     assert!(harness.state().changes.is_empty());
     harness.get_by_label("Answers match the level on disk");
 }
+
+/// Height of `p` above the level straight below it.
+fn height_above_level(world: &plumbline::query::World, p: glam::DVec3) -> f64 {
+    world
+        .everything()
+        .ray_first(p, p - world.up() * 1.0e4)
+        .unwrap()
+        .expect("level below")
+        .distance
+}
+
+#[test]
+fn a_handle_dragged_over_surfaces_keeps_its_height_and_is_one_undo_step() {
+    use plumbline::app::tools::DragMode;
+
+    let (_folder, path) = demo_copy();
+    let mut harness = harness(&path);
+    let index = probes_of(&harness)
+        .iter()
+        .position(|p| p.id == "gate-view-of-office-blocked")
+        .unwrap();
+    harness.state_mut().select_probe(Some(index));
+    harness.state_mut().drag_mode = DragMode::Surface;
+    harness.run_steps(3);
+    let start = probes_of(&harness)[index].query.points()[0];
+    let world = harness.state().document.world.clone();
+    let height = height_above_level(&world, start);
+    let at = harness
+        .state()
+        .viewport
+        .to_screen(harness.state().viewport.last_rect, start)
+        .expect("the ray's start is in view");
+
+    let press = |harness: &mut Harness<'static, Workbench>, pos: Pos2, pressed: bool| {
+        harness.input_mut().events.push(Event::PointerMoved(pos));
+        harness.input_mut().events.push(Event::PointerButton {
+            pos,
+            button: PointerButton::Primary,
+            pressed,
+            modifiers: Modifiers::NONE,
+        });
+        harness.step();
+    };
+    press(&mut harness, at, true);
+    for k in 1..=8 {
+        let pos = at + egui::vec2(6.0 * k as f32, 3.0 * k as f32);
+        harness.input_mut().events.push(Event::PointerMoved(pos));
+        harness.step();
+    }
+    press(&mut harness, at + egui::vec2(48.0, 24.0), false);
+    harness.run_steps(2);
+
+    let moved = probes_of(&harness)[index].query.points()[0];
+    assert!(
+        moved.distance(start) > 0.5,
+        "the start moved: {start} -> {moved}"
+    );
+    assert!(
+        (height_above_level(&world, moved) - height).abs() < 2e-3,
+        "kept {height} m above the level"
+    );
+    assert_eq!(harness.state().history.undo_name(), Some("edit point 0"));
+    harness.key_press_modifiers(Modifiers::COMMAND, Key::Z);
+    harness.run_steps(2);
+    assert_eq!(
+        probes_of(&harness)[index].query.points()[0],
+        start,
+        "one undo brings it back"
+    );
+}

@@ -669,9 +669,13 @@ impl Workbench {
                         }
                     })
                     .response
-                    .labelled_by(label.id);
+                    .labelled_by(label.id)
+                    .on_hover_text(
+                        "How the white handles of the selected probe move; over surfaces, a \
+                         point keeps its height above the level",
+                    );
             }
-            if self.tool != Tool::Select || self.drag_mode == DragMode::Surface {
+            if self.tool != Tool::Select {
                 let key = self.tool.name();
                 let mut height = self.lift().height;
                 let label = ui.label("Lift");

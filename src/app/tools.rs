@@ -130,7 +130,7 @@ pub enum DragMode {
     ViewPlane,
     /// Along one world axis (0 = X, 1 = Y, 2 = Z).
     Axis(usize),
-    /// Over the level's surfaces, lifted like a placed point.
+    /// Over the level's surfaces, keeping the point's height above them.
     Surface,
 }
 

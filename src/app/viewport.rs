@@ -13,7 +13,7 @@ use glam::{DVec2, DVec3};
 use super::Selection;
 use super::badge::{paint_mark, verdict_color32};
 use super::document::Document;
-use super::tools::{Authoring, DragMode, Tool, drag_along_axis, drag_in_view_plane};
+use super::tools::{Authoring, DragMode, Lift, Tool, drag_along_axis, drag_in_view_plane};
 use crate::check::{Aspect, Hits, Verdict};
 use crate::view::palette::{StateMark, okabe_ito, verdict_word};
 use crate::view::probe_marks::{probe_points, start_point};
@@ -113,6 +113,9 @@ pub struct Viewport {
     pub frame_log: Option<Arc<Mutex<FrameLog>>>,
     /// The handle being dragged: index into the selected probe's points.
     dragging: Option<usize>,
+    /// How high the dragged handle was above the level when the drag began (kept when it slides over
+    /// surfaces).
+    drag_height: f64,
     /// The opening view, framed before the view's shape was known; framed again on the first frame
     /// unless something moved the camera meanwhile.
     opening: Option<OrbitCamera>,
@@ -153,6 +156,7 @@ impl Viewport {
             force_moving: None,
             last_rect: Rect::NOTHING,
             dragging: None,
+            drag_height: 0.0,
             opening: Some(camera),
         }
     }
@@ -371,6 +375,18 @@ impl Viewport {
                 .filter(|(_, d)| *d <= CLICK_REACH)
                 .min_by(|a, b| a.1.total_cmp(&b.1))
                 .map(|(k, _)| k);
+            let up = document.world.up();
+            self.drag_height = self
+                .dragging
+                .and_then(|k| handles.get(k))
+                .and_then(|h| {
+                    document
+                        .world
+                        .everything()
+                        .ray_first(*h, *h - up * 1.0e4)
+                        .ok()?
+                })
+                .map_or(0.0, |hit| hit.distance);
         }
         if !response.dragged_by(egui::PointerButton::Primary) {
             self.dragging = None;
@@ -390,9 +406,14 @@ impl Viewport {
                 let axis = [DVec3::X, DVec3::Y, DVec3::Z][a.min(2)];
                 drag_along_axis(&self.camera, pixel, size, anchor, axis)
             }
-            DragMode::Surface => self
-                .pick(document, rect, p)
-                .map(|h| authoring.lift.apply(h.point, h.normal, document.world.up())),
+            DragMode::Surface => {
+                let keep = Lift {
+                    height: self.drag_height,
+                    along_normal: false,
+                };
+                self.pick(document, rect, p)
+                    .map(|h| keep.apply(h.point, h.normal, document.world.up()))
+            }
         };
         if let Some(to) = moved.filter(|to| to.is_finite() && *to != anchor) {
             events.moved = Some((k, to));
