@@ -84,7 +84,8 @@ fn the_demo_window_shows_the_level_and_every_probe_state_where_it_projects() {
         .iter()
         .map(|v| v.as_f64().unwrap() as usize)
         .collect();
-    // The level fills much of the view: most of its pixels are not the background.
+    // The level, framed whole, fills a good part of the view: a quarter of its pixels or more are
+    // not the background.
     let (mut level, mut all) = (0, 0);
     for y in (view[1]..view[3]).step_by(4) {
         for x in (view[0]..view[2]).step_by(4) {
@@ -93,7 +94,7 @@ fn the_demo_window_shows_the_level_and_every_probe_state_where_it_projects() {
         }
     }
     assert!(
-        level * 10 > all * 4,
+        level * 4 > all,
         "level on {level} of {all} sampled view pixels"
     );
 
