@@ -364,3 +364,34 @@ fn a_handle_dragged_over_surfaces_keeps_its_height_and_is_one_undo_step() {
         "one undo brings it back"
     );
 }
+
+#[test]
+fn renaming_is_one_undo_step_and_taken_ids_are_refused() {
+    let (_folder, path) = demo_copy();
+    let mut harness = harness(&path);
+    let original = probes_of(&harness)[0].id.clone();
+    let taken = probes_of(&harness)[1].id.clone();
+    harness.state_mut().select_probe(Some(0));
+    harness.run_steps(2);
+
+    harness.get_by_label("id").focus();
+    harness.run_steps(1);
+    harness.key_press_modifiers(Modifiers::COMMAND, Key::A);
+    harness.run_steps(1);
+    harness.get_by_label("id").type_text(&taken);
+    harness.run_steps(2);
+    // Ctrl+A selected the box's text (not every probe); the taken name is refused with a reason.
+    assert_eq!(probes_of(&harness)[0].id, original);
+    assert_eq!(harness.state().selection.single(), Some(0));
+    harness.get_by_label_contains("Another probe is called");
+    harness.get_by_label("id").type_text("-north");
+    harness.run_steps(2);
+    assert_eq!(probes_of(&harness)[0].id, format!("{taken}-north"));
+
+    // Leave the box, then one undo brings the old name back.
+    harness.key_press(Key::Escape);
+    harness.run_steps(2);
+    harness.key_press_modifiers(Modifiers::COMMAND, Key::Z);
+    harness.run_steps(2);
+    assert_eq!(probes_of(&harness)[0].id, original);
+}

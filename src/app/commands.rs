@@ -113,7 +113,17 @@ impl Command {
         })
     }
 
-    /// True when the shortcut is a bare key, which must not fire while text is being typed.
+    /// True when the shortcut still applies while text is being typed into a box (file commands);
+    /// the others belong to the box then (bare keys are letters, Ctrl+A, Ctrl+Z and the like edit the
+    /// text).
+    pub fn works_while_typing(self) -> bool {
+        matches!(
+            self,
+            Command::Open | Command::Save | Command::SaveAs | Command::Quit
+        )
+    }
+
+    /// True when the shortcut is a bare key.
     pub fn is_bare_key(self) -> bool {
         self.shortcut()
             .is_some_and(|s| s.modifiers == Modifiers::NONE)

@@ -118,18 +118,6 @@ impl Document {
         self.edits != self.saved_edits
     }
 
-    /// An id not used by any probe: `base`, or `base-2`, `base-3`, …
-    pub fn unused_id(&self, base: &str) -> String {
-        let taken = |id: &str| self.probes.probes.iter().any(|p| p.id == id);
-        if !taken(base) {
-            return base.to_string();
-        }
-        (2..)
-            .map(|n| format!("{base}-{n}"))
-            .find(|id| !taken(id))
-            .expect("some number is free")
-    }
-
     /// The probe set as it would be saved to `path`: the level named relative to that file's folder.
     fn probe_set_for(&self, path: &Path) -> ProbeSet {
         ProbeSet {
@@ -235,6 +223,18 @@ impl Document {
             Geometry::Primitive { .. } => None,
         }
     }
+}
+
+/// An id not used by any of `probes`: `base`, or `base-2`, `base-3`, …
+pub fn unused_id(probes: &[Probe], base: &str) -> String {
+    let taken = |id: &str| probes.iter().any(|p| p.id == id);
+    if !taken(base) {
+        return base.to_string();
+    }
+    (2..)
+        .map(|n| format!("{base}-{n}"))
+        .find(|id| !taken(id))
+        .expect("some number is free")
 }
 
 /// How a probe set saved at `probes_path` names the level: relative to its folder when the level is

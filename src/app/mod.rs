@@ -278,7 +278,8 @@ impl Workbench {
         }
         let mut probes = self.document.probes.probes.clone();
         probes[index] = probe;
-        let key = format!("{}:{field}", self.document.probes.probes[index].id);
+        // By position, so that renaming a probe letter by letter stays one step.
+        let key = format!("{index}:{field}");
         self.replace_probes(&key, &format!("edit {field}"), probes);
     }
 
@@ -326,11 +327,7 @@ impl Workbench {
         let mut copies = Vec::new();
         for &i in &chosen {
             let mut copy = probes[i].clone();
-            copy.id = self.document.unused_id(&format!("{}-copy", copy.id));
-            // Ids taken by earlier copies in this same action.
-            while probes.iter().any(|p| p.id == copy.id) {
-                copy.id.push('x');
-            }
+            copy.id = document::unused_id(&probes, &format!("{}-copy", copy.id));
             probes.push(copy);
             copies.push(probes.len() - 1);
         }
@@ -401,7 +398,7 @@ impl Workbench {
     /// Turns the placed points into a new probe, selected.
     fn finish_path(&mut self) {
         let base = self.tool.name().to_lowercase();
-        let id = self.document.unused_id(&base);
+        let id = document::unused_id(&self.document.probes.probes, &base);
         let Some(probe) = new_probe(self.tool, id, &self.placed) else {
             return;
         };
@@ -738,7 +735,9 @@ impl Workbench {
         let typing = ctx.egui_wants_keyboard_input();
         let flying = self.viewport.fly;
         for command in Command::WITH_SHORTCUTS {
-            if command.is_bare_key() && (typing || flying && command != Command::ToggleFly) {
+            if typing && !command.works_while_typing()
+                || flying && command.is_bare_key() && command != Command::ToggleFly
+            {
                 continue;
             }
             let Some(shortcut) = command.shortcut() else {
