@@ -1,7 +1,7 @@
 //! The real window under a virtual X server, driven by real X input events (xdotool, Debian package
 //! xdotool): resize the window, pick the ray tool with its key, place a ray with two clicks on the
 //! level, save with Ctrl+S, quit with Ctrl+Q. Then the probe set on disk has the new ray, the previous
-//! version is kept as `.bak`, and the window's size was saved for the next run.
+//! version is kept as `.bak`, and the window's size and the recent files were saved for the next run.
 
 use std::path::PathBuf;
 use std::process::Command;
@@ -71,5 +71,9 @@ wait "$app"
     assert!(
         state.contains("inner_size_points:(x:1300.0,y:800.0)"),
         "the window size is remembered: {state}"
+    );
+    assert!(
+        state.contains(&format!("{}", probes.display())),
+        "the probe set is among the recent files: {state}"
     );
 }
