@@ -153,6 +153,7 @@ pub struct Workbench {
     /// How dragged handles move.
     pub drag_mode: DragMode,
     editor: EditorState,
+    shown_cache: Option<((ListFilter, u64), Vec<usize>)>,
     plots: plotting::PlotWorker,
     plot_wanted: bool,
     results_revision: u64,
@@ -161,6 +162,7 @@ pub struct Workbench {
     /// What changed for each probe (by id) when the level was last reloaded, until dismissed.
     pub changes: HashMap<String, Vec<Aspect>>,
     reload_error: Option<String>,
+    reload_pending: bool,
     /// Recently opened or saved files, newest first.
     pub recent: Vec<PathBuf>,
     /// The question being asked, if any.
@@ -187,6 +189,7 @@ impl Workbench {
             lift_along_normal: false,
             drag_mode: DragMode::default(),
             editor: EditorState::default(),
+            shown_cache: None,
             plots: plotting::PlotWorker::default(),
             plot_wanted: false,
             results_revision: 1,
@@ -194,6 +197,7 @@ impl Workbench {
             last_disk_check: Instant::now(),
             changes: HashMap::new(),
             reload_error: None,
+            reload_pending: false,
             recent: Vec::new(),
             dialog: None,
             message: None,
@@ -214,6 +218,20 @@ impl Workbench {
         self.placed.clear();
         self.plot_wanted = true;
         self.results_revision += 1;
+    }
+
+    /// The probes the list shows, in order: recomputed only when the filter or an answer changed
+    /// (the filter reads every probe's id, label and first hit).
+    pub fn shown(&mut self) -> Vec<usize> {
+        let key = (self.filter.clone(), self.results_revision);
+        match &self.shown_cache {
+            Some((k, shown)) if *k == key => shown.clone(),
+            _ => {
+                let shown = self.filter.shown(&self.document);
+                self.shown_cache = Some((key, shown.clone()));
+                shown
+            }
+        }
     }
 
     /// True while background work (a clearance plot) is still running.
@@ -304,7 +322,7 @@ impl Workbench {
             Command::Delete => self.delete(),
             Command::ExpectAnswer => self.expect_answers(),
             Command::SelectAll => {
-                let shown = self.filter.shown(&self.document);
+                let shown = self.shown();
                 self.selection = Selection::of(shown.first().copied(), shown);
             }
             Command::Tool(tool) => {
@@ -423,7 +441,7 @@ impl Workbench {
         self.shortcuts(&ctx);
         self.autosave();
         self.plots.poll();
-        let shown = self.filter.shown(&self.document);
+        let shown = self.shown();
 
         egui::Panel::top("menus").show(ui, |ui| self.menu_bar(ui));
         egui::Panel::top("toolbar").show(ui, |ui| self.toolbar(ui));
@@ -820,10 +838,17 @@ impl Workbench {
     /// Reloads the level when its files change on disk, answers every probe again and keeps what
     /// changed to show until dismissed.
     fn check_disk(&mut self, ctx: &egui::Context) {
-        if self.last_disk_check.elapsed() >= DISK_CHECK {
+        if std::mem::take(&mut self.reload_pending) {
+            self.reload_level();
+        } else if self.last_disk_check.elapsed() >= DISK_CHECK {
             self.last_disk_check = Instant::now();
             if self.document.level_changed_on_disk() {
-                self.reload_level();
+                // Say so in this frame; the reload (seconds for a big level) runs in the next.
+                self.reload_pending = true;
+                self.say(
+                    "The level changed on disk: reloading it and answering every probe…".into(),
+                );
+                ctx.request_repaint();
             }
         }
         ctx.request_repaint_after(DISK_CHECK);
@@ -834,6 +859,7 @@ impl Workbench {
         match self.document.reload_level() {
             Ok(changed) => {
                 self.reload_error = None;
+                self.message = None;
                 self.changes = changed
                     .into_iter()
                     .map(|(i, aspects)| (self.document.probes.probes[i].id.clone(), aspects))
