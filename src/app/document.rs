@@ -174,14 +174,27 @@ impl Document {
         let _ = std::fs::remove_file(self.recovery_path());
     }
 
-    /// Loads the level again, answers every probe on it, and lists what changed for each probe (the
-    /// same rules as `check --baseline`, default tolerance), by probe index.
-    pub fn reload_level(&mut self) -> Result<Vec<(usize, Vec<Aspect>)>, String> {
-        let stamps = stamps(&self.level_path);
-        let (level, diagnostics) = load_level(&self.level_path).map_err(|e| e.to_string())?;
-        let world =
-            World::new(&level).map_err(|e| format!("{}: {e}", self.level_path.display()))?;
-        let results = run_probes(&world, &self.probes.probes, None, &|_| {})?;
+    /// Takes in a level loaded again (and answered) elsewhere, typically on a background thread;
+    /// probes edited meanwhile are answered again here. Returns what changed for each probe, by
+    /// index (the same rules as `check --baseline`, default tolerance).
+    pub fn apply_reload(&mut self, reloaded: Reloaded) -> Vec<(usize, Vec<Aspect>)> {
+        let Reloaded {
+            level,
+            world,
+            probes,
+            mut results,
+            digest,
+            warnings,
+            stamps,
+        } = reloaded;
+        if probes != self.probes.probes {
+            results = self
+                .probes
+                .probes
+                .iter()
+                .map(|p| answer_probe(&world, p))
+                .collect();
+        }
         let changed = self
             .results
             .iter()
@@ -192,13 +205,13 @@ impl Document {
                 (!aspects.is_empty()).then_some((i, aspects))
             })
             .collect();
-        self.level_digest = level_digest(&level);
-        self.warnings = diagnostics.iter().map(|d| d.to_string()).collect();
+        self.level_digest = digest;
+        self.warnings = warnings;
         self.level = level;
         self.world = Arc::new(world);
         self.results = results;
         self.stamps = stamps;
-        Ok(changed)
+        changed
     }
 
     /// Counts by verdict.
@@ -222,6 +235,38 @@ impl Document {
             }
             Geometry::Primitive { .. } => None,
         }
+    }
+}
+
+/// A level loaded again from disk with the probes answered on it, ready for
+/// [`Document::apply_reload`].
+pub struct Reloaded {
+    level: Level,
+    world: World,
+    probes: Vec<Probe>,
+    results: Vec<ProbeResult>,
+    digest: String,
+    warnings: Vec<String>,
+    stamps: Vec<(PathBuf, Option<SystemTime>)>,
+}
+
+impl Reloaded {
+    /// Loads the level at `level_path` and answers `probes` on it (the slow part of a reload; it
+    /// needs nothing from the open document, so it can run on another thread).
+    pub fn load(level_path: PathBuf, probes: Vec<Probe>) -> Result<Reloaded, String> {
+        let stamps = stamps(&level_path);
+        let (level, diagnostics) = load_level(&level_path).map_err(|e| e.to_string())?;
+        let world = World::new(&level).map_err(|e| format!("{}: {e}", level_path.display()))?;
+        let results = run_probes(&world, &probes, None, &|_| {})?;
+        Ok(Reloaded {
+            digest: level_digest(&level),
+            warnings: diagnostics.iter().map(|d| d.to_string()).collect(),
+            level,
+            world,
+            probes,
+            results,
+            stamps,
+        })
     }
 }
 

@@ -162,7 +162,7 @@ pub struct Workbench {
     /// What changed for each probe (by id) when the level was last reloaded, until dismissed.
     pub changes: HashMap<String, Vec<Aspect>>,
     reload_error: Option<String>,
-    reload_pending: bool,
+    reload_job: Option<std::sync::mpsc::Receiver<Result<document::Reloaded, String>>>,
     /// Recently opened or saved files, newest first.
     pub recent: Vec<PathBuf>,
     /// The question being asked, if any.
@@ -197,7 +197,7 @@ impl Workbench {
             last_disk_check: Instant::now(),
             changes: HashMap::new(),
             reload_error: None,
-            reload_pending: false,
+            reload_job: None,
             recent: Vec::new(),
             dialog: None,
             message: None,
@@ -215,6 +215,7 @@ impl Workbench {
         self.selection = Selection::default();
         self.history.clear();
         self.changes.clear();
+        self.reload_job = None;
         self.placed.clear();
         self.plot_wanted = true;
         self.results_revision += 1;
@@ -838,38 +839,52 @@ impl Workbench {
     /// Reloads the level when its files change on disk, answers every probe again and keeps what
     /// changed to show until dismissed.
     fn check_disk(&mut self, ctx: &egui::Context) {
-        if std::mem::take(&mut self.reload_pending) {
-            self.reload_level();
+        if let Some(job) = &self.reload_job {
+            match job.try_recv() {
+                Ok(loaded) => {
+                    self.reload_job = None;
+                    match loaded {
+                        Ok(reloaded) => {
+                            let changed = self.document.apply_reload(reloaded);
+                            self.after_reload(changed);
+                        }
+                        Err(e) => self.reload_error = Some(e),
+                    }
+                }
+                Err(std::sync::mpsc::TryRecvError::Empty) => {}
+                Err(std::sync::mpsc::TryRecvError::Disconnected) => self.reload_job = None,
+            }
         } else if self.last_disk_check.elapsed() >= DISK_CHECK {
             self.last_disk_check = Instant::now();
             if self.document.level_changed_on_disk() {
-                // Say so in this frame; the reload (seconds for a big level) runs in the next.
-                self.reload_pending = true;
+                // Loading a big level takes seconds: in the background, saying so meanwhile.
                 self.say(
                     "The level changed on disk: reloading it and answering every probe…".into(),
                 );
-                ctx.request_repaint();
+                let (send, receive) = std::sync::mpsc::channel();
+                let path = self.document.level_path.clone();
+                let probes = self.document.probes.probes.clone();
+                let wake = ctx.clone();
+                std::thread::spawn(move || {
+                    let _ = send.send(document::Reloaded::load(path, probes));
+                    wake.request_repaint();
+                });
+                self.reload_job = Some(receive);
             }
         }
         ctx.request_repaint_after(DISK_CHECK);
     }
 
-    /// Loads the level again and answers every probe on it.
-    pub fn reload_level(&mut self) {
-        match self.document.reload_level() {
-            Ok(changed) => {
-                self.reload_error = None;
-                self.message = None;
-                self.changes = changed
-                    .into_iter()
-                    .map(|(i, aspects)| (self.document.probes.probes[i].id.clone(), aspects))
-                    .collect();
-                self.viewport.set_level(&self.document);
-                self.results_revision += 1;
-                self.plot_wanted = true;
-            }
-            Err(e) => self.reload_error = Some(e),
-        }
+    fn after_reload(&mut self, changed: Vec<(usize, Vec<Aspect>)>) {
+        self.reload_error = None;
+        self.message = None;
+        self.changes = changed
+            .into_iter()
+            .map(|(i, aspects)| (self.document.probes.probes[i].id.clone(), aspects))
+            .collect();
+        self.viewport.set_level(&self.document);
+        self.results_revision += 1;
+        self.plot_wanted = true;
     }
 }
 
