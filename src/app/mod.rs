@@ -924,7 +924,16 @@ impl eframe::App for WorkbenchApp {
 
 /// Opens the window on a probe set or level and runs until it is closed.
 pub fn run(path: &std::path::Path, options: WindowOptions) -> Result<(), String> {
+    // Opening a big level takes a few seconds before the window can appear: say what is happening.
+    let started = Instant::now();
+    eprintln!("plumbline: opening {} …", path.display());
     let document = Document::open(path)?;
+    eprintln!(
+        "plumbline: {} triangles loaded and {} probes answered in {:.1} s",
+        document.level.triangle_count(),
+        document.probes.probes.len(),
+        started.elapsed().as_secs_f64()
+    );
     let selected = match &options.select {
         None => None,
         Some(id) => Some(
@@ -954,8 +963,11 @@ pub fn run(path: &std::path::Path, options: WindowOptions) -> Result<(), String>
     };
     // Frame times of an unattended benchmark must not include waiting for the display.
     native.glow_options.vsync = !unattended;
+    // An unattended run neither reads nor leaves saved state: a fresh file of its own, removed after.
+    let scratch =
+        std::env::temp_dir().join(format!("plumbline-unattended-{}.ron", std::process::id()));
     if unattended {
-        native.persistence_path = Some(std::env::temp_dir().join("plumbline-unattended.ron"));
+        native.persistence_path = Some(scratch.clone());
     }
     let opened = std::path::absolute(path).unwrap_or_else(|_| path.to_path_buf());
     eframe::run_native(
@@ -985,5 +997,8 @@ pub fn run(path: &std::path::Path, options: WindowOptions) -> Result<(), String>
             "cannot open the window: {e} (without a display, `plumbline check` runs the probes)"
         )
     })?;
+    if unattended {
+        let _ = std::fs::remove_file(&scratch);
+    }
     outcome.result()
 }
