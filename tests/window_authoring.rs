@@ -169,6 +169,8 @@ fn editing_a_number_in_the_inspector_answers_the_probe_again() {
     );
 
     // Lift the ray's start 40 m up: it now passes over every container.
+    harness.get_by_label("Edit the question").click();
+    harness.run_steps(2);
     harness.get_by_label("from y").set_value_accesskit(40.0);
     harness.run_steps(2);
     let workbench = harness.state();
@@ -377,6 +379,8 @@ fn renaming_is_one_undo_step_and_taken_ids_are_refused() {
     let original = probes_of(&harness)[0].id.clone();
     let taken = probes_of(&harness)[1].id.clone();
     harness.state_mut().select_probe(Some(0));
+    harness.run_steps(2);
+    harness.get_by_label("Edit the question").click();
     harness.run_steps(2);
 
     harness.get_by_label("id").focus();

@@ -159,8 +159,10 @@ pub fn inspector_ui(
             .default_open(true)
             .show(ui, |ui| clearance_plot(ui, plot));
     }
-    egui::CollapsingHeader::new("Question")
-        .default_open(true)
+    // Closed until first opened (then remembered): most selections are to read the answer, and the
+    // editor's widgets cost a few milliseconds a frame on a CPU rasteriser.
+    egui::CollapsingHeader::new("Edit the question")
+        .default_open(false)
         .show(ui, |ui| {
             let taken = |id: &str| document.probes.probes.iter().any(|p| p.id == id);
             if let Some(edit) = probe_editor(ui, index, probe, editor, &taken) {
