@@ -788,7 +788,7 @@ impl Workbench {
                 .map(|n| n.to_string_lossy().into_owned())
                 .unwrap_or_default();
             ui.label(format!(
-                "level {level} · {} objects · {} triangles",
+                "level {level} · {} objects · {} mesh triangles",
                 self.document.level.objects.len(),
                 self.document.level.triangle_count()
             ));
@@ -929,7 +929,8 @@ pub fn run(path: &std::path::Path, options: WindowOptions) -> Result<(), String>
     eprintln!("plumbline: opening {} …", path.display());
     let document = Document::open(path)?;
     eprintln!(
-        "plumbline: {} triangles loaded and {} probes answered in {:.1} s",
+        "plumbline: {} objects ({} mesh triangles) loaded and {} probes answered in {:.1} s",
+        document.level.objects.len(),
         document.level.triangle_count(),
         document.probes.probes.len(),
         started.elapsed().as_secs_f64()
