@@ -348,6 +348,10 @@ fn expect_words(expect: Option<&Expect>) -> String {
     words.join("; ")
 }
 
+fn yes_no(b: bool) -> String {
+    if b { "yes" } else { "no" }.to_string()
+}
+
 /// The hits as a table; clicking a row marks that hit in the view.
 fn hits_table(ui: &mut egui::Ui, result: &ProbeResult, selection: &mut Selection) {
     if result.hits.is_empty() {
@@ -360,26 +364,20 @@ fn hits_table(ui: &mut egui::Ui, result: &ProbeResult, selection: &mut Selection
         Hits::Closest(_) => ["#", "object", "distance", "normal", "overlapping"],
         Hits::Overlap(_) => ["#", "object", "depth", "direction", "enclosed"],
     };
-    let rows: Vec<[String; 5]> = match &result.hits {
+    // Per hit: object, distance or depth, normal or direction, and the kind's own last column.
+    let cells: Vec<(&str, f64, [f64; 3], String)> = match &result.hits {
         Hits::Ray(h) => h
             .iter()
-            .enumerate()
-            .map(|(i, x)| {
+            .map(|x| {
                 let triangle = x.triangle.map_or("—".into(), |t| t.to_string());
                 let back = if x.back_face { " back" } else { "" };
-                [
-                    (i + 1).to_string(),
-                    x.object.to_string(),
-                    metres(x.distance),
-                    direction(x.normal.into()),
-                    format!("{:.4} · {triangle}{back}", x.t),
-                ]
+                let last = format!("{:.4} · {triangle}{back}", x.t);
+                (&*x.object, x.distance, x.normal, last)
             })
             .collect(),
         Hits::Sweep(h) => h
             .iter()
-            .enumerate()
-            .map(|(i, x)| {
+            .map(|x| {
                 // Seconds when the probe has a duration, else the fraction of the path.
                 let time = x
                     .time
@@ -389,42 +387,31 @@ fn hits_table(ui: &mut egui::Ui, result: &ProbeResult, selection: &mut Selection
                 } else {
                     ""
                 };
-                [
-                    (i + 1).to_string(),
-                    x.object.to_string(),
-                    metres(x.distance),
-                    direction(x.normal.into()),
-                    format!("{time}{inside}"),
-                ]
+                (&*x.object, x.distance, x.normal, format!("{time}{inside}"))
             })
             .collect(),
         Hits::Closest(h) => h
             .iter()
-            .enumerate()
-            .map(|(i, x)| {
-                [
-                    (i + 1).to_string(),
-                    x.object.to_string(),
-                    metres(x.distance),
-                    direction(x.normal.into()),
-                    if x.overlapping { "yes" } else { "no" }.into(),
-                ]
-            })
+            .map(|x| (&*x.object, x.distance, x.normal, yes_no(x.overlapping)))
             .collect(),
         Hits::Overlap(h) => h
             .iter()
-            .enumerate()
-            .map(|(i, x)| {
-                [
-                    (i + 1).to_string(),
-                    x.object.to_string(),
-                    metres(x.depth),
-                    direction(x.direction.into()),
-                    if x.enclosed { "yes" } else { "no" }.into(),
-                ]
-            })
+            .map(|x| (&*x.object, x.depth, x.direction, yes_no(x.enclosed)))
             .collect(),
     };
+    let rows: Vec<[String; 5]> = cells
+        .into_iter()
+        .enumerate()
+        .map(|(i, (object, measure, towards, last))| {
+            [
+                (i + 1).to_string(),
+                object.to_string(),
+                metres(measure),
+                direction(towards.into()),
+                last,
+            ]
+        })
+        .collect();
     egui::Grid::new("hits")
         .num_columns(5)
         .striped(true)
