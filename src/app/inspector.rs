@@ -139,17 +139,7 @@ pub fn inspector_ui(
         ))
         .weak(),
     );
-    ui.horizontal(|ui| {
-        for command in [Command::ExpectAnswer, Command::Duplicate, Command::Delete] {
-            if ui
-                .button(command.name())
-                .on_hover_text(tooltip(ui.ctx(), command))
-                .clicked()
-            {
-                action = Some(InspectorAction::Run(command));
-            }
-        }
-    });
+    ui.horizontal(|ui| command_buttons(ui, &mut action));
     ui.separator();
     egui::CollapsingHeader::new(format!("Hits ({})", result.hits.len()))
         .default_open(true)
@@ -170,6 +160,19 @@ pub fn inspector_ui(
             }
         });
     action
+}
+
+/// Buttons for the commands that act on the selection.
+fn command_buttons(ui: &mut egui::Ui, action: &mut Option<InspectorAction>) {
+    for command in [Command::ExpectAnswer, Command::Duplicate, Command::Delete] {
+        if ui
+            .button(command.name())
+            .on_hover_text(tooltip(ui.ctx(), command))
+            .clicked()
+        {
+            *action = Some(InspectorAction::Run(command));
+        }
+    }
 }
 
 /// Edits for several selected probes at once.
@@ -200,15 +203,7 @@ fn bulk_ui(
     ui.label("Ctrl+click adds or removes a probe; Shift+click selects a run.");
     ui.separator();
     ui.horizontal_wrapped(|ui| {
-        for command in [Command::ExpectAnswer, Command::Duplicate, Command::Delete] {
-            if ui
-                .button(command.name())
-                .on_hover_text(tooltip(ui.ctx(), command))
-                .clicked()
-            {
-                action = Some(InspectorAction::Run(command));
-            }
-        }
+        command_buttons(ui, &mut action);
         if ui
             .button("Expect nothing")
             .on_hover_text("Remove their expectations")
