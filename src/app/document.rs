@@ -322,3 +322,45 @@ fn stamps(level_path: &Path) -> Vec<(PathBuf, Option<SystemTime>)> {
     }
     out
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_level_is_named_relative_to_the_probe_set_when_it_is_beside_or_below_it() {
+        let root = std::path::absolute(Path::new("/levels")).unwrap();
+        let probes = root.join("yard.probes.json");
+        assert_eq!(
+            level_reference(&probes, &root.join("yard.level.json")),
+            "yard.level.json"
+        );
+        assert_eq!(
+            level_reference(&probes, &root.join("parts").join("yard.glb")),
+            "parts/yard.glb"
+        );
+        let elsewhere = std::path::absolute(Path::new("/other/yard.level.json")).unwrap();
+        assert_eq!(
+            level_reference(&probes, &elsewhere),
+            elsewhere.to_string_lossy()
+        );
+    }
+
+    #[test]
+    fn new_ids_are_unused() {
+        let probe = |id: &str| Probe {
+            id: id.into(),
+            label: None,
+            filter: Default::default(),
+            query: crate::probe::ProbeQuery::Ray {
+                from: glam::DVec3::ZERO,
+                to: glam::DVec3::X,
+                hits: None,
+            },
+            expect: None,
+        };
+        let probes = [probe("ray"), probe("ray-2")];
+        assert_eq!(unused_id(&probes, "ray"), "ray-3");
+        assert_eq!(unused_id(&probes, "sweep"), "sweep");
+    }
+}

@@ -1003,3 +1003,30 @@ pub fn run(path: &std::path::Path, options: WindowOptions) -> Result<(), String>
     }
     outcome.result()
 }
+
+#[cfg(test)]
+mod tests {
+    use super::Selection;
+
+    #[test]
+    fn ctrl_click_adds_and_removes_and_shift_click_selects_a_run() {
+        let mut selection = Selection::one(4);
+        selection.toggle(7);
+        assert_eq!(selection.all(), vec![4, 7]);
+        assert_eq!(
+            selection.probe,
+            Some(7),
+            "the probe clicked last is inspected"
+        );
+        selection.toggle(7);
+        assert_eq!(selection.all(), vec![4]);
+        assert_eq!(selection.single(), Some(4));
+
+        let shown = [1, 4, 5, 9, 12];
+        selection.extend_to(9, &shown);
+        assert_eq!(selection.all(), vec![4, 5, 9]);
+        assert_eq!(selection.probe, Some(9));
+        assert!(selection.contains(5) && !selection.contains(12));
+        assert_eq!(selection.single(), None);
+    }
+}

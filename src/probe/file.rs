@@ -469,3 +469,42 @@ fn probe_to_value(p: &Probe) -> Value {
     }
     Value::Object(m)
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::probe::ProbeQuery;
+    use glam::DVec3;
+
+    #[test]
+    fn an_edited_probe_is_held_to_the_file_format() {
+        let mut probe = Probe {
+            id: "gate".into(),
+            label: None,
+            filter: Filter::default(),
+            query: ProbeQuery::Ray {
+                from: DVec3::ZERO,
+                to: DVec3::X,
+                hits: None,
+            },
+            expect: None,
+        };
+        assert_eq!(validate_probe(&probe), Ok(()));
+        probe.id = "gate view".into();
+        assert!(
+            validate_probe(&probe)
+                .unwrap_err()
+                .contains("letters, digits")
+        );
+        probe.id = "gate".into();
+        probe.query = ProbeQuery::Sweep {
+            shape: crate::level::ShapeSpec::Sphere { radius: 0.5 },
+            rotation: None,
+            path: vec![DVec3::ZERO],
+            hits: None,
+            duration: None,
+            clearance: None,
+        };
+        assert!(validate_probe(&probe).is_err(), "a path needs two points");
+    }
+}
