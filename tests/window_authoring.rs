@@ -3,9 +3,11 @@
 //! number, the recovery file, a save that fails, the unsaved-changes guard, and a level reload. Every
 //! test works on a copy of the demo in a temporary folder; no file dialog is opened.
 
+mod window_support;
+
 use std::path::{Path, PathBuf};
 
-use eframe::egui::{self, Event, Key, Modifiers, PointerButton, Pos2};
+use eframe::egui::{self, Event, Key, Modifiers};
 use egui_kittest::Harness;
 use egui_kittest::kittest::Queryable;
 use plumbline::app::Workbench;
@@ -14,6 +16,7 @@ use plumbline::check::Verdict;
 use plumbline::demo::files;
 use plumbline::probe::{ProbeSet, load_probe_set, probe_set_to_json};
 use plumbline::query::ClosestProbe;
+use window_support::{click_at, press};
 
 /// The demo copied into a fresh folder; returns the folder and the probe set's path.
 fn demo_copy() -> (tempfile::TempDir, PathBuf) {
@@ -33,21 +36,6 @@ fn harness(path: &Path) -> Harness<'static, Workbench> {
         .build_ui_state(|ui, workbench: &mut Workbench| workbench.ui(ui), workbench);
     harness.run_steps(2);
     harness
-}
-
-/// A click of the primary button at `at`.
-fn click_at(harness: &mut Harness<'static, Workbench>, at: Pos2) {
-    for pressed in [true, false] {
-        harness.input_mut().events.push(Event::PointerMoved(at));
-        harness.input_mut().events.push(Event::PointerButton {
-            pos: at,
-            button: PointerButton::Primary,
-            pressed,
-            modifiers: Modifiers::NONE,
-        });
-        harness.step();
-    }
-    harness.run_steps(2);
 }
 
 fn probes_of(harness: &Harness<'static, Workbench>) -> Vec<plumbline::probe::Probe> {
@@ -334,16 +322,6 @@ fn a_handle_dragged_over_surfaces_keeps_its_height_and_is_one_undo_step() {
         .to_screen(harness.state().viewport.last_rect, start)
         .expect("the ray's start is in view");
 
-    let press = |harness: &mut Harness<'static, Workbench>, pos: Pos2, pressed: bool| {
-        harness.input_mut().events.push(Event::PointerMoved(pos));
-        harness.input_mut().events.push(Event::PointerButton {
-            pos,
-            button: PointerButton::Primary,
-            pressed,
-            modifiers: Modifiers::NONE,
-        });
-        harness.step();
-    };
     press(&mut harness, at, true);
     for k in 1..=8 {
         let pos = at + egui::vec2(6.0 * k as f32, 3.0 * k as f32);

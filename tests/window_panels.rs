@@ -1,6 +1,8 @@
 //! The workbench's panels driven headlessly by widget label (egui_kittest): the probe list, its
 //! filters, the inspector and its hit rows. No window, GPU or file dialog is involved.
 
+mod window_support;
+
 use std::path::PathBuf;
 
 use egui_kittest::Harness;
@@ -132,7 +134,6 @@ fn the_kind_and_verdict_filters_narrow_the_list() {
 
 #[test]
 fn picking_a_probe_frames_it_in_the_view_and_clicking_it_in_the_view_finds_it_in_the_list() {
-    use eframe::egui::{Event, Modifiers, PointerButton};
     use plumbline::view::probe_marks::start_point;
 
     let mut harness = harness();
@@ -175,17 +176,8 @@ fn picking_a_probe_frames_it_in_the_view_and_clicking_it_in_the_view_finds_it_in
             start_point(&workbench.document.probes.probes[target].query),
         )
         .expect("the failing probe is in view");
-    for pressed in [true, false] {
-        harness.input_mut().events.push(Event::PointerMoved(at));
-        harness.input_mut().events.push(Event::PointerButton {
-            pos: at,
-            button: PointerButton::Primary,
-            pressed,
-            modifiers: Modifiers::NONE,
-        });
-        harness.step();
-    }
-    harness.run_steps(3);
+    window_support::click_at(&mut harness, at);
+    harness.run_steps(1);
     assert_eq!(harness.state().selection.probe, Some(target));
     harness.get_by_label_contains("FAIL  spawn-by-drums");
 }
