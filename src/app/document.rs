@@ -103,6 +103,13 @@ impl Document {
         self.edits += 1;
     }
 
+    /// Replaces probe `index` and answers it, and counts an edit.
+    pub fn replace_probe(&mut self, index: usize, probe: Probe) {
+        self.results[index] = answer_probe(&self.world, &probe);
+        self.probes.probes[index] = probe;
+        self.edits += 1;
+    }
+
     /// How many edits were made since opening.
     pub fn edit_count(&self) -> u64 {
         self.edits

@@ -273,6 +273,11 @@ impl Workbench {
 
     fn set_probes(&mut self, probes: Vec<Probe>) {
         self.document.set_probes(probes);
+        self.after_probes_changed();
+    }
+
+    /// Keeps the selection within the probes and asks for new marks and a new plot.
+    fn after_probes_changed(&mut self) {
         self.results_revision += 1;
         let n = self.document.probes.probes.len();
         let kept: Vec<usize> = self
@@ -295,11 +300,13 @@ impl Workbench {
             self.say(why);
             return;
         }
-        let mut probes = self.document.probes.probes.clone();
-        probes[index] = probe;
         // By position, so that renaming a probe letter by letter stays one step.
         let key = format!("{index}:{field}");
-        self.replace_probes(&key, &format!("edit {field}"), probes);
+        self.history
+            .record(&key, &format!("edit {field}"), &self.document.probes.probes);
+        // Only this probe is answered again: a drag edits it every frame.
+        self.document.replace_probe(index, probe);
+        self.after_probes_changed();
     }
 
     /// Does what a menu item, button or shortcut asks.

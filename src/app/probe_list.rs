@@ -38,6 +38,10 @@ pub struct ListFilter {
 impl ListFilter {
     /// The indices of the probes the filter lets through, in probe order.
     pub fn shown(&self, document: &Document) -> Vec<usize> {
+        let count = document.probes.probes.len().min(document.results.len());
+        if *self == ListFilter::default() {
+            return (0..count).collect();
+        }
         let needle = self.text.to_lowercase();
         (0..document.probes.probes.len())
             .filter(|&i| {
