@@ -38,6 +38,16 @@ fn harness(path: &Path) -> Harness<'static, Workbench> {
     harness
 }
 
+/// Selects the probe with this id, as a click in the list does; returns its index.
+fn select_by_id(harness: &mut Harness<'static, Workbench>, id: &str) -> usize {
+    let index = probes_of(harness)
+        .iter()
+        .position(|p| p.id == id)
+        .expect("the demo has this probe");
+    harness.state_mut().select_probe(Some(index));
+    index
+}
+
 fn probes_of(harness: &Harness<'static, Workbench>) -> Vec<plumbline::probe::Probe> {
     harness.state().document.probes.probes.clone()
 }
@@ -144,11 +154,7 @@ fn expect_this_answer_makes_an_unchecked_probe_pass() {
 fn editing_a_number_in_the_inspector_answers_the_probe_again() {
     let (_folder, path) = demo_copy();
     let mut harness = harness(&path);
-    let index = probes_of(&harness)
-        .iter()
-        .position(|p| p.id == "gate-view-of-office-blocked")
-        .unwrap();
-    harness.state_mut().select_probe(Some(index));
+    let index = select_by_id(&mut harness, "gate-view-of-office-blocked");
     harness.run_steps(2);
     assert!(!harness.state().document.results[index].hits.is_empty());
     assert_eq!(
@@ -306,11 +312,7 @@ fn a_handle_dragged_over_surfaces_keeps_its_height_and_is_one_undo_step() {
 
     let (_folder, path) = demo_copy();
     let mut harness = harness(&path);
-    let index = probes_of(&harness)
-        .iter()
-        .position(|p| p.id == "gate-view-of-office-blocked")
-        .unwrap();
-    harness.state_mut().select_probe(Some(index));
+    let index = select_by_id(&mut harness, "gate-view-of-office-blocked");
     harness.state_mut().drag_mode = DragMode::Surface;
     harness.run_steps(3);
     let start = probes_of(&harness)[index].query.points()[0];
