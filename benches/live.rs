@@ -4,6 +4,7 @@
 //! clearance plot (240 distance samples along the path) is measured too; the window draws it from a
 //! background thread.
 
+#[path = "../core/benches/common/mod.rs"]
 mod common;
 
 use std::hint::black_box;
@@ -11,11 +12,11 @@ use std::hint::black_box;
 use criterion::{BenchmarkId, Criterion, criterion_group, criterion_main};
 use glam::DVec3;
 use plumbline::app::inspector::ClearancePlot;
-use plumbline::check::answer_probe;
-use plumbline::demo::quay::Random;
-use plumbline::level::ShapeSpec;
-use plumbline::probe::{HitsMode, Probe, ProbeQuery};
-use plumbline::query::{Filter, World};
+use plumbline_core::check::answer_probe;
+use plumbline_core::demo::quay::Random;
+use plumbline_core::level::ShapeSpec;
+use plumbline_core::probe::{HitsMode, Probe, ProbeQuery};
+use plumbline_core::query::{Filter, World};
 
 fn probe(id: usize, query: ProbeQuery) -> Probe {
     Probe {

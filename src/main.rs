@@ -9,7 +9,7 @@ use std::process::ExitCode;
 
 use clap::{Parser, Subcommand};
 
-use plumbline::check::DEFAULT_TOLERANCE;
+use plumbline_core::check::DEFAULT_TOLERANCE;
 
 #[derive(Parser)]
 #[command(
@@ -60,7 +60,7 @@ enum Command {
 
 /// Opens the window on `file`, or on the bundled demo's probe set.
 fn open(file: Option<PathBuf>, window: cli::WindowArgs) -> Result<ExitCode, String> {
-    let file = file.unwrap_or_else(|| demo_scenes().join(plumbline::demo::files::PROBES));
+    let file = file.unwrap_or_else(|| demo_scenes().join(plumbline_core::demo::files::PROBES));
     plumbline::app::run(&file, window.options()?)?;
     Ok(ExitCode::SUCCESS)
 }
@@ -68,7 +68,7 @@ fn open(file: Option<PathBuf>, window: cli::WindowArgs) -> Result<ExitCode, Stri
 /// The demo's folder: `scenes/` here, or the one in the source tree this binary was built from.
 fn demo_scenes() -> PathBuf {
     let here = PathBuf::from("scenes");
-    if here.join(plumbline::demo::files::PROBES).is_file() {
+    if here.join(plumbline_core::demo::files::PROBES).is_file() {
         here
     } else {
         PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("scenes")

@@ -4,8 +4,8 @@
 use eframe::egui;
 use egui::{Color32, Pos2, Rect, Sense, Shape, Stroke, Vec2};
 
-use crate::check::Verdict;
 use crate::view::palette::{StateMark, verdict_colour, verdict_mark, verdict_word};
+use plumbline_core::check::Verdict;
 
 /// The colour of a verdict, for egui.
 pub fn verdict_color32(verdict: Verdict) -> Color32 {

@@ -295,8 +295,8 @@ fn write_marks(
         "probes": probes,
     });
     let path = marks_path(screenshot);
-    let text = crate::json_text::to_pretty(&marks);
-    crate::atomic::write_atomic(&path, text.as_bytes())
+    let text = plumbline_core::json_text::to_pretty(&marks);
+    plumbline_core::atomic::write_atomic(&path, text.as_bytes())
         .map_err(|e| format!("{}: {e}", path.display()))
 }
 
@@ -319,5 +319,6 @@ pub fn write_png(path: &Path, image: &egui::ColorImage) -> Result<(), String> {
             .write_image_data(&rgba)
             .map_err(|e| format!("{}: cannot encode PNG: {e}", path.display()))?;
     }
-    crate::atomic::write_atomic(path, &bytes).map_err(|e| format!("{}: {e}", path.display()))
+    plumbline_core::atomic::write_atomic(path, &bytes)
+        .map_err(|e| format!("{}: {e}", path.display()))
 }

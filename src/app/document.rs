@@ -5,13 +5,13 @@ use std::path::{Path, PathBuf};
 use std::sync::Arc;
 use std::time::SystemTime;
 
-use crate::atomic::{write_atomic, write_with_backup};
-use crate::check::{
+use plumbline_core::atomic::{write_atomic, write_with_backup};
+use plumbline_core::check::{
     Aspect, DEFAULT_TOLERANCE, ProbeResult, Summary, answer_probe, changes, run_probes,
 };
-use crate::level::{Geometry, Level, level_digest, load_level};
-use crate::probe::{Probe, ProbeSet, load_probe_set, parse_probe_set, probe_set_to_json};
-use crate::query::World;
+use plumbline_core::level::{Geometry, Level, level_digest, load_level};
+use plumbline_core::probe::{Probe, ProbeSet, load_probe_set, parse_probe_set, probe_set_to_json};
+use plumbline_core::query::World;
 
 /// An open level with its probes answered.
 pub struct Document {
@@ -359,7 +359,7 @@ mod tests {
             id: id.into(),
             label: None,
             filter: Default::default(),
-            query: crate::probe::ProbeQuery::Ray {
+            query: plumbline_core::probe::ProbeQuery::Ray {
                 from: glam::DVec3::ZERO,
                 to: glam::DVec3::X,
                 hits: None,

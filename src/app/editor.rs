@@ -7,8 +7,8 @@ use eframe::egui;
 use egui::{DragValue, RichText};
 use glam::DVec3;
 
-use crate::level::ShapeSpec;
-use crate::probe::{Conditions, Expect, ExpectWord, HitsMode, Probe, ProbeQuery, Range};
+use plumbline_core::level::ShapeSpec;
+use plumbline_core::probe::{Conditions, Expect, ExpectWord, HitsMode, Probe, ProbeQuery, Range};
 
 /// An edit made in the inspector.
 #[derive(Debug, Clone, PartialEq)]

@@ -3,7 +3,7 @@
 //! edits of the same field, such as the frames of one drag or the keys typed into one box, make one
 //! entry until the history is sealed.
 
-use crate::probe::Probe;
+use plumbline_core::probe::Probe;
 
 /// Entries kept at most; the oldest go first.
 const DEPTH: usize = 500;
@@ -90,8 +90,8 @@ impl History {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::probe::ProbeQuery;
     use glam::DVec3;
+    use plumbline_core::probe::ProbeQuery;
 
     fn probe(id: &str) -> Probe {
         Probe {

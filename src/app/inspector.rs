@@ -14,11 +14,11 @@ use super::badge::badge;
 use super::commands::{Command, tooltip};
 use super::document::Document;
 use super::editor::{Edit, EditorState, probe_editor};
-use crate::check::{Aspect, Hits, ProbeResult, Verdict, metres};
-use crate::level::ShapeSpec;
-use crate::probe::{Expect, Probe, ProbeQuery};
-use crate::query::{ProbeShape, World};
 use crate::view::palette::{SELECTED, okabe_ito};
+use plumbline_core::check::{Aspect, Hits, ProbeResult, Verdict, metres};
+use plumbline_core::level::ShapeSpec;
+use plumbline_core::probe::{Expect, Probe, ProbeQuery};
+use plumbline_core::query::{ProbeShape, World};
 
 /// Places along the path where the clearance plot measures the distance to the level.
 const PROFILE_SAMPLES: usize = 240;
@@ -184,7 +184,7 @@ fn bulk_ui(
     let chosen = selection.all();
     let mut action = None;
     ui.heading(format!("{} probes selected", chosen.len()));
-    let summary = crate::check::Summary::of(
+    let summary = plumbline_core::check::Summary::of(
         &chosen
             .iter()
             .filter_map(|&i| document.results.get(i).cloned())

@@ -24,8 +24,6 @@ use eframe::egui;
 use egui::{Color32, RichText};
 use glam::DVec3;
 
-use crate::check::{Aspect, expectation_from};
-use crate::probe::{Probe, validate_probe};
 use crate::view::probe_marks::probe_points;
 use capture::Capture;
 use commands::{Command, menu_item, tooltip};
@@ -34,6 +32,8 @@ use editor::{Edit, EditorState};
 use files::Dialog;
 use history::History;
 use inspector::{InspectorAction, inspector_ui};
+use plumbline_core::check::{Aspect, expectation_from};
+use plumbline_core::probe::{Probe, validate_probe};
 use probe_list::{ListFilter, probe_list_ui};
 use tools::{Authoring, DragMode, Lift, Tool, new_probe};
 use viewport::{ViewEvents, Viewport};
@@ -779,10 +779,10 @@ impl Workbench {
         let summary = self.document.summary();
         ui.horizontal(|ui| {
             for (verdict, count) in [
-                (crate::check::Verdict::Pass, summary.pass),
-                (crate::check::Verdict::Fail, summary.fail),
-                (crate::check::Verdict::Error, summary.error),
-                (crate::check::Verdict::Unchecked, summary.unchecked),
+                (plumbline_core::check::Verdict::Pass, summary.pass),
+                (plumbline_core::check::Verdict::Fail, summary.fail),
+                (plumbline_core::check::Verdict::Error, summary.error),
+                (plumbline_core::check::Verdict::Unchecked, summary.unchecked),
             ] {
                 badge::badge(ui, verdict, &format!(" {count}"));
                 ui.add_space(6.0);

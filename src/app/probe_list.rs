@@ -9,9 +9,9 @@ use std::collections::HashMap;
 use super::Selection;
 use super::badge::{paint_mark, verdict_color32};
 use super::document::Document;
-use crate::check::Aspect;
-use crate::check::Verdict;
 use crate::view::palette::verdict_word;
+use plumbline_core::check::Aspect;
+use plumbline_core::check::Verdict;
 
 /// The kinds offered by the kind filter.
 const KINDS: [&str; 4] = ["ray", "sweep", "closest", "overlap"];
@@ -164,7 +164,7 @@ pub fn probe_list_ui(
 fn probe_row(
     ui: &mut egui::Ui,
     height: f32,
-    probe: &crate::probe::Probe,
+    probe: &plumbline_core::probe::Probe,
     verdict: Verdict,
     selected: bool,
     changed: bool,

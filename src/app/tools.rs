@@ -4,10 +4,10 @@
 use eframe::egui;
 use glam::{DVec2, DVec3};
 
-use crate::level::ShapeSpec;
-use crate::probe::{Probe, ProbeQuery};
-use crate::query::Filter;
 use crate::view::OrbitCamera;
+use plumbline_core::level::ShapeSpec;
+use plumbline_core::probe::{Probe, ProbeQuery};
+use plumbline_core::query::Filter;
 
 /// What a click in the view does.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]

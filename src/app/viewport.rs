@@ -14,7 +14,6 @@ use super::Selection;
 use super::badge::{paint_mark, verdict_color32};
 use super::document::Document;
 use super::tools::{Authoring, DragMode, Lift, Tool, drag_along_axis, drag_in_view_plane};
-use crate::check::{Aspect, Hits, Verdict};
 use crate::view::palette::{StateMark, okabe_ito, verdict_word};
 use crate::view::probe_marks::{probe_points, start_point};
 use crate::view::renderer::FrameKind;
@@ -22,6 +21,7 @@ use crate::view::{
     Emphasis, FrameInput, LevelDrawing, Mark, MarkSurfaces, OrbitCamera, Renderer, Sizing, Target,
     mark_surfaces, probe_marks,
 };
+use plumbline_core::check::{Aspect, Hits, Verdict};
 
 /// At most this many probes are drawn at once (the list filter picks which).
 pub const MAX_DRAWN_PROBES: usize = 600;
@@ -725,7 +725,7 @@ impl Viewport {
 /// Highlights the objects an overlap probe overlaps (see-through copies of their surfaces).
 fn overlapped_objects(
     document: &Document,
-    result: &crate::check::ProbeResult,
+    result: &plumbline_core::check::ProbeResult,
     marks: &mut Vec<Mark>,
 ) {
     let Hits::Overlap(hits) = &result.hits else {
@@ -741,19 +741,19 @@ fn overlapped_objects(
             continue;
         };
         let (vertices, triangles) = match &object.geometry {
-            crate::level::Geometry::Mesh(mesh) if mesh.triangles.len() <= 20_000 => {
+            plumbline_core::level::Geometry::Mesh(mesh) if mesh.triangles.len() <= 20_000 => {
                 (mesh.vertices.clone(), mesh.triangles.clone())
             }
-            crate::level::Geometry::Mesh(_) => continue,
-            crate::level::Geometry::Primitive {
+            plumbline_core::level::Geometry::Mesh(_) => continue,
+            plumbline_core::level::Geometry::Primitive {
                 shape,
                 translation,
                 rotation,
             } => {
-                let Ok(parry) = crate::query::primitive_shape(shape) else {
+                let Ok(parry) = plumbline_core::query::primitive_shape(shape) else {
                     continue;
                 };
-                let (vertices, triangles) = crate::query::shape_surface(&parry);
+                let (vertices, triangles) = plumbline_core::query::shape_surface(&parry);
                 let placed = vertices
                     .iter()
                     .map(|v| *translation + *rotation * *v)

@@ -6,15 +6,15 @@ use std::process::ExitCode;
 use std::sync::mpsc;
 use std::time::Duration;
 
-use plumbline::atomic::write_atomic;
-use plumbline::check::{
+use plumbline_core::atomic::write_atomic;
+use plumbline_core::check::{
     Comparison, DEFAULT_TOLERANCE, ResultsFile, Verdict, compare, load_results, run_probes,
     text_digest,
 };
-use plumbline::level::{level_digest, load_level, read_input};
-use plumbline::probe::{ProbeSet, parse_probe_set};
-use plumbline::query::World;
-use plumbline::report::{junit_xml, markdown_summary};
+use plumbline_core::level::{level_digest, load_level, read_input};
+use plumbline_core::probe::{ProbeSet, parse_probe_set};
+use plumbline_core::query::World;
+use plumbline_core::report::{junit_xml, markdown_summary};
 
 use super::terminal::{Progress, Style, Tone, write_stdout};
 use super::{EXIT_FAILED, print_comparison};

@@ -3,7 +3,7 @@
 use std::path::Path;
 use std::process::ExitCode;
 
-use plumbline::check::{compare, load_results};
+use plumbline_core::check::{compare, load_results};
 
 use super::terminal::Style;
 use super::{EXIT_FAILED, print_comparison};

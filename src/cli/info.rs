@@ -3,8 +3,8 @@
 use std::path::Path;
 use std::process::ExitCode;
 
-use plumbline::level::{Geometry, Primitive, level_digest, load_level};
-use plumbline::query::World;
+use plumbline_core::level::{Geometry, Primitive, level_digest, load_level};
+use plumbline_core::query::World;
 
 use super::terminal::write_stdout;
 

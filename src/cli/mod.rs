@@ -11,7 +11,7 @@ pub use diff::diff;
 pub use info::info;
 pub use window::WindowArgs;
 
-use plumbline::check::Comparison;
+use plumbline_core::check::Comparison;
 use terminal::{Style, Tone, write_stdout};
 
 /// Exit status when an expectation fails, a probe errs, or (`diff`) something changed.

@@ -7,8 +7,8 @@ use glam::DVec3;
 
 use super::palette::{Rgb, tag_tone};
 use super::surface::{Surface, face_normal, shaded, sun_light};
-use crate::level::{Geometry, Level};
-use crate::query::{primitive_shape, shape_surface};
+use plumbline_core::level::{Geometry, Level};
+use plumbline_core::query::{primitive_shape, shape_surface};
 
 /// Levels with more triangles than this get a proxy for frames while the camera moves.
 pub const PROXY_ABOVE: usize = 250_000;
@@ -219,7 +219,7 @@ fn nice_step(x: f64) -> f64 {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::level::{LevelObject, Mesh};
+    use plumbline_core::level::{LevelObject, Mesh};
 
     fn grid_level(n: usize) -> Level {
         let mut mesh = Mesh::default();

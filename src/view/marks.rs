@@ -256,7 +256,7 @@ fn marker(
             let (vertices, triangles) = if mark == StateMark::Round {
                 unit_ball()
             } else {
-                crate::query::box_surface(DVec3::splat(0.8))
+                plumbline_core::query::box_surface(DVec3::splat(0.8))
             };
             for t in triangles {
                 let corners = t.map(|i| to_world(vertices[i as usize]));

@@ -2,7 +2,7 @@
 //! probe state colours from a published colour-blind-safe palette. Colour is never the only cue: every
 //! state also has its own marker shape and word (see [`StateMark`]).
 
-use crate::check::Verdict;
+use plumbline_core::check::Verdict;
 
 /// An sRGB colour, 8 bits per channel.
 pub type Rgb = [u8; 3];

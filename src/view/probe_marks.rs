@@ -9,10 +9,10 @@ use glam::{DQuat, DVec3};
 
 use super::marks::Mark;
 use super::palette::{HIT, NORMAL, SELECTED, verdict_colour, verdict_mark};
-use crate::check::{Hits, ProbeResult};
-use crate::level::ShapeSpec;
-use crate::probe::{Probe, ProbeQuery};
-use crate::query::ProbeShape;
+use plumbline_core::check::{Hits, ProbeResult};
+use plumbline_core::level::ShapeSpec;
+use plumbline_core::probe::{Probe, ProbeQuery};
+use plumbline_core::query::ProbeShape;
 
 /// Line width of probes, pixels.
 const WIDTH: f64 = 3.0;

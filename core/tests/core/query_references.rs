@@ -1,11 +1,11 @@
 //! The query core against published references and worked examples, one check per source.
 
-mod common;
+use crate::common;
 
 use common::*;
 use glam::{DQuat, DVec3};
-use plumbline::level::{Primitive, ShapeSpec};
-use plumbline::query::{ClosestProbe, Filter, ProbeShape};
+use plumbline_core::level::{Primitive, ShapeSpec};
+use plumbline_core::query::{ClosestProbe, Filter, ProbeShape};
 
 fn sphere(r: f64) -> ProbeShape {
     ProbeShape::new(&ShapeSpec::Sphere { radius: r }, DQuat::IDENTITY).unwrap()

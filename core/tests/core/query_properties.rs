@@ -2,12 +2,12 @@
 //! tests/common (Möller–Trumbore over every triangle, Ericson's closest point per triangle, and
 //! root finding on exact distance functions), on random levels and probes.
 
-mod common;
+use crate::common;
 
 use common::*;
 use glam::{DQuat, DVec3};
-use plumbline::level::ShapeSpec;
-use plumbline::query::{ClosestProbe, ProbeShape};
+use plumbline_core::level::ShapeSpec;
+use plumbline_core::query::{ClosestProbe, ProbeShape};
 use proptest::prelude::*;
 use proptest::strategy::ValueTree;
 
@@ -206,7 +206,7 @@ fn closed_mesh_crossings_come_in_pairs() {
 #[test]
 fn split_meshes_answer_like_whole_ones() {
     let n = 370; // 273,800 triangles: two parts
-    assert!(2 * n * n > plumbline::query::PART_TRIANGLES);
+    assert!(2 * n * n > plumbline_core::query::PART_TRIANGLES);
     let mut v = Vec::new();
     let mut t = Vec::new();
     for i in 0..=n {

@@ -3,9 +3,9 @@
 #![allow(dead_code)]
 
 use glam::{DQuat, DVec3};
-use plumbline::demo::MeshBuilder;
-use plumbline::level::{Geometry, Level, LevelObject, Mesh, Primitive};
-use plumbline::query::World;
+use plumbline_core::demo::MeshBuilder;
+use plumbline_core::level::{Geometry, Level, LevelObject, Mesh, Primitive};
+use plumbline_core::query::World;
 
 /// A level of named meshes and primitives, Y up.
 pub struct LevelBuilder {

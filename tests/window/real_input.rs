@@ -6,8 +6,8 @@
 use std::path::PathBuf;
 use std::process::Command;
 
-use plumbline::demo::files;
-use plumbline::probe::load_probe_set;
+use plumbline_core::demo::files;
+use plumbline_core::probe::load_probe_set;
 
 #[test]
 fn real_keys_and_clicks_place_save_and_quit() {

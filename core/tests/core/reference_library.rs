@@ -2,11 +2,11 @@
 //! rtree 1.4.1 and numpy 2.4.6), whose ray and closest-point answers on the same mesh are frozen in
 //! tests/fixtures/trimesh_reference.json by tests/fixtures/make_trimesh_reference.py.
 
-mod common;
+use crate::common;
 
 use common::LevelBuilder;
 use glam::DVec3;
-use plumbline::query::ClosestProbe;
+use plumbline_core::query::ClosestProbe;
 use serde::Deserialize;
 
 #[derive(Deserialize)]
@@ -35,7 +35,7 @@ struct PointCase {
 }
 
 fn fixture() -> Fixture {
-    let text = include_str!("fixtures/trimesh_reference.json");
+    let text = include_str!("../fixtures/trimesh_reference.json");
     serde_json::from_str(text).expect("the fixture parses")
 }
 

@@ -20,14 +20,14 @@ fn main() {
     let before = peak_rss_bytes().unwrap_or(0);
     let start = Instant::now();
     let (level, _) =
-        plumbline::level::load_level(std::path::Path::new(&path)).unwrap_or_else(|e| {
+        plumbline_core::level::load_level(std::path::Path::new(&path)).unwrap_or_else(|e| {
             eprintln!("{e}");
             std::process::exit(2);
         });
     let loaded = start.elapsed();
     let triangles = level.triangle_count();
     // As `plumbline check` does: the World takes the level over.
-    let world = plumbline::query::World::from_level(level).expect("the level builds");
+    let world = plumbline_core::query::World::from_level(level).expect("the level builds");
     let built = start.elapsed();
     let peak = peak_rss_bytes().unwrap_or(0);
     println!("triangles            {triangles}");

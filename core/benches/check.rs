@@ -6,13 +6,13 @@ mod common;
 
 use criterion::{BenchmarkId, Criterion, criterion_group, criterion_main};
 use glam::DQuat;
-use plumbline::check::{ResultsFile, run_probes, text_digest};
-use plumbline::demo::quay::Random;
-use plumbline::level::{ShapeSpec, level_digest};
-use plumbline::probe::{
+use plumbline_core::check::{ResultsFile, run_probes, text_digest};
+use plumbline_core::demo::quay::Random;
+use plumbline_core::level::{ShapeSpec, level_digest};
+use plumbline_core::probe::{
     Expect, ExpectWord, HitsMode, Probe, ProbeQuery, ProbeSet, probe_set_to_json,
 };
-use plumbline::query::{ClosestProbe, Filter, ProbeShape, World};
+use plumbline_core::query::{ClosestProbe, Filter, ProbeShape, World};
 
 const PROBES: usize = 100_000;
 
@@ -146,7 +146,7 @@ fn bench(c: &mut Criterion) {
                         text_digest(probes_text.as_bytes()),
                         results,
                     );
-                    plumbline::atomic::write_atomic(
+                    plumbline_core::atomic::write_atomic(
                         &out.path().join("bench.results.json"),
                         file.to_json().as_bytes(),
                     )

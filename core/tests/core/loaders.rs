@@ -1,14 +1,14 @@
 //! Level loading: glTF 2.0 (embedded, external and binary buffers; node hierarchy; strips and fans;
 //! mirrored transforms; extras tags), OBJ (groups, negative indices, polygons) and the level file.
 
-mod common;
+use crate::common;
 
 use std::path::{Path, PathBuf};
 
 use base64::Engine;
 use glam::DVec3;
-use plumbline::level::{Geometry, Level, Primitive, level_digest, load_level};
-use plumbline::query::World;
+use plumbline_core::level::{Geometry, Level, Primitive, level_digest, load_level};
+use plumbline_core::query::World;
 
 fn write(dir: &Path, name: &str, bytes: &[u8]) -> PathBuf {
     let path = dir.join(name);
@@ -16,7 +16,7 @@ fn write(dir: &Path, name: &str, bytes: &[u8]) -> PathBuf {
     path
 }
 
-fn mesh(level: &Level, name: &str) -> plumbline::level::Mesh {
+fn mesh(level: &Level, name: &str) -> plumbline_core::level::Mesh {
     let object = level
         .objects
         .iter()
@@ -86,7 +86,7 @@ fn gltf_json(uri: Option<&str>, extra_root: &str) -> String {
 
 /// A GLB container of the JSON and the binary buffer (the library's packer, glTF 2.0 §4.4).
 fn glb(json: &str, bin: &[u8]) -> Vec<u8> {
-    plumbline::demo::pack_glb(json.as_bytes(), bin)
+    plumbline_core::demo::pack_glb(json.as_bytes(), bin)
 }
 
 fn check_gltf_level(level: &Level) {

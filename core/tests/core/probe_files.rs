@@ -2,7 +2,7 @@
 
 use std::path::Path;
 
-use plumbline::probe::{parse_probe_set, probe_set_to_json};
+use plumbline_core::probe::{parse_probe_set, probe_set_to_json};
 
 #[test]
 fn save_and_reload_is_identical() {

@@ -4,7 +4,7 @@
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 
-const FIXTURE: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/tests/fixtures/check");
+const FIXTURE: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/core/tests/fixtures/check");
 
 fn plumbline(dir: &Path, args: &[&str]) -> Output {
     Command::new(env!("CARGO_BIN_EXE_plumbline"))

@@ -8,8 +8,8 @@ use glam::{DQuat, DVec3};
 use parry3d_f64::math::Pose;
 use parry3d_f64::query::{PointQuery, Ray, RayCast, ShapeCastOptions, cast_shapes, contact};
 use parry3d_f64::shape::{Ball, Capsule};
-use plumbline::level::ShapeSpec;
-use plumbline::query::{ClosestProbe, ProbeShape, World};
+use plumbline_core::level::ShapeSpec;
+use plumbline_core::query::{ClosestProbe, ProbeShape, World};
 
 const N: usize = 2000;
 

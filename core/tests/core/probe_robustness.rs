@@ -1,12 +1,12 @@
 //! No probe a user can write panics the query core: extreme but finite numbers, tiny and huge
 //! shapes, degenerate paths. Each probe is answered or reported as an error.
 
-mod common;
+use crate::common;
 
 use common::{LevelBuilder, box_mesh};
 use glam::DVec3;
-use plumbline::check::answer_probe;
-use plumbline::probe::parse_probe_set;
+use plumbline_core::check::answer_probe;
+use plumbline_core::probe::parse_probe_set;
 use proptest::prelude::*;
 
 fn number() -> impl Strategy<Value = f64> {

@@ -1,16 +1,14 @@
 //! The workbench's panels driven headlessly by widget label (egui_kittest): the probe list, its
 //! filters, the inspector and its hit rows. No window, GPU or file dialog is involved.
 
-mod window_support;
-
 use std::path::PathBuf;
 
 use egui_kittest::Harness;
 use egui_kittest::kittest::Queryable;
 use plumbline::app::Workbench;
 use plumbline::app::document::Document;
-use plumbline::check::{Hits, metres};
-use plumbline::demo::files;
+use plumbline_core::check::{Hits, metres};
+use plumbline_core::demo::files;
 
 fn demo() -> Document {
     let path = PathBuf::from(env!("CARGO_MANIFEST_DIR"))
@@ -176,7 +174,7 @@ fn picking_a_probe_frames_it_in_the_view_and_clicking_it_in_the_view_finds_it_in
             start_point(&workbench.document.probes.probes[target].query),
         )
         .expect("the failing probe is in view");
-    window_support::click_at(&mut harness, at);
+    crate::support::click_at(&mut harness, at);
     harness.run_steps(1);
     assert_eq!(harness.state().selection.probe, Some(target));
     harness.get_by_label_contains("FAIL  spawn-by-drums");

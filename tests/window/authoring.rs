@@ -3,20 +3,18 @@
 //! number, the recovery file, a save that fails, the unsaved-changes guard, and a level reload. Every
 //! test works on a copy of the demo in a temporary folder; no file dialog is opened.
 
-mod window_support;
-
 use std::path::{Path, PathBuf};
 
+use crate::support::{click_at, press};
 use eframe::egui::{self, Event, Key, Modifiers};
 use egui_kittest::Harness;
 use egui_kittest::kittest::Queryable;
 use plumbline::app::Workbench;
 use plumbline::app::document::Document;
-use plumbline::check::Verdict;
-use plumbline::demo::files;
-use plumbline::probe::{ProbeSet, load_probe_set, probe_set_to_json};
-use plumbline::query::ClosestProbe;
-use window_support::{click_at, press};
+use plumbline_core::check::Verdict;
+use plumbline_core::demo::files;
+use plumbline_core::probe::{ProbeSet, load_probe_set, probe_set_to_json};
+use plumbline_core::query::ClosestProbe;
 
 /// The demo copied into a fresh folder; returns the folder and the probe set's path.
 fn demo_copy() -> (tempfile::TempDir, PathBuf) {
@@ -48,7 +46,7 @@ fn select_by_id(harness: &mut Harness<'static, Workbench>, id: &str) -> usize {
     index
 }
 
-fn probes_of(harness: &Harness<'static, Workbench>) -> Vec<plumbline::probe::Probe> {
+fn probes_of(harness: &Harness<'static, Workbench>) -> Vec<plumbline_core::probe::Probe> {
     harness.state().document.probes.probes.clone()
 }
 
@@ -168,7 +166,7 @@ fn editing_a_number_in_the_inspector_answers_the_probe_again() {
     harness.get_by_label("from y").set_value_accesskit(40.0);
     harness.run_steps(2);
     let workbench = harness.state();
-    let plumbline::probe::ProbeQuery::Ray { from, .. } =
+    let plumbline_core::probe::ProbeQuery::Ray { from, .. } =
         workbench.document.probes.probes[index].query
     else {
         unreachable!()
@@ -297,7 +295,7 @@ fn a_level_edited_on_disk_is_reloaded_and_what_changed_is_shown_until_dismissed(
 }
 
 /// Height of `p` above the level straight below it.
-fn height_above_level(world: &plumbline::query::World, p: glam::DVec3) -> f64 {
+fn height_above_level(world: &plumbline_core::query::World, p: glam::DVec3) -> f64 {
     world
         .everything()
         .ray_first(p, p - world.up() * 1.0e4)

@@ -5,9 +5,9 @@
 use std::path::Path;
 use std::process::Command;
 
-use plumbline::check::Verdict;
 use plumbline::view::palette::verdict_colour;
 use plumbline::view::renderer::BACKGROUND;
+use plumbline_core::check::Verdict;
 
 struct Image {
     width: usize,

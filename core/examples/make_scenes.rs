@@ -9,9 +9,9 @@ use std::process::ExitCode;
 fn main() -> ExitCode {
     let args: Vec<String> = std::env::args().skip(1).collect();
     let result = match args.as_slice() {
-        [] => plumbline::demo::write_demo_scene(&PathBuf::from("scenes")),
+        [] => plumbline_core::demo::write_demo_scene(&PathBuf::from("scenes")),
         [flag, count, folder] if flag == "--large" => match count.parse::<usize>() {
-            Ok(n) => plumbline::demo::write_large_scene(&PathBuf::from(folder), n),
+            Ok(n) => plumbline_core::demo::write_large_scene(&PathBuf::from(folder), n),
             Err(_) => Err(format!("\"{count}\" is not a triangle count")),
         },
         _ => Err("usage: make_scenes [--large TRIANGLES FOLDER]".into()),

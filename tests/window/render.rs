@@ -11,16 +11,16 @@
 use std::sync::Arc;
 
 use glam::{DQuat, DVec2, DVec3};
-use plumbline::check::answer_probe;
-use plumbline::level::{Geometry, Level, LevelObject, Primitive};
-use plumbline::probe::{Probe, ProbeQuery};
-use plumbline::query::{Filter, World};
 use plumbline::view::renderer::BACKGROUND;
 use plumbline::view::surface::Surface;
 use plumbline::view::{
     Emphasis, FrameInput, LevelDrawing, MarkSurfaces, OrbitCamera, Renderer, Sizing, mark_surfaces,
     probe_marks,
 };
+use plumbline_core::check::answer_probe;
+use plumbline_core::level::{Geometry, Level, LevelObject, Primitive};
+use plumbline_core::probe::{Probe, ProbeQuery};
+use plumbline_core::query::{Filter, World};
 
 const WIDTH: u32 = 320;
 const HEIGHT: u32 = 240;
@@ -236,7 +236,7 @@ fn a_rays_hit_marker_lands_on_the_projected_hit_point() {
         expect: None,
     };
     let result = answer_probe(&world, &probe);
-    let plumbline::check::Hits::Ray(hits) = &result.hits else {
+    let plumbline_core::check::Hits::Ray(hits) = &result.hits else {
         unreachable!()
     };
     let hit_point = DVec3::from(hits[0].point);

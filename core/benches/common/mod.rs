@@ -4,9 +4,9 @@
 
 use glam::DVec3;
 use parry3d_f64::shape::TriMesh;
-use plumbline::demo::large_level;
-use plumbline::demo::quay::Random;
-use plumbline::level::{Geometry, Level};
+use plumbline_core::demo::large_level;
+use plumbline_core::demo::quay::Random;
+use plumbline_core::level::{Geometry, Level};
 
 /// Triangles in the benchmark level.
 pub const TRIANGLES: usize = 1_000_000;
@@ -31,7 +31,7 @@ pub fn levels() -> (Level, TriMesh) {
 pub fn spot(random: &mut Random, lift: f64) -> DVec3 {
     let x = random.range(-95.0, 95.0);
     let z = random.range(-38.0, 95.0);
-    DVec3::new(x, plumbline::demo::quay::ground_height(x, z) + lift, z)
+    DVec3::new(x, plumbline_core::demo::quay::ground_height(x, z) + lift, z)
 }
 
 /// `n` segments of 1–20 m from points 0.5–3 m above the ground, in random directions.

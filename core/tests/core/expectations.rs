@@ -3,15 +3,15 @@
 
 use std::path::PathBuf;
 
-use plumbline::check::{Verdict, answer_probe, expectation_from};
-use plumbline::demo::files;
-use plumbline::level::load_level;
-use plumbline::probe::load_probe_set;
-use plumbline::query::World;
+use plumbline_core::check::{Verdict, answer_probe, expectation_from};
+use plumbline_core::demo::files;
+use plumbline_core::level::load_level;
+use plumbline_core::probe::load_probe_set;
+use plumbline_core::query::World;
 
 #[test]
 fn an_expectation_taken_from_an_answer_passes_on_that_answer() {
-    let scenes = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("scenes");
+    let scenes = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../scenes");
     let set = load_probe_set(&scenes.join(files::PROBES)).unwrap();
     for level in [files::LEVEL, files::EDITED_LEVEL] {
         let (level, _) = load_level(&scenes.join(level)).unwrap();

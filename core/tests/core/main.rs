@@ -1,0 +1,13 @@
+//! The core's integration tests, one module per area, linked as one test binary. Each check of the
+//! main job names its source beside it; `common` holds the independent oracles.
+
+mod bad_input;
+mod common;
+mod demo_scene;
+mod expectations;
+mod loaders;
+mod probe_files;
+mod probe_robustness;
+mod query_properties;
+mod query_references;
+mod reference_library;

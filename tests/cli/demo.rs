@@ -1,0 +1,41 @@
+//! The README's demo check, run from the repository root as a user would.
+
+use std::process::Command;
+
+#[test]
+fn check_runs_on_the_demo_from_the_repository_root() {
+    let run = Command::new(env!("CARGO_BIN_EXE_plumbline"))
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .args([
+            "check",
+            "scenes/saltfen-quay.probes.json",
+            "--level",
+            "scenes/saltfen-quay-edited.level.json",
+        ])
+        .args([
+            "--baseline",
+            "scenes/saltfen-quay.baseline.results.json",
+            "--brief",
+        ])
+        .env("NO_COLOR", "1")
+        .output()
+        .unwrap();
+    assert_eq!(run.status.code(), Some(1));
+    let stdout = String::from_utf8(run.stdout).unwrap();
+    for changed in [
+        "gate-sees-warehouse-door",
+        "walk-through-personnel-door",
+        "crate-2-on-floor",
+    ] {
+        assert!(
+            stdout
+                .lines()
+                .any(|l| l.trim_start().starts_with(changed) && l.contains("verdict pass -> fail")),
+            "{stdout}"
+        );
+    }
+    assert!(
+        stdout.contains("Changed since the baseline (3):"),
+        "{stdout}"
+    );
+}

@@ -1,0 +1,52 @@
+//! `plumbline info`: the level's objects and warnings, and exit 2 with a one-line error for bad input.
+
+use std::path::{Path, PathBuf};
+use std::process::Command;
+
+fn write(dir: &Path, name: &str, bytes: &[u8]) -> PathBuf {
+    let p = dir.join(name);
+    std::fs::write(&p, bytes).unwrap();
+    p
+}
+
+#[test]
+fn info_exits_2_with_a_one_line_error() {
+    let dir = tempfile::tempdir().unwrap();
+    let p = write(dir.path(), "a.obj", b"v 0 0 0\nf 1 2 3\n");
+    let out = Command::new(env!("CARGO_BIN_EXE_plumbline"))
+        .arg("info")
+        .arg(&p)
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2));
+    let stderr = String::from_utf8(out.stderr).unwrap();
+    assert_eq!(stderr.lines().count(), 1, "{stderr}");
+    assert!(stderr.contains("a.obj: line 2, column 5"), "{stderr}");
+    let out = Command::new(env!("CARGO_BIN_EXE_plumbline"))
+        .args(["info", "--bogus"])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2));
+}
+
+#[test]
+fn info_lists_objects_and_warnings() {
+    let dir = tempfile::tempdir().unwrap();
+    let p = write(
+        dir.path(),
+        "a.obj",
+        b"o crate\nv 0 0 0\nv 1 0 0\nv 0 1 0\nv 2 0 0\nf 1 2 3\nf 1 2 4\n",
+    );
+    let out = Command::new(env!("CARGO_BIN_EXE_plumbline"))
+        .arg("info")
+        .arg(&p)
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(0));
+    let stdout = String::from_utf8(out.stdout).unwrap();
+    assert!(stdout.contains("triangles 1"), "{stdout}");
+    assert!(
+        stdout.contains("crate") && stdout.contains("1 degenerate triangle(s)"),
+        "{stdout}"
+    );
+}

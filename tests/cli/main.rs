@@ -1,0 +1,6 @@
+//! The `plumbline` command from the outside, as users' CI scripts run it: exit codes, files written,
+//! messages.
+
+mod check;
+mod demo;
+mod info;
