@@ -19,11 +19,12 @@ fn main() {
     };
     let before = peak_rss_bytes().unwrap_or(0);
     let start = Instant::now();
-    let (level, _) =
-        plumbline_core::level::load_level(std::path::Path::new(&path)).unwrap_or_else(|e| {
+    let level = plumbline_core::level::load_level(std::path::Path::new(&path))
+        .unwrap_or_else(|e| {
             eprintln!("{e}");
             std::process::exit(2);
-        });
+        })
+        .level;
     let loaded = start.elapsed();
     let triangles = level.triangle_count();
     // As `plumbline check` does: the World takes the level over.

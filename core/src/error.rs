@@ -1,15 +1,70 @@
-//! The one error type for input the program cannot use: it names the file and the place in it.
+//! The core's errors and warnings, typed until they are shown: each names the file and the place in
+//! it. [`Error`] is what the core's entry points return; [`InputError`] is an input that cannot be
+//! read or used; [`Diagnostic`] is a warning about an input that is used all the same.
 
 use std::fmt;
 use std::path::{Path, PathBuf};
+
+use crate::query::BuildError;
+
+/// Everything the core's entry points can fail with. The command line maps every variant to exit
+/// status 2 (SPEC §4); the window shows it in one line.
+#[derive(Debug, thiserror::Error)]
+pub enum Error {
+    /// An input file cannot be read or used.
+    #[error(transparent)]
+    Input(#[from] InputError),
+    /// The level loaded, but an object could not be made into query shapes.
+    #[error("{}: {cause}", level.display())]
+    Build {
+        /// The level file.
+        level: PathBuf,
+        /// The object and what went wrong.
+        cause: BuildError,
+    },
+    /// The worker threads could not be started.
+    #[error("cannot start worker threads: {0}")]
+    Threads(#[from] rayon::ThreadPoolBuildError),
+    /// A file could not be written.
+    #[error("{}: cannot write the file: {source}", path.display())]
+    Write {
+        /// The file.
+        path: PathBuf,
+        /// Why not.
+        source: std::io::Error,
+    },
+}
+
+/// Where in an input file a problem lies.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum Place {
+    /// A line and a column of a text file, both 1-based.
+    Text {
+        /// Line number.
+        line: usize,
+        /// Column number, in characters.
+        column: usize,
+    },
+    /// A named part of the file: a field, an object, a node, a primitive, a triangle.
+    Part(String),
+}
+
+impl fmt::Display for Place {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Place::Text { line, column } => write!(f, "line {line}, column {column}"),
+            Place::Part(part) => f.write_str(part),
+        }
+    }
+}
 
 /// An input that cannot be read or used, with the file and the place in it that is at fault.
 #[derive(Debug, Clone, PartialEq)]
 pub struct InputError {
     /// The file at fault.
     pub path: PathBuf,
-    /// Where in the file: `line 3, column 7`, `object "shed", triangle 12`; `None` for the file as a whole.
-    pub place: Option<String>,
+    /// Where in the file; `None` for the file as a whole.
+    pub place: Option<Place>,
     /// What is wrong, in one sentence.
     pub message: String,
 }
@@ -24,18 +79,22 @@ impl InputError {
         }
     }
 
-    /// An error at a place in the file.
-    pub fn at(path: &Path, place: impl Into<String>, message: impl Into<String>) -> Self {
+    /// An error at a named part of the file (`object "shed"`, `field "up"`).
+    pub fn at(path: &Path, part: impl Into<String>, message: impl Into<String>) -> Self {
         Self {
             path: path.to_path_buf(),
-            place: Some(place.into()),
+            place: Some(Place::Part(part.into())),
             message: message.into(),
         }
     }
 
     /// An error at a line and column (both 1-based).
     pub fn at_line(path: &Path, line: usize, column: usize, message: impl Into<String>) -> Self {
-        Self::at(path, format!("line {line}, column {column}"), message)
+        Self {
+            path: path.to_path_buf(),
+            place: Some(Place::Text { line, column }),
+            message: message.into(),
+        }
     }
 
     /// A JSON syntax or schema error from serde_json, with its line and column.
@@ -52,9 +111,7 @@ impl InputError {
             Self::at_line(path, err.line(), err.column(), message)
         }
     }
-}
 
-impl InputError {
     /// An error about `fragment`, a slice of the file's `text`, placed at the line and column where
     /// the fragment starts.
     pub fn at_fragment(
@@ -122,35 +179,115 @@ fn position_of(text: &str, fragment: &str) -> (usize, usize) {
     (line, column)
 }
 
+/// `path: place: message`, the one-line form every error and warning is shown in.
+fn write_located(
+    f: &mut fmt::Formatter<'_>,
+    path: &Path,
+    place: Option<&Place>,
+    message: &dyn fmt::Display,
+) -> fmt::Result {
+    write!(f, "{}", path.display())?;
+    if let Some(place) = place {
+        write!(f, ": {place}")?;
+    }
+    write!(f, ": {message}")
+}
+
 impl fmt::Display for InputError {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        write!(f, "{}", self.path.display())?;
-        if let Some(place) = &self.place {
-            write!(f, ": {place}")?;
-        }
-        write!(f, ": {}", self.message)
+        write_located(f, &self.path, self.place.as_ref(), &self.message)
     }
 }
 
 impl std::error::Error for InputError {}
 
-/// A warning found while loading: the input is usable, but something in it was skipped or repaired.
+/// What a load warning is about: the input is usable, but something in it was skipped or repaired.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum Warning {
+    /// Triangles with (almost) no area were dropped from an object.
+    DegenerateDropped {
+        /// The object.
+        object: String,
+        /// How many.
+        count: usize,
+    },
+    /// An object had no triangles left and was left out.
+    EmptyObject {
+        /// The object.
+        object: String,
+    },
+    /// OBJ line and point elements were skipped.
+    SkippedElements {
+        /// How many.
+        count: usize,
+    },
+    /// A glTF primitive that is not made of triangles was skipped.
+    SkippedPrimitive {
+        /// Node, mesh and primitive.
+        part: String,
+        /// Its mode (points, lines…).
+        mode: String,
+    },
+}
+
+impl Warning {
+    /// Where in the file the warning applies, when it does.
+    pub fn place(&self) -> Option<Place> {
+        match self {
+            Warning::DegenerateDropped { object, .. } | Warning::EmptyObject { object } => {
+                Some(Place::Part(format!("object \"{object}\"")))
+            }
+            Warning::SkippedElements { .. } => None,
+            Warning::SkippedPrimitive { part, .. } => Some(Place::Part(part.clone())),
+        }
+    }
+}
+
+impl fmt::Display for Warning {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Warning::DegenerateDropped { count, .. } => {
+                write!(
+                    f,
+                    "{count} degenerate triangle(s) with no area were dropped"
+                )
+            }
+            Warning::EmptyObject { .. } => {
+                f.write_str("the object has no triangles and was left out")
+            }
+            Warning::SkippedElements { count } => write!(
+                f,
+                "{count} line/point element(s) skipped (only faces are collision geometry)"
+            ),
+            Warning::SkippedPrimitive { mode, .. } => write!(
+                f,
+                "{mode} primitive skipped (only triangles are collision geometry)"
+            ),
+        }
+    }
+}
+
+/// A warning found while loading, with the file it is about.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct Diagnostic {
     /// The file the warning is about.
     pub path: PathBuf,
-    /// Where in the file, when it applies.
-    pub place: Option<String>,
     /// What was skipped or repaired.
-    pub message: String,
+    pub warning: Warning,
+}
+
+impl Diagnostic {
+    /// A warning about `path`.
+    pub fn new(path: &Path, warning: Warning) -> Self {
+        Self {
+            path: path.to_path_buf(),
+            warning,
+        }
+    }
 }
 
 impl fmt::Display for Diagnostic {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        write!(f, "{}", self.path.display())?;
-        if let Some(place) = &self.place {
-            write!(f, ": {place}")?;
-        }
-        write!(f, ": {}", self.message)
+        write_located(f, &self.path, self.warning.place().as_ref(), &self.warning)
     }
 }

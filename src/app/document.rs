@@ -7,11 +7,13 @@ use std::time::SystemTime;
 
 use plumbline_core::atomic::{write_atomic, write_with_backup};
 use plumbline_core::check::{
-    Aspect, DEFAULT_TOLERANCE, ProbeResult, Summary, answer_probe, changes, run_probes,
+    Aspect, DEFAULT_TOLERANCE, ProbeResult, Summary, answer_probe, changes,
 };
-use plumbline_core::level::{Geometry, Level, level_digest, load_level};
-use plumbline_core::probe::{Probe, ProbeSet, load_probe_set, parse_probe_set, probe_set_to_json};
+use plumbline_core::error::{Diagnostic, Error};
+use plumbline_core::level::{Geometry, Level};
+use plumbline_core::probe::{Probe, ProbeSet, parse_probe_set, probe_set_to_json};
 use plumbline_core::query::World;
+use plumbline_core::session::{OpenOptions, Opened, open};
 
 /// An open level with its probes answered.
 pub struct Document {
@@ -29,8 +31,8 @@ pub struct Document {
     pub results: Vec<ProbeResult>,
     /// The level's digest as loaded.
     pub level_digest: String,
-    /// Load warnings, as `file: place: message` lines.
-    pub warnings: Vec<String>,
+    /// Load warnings.
+    pub diagnostics: Vec<Diagnostic>,
     stamps: Vec<(PathBuf, Option<SystemTime>)>,
     /// Edits made since opening; compared with `saved_edits` to tell unsaved changes.
     edits: u64,
@@ -39,42 +41,19 @@ pub struct Document {
 
 impl Document {
     /// Opens a probe set (`*.probes.json`, with the level it names) or a level on its own.
-    pub fn open(path: &Path) -> Result<Document, String> {
-        let name = path.file_name().and_then(|n| n.to_str()).unwrap_or("");
-        if name.ends_with(".probes.json") {
-            let probes = load_probe_set(path).map_err(|e| e.to_string())?;
-            let level_path = path.parent().unwrap_or(Path::new("")).join(&probes.level);
-            Document::load(level_path, Some(path.to_path_buf()), probes)
-        } else {
-            let probes = ProbeSet {
-                level: name.to_string(),
-                probes: Vec::new(),
-            };
-            Document::load(path.to_path_buf(), None, probes)
-        }
-    }
-
-    fn load(
-        level_path: PathBuf,
-        probes_path: Option<PathBuf>,
-        probes: ProbeSet,
-    ) -> Result<Document, String> {
-        let stamps = stamps(&level_path);
-        let (level, diagnostics) = load_level(&level_path).map_err(|e| e.to_string())?;
-        let warnings = diagnostics.iter().map(|d| d.to_string()).collect();
-        let level_digest = level_digest(&level);
-        let world =
-            Arc::new(World::new(&level).map_err(|e| format!("{}: {e}", level_path.display()))?);
-        let results = run_probes(&world, &probes.probes, None, &|_| {})?;
+    pub fn open(path: &Path) -> Result<Document, Error> {
+        let Answered { opened, results } = Answered::open(path, None)?;
+        let stamps = stamps(&opened.level.files);
+        let level = opened.level;
         Ok(Document {
-            level_path,
-            probes_path,
-            level,
-            world,
-            probes,
+            level_path: level.path,
+            probes_path: opened.probes_path,
+            level: level.model.expect(KEPT),
+            world: Arc::new(level.world),
+            probes: opened.probes,
             results,
-            level_digest,
-            warnings,
+            level_digest: level.digest,
+            diagnostics: level.diagnostics,
             stamps,
             edits: 0,
             saved_edits: 0,
@@ -185,21 +164,17 @@ impl Document {
     /// probes edited meanwhile are answered again here. Returns what changed for each probe, by
     /// index (the same rules as `check --baseline`, default tolerance).
     pub fn apply_reload(&mut self, reloaded: Reloaded) -> Vec<(usize, Vec<Aspect>)> {
-        let Reloaded {
-            level,
-            world,
-            probes,
+        let Answered {
+            opened,
             mut results,
-            digest,
-            warnings,
-            stamps,
-        } = reloaded;
-        if probes != self.probes.probes {
+        } = reloaded.0;
+        let level = opened.level;
+        if opened.probes.probes != self.probes.probes {
             results = self
                 .probes
                 .probes
                 .iter()
-                .map(|p| answer_probe(&world, p))
+                .map(|p| answer_probe(&level.world, p))
                 .collect();
         }
         let changed = self
@@ -212,12 +187,12 @@ impl Document {
                 (!aspects.is_empty()).then_some((i, aspects))
             })
             .collect();
-        self.level_digest = digest;
-        self.warnings = warnings;
-        self.level = level;
-        self.world = Arc::new(world);
+        self.stamps = stamps(&level.files);
+        self.level_digest = level.digest;
+        self.diagnostics = level.diagnostics;
+        self.level = level.model.expect(KEPT);
+        self.world = Arc::new(level.world);
         self.results = results;
-        self.stamps = stamps;
         changed
     }
 
@@ -229,7 +204,8 @@ impl Document {
     /// True when the level file, or a geometry file beside it, changed on disk since it was loaded
     /// (so the answers on screen may no longer hold).
     pub fn level_changed_on_disk(&self) -> bool {
-        stamps(&self.level_path) != self.stamps
+        let files: Vec<PathBuf> = self.stamps.iter().map(|(p, _)| p.clone()).collect();
+        stamps(&files) != self.stamps
     }
 
     /// The three corners of a triangle of an object's mesh, by object name and triangle index.
@@ -245,35 +221,39 @@ impl Document {
     }
 }
 
+/// The session keeps the level model when asked, and the document always asks.
+const KEPT: &str = "the session keeps the level model when asked";
+
+/// A probe set opened with its level and every probe answered: the one pipeline of the core
+/// ([`plumbline_core::session::open`]), keeping the level model for drawing.
+struct Answered {
+    opened: Opened,
+    results: Vec<ProbeResult>,
+}
+
+impl Answered {
+    /// Opens `path` (answering `probes` instead of the file's, when given) and answers every probe.
+    fn open(path: &Path, probes: Option<Vec<Probe>>) -> Result<Answered, Error> {
+        let options = OpenOptions {
+            probes,
+            keep_level: true,
+            ..OpenOptions::default()
+        };
+        let opened = open(path, &options)?;
+        let results = opened.answer(None, &|_| {})?;
+        Ok(Answered { opened, results })
+    }
+}
+
 /// A level loaded again from disk with the probes answered on it, ready for
 /// [`Document::apply_reload`].
-pub struct Reloaded {
-    level: Level,
-    world: World,
-    probes: Vec<Probe>,
-    results: Vec<ProbeResult>,
-    digest: String,
-    warnings: Vec<String>,
-    stamps: Vec<(PathBuf, Option<SystemTime>)>,
-}
+pub struct Reloaded(Answered);
 
 impl Reloaded {
     /// Loads the level at `level_path` and answers `probes` on it (the slow part of a reload; it
     /// needs nothing from the open document, so it can run on another thread).
-    pub fn load(level_path: PathBuf, probes: Vec<Probe>) -> Result<Reloaded, String> {
-        let stamps = stamps(&level_path);
-        let (level, diagnostics) = load_level(&level_path).map_err(|e| e.to_string())?;
-        let world = World::new(&level).map_err(|e| format!("{}: {e}", level_path.display()))?;
-        let results = run_probes(&world, &probes, None, &|_| {})?;
-        Ok(Reloaded {
-            digest: level_digest(&level),
-            warnings: diagnostics.iter().map(|d| d.to_string()).collect(),
-            level,
-            world,
-            probes,
-            results,
-            stamps,
-        })
+    pub fn load(level_path: PathBuf, probes: Vec<Probe>) -> Result<Reloaded, Error> {
+        Answered::open(&level_path, Some(probes)).map(Reloaded)
     }
 }
 
@@ -304,30 +284,17 @@ fn level_reference(probes_path: &Path, level_path: &Path) -> String {
     }
 }
 
-/// Modification times of the level file and of the geometry files in its folder.
-fn stamps(level_path: &Path) -> Vec<(PathBuf, Option<SystemTime>)> {
-    let modified = |p: &Path| std::fs::metadata(p).and_then(|m| m.modified()).ok();
-    let mut out = vec![(level_path.to_path_buf(), modified(level_path))];
-    let folder = match level_path.parent() {
-        Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
-        _ => PathBuf::from("."),
-    };
-    if let Ok(entries) = std::fs::read_dir(&folder) {
-        let mut geometry: Vec<PathBuf> = entries
-            .filter_map(|e| e.ok().map(|e| e.path()))
-            .filter(|p| {
-                p.extension()
-                    .and_then(|e| e.to_str())
-                    .is_some_and(|e| matches!(e, "glb" | "gltf" | "bin" | "obj"))
-            })
-            .collect();
-        geometry.sort();
-        out.extend(geometry.into_iter().map(|p| {
-            let stamp = modified(&p);
-            (p, stamp)
-        }));
-    }
-    out
+/// Modification times of the files a level was read from.
+fn stamps(files: &[PathBuf]) -> Vec<(PathBuf, Option<SystemTime>)> {
+    files
+        .iter()
+        .map(|p| {
+            (
+                p.clone(),
+                std::fs::metadata(p).and_then(|m| m.modified()).ok(),
+            )
+        })
+        .collect()
 }
 
 #[cfg(test)]

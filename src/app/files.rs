@@ -109,7 +109,7 @@ impl Workbench {
             });
             return Ok(());
         }
-        let document = Document::open(path)?;
+        let document = Document::open(path).map_err(|e| e.to_string())?;
         self.document.forget_recovery();
         self.replace_document(document);
         self.remember_recent(path);

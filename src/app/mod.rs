@@ -161,8 +161,9 @@ pub struct Workbench {
     last_disk_check: Instant,
     /// What changed for each probe (by id) when the level was last reloaded, until dismissed.
     pub changes: HashMap<String, Vec<Aspect>>,
-    reload_error: Option<String>,
-    reload_job: Option<std::sync::mpsc::Receiver<Result<document::Reloaded, String>>>,
+    reload_error: Option<plumbline_core::error::Error>,
+    reload_job:
+        Option<std::sync::mpsc::Receiver<Result<document::Reloaded, plumbline_core::error::Error>>>,
     /// Recently opened or saved files, newest first.
     pub recent: Vec<PathBuf>,
     /// The question being asked, if any.
@@ -297,7 +298,7 @@ impl Workbench {
     /// Applies an edit of one probe when it is valid; says why not otherwise.
     pub fn edit_probe(&mut self, index: usize, field: &str, probe: Probe) {
         if let Err(why) = validate_probe(&probe) {
-            self.say(why);
+            self.say(why.message);
             return;
         }
         // By position, so that renaming a probe letter by letter stays one step.
@@ -827,10 +828,12 @@ impl Workbench {
                 ui.label("Answers match the level on disk")
                     .on_hover_text(format!("level digest {}", self.document.level_digest));
             }
-            if !self.document.warnings.is_empty() {
+            let diagnostics = &self.document.diagnostics;
+            if !diagnostics.is_empty() {
                 ui.separator();
-                ui.label(format!("{} load warnings", self.document.warnings.len()))
-                    .on_hover_text(self.document.warnings.join("\n"));
+                let lines: Vec<String> = diagnostics.iter().map(|d| d.to_string()).collect();
+                ui.label(format!("{} load warnings", diagnostics.len()))
+                    .on_hover_text(lines.join("\n"));
             }
             if let Some((message, since)) = &self.message {
                 if since.elapsed() < MESSAGE_FOR {
@@ -934,7 +937,7 @@ pub fn run(path: &std::path::Path, options: WindowOptions) -> Result<(), String>
     // Opening a big level takes a few seconds before the window can appear: say what is happening.
     let started = Instant::now();
     eprintln!("plumbline: opening {} …", path.display());
-    let document = Document::open(path)?;
+    let document = Document::open(path).map_err(|e| e.to_string())?;
     eprintln!(
         "plumbline: {} objects ({} mesh triangles) loaded and {} probes answered in {:.1} s",
         document.level.objects.len(),

@@ -8,13 +8,11 @@ use std::time::Duration;
 
 use plumbline_core::atomic::write_atomic;
 use plumbline_core::check::{
-    Comparison, DEFAULT_TOLERANCE, ResultsFile, Verdict, compare, load_results, run_probes,
-    text_digest,
+    Comparison, DEFAULT_TOLERANCE, ResultsFile, Verdict, compare, load_results,
 };
-use plumbline_core::level::{level_digest, load_level, read_input};
-use plumbline_core::probe::{ProbeSet, parse_probe_set};
-use plumbline_core::query::World;
+use plumbline_core::probe::ProbeSet;
 use plumbline_core::report::{junit_xml, markdown_summary};
+use plumbline_core::session::{OpenOptions, open};
 
 use super::terminal::{Progress, Style, Tone, write_stdout};
 use super::{EXIT_FAILED, print_comparison};
@@ -180,41 +178,35 @@ fn folder_of(path: &Path) -> PathBuf {
 }
 
 fn run_once(options: &CheckOptions) -> Result<Run, String> {
-    let bytes = read_input(&options.probes).map_err(|e| e.to_string())?;
-    let text = std::str::from_utf8(&bytes)
-        .map_err(|e| format!("{}: not UTF-8 text: {e}", options.probes.display()))?;
-    let set = parse_probe_set(&options.probes, text).map_err(|e| e.to_string())?;
-    let probes_digest = text_digest(&bytes);
-    let beside_probes = options
-        .probes
-        .parent()
-        .unwrap_or(Path::new(""))
-        .join(&set.level);
-    let level_path = options.level.clone().unwrap_or(beside_probes);
-    let (level, warnings) = load_level(&level_path).map_err(|e| e.to_string())?;
-    let (digest, triangles) = (level_digest(&level), level.triangle_count());
-    let world = World::from_level(level).map_err(|e| format!("{}: {e}", level_path.display()))?;
-    let progress = Progress::new(set.probes.len());
-    let results = run_probes(
-        &world,
-        &set.probes,
-        options.jobs.map(|j| j as usize),
-        &|done| progress.update(done),
-    )?;
+    let opened = open(
+        &options.probes,
+        &OpenOptions {
+            level: options.level.clone(),
+            ..OpenOptions::default()
+        },
+    )
+    .map_err(|e| e.to_string())?;
+    let progress = Progress::new(opened.probes.probes.len());
+    let results = opened
+        .answer(options.jobs.map(|j| j as usize), &|done| {
+            progress.update(done)
+        })
+        .map_err(|e| e.to_string())?;
     progress.finish();
+    let level = opened.level;
     let results = ResultsFile::new(
         options.probes.display().to_string(),
-        level_path.display().to_string(),
-        digest,
-        probes_digest,
+        level.path.display().to_string(),
+        level.digest,
+        opened.probes_digest.unwrap_or_default(),
         results,
     );
     Ok(Run {
-        set,
-        level_path,
+        set: opened.probes,
+        level_path: level.path,
         results,
-        triangles,
-        warnings: warnings.iter().map(|w| w.to_string()).collect(),
+        triangles: level.triangles,
+        warnings: level.diagnostics.iter().map(|w| w.to_string()).collect(),
     })
 }
 

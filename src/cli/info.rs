@@ -3,15 +3,29 @@
 use std::path::Path;
 use std::process::ExitCode;
 
-use plumbline_core::level::{Geometry, Primitive, level_digest, load_level};
-use plumbline_core::query::World;
+use plumbline_core::level::{Geometry, Primitive};
+use plumbline_core::session::{OpenLevel, OpenOptions, open};
 
 use super::terminal::write_stdout;
 
 /// Prints what the level holds; exit 0, or an error for unreadable input.
 pub fn info(path: &Path) -> Result<ExitCode, String> {
-    let (level, warnings) = load_level(path).map_err(|e| e.to_string())?;
-    let world = World::new(&level).map_err(|e| format!("{}: {e}", path.display()))?;
+    let opened = open(
+        path,
+        &OpenOptions {
+            keep_level: true,
+            ..OpenOptions::default()
+        },
+    )
+    .map_err(|e| e.to_string())?;
+    let OpenLevel {
+        model,
+        world,
+        digest,
+        diagnostics: warnings,
+        ..
+    } = opened.level;
+    let level = model.expect("the session keeps the level model when asked");
     let mut out = String::new();
     out.push_str(&format!("level     {}\n", path.display()));
     out.push_str(&format!(
@@ -26,7 +40,7 @@ pub fn info(path: &Path) -> Result<ExitCode, String> {
             lo.x, lo.y, lo.z, hi.x, hi.y, hi.z
         ));
     }
-    out.push_str(&format!("digest    {}\n\n", level_digest(&level)));
+    out.push_str(&format!("digest    {digest}\n\n"));
     let width = level
         .objects
         .iter()

@@ -27,12 +27,12 @@ pub fn answer_probe(world: &World, probe: &Probe) -> ProbeResult {
                 clearance,
             }
         }
-        Err(QueryError(message)) => ProbeResult {
+        Err(error) => ProbeResult {
             id: probe.id.clone(),
             hits: Hits::empty(&kind),
             kind,
             verdict: Verdict::Error,
-            reason: format!("could not be answered: {message}"),
+            reason: format!("could not be answered: {error}"),
             clearance: None,
         },
     }
@@ -170,5 +170,5 @@ fn overlap_records(
 }
 
 fn probe_shape(shape: &ShapeSpec, rotation: Option<DQuat>) -> Result<ProbeShape, QueryError> {
-    ProbeShape::new(shape, rotation.unwrap_or(DQuat::IDENTITY)).map_err(QueryError)
+    Ok(ProbeShape::new(shape, rotation.unwrap_or(DQuat::IDENTITY))?)
 }

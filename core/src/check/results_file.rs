@@ -129,7 +129,7 @@ struct RawResult {
 
 /// Reads a results file written by this program.
 pub fn load_results(path: &Path) -> Result<ResultsFile, InputError> {
-    let bytes = crate::level::read_input(path)?;
+    let bytes = crate::input::read_input(path)?;
     let text = std::str::from_utf8(&bytes)
         .map_err(|e| InputError::file(path, format!("not UTF-8 text: {e}")))?;
     let raw: RawResults = serde_json::from_str(text).map_err(|e| InputError::json(path, &e))?;

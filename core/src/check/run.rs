@@ -4,6 +4,7 @@ use rayon::prelude::*;
 
 use super::answer::answer_probe;
 use super::records::ProbeResult;
+use crate::error::Error;
 use crate::probe::Probe;
 use crate::query::World;
 
@@ -15,14 +16,12 @@ pub fn run_probes(
     probes: &[Probe],
     jobs: Option<usize>,
     progress: &(dyn Fn(usize) + Sync),
-) -> Result<Vec<ProbeResult>, String> {
+) -> Result<Vec<ProbeResult>, Error> {
     let mut builder = rayon::ThreadPoolBuilder::new();
     if let Some(n) = jobs {
         builder = builder.num_threads(n.max(1));
     }
-    let pool = builder
-        .build()
-        .map_err(|e| format!("cannot start worker threads: {e}"))?;
+    let pool = builder.build()?;
     let done = std::sync::atomic::AtomicUsize::new(0);
     Ok(pool.install(|| {
         probes

@@ -16,11 +16,12 @@ pub use probes::probe_set;
 pub use shapes::MeshBuilder;
 
 use crate::atomic::write_atomic;
-use crate::check::{ResultsFile, probes_digest, run_probes};
+use crate::check::{ResultsFile, probes_digest};
+use crate::error::Error;
 use crate::json_text::to_pretty;
-use crate::level::{Geometry, Level, LevelObject, level_digest, load_level};
+use crate::level::{Geometry, Level, LevelObject};
 use crate::probe::probe_set_to_json;
-use crate::query::World;
+use crate::session::{OpenOptions, open};
 use quay::Detail;
 
 /// File names of the demo scene inside its folder.
@@ -38,23 +39,24 @@ pub mod files {
 }
 
 /// Writes the demo scene (all five files of [`files`]) into `folder`.
-pub fn write_demo_scene(folder: &Path) -> Result<(), String> {
+pub fn write_demo_scene(folder: &Path) -> Result<(), Error> {
     write_scene(folder, Detail::Demo, true)
 }
 
 /// Writes a large level in the demo's style with at least `triangles` triangles: `saltfen-quay.glb`,
 /// the level file and the probe set (no edited level or baseline).
-pub fn write_large_scene(folder: &Path, triangles: usize) -> Result<(), String> {
+pub fn write_large_scene(folder: &Path, triangles: usize) -> Result<(), Error> {
     write_scene(folder, Detail::Triangles(triangles), false)
 }
 
-fn write_scene(folder: &Path, detail: Detail, with_edits: bool) -> Result<(), String> {
-    std::fs::create_dir_all(folder)
-        .map_err(|e| format!("{}: cannot create the folder: {e}", folder.display()))?;
+fn write_scene(folder: &Path, detail: Detail, with_edits: bool) -> Result<(), Error> {
+    std::fs::create_dir_all(folder).map_err(|source| Error::Write {
+        path: folder.to_path_buf(),
+        source,
+    })?;
     let write = |name: &str, bytes: &[u8]| {
         let path = folder.join(name);
-        write_atomic(&path, bytes)
-            .map_err(|e| format!("{}: cannot write the file: {e}", path.display()))
+        write_atomic(&path, bytes).map_err(|source| Error::Write { path, source })
     };
     let objects = quay::mesh_objects(detail);
     let glb_objects: Vec<GlbObject> = objects
@@ -77,13 +79,12 @@ fn write_scene(folder: &Path, detail: Detail, with_edits: bool) -> Result<(), St
             files::EDITED_LEVEL,
             to_pretty(&quay::level_file(files::GLB, true)).as_bytes(),
         )?;
-        let (level, _) = load_level(&folder.join(files::LEVEL)).map_err(|e| e.to_string())?;
-        let world = World::new(&level)?;
-        let results = run_probes(&world, &set.probes, None, &|_| {})?;
+        let opened = open(&folder.join(files::PROBES), &OpenOptions::default())?;
+        let results = opened.answer(None, &|_| {})?;
         let baseline = ResultsFile::new(
             files::PROBES.into(),
             files::LEVEL.into(),
-            level_digest(&level),
+            opened.level.digest.clone(),
             probes_digest(&set),
             results,
         );

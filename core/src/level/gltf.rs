@@ -2,7 +2,7 @@
 //! of the default scene, with the node hierarchy's transforms composed.
 
 use std::collections::HashMap;
-use std::path::Path;
+use std::path::{Path, PathBuf};
 
 use base64::Engine;
 use glam::{DMat4, DVec3};
@@ -11,19 +11,20 @@ use gltf::mesh::Mode;
 use super::level_file::degenerate_warning;
 use super::mesh::build_mesh;
 use super::model::{Geometry, LevelObject};
-use crate::error::{Diagnostic, InputError};
+use crate::error::{Diagnostic, InputError, Warning};
 
 /// Loads every mesh instance of the default (or first) scene as an object in file coordinates.
 pub fn load_gltf(
     path: &Path,
     bytes: &[u8],
+    files: &mut Vec<PathBuf>,
 ) -> Result<(Vec<LevelObject>, Vec<Diagnostic>), InputError> {
     let unchecked =
         gltf::Gltf::from_slice_without_validation(bytes).map_err(|e| gltf_error(path, e))?;
     check_attribute_accessors(path, unchecked.document.as_json())?;
     drop(unchecked);
     let gltf = gltf::Gltf::from_slice(bytes).map_err(|e| gltf_error(path, e))?;
-    let buffers = load_buffers(path, &gltf)?;
+    let buffers = load_buffers(path, &gltf, files)?;
     let mut loader = Loader {
         path,
         buffers: &buffers,
@@ -123,13 +124,13 @@ impl Loader<'_> {
                 mode,
                 Mode::Triangles | Mode::TriangleStrip | Mode::TriangleFan
             ) {
-                self.diagnostics.push(Diagnostic {
-                    path: self.path.to_path_buf(),
-                    place: Some(pplace()),
-                    message: format!(
-                        "{mode:?} primitive skipped (only triangles are collision geometry)"
-                    ),
-                });
+                self.diagnostics.push(Diagnostic::new(
+                    self.path,
+                    Warning::SkippedPrimitive {
+                        part: pplace(),
+                        mode: format!("{mode:?}"),
+                    },
+                ));
                 continue;
             }
             let reader = primitive.reader(|b| self.buffers.get(b.index()).map(Vec::as_slice));
@@ -228,7 +229,11 @@ fn node_tags(node: &gltf::Node) -> Vec<String> {
 }
 
 /// The bytes of every buffer: the GLB binary chunk, a base64 `data:` URI, or a file beside the glTF.
-fn load_buffers(path: &Path, gltf: &gltf::Gltf) -> Result<Vec<Vec<u8>>, InputError> {
+fn load_buffers(
+    path: &Path,
+    gltf: &gltf::Gltf,
+    files: &mut Vec<PathBuf>,
+) -> Result<Vec<Vec<u8>>, InputError> {
     let folder = path.parent().unwrap_or(Path::new(""));
     let mut buffers = Vec::new();
     for buffer in gltf.buffers() {
@@ -242,7 +247,7 @@ fn load_buffers(path: &Path, gltf: &gltf::Gltf) -> Result<Vec<Vec<u8>>, InputErr
                 )
             })?,
             gltf::buffer::Source::Uri(uri) => {
-                load_uri(folder, uri).map_err(|m| InputError::at(path, &place, m))?
+                load_uri(folder, uri, files).map_err(|m| InputError::at(path, &place, m))?
             }
         };
         if data.len() < buffer.length() {
@@ -261,7 +266,7 @@ fn load_buffers(path: &Path, gltf: &gltf::Gltf) -> Result<Vec<Vec<u8>>, InputErr
     Ok(buffers)
 }
 
-fn load_uri(folder: &Path, uri: &str) -> Result<Vec<u8>, String> {
+fn load_uri(folder: &Path, uri: &str, files: &mut Vec<PathBuf>) -> Result<Vec<u8>, String> {
     if let Some(rest) = uri.strip_prefix("data:") {
         let (_, payload) = rest
             .split_once(";base64,")
@@ -274,7 +279,10 @@ fn load_uri(folder: &Path, uri: &str) -> Result<Vec<u8>, String> {
         return Err(format!("buffer URI \"{uri}\" is not a local file"));
     }
     let file = folder.join(percent_decode(uri));
-    std::fs::read(&file).map_err(|e| format!("cannot read buffer file {}: {e}", file.display()))
+    let bytes = std::fs::read(&file)
+        .map_err(|e| format!("cannot read buffer file {}: {e}", file.display()))?;
+    files.push(file);
+    Ok(bytes)
 }
 
 /// Decodes `%XX` escapes in a relative URI.

@@ -1,18 +1,19 @@
 //! The level file (`*.level.json`, SPEC §1): objects composed from mesh files and primitives.
 
 use std::collections::HashSet;
-use std::path::Path;
+use std::path::{Path, PathBuf};
 
 use glam::{DQuat, DVec3};
 use serde::Deserialize;
 
 use super::glob::glob_matches;
+use super::load_mesh_file;
 use super::mesh::build_mesh;
 use super::model::{Geometry, Level, LevelObject};
 use super::shape::ShapeSpec;
 use super::transform::Transform;
-use super::{load_mesh_file, read_input};
-use crate::error::{Diagnostic, InputError, check_header};
+use crate::error::{Diagnostic, InputError, Warning, check_header};
+use crate::input::read_input;
 
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -54,8 +55,12 @@ enum Scale {
 }
 
 /// Loads a level file and every mesh file it refers to.
-pub fn load_level_file(path: &Path) -> Result<(Level, Vec<Diagnostic>), InputError> {
+pub fn load_level_file(
+    path: &Path,
+    files: &mut Vec<PathBuf>,
+) -> Result<(Level, Vec<Diagnostic>), InputError> {
     let text = read_input(path)?;
+    files.push(path.to_path_buf());
     let text = std::str::from_utf8(&text)
         .map_err(|e| InputError::file(path, format!("not UTF-8 text: {e}")))?;
     let file: LevelFile = serde_json::from_str(text).map_err(|e| InputError::json(path, &e))?;
@@ -83,7 +88,7 @@ pub fn load_level_file(path: &Path) -> Result<(Level, Vec<Diagnostic>), InputErr
                         "mesh file \"{mesh}\" cannot be read: no such file"
                     )));
                 }
-                let (inner, inner_diagnostics) = load_mesh_file(&mesh_path)?;
+                let (inner, inner_diagnostics) = load_mesh_file(&mesh_path, files)?;
                 diagnostics.extend(inner_diagnostics);
                 let matrix = transform.matrix();
                 for object in inner {
@@ -195,11 +200,13 @@ fn apply_tag_rules(rules: &[TagRule], objects: &mut [LevelObject]) {
 
 /// The warning for triangles dropped because they had no area.
 pub(crate) fn degenerate_warning(path: &Path, object: &str, count: usize) -> Diagnostic {
-    Diagnostic {
-        path: path.to_path_buf(),
-        place: Some(format!("object \"{object}\"")),
-        message: format!("{count} degenerate triangle(s) with no area were dropped"),
-    }
+    Diagnostic::new(
+        path,
+        Warning::DegenerateDropped {
+            object: object.to_string(),
+            count,
+        },
+    )
 }
 
 /// Removes meshes with no triangles left, with a warning for each.
@@ -211,11 +218,12 @@ pub(crate) fn drop_empty_objects(
     objects.retain(|o| {
         let empty = matches!(&o.geometry, Geometry::Mesh(m) if m.triangles.is_empty());
         if empty {
-            diagnostics.push(Diagnostic {
-                path: path.to_path_buf(),
-                place: Some(format!("object \"{}\"", o.name)),
-                message: "the object has no triangles and was left out".into(),
-            });
+            diagnostics.push(Diagnostic::new(
+                path,
+                Warning::EmptyObject {
+                    object: o.name.clone(),
+                },
+            ));
         }
         !empty
     });

@@ -15,16 +15,17 @@ mod obj;
 mod shape;
 mod transform;
 
-use std::path::Path;
+use std::path::{Path, PathBuf};
 
 pub use digest::level_digest;
 pub use glob::glob_matches;
-pub use mesh::{DEGENERATE_RELATIVE_AREA, is_degenerate};
+pub use mesh::{DEGENERATE_RELATIVE_AREA, MeshFault, is_degenerate};
 pub use model::{Geometry, Level, LevelObject, Mesh, Primitive};
-pub use shape::ShapeSpec;
+pub use shape::{ShapeError, ShapeSpec};
 pub use transform::Transform;
 
 use crate::error::{Diagnostic, InputError};
+use crate::input::read_input;
 
 /// The largest coordinate, in metres, a level or probe may use: 10,000 km. Beyond it f64 keeps too
 /// few digits below the millimetre, and parry's iterative queries can fail outright. Ours.
@@ -38,34 +39,55 @@ pub fn within_range(v: glam::DVec3) -> bool {
     v.is_finite() && v.abs().max_element() <= MAX_COORDINATE
 }
 
+/// A level as loaded: the validated level, the warnings, and every file read to make it.
+#[derive(Debug, Clone, PartialEq)]
+pub struct LoadedLevel {
+    /// The level.
+    pub level: Level,
+    /// What was skipped or repaired while loading.
+    pub diagnostics: Vec<Diagnostic>,
+    /// Every file read: the level file, then the mesh and buffer files it names, in reading order.
+    pub files: Vec<PathBuf>,
+}
+
 /// Loads a level from a level file (`.json`), a glTF 2.0 file (`.gltf`, `.glb`) or an OBJ file.
-pub fn load_level(path: &Path) -> Result<(Level, Vec<Diagnostic>), InputError> {
-    match extension(path).as_str() {
-        "json" => level_file::load_level_file(path),
+pub fn load_level(path: &Path) -> Result<LoadedLevel, InputError> {
+    let mut files = Vec::new();
+    let (level, diagnostics) = match extension(path).as_str() {
+        "json" => level_file::load_level_file(path, &mut files)?,
         "gltf" | "glb" | "obj" => {
-            let (objects, diagnostics) = load_mesh_file(path)?;
+            let (objects, mut diagnostics) = load_mesh_file(path, &mut files)?;
             let mut level = Level {
                 up: glam::DVec3::Y,
                 objects,
             };
-            let mut diagnostics = diagnostics;
             level_file::drop_empty_objects(path, &mut level.objects, &mut diagnostics);
-            Ok((level, diagnostics))
+            (level, diagnostics)
         }
-        _ => Err(InputError::file(
-            path,
-            "not a level: expected a .level.json, .gltf, .glb or .obj file",
-        )),
-    }
+        _ => {
+            return Err(InputError::file(
+                path,
+                "not a level: expected a .level.json, .gltf, .glb or .obj file",
+            ));
+        }
+    };
+    Ok(LoadedLevel {
+        level,
+        diagnostics,
+        files,
+    })
 }
 
-/// Loads the objects of a glTF or OBJ file, in the file's own coordinates.
+/// Loads the objects of a glTF or OBJ file, in the file's own coordinates, adding every file read to
+/// `files`.
 pub(crate) fn load_mesh_file(
     path: &Path,
+    files: &mut Vec<PathBuf>,
 ) -> Result<(Vec<LevelObject>, Vec<Diagnostic>), InputError> {
     let bytes = read_input(path)?;
+    files.push(path.to_path_buf());
     match extension(path).as_str() {
-        "gltf" | "glb" => gltf::load_gltf(path, &bytes),
+        "gltf" | "glb" => gltf::load_gltf(path, &bytes, files),
         "obj" => {
             let text = std::str::from_utf8(&bytes)
                 .map_err(|e| InputError::file(path, format!("not UTF-8 text: {e}")))?;
@@ -76,16 +98,6 @@ pub(crate) fn load_mesh_file(
             "not a mesh file: expected .gltf, .glb or .obj",
         )),
     }
-}
-
-/// Reads a whole input file; a missing or empty file is an error that names it.
-pub fn read_input(path: &Path) -> Result<Vec<u8>, InputError> {
-    let bytes = std::fs::read(path)
-        .map_err(|e| InputError::file(path, format!("cannot read the file: {e}")))?;
-    if bytes.iter().all(u8::is_ascii_whitespace) {
-        return Err(InputError::file(path, "the file is empty"));
-    }
-    Ok(bytes)
 }
 
 fn extension(path: &Path) -> String {

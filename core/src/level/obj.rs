@@ -7,7 +7,7 @@ use glam::{DMat4, DVec3};
 use super::level_file::degenerate_warning;
 use super::mesh::build_mesh;
 use super::model::{Geometry, LevelObject};
-use crate::error::{Diagnostic, InputError};
+use crate::error::{Diagnostic, InputError, Warning};
 
 /// Loads an OBJ file: one object per `o`/`g` name (faces before any name go to an object named after
 /// the file). Polygons are split into fans; lines and points are skipped with a warning.
@@ -100,11 +100,12 @@ pub fn load_obj(
     }
     let mut diagnostics = Vec::new();
     if skipped_elements > 0 {
-        diagnostics.push(Diagnostic {
-            path: path.to_path_buf(),
-            place: None,
-            message: format!("{skipped_elements} line/point element(s) skipped (only faces are collision geometry)"),
-        });
+        diagnostics.push(Diagnostic::new(
+            path,
+            Warning::SkippedElements {
+                count: skipped_elements,
+            },
+        ));
     }
     let mut objects = Vec::new();
     for (name, faces) in groups {

@@ -3,9 +3,94 @@
 use glam::DVec3;
 use serde::{Deserialize, Serialize};
 
-use super::mesh::{BuiltMesh, build_mesh};
+use super::MAX_SIZE;
+use super::mesh::{BuiltMesh, MeshFault, build_mesh};
 use super::model::{Geometry, Primitive};
 use super::transform::Transform;
+
+/// What is wrong with a shape as written in a level file or a probe set.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum ShapeError {
+    /// A size that must be positive is not (or is beyond [`MAX_SIZE`]).
+    #[error("{field} must be a positive number of metres up to {MAX_SIZE:e}, not {value}")]
+    NotPositive {
+        /// The field.
+        field: &'static str,
+        /// Its value.
+        value: f64,
+    },
+    /// A size that must not be negative is (or is beyond [`MAX_SIZE`]).
+    #[error("{field} must be zero or a positive number of metres up to {MAX_SIZE:e}, not {value}")]
+    Negative {
+        /// The field.
+        field: &'static str,
+        /// Its value.
+        value: f64,
+    },
+    /// A convex shape's point is not finite or too far from the centre.
+    #[error("points[{index}] must be finite and within {MAX_SIZE:e} m of the shape's centre")]
+    PointOutOfRange {
+        /// Which point.
+        index: usize,
+    },
+    /// A convex shape's points are fewer than four or all in one plane.
+    #[error("a convex shape needs at least four points that are not all in one plane")]
+    Flat,
+    /// The convex hull could not be built.
+    #[error("the convex hull of the points could not be built")]
+    Hull,
+    /// A level object was given the probe-only `point` shape.
+    #[error("a level object cannot be a point")]
+    PointInLevel,
+    /// A probe was given a shape that only levels take (`triangles`, `heightfield`) or a point where
+    /// a solid is needed.
+    #[error("a {0} cannot be a probe shape")]
+    NotAProbeShape(&'static str),
+    /// A rotation that is not a unit quaternion.
+    #[error("rotation must be a unit quaternion [x, y, z, w]")]
+    Rotation,
+    /// A scale that is zero or not finite along some axis.
+    #[error("scale must be finite and non-zero, not {0:?}")]
+    Scale([f64; 3]),
+    /// A sphere given a scale that is not uniform.
+    #[error("a sphere can only take a uniform scale")]
+    SphereScale,
+    /// A capsule or cylinder given different scales along X and Z.
+    #[error("a capsule or cylinder needs the same scale along X and Z")]
+    AxialScale,
+    /// A triangle of a `triangles` shape names a negative vertex index.
+    #[error("triangle {triangle}: vertex index {index} is negative")]
+    NegativeIndex {
+        /// The triangle.
+        triangle: usize,
+        /// The index.
+        index: i64,
+    },
+    /// A vertex or triangle of a mesh shape is unusable.
+    #[error("{}: {}", .0.place(), .0.message())]
+    Mesh(MeshFault),
+    /// A heightfield with fewer than 2 × 2 heights.
+    #[error("a heightfield needs at least 2 rows of at least 2 heights")]
+    HeightfieldTooSmall,
+    /// A heightfield row of another length than the first.
+    #[error("heights[{row}] has {length} values but the first row has {first}")]
+    RaggedRow {
+        /// The row.
+        row: usize,
+        /// Its length.
+        length: usize,
+        /// The first row's length.
+        first: usize,
+    },
+    /// A height that is not a finite number.
+    #[error("heights[{row}][{column}] is not a finite number")]
+    HeightNotFinite {
+        /// Row.
+        row: usize,
+        /// Column.
+        column: usize,
+    },
+}
 
 /// A shape as written in a level file or a probe set.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -75,7 +160,7 @@ impl ShapeSpec {
 
     /// Checks sizes and numbers and returns the convex primitive this shape is, if it is one.
     /// `Ok(None)` for `point`, `triangles` and `heightfield`.
-    pub fn primitive(&self) -> Result<Option<Primitive>, String> {
+    pub fn primitive(&self) -> Result<Option<Primitive>, ShapeError> {
         Ok(Some(match self {
             ShapeSpec::Sphere { radius } => Primitive::Sphere {
                 radius: positive("radius", *radius)?,
@@ -113,15 +198,15 @@ impl ShapeSpec {
 
     /// The level geometry of this shape placed by `transform`, with how many degenerate triangles
     /// were dropped. Errors name the field or the vertex/triangle at fault.
-    pub fn level_geometry(&self, transform: &Transform) -> Result<(Geometry, usize), String> {
+    pub fn level_geometry(&self, transform: &Transform) -> Result<(Geometry, usize), ShapeError> {
         match self {
-            ShapeSpec::Point => Err("a level object cannot be a point".into()),
+            ShapeSpec::Point => Err(ShapeError::PointInLevel),
             ShapeSpec::Triangles { vertices, indices } => {
                 let vertices: Vec<DVec3> = vertices.iter().map(|v| DVec3::from_array(*v)).collect();
                 let mut triangles = Vec::with_capacity(indices.len());
                 for (t, tri) in indices.iter().enumerate() {
-                    if let Some(bad) = tri.iter().find(|&&i| i < 0) {
-                        return Err(format!("triangle {t}: vertex index {bad} is negative"));
+                    if let Some(&index) = tri.iter().find(|&&i| i < 0) {
+                        return Err(ShapeError::NegativeIndex { triangle: t, index });
                     }
                     triangles.push(tri.map(|i| i as u64));
                 }
@@ -153,52 +238,40 @@ fn mesh_geometry(
     vertices: &[DVec3],
     triangles: &[[u64; 3]],
     transform: &Transform,
-) -> Result<(Geometry, usize), String> {
+) -> Result<(Geometry, usize), ShapeError> {
     let BuiltMesh {
         mesh,
         degenerate_dropped,
-    } = build_mesh(vertices, triangles, &transform.matrix())
-        .map_err(|fault| format!("{}: {}", fault.place(), fault.message()))?;
+    } = build_mesh(vertices, triangles, &transform.matrix()).map_err(ShapeError::Mesh)?;
     Ok((Geometry::Mesh(mesh), degenerate_dropped))
 }
 
-fn positive(field: &str, value: f64) -> Result<f64, String> {
-    if value.is_finite() && value > 0.0 && value <= super::MAX_SIZE {
+fn positive(field: &'static str, value: f64) -> Result<f64, ShapeError> {
+    if value.is_finite() && value > 0.0 && value <= MAX_SIZE {
         Ok(value)
     } else {
-        Err(format!(
-            "{field} must be a positive number of metres up to {:e}, not {value}",
-            super::MAX_SIZE
-        ))
+        Err(ShapeError::NotPositive { field, value })
     }
 }
 
-fn non_negative(field: &str, value: f64) -> Result<f64, String> {
-    if value.is_finite() && (0.0..=super::MAX_SIZE).contains(&value) {
+fn non_negative(field: &'static str, value: f64) -> Result<f64, ShapeError> {
+    if value.is_finite() && (0.0..=MAX_SIZE).contains(&value) {
         Ok(value)
     } else {
-        Err(format!(
-            "{field} must be zero or a positive number of metres up to {:e}, not {value}",
-            super::MAX_SIZE
-        ))
+        Err(ShapeError::Negative { field, value })
     }
 }
 
-fn convex_points(points: &[[f64; 3]]) -> Result<Vec<DVec3>, String> {
+fn convex_points(points: &[[f64; 3]]) -> Result<Vec<DVec3>, ShapeError> {
     let points: Vec<DVec3> = points.iter().map(|p| DVec3::from_array(*p)).collect();
-    if let Some(bad) = points
+    if let Some(index) = points
         .iter()
-        .position(|p| !p.is_finite() || p.abs().max_element() > super::MAX_SIZE)
+        .position(|p| !p.is_finite() || p.abs().max_element() > MAX_SIZE)
     {
-        return Err(format!(
-            "points[{bad}] must be finite and within {:e} m of the shape's centre",
-            super::MAX_SIZE
-        ));
+        return Err(ShapeError::PointOutOfRange { index });
     }
     if points.len() < 4 || !spans_volume(&points) {
-        return Err(
-            "a convex shape needs at least four points that are not all in one plane".into(),
-        );
+        return Err(ShapeError::Flat);
     }
     Ok(points)
 }
@@ -229,19 +302,16 @@ fn spans_volume(points: &[DVec3]) -> bool {
 
 /// Folds a scale into a primitive's sizes; spheres need a uniform scale, capsules and cylinders the
 /// same scale along X and Z.
-fn scale_primitive(primitive: Primitive, scale: DVec3) -> Result<Primitive, String> {
+fn scale_primitive(primitive: Primitive, scale: DVec3) -> Result<Primitive, ShapeError> {
     let s = scale.abs();
     let same = |a: f64, b: f64| (a - b).abs() <= 1e-12 * a.max(b);
     if !scale.is_finite() || s.min_element() <= 0.0 {
-        return Err(format!(
-            "scale must be finite and non-zero, not {:?}",
-            scale.to_array()
-        ));
+        return Err(ShapeError::Scale(scale.to_array()));
     }
     Ok(match primitive {
         Primitive::Sphere { radius } => {
             if !(same(s.x, s.y) && same(s.y, s.z)) {
-                return Err("a sphere can only take a uniform scale".into());
+                return Err(ShapeError::SphereScale);
             }
             Primitive::Sphere {
                 radius: radius * s.x,
@@ -251,7 +321,7 @@ fn scale_primitive(primitive: Primitive, scale: DVec3) -> Result<Primitive, Stri
             half_extents: half_extents * s,
         },
         Primitive::Capsule { .. } | Primitive::Cylinder { .. } if !same(s.x, s.z) => {
-            return Err("a capsule or cylinder needs the same scale along X and Z".into());
+            return Err(ShapeError::AxialScale);
         }
         Primitive::Capsule {
             radius,
@@ -277,17 +347,18 @@ fn scale_primitive(primitive: Primitive, scale: DVec3) -> Result<Primitive, Stri
 fn heightfield_grid(
     heights: &[Vec<f64>],
     size: [f64; 2],
-) -> Result<(Vec<DVec3>, Vec<[u64; 3]>), String> {
+) -> Result<(Vec<DVec3>, Vec<[u64; 3]>), ShapeError> {
     let rows = heights.len();
     let cols = heights.first().map_or(0, Vec::len);
     if rows < 2 || cols < 2 {
-        return Err("a heightfield needs at least 2 rows of at least 2 heights".into());
+        return Err(ShapeError::HeightfieldTooSmall);
     }
-    if let Some(r) = heights.iter().position(|row| row.len() != cols) {
-        return Err(format!(
-            "heights[{r}] has {} values but the first row has {cols}",
-            heights[r].len()
-        ));
+    if let Some(row) = heights.iter().position(|r| r.len() != cols) {
+        return Err(ShapeError::RaggedRow {
+            row,
+            length: heights[row].len(),
+            first: cols,
+        });
     }
     positive("size", size[0])?;
     positive("size", size[1])?;
@@ -295,7 +366,7 @@ fn heightfield_grid(
     for (i, row) in heights.iter().enumerate() {
         for (j, &h) in row.iter().enumerate() {
             if !h.is_finite() {
-                return Err(format!("heights[{i}][{j}] is not a finite number"));
+                return Err(ShapeError::HeightNotFinite { row: i, column: j });
             }
             let x = -0.5 * size[0] + size[0] * j as f64 / (cols - 1) as f64;
             let z = -0.5 * size[1] + size[1] * i as f64 / (rows - 1) as f64;

@@ -49,7 +49,7 @@ struct RawProbe<'a> {
 
 /// Reads and validates a probe-set file.
 pub fn load_probe_set(path: &Path) -> Result<ProbeSet, InputError> {
-    let bytes = crate::level::read_input(path)?;
+    let bytes = crate::input::read_input(path)?;
     let text = std::str::from_utf8(&bytes)
         .map_err(|e| InputError::file(path, format!("not UTF-8 text: {e}")))?;
     parse_probe_set(path, text)
@@ -80,16 +80,14 @@ pub fn parse_probe_set(path: &Path, text: &str) -> Result<ProbeSet, InputError> 
 }
 
 /// Checks one probe against every rule of the file format (by writing it as a file and reading it
-/// back, so editing in the window and loading from disk can never disagree). The message names the
-/// probe and what is wrong.
-pub fn validate_probe(probe: &Probe) -> Result<(), String> {
+/// back, so editing in the window and loading from disk can never disagree). The error's message
+/// names the probe and what is wrong.
+pub fn validate_probe(probe: &Probe) -> Result<(), InputError> {
     let set = ProbeSet {
         level: "level".into(),
         probes: vec![probe.clone()],
     };
-    parse_probe_set(Path::new("probe"), &probe_set_to_json(&set))
-        .map(|_| ())
-        .map_err(|e| e.message)
+    parse_probe_set(Path::new("probe"), &probe_set_to_json(&set)).map(|_| ())
 }
 
 /// Serialises a probe set in the file format, stable and ready to save.
@@ -494,6 +492,7 @@ mod tests {
         assert!(
             validate_probe(&probe)
                 .unwrap_err()
+                .message
                 .contains("letters, digits")
         );
         probe.id = "gate".into();

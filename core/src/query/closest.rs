@@ -43,10 +43,10 @@ impl View<'_> {
         max_distance: f64,
     ) -> Result<Option<ClosestHit>, QueryError> {
         if !at.is_finite() {
-            return Err(QueryError("the probe position must be finite".into()));
+            return Err(QueryError::PositionNotFinite);
         }
         if max_distance.is_nan() || max_distance < 0.0 {
-            return Err(QueryError("max_distance must be zero or more".into()));
+            return Err(QueryError::BadMaxDistance);
         }
         let reach = match probe {
             ClosestProbe::Point => 0.0,

@@ -25,12 +25,36 @@ pub use ray::RayHit;
 pub use shapes::{ProbeShape, box_surface, primitive_shape, shape_surface};
 pub use sweep::SweepHit;
 pub use watertight::ShearedRay;
-pub use world::{Filter, ObjectId, PART_TRIANGLES, View, World};
+pub use world::{BuildCause, BuildError, Filter, ObjectId, PART_TRIANGLES, View, World};
 
-/// A probe the core cannot answer as asked (for example a ray of zero length); one sentence.
-#[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
-#[error("{0}")]
-pub struct QueryError(pub String);
+/// Why the core cannot answer a probe as asked; shown to users as one sentence.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum QueryError {
+    /// A ray's end points are not finite numbers.
+    #[error("the ray's end points must be finite")]
+    RayNotFinite,
+    /// A ray starts and ends at the same point.
+    #[error("the ray starts and ends at the same point")]
+    RayHasNoLength,
+    /// A probe's position is not finite.
+    #[error("the probe position must be finite")]
+    PositionNotFinite,
+    /// A negative or NaN search distance.
+    #[error("max_distance must be zero or more")]
+    BadMaxDistance,
+    /// A path of fewer than two points.
+    #[error("a path needs at least two points")]
+    PathTooShort,
+    /// A path point that is not finite.
+    #[error("path point {0} is not finite")]
+    PathPointNotFinite(usize),
+    /// A path whose points all coincide.
+    #[error("the path has no length")]
+    PathHasNoLength,
+    /// The probe's shape is unusable.
+    #[error("{0}")]
+    Shape(#[from] crate::level::ShapeError),
+}
 
 /// Two ray crossings closer than this along one segment are the same crossing (a segment through a
 /// shared edge or vertex): a billionth of a metre, plus the rounding of long segments.
@@ -47,17 +71,17 @@ pub(crate) struct PathGeometry<'a> {
 impl<'a> PathGeometry<'a> {
     pub fn new(points: &'a [DVec3]) -> Result<PathGeometry<'a>, QueryError> {
         if points.len() < 2 {
-            return Err(QueryError("a path needs at least two points".into()));
+            return Err(QueryError::PathTooShort);
         }
         if let Some(bad) = points.iter().position(|p| !p.is_finite()) {
-            return Err(QueryError(format!("path point {bad} is not finite")));
+            return Err(QueryError::PathPointNotFinite(bad));
         }
         let mut cumulative = vec![0.0];
         for w in points.windows(2) {
             cumulative.push(cumulative.last().copied().unwrap_or(0.0) + w[0].distance(w[1]));
         }
         if cumulative.last().copied().unwrap_or(0.0) == 0.0 {
-            return Err(QueryError("the path has no length".into()));
+            return Err(QueryError::PathHasNoLength);
         }
         Ok(PathGeometry { points, cumulative })
     }

@@ -30,7 +30,7 @@ impl View<'_> {
     /// Every object the shape placed at `at` overlaps, deepest first.
     pub fn overlap(&self, shape: &ProbeShape, at: DVec3) -> Result<Vec<OverlapHit>, QueryError> {
         if !at.is_finite() {
-            return Err(QueryError("the probe position must be finite".into()));
+            return Err(QueryError::PositionNotFinite);
         }
         let pose = shape.pose_at(at);
         let bounds = shape.shape.compute_aabb(&pose);

@@ -40,13 +40,11 @@ struct Segment {
 impl Segment {
     fn new(from: DVec3, to: DVec3) -> Result<Segment, QueryError> {
         if !from.is_finite() || !to.is_finite() {
-            return Err(QueryError("the ray's end points must be finite".into()));
+            return Err(QueryError::RayNotFinite);
         }
         let len = from.distance(to);
         if len == 0.0 {
-            return Err(QueryError(
-                "the ray starts and ends at the same point".into(),
-            ));
+            return Err(QueryError::RayHasNoLength);
         }
         let dir = (to - from) / len;
         Ok(Segment {

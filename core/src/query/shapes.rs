@@ -4,10 +4,10 @@ use glam::{DQuat, DVec3};
 use parry3d_f64::math::Pose;
 use parry3d_f64::shape::SharedShape;
 
-use crate::level::{Primitive, ShapeSpec};
+use crate::level::{Primitive, ShapeError, ShapeSpec};
 
 /// The parry shape of a validated primitive.
-pub fn primitive_shape(primitive: &Primitive) -> Result<SharedShape, String> {
+pub fn primitive_shape(primitive: &Primitive) -> Result<SharedShape, ShapeError> {
     Ok(match primitive {
         Primitive::Sphere { radius } => SharedShape::ball(*radius),
         Primitive::Box { half_extents } => {
@@ -25,8 +25,7 @@ pub fn primitive_shape(primitive: &Primitive) -> Result<SharedShape, String> {
             radius,
             half_height,
         } => SharedShape::cylinder(*half_height, *radius),
-        Primitive::Convex { points } => SharedShape::convex_hull(points)
-            .ok_or("the convex hull of the points could not be built")?,
+        Primitive::Convex { points } => SharedShape::convex_hull(points).ok_or(ShapeError::Hull)?,
     })
 }
 
@@ -70,13 +69,13 @@ pub struct ProbeShape {
 
 impl ProbeShape {
     /// The probe shape for a shape spec (`point` is not a probe shape here; it has its own queries).
-    pub fn new(spec: &ShapeSpec, rotation: DQuat) -> Result<ProbeShape, String> {
+    pub fn new(spec: &ShapeSpec, rotation: DQuat) -> Result<ProbeShape, ShapeError> {
         if !rotation.is_finite() || (rotation.length() - 1.0).abs() > 1e-6 {
-            return Err("rotation must be a unit quaternion [x, y, z, w]".into());
+            return Err(ShapeError::Rotation);
         }
         let primitive = spec
             .primitive()?
-            .ok_or_else(|| format!("a {} cannot be a probe shape", spec.type_name()))?;
+            .ok_or(ShapeError::NotAProbeShape(spec.type_name()))?;
         let shape = primitive_shape(&primitive)?;
         let local = shape.compute_local_aabb();
         let bounding_radius = local.mins.abs().max(local.maxs.abs()).length();

@@ -6,10 +6,31 @@ use glam::DVec3;
 use parry3d_f64::bounding_volume::Aabb;
 use parry3d_f64::math::Pose;
 use parry3d_f64::partitioning::{Bvh, BvhBuildStrategy};
-use parry3d_f64::shape::{SharedShape, TriMesh, TriMeshFlags};
+use parry3d_f64::shape::{SharedShape, TriMesh, TriMeshBuilderError, TriMeshFlags};
 
 use super::shapes::primitive_shape;
-use crate::level::{Geometry, Level};
+use crate::level::{Geometry, Level, ShapeError};
+
+/// An object of a validated level that could not be made into query shapes.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+#[error("object \"{object}\": {cause}")]
+pub struct BuildError {
+    /// The object's name.
+    pub object: String,
+    /// What went wrong.
+    pub cause: BuildCause,
+}
+
+/// Why an object could not be made into query shapes.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum BuildCause {
+    /// parry refused the triangle mesh.
+    #[error("cannot build the mesh: {0:?}")]
+    Mesh(TriMeshBuilderError),
+    /// A primitive's shape could not be built.
+    #[error("{0}")]
+    Shape(ShapeError),
+}
 
 /// Index of an object in the [`World`] (the same order as the level's objects).
 pub type ObjectId = usize;
@@ -65,19 +86,22 @@ pub struct World {
 
 impl World {
     /// Builds the world from a validated level, which stays the caller's.
-    pub fn new(level: &Level) -> Result<World, String> {
+    pub fn new(level: &Level) -> Result<World, BuildError> {
         World::from_level(level.clone())
     }
 
     /// Builds the world from a validated level, taking it over: each mesh is handed to its body, or
     /// freed as soon as its parts are built, so peak memory holds one copy of the geometry.
-    pub fn from_level(level: Level) -> Result<World, String> {
+    pub fn from_level(level: Level) -> Result<World, BuildError> {
         let up = level.up;
         let mut bodies = Vec::with_capacity(level.objects.len());
         let mut names = Vec::with_capacity(level.objects.len());
         let mut tags = Vec::with_capacity(level.objects.len());
         for (object, item) in level.objects.into_iter().enumerate() {
-            let fail = |e: String| format!("object \"{}\": {e}", item.name);
+            let fail = |cause: BuildCause| BuildError {
+                object: item.name.clone(),
+                cause,
+            };
             match item.geometry {
                 Geometry::Mesh(mesh) => {
                     bodies.extend(mesh_bodies(object, mesh.vertices, mesh.triangles).map_err(fail)?)
@@ -87,7 +111,7 @@ impl World {
                     translation,
                     rotation,
                 } => {
-                    let shape = primitive_shape(&shape).map_err(fail)?;
+                    let shape = primitive_shape(&shape).map_err(|e| fail(BuildCause::Shape(e)))?;
                     let pose = Pose::from_parts(translation, rotation);
                     let aabb = shape.compute_aabb(&pose);
                     bodies.push(Body {
@@ -250,7 +274,7 @@ fn mesh_bodies(
     object: ObjectId,
     vertices: Vec<DVec3>,
     triangles: Vec<[u32; 3]>,
-) -> Result<Vec<Body>, String> {
+) -> Result<Vec<Body>, BuildCause> {
     let (welded, indices) = weld(&vertices, &triangles);
     if is_closed(&indices) {
         drop((vertices, triangles));
@@ -324,9 +348,8 @@ fn mesh_body(
     flags: TriMeshFlags,
     closed: bool,
     triangle_ids: Option<Box<[u32]>>,
-) -> Result<Body, String> {
-    let mesh = TriMesh::with_flags(vertices, indices, flags)
-        .map_err(|e| format!("cannot build the mesh: {e:?}"))?;
+) -> Result<Body, BuildCause> {
+    let mesh = TriMesh::with_flags(vertices, indices, flags).map_err(BuildCause::Mesh)?;
     let shape = SharedShape::new(mesh);
     let pose = Pose::IDENTITY;
     let aabb = shape.compute_aabb(&pose);

@@ -3,7 +3,7 @@
 
 use std::path::{Path, PathBuf};
 
-use plumbline_core::level::load_level;
+use plumbline_core::level::{LoadedLevel, load_level};
 
 fn write(dir: &Path, name: &str, bytes: &[u8]) -> PathBuf {
     let path = dir.join(name);
@@ -257,7 +257,7 @@ proptest::proptest! {
             }
             good.truncate(cut.min(good.len()));
             let path = write(dir.path(), name, &good);
-            if let Ok((level, _)) = load_level(&path) {
+            if let Ok(LoadedLevel { level, .. }) = load_level(&path) {
                 // Whatever loads also builds a world and answers a probe.
                 let world = plumbline_core::query::World::new(&level).unwrap();
                 let _ = world.everything().ray_first(glam::DVec3::splat(-5.0), glam::DVec3::splat(5.0));

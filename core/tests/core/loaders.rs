@@ -7,7 +7,7 @@ use std::path::{Path, PathBuf};
 
 use base64::Engine;
 use glam::DVec3;
-use plumbline_core::level::{Geometry, Level, Primitive, level_digest, load_level};
+use plumbline_core::level::{Geometry, Level, LoadedLevel, Primitive, level_digest, load_level};
 use plumbline_core::query::World;
 
 fn write(dir: &Path, name: &str, bytes: &[u8]) -> PathBuf {
@@ -135,11 +135,15 @@ fn gltf_with_embedded_buffer() {
         "yard.gltf",
         gltf_json(Some(&uri), "").as_bytes(),
     );
-    let (level, warnings) = load_level(&path).unwrap();
+    let LoadedLevel {
+        level,
+        diagnostics: warnings,
+        ..
+    } = load_level(&path).unwrap();
     check_gltf_level(&level);
     assert_eq!(warnings.len(), 1, "{warnings:?}");
     assert!(
-        warnings[0].message.contains("Points primitive skipped"),
+        warnings[0].to_string().contains("Points primitive skipped"),
         "{}",
         warnings[0]
     );
@@ -154,17 +158,17 @@ fn gltf_with_external_buffer_and_glb() {
         "yard.gltf",
         gltf_json(Some("yard%20data.bin"), "").as_bytes(),
     );
-    check_gltf_level(&load_level(&path).unwrap().0);
+    check_gltf_level(&load_level(&path).unwrap().level);
     let glb_path = write(
         dir.path(),
         "yard.glb",
         &glb(&gltf_json(None, ""), &buffer()),
     );
-    let (level, _) = load_level(&glb_path).unwrap();
+    let LoadedLevel { level, .. } = load_level(&glb_path).unwrap();
     check_gltf_level(&level);
     assert_eq!(
         level_digest(&level),
-        level_digest(&load_level(&path).unwrap().0)
+        level_digest(&load_level(&path).unwrap().level)
     );
 }
 
@@ -176,7 +180,7 @@ fn gltf_extras_tags_reach_objects() {
         r#"{"name": "roof", "mesh": 2, "extras": {"tags": ["glass", "glass", "prop"]}}"#,
     );
     let path = write(dir.path(), "t.glb", &glb(&json, &buffer()));
-    let (level, _) = load_level(&path).unwrap();
+    let LoadedLevel { level, .. } = load_level(&path).unwrap();
     assert_eq!(level.objects[2].tags, ["glass", "prop"]);
 }
 
@@ -185,7 +189,11 @@ fn obj_groups_negative_indices_and_polygons() {
     let dir = tempfile::tempdir().unwrap();
     let text = "# a crate and a ramp\nv 0 0 0\nv 1 0 0\nv 1 1 0\nv 0 1 0\no crate\nf 1 2 3 4\ng ramp\nv 0 0 1\nv 1 0 1\nv 1 1 1\nf -3/1 -2/2/2 -1//3\nl 1 2\ng crate\nf 1 3 4\n";
     let path = write(dir.path(), "props.obj", text.as_bytes());
-    let (level, warnings) = load_level(&path).unwrap();
+    let LoadedLevel {
+        level,
+        diagnostics: warnings,
+        ..
+    } = load_level(&path).unwrap();
     let names: Vec<&str> = level.objects.iter().map(|o| o.name.as_str()).collect();
     assert_eq!(names, ["crate", "ramp"]);
     assert_eq!(mesh(&level, "crate").triangles.len(), 3);
@@ -220,7 +228,11 @@ fn level_file_composes_meshes_primitives_transforms_and_tag_rules() {
         { "name": "ground", "shape": { "type": "heightfield", "heights": [[0,0,0],[0,1,0],[0,0,0]], "size": [10, 20] } }
       ] }"#;
     let path = write(dir.path(), "yard.level.json", text.as_bytes());
-    let (level, warnings) = load_level(&path).unwrap();
+    let LoadedLevel {
+        level,
+        diagnostics: warnings,
+        ..
+    } = load_level(&path).unwrap();
     assert!(warnings.is_empty(), "{warnings:?}");
     assert_eq!(level.up, DVec3::Z);
     let names: Vec<&str> = level.objects.iter().map(|o| o.name.as_str()).collect();
