@@ -7,6 +7,7 @@ use eframe::egui;
 
 use super::document::Document;
 use super::inspector::ClearancePlot;
+use plumbline_core::probe::ProbeKind;
 
 /// Measures clearance plots in the background.
 #[derive(Default)]
@@ -22,7 +23,7 @@ impl PlotWorker {
         let job = index.and_then(|i| {
             let probe = document.probes.probes.get(i)?;
             let result = document.results.get(i)?;
-            (probe.query.kind() == "sweep").then(|| (i, probe.clone(), result.clone()))
+            (probe.query.kind() == ProbeKind::Sweep).then(|| (i, probe.clone(), result.clone()))
         });
         let Some((index, probe, result)) = job else {
             self.current = None;

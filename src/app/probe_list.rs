@@ -12,9 +12,7 @@ use super::document::Document;
 use crate::view::palette::verdict_word;
 use plumbline_core::check::Aspect;
 use plumbline_core::check::Verdict;
-
-/// The kinds offered by the kind filter.
-const KINDS: [&str; 4] = ["ray", "sweep", "closest", "overlap"];
+use plumbline_core::probe::ProbeKind;
 
 /// The verdicts offered by the verdict filter.
 const VERDICTS: [Verdict; 4] = [
@@ -30,7 +28,7 @@ pub struct ListFilter {
     /// Text that the id, label or first object must contain (any case).
     pub text: String,
     /// Only this kind.
-    pub kind: Option<&'static str>,
+    pub kind: Option<ProbeKind>,
     /// Only this verdict.
     pub verdict: Option<Verdict>,
 }
@@ -86,12 +84,12 @@ pub fn probe_list_ui(
     );
     ui.horizontal(|ui| {
         egui::ComboBox::from_label("Kind")
-            .selected_text(filter.kind.unwrap_or("all kinds"))
+            .selected_text(filter.kind.map_or("all kinds", ProbeKind::name))
             .width(78.0)
             .show_ui(ui, |ui| {
                 ui.selectable_value(&mut filter.kind, None, "all kinds");
-                for kind in KINDS {
-                    ui.selectable_value(&mut filter.kind, Some(kind), kind);
+                for kind in ProbeKind::ALL {
+                    ui.selectable_value(&mut filter.kind, Some(kind), kind.name());
                 }
             });
         egui::ComboBox::from_label("Verdict")
@@ -214,7 +212,7 @@ fn probe_row(
     let kind = painter.text(
         egui::pos2(id.right() + 8.0, top),
         egui::Align2::LEFT_TOP,
-        probe.query.kind(),
+        probe.query.kind().name(),
         egui::FontId::proportional(11.5),
         ui.visuals().weak_text_color(),
     );

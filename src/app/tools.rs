@@ -246,6 +246,7 @@ pub fn drag_along_axis(
 #[cfg(test)]
 mod tests {
     use super::*;
+    use plumbline_core::probe::ProbeKind;
 
     fn camera() -> OrbitCamera {
         OrbitCamera::framing(DVec3::splat(-10.0), DVec3::splat(10.0), DVec3::Y)
@@ -283,7 +284,7 @@ mod tests {
         assert!(new_probe(Tool::Ray, "r".into(), &p[..1]).is_none());
         assert_eq!(
             new_probe(Tool::Ray, "r".into(), &p).unwrap().query.kind(),
-            "ray"
+            ProbeKind::Ray
         );
         let sweep = new_probe(Tool::Sweep, "s".into(), &p).unwrap();
         assert_eq!(sweep.query.points(), p.to_vec());
@@ -292,14 +293,14 @@ mod tests {
                 .unwrap()
                 .query
                 .kind(),
-            "closest"
+            ProbeKind::Closest
         );
         assert_eq!(
             new_probe(Tool::Overlap, "o".into(), &p[..1])
                 .unwrap()
                 .query
                 .kind(),
-            "overlap"
+            ProbeKind::Overlap
         );
     }
 

@@ -66,7 +66,7 @@ fn a_ray_placed_in_the_view_can_be_undone_redone_saved_and_reopened_unchanged() 
     assert_eq!(after.len(), before.len() + 1, "one new probe");
     let new = after.last().unwrap();
     assert_eq!(new.id, "ray");
-    assert_eq!(new.query.kind(), "ray");
+    assert_eq!(new.query.kind().name(), "ray");
     // Both ends sit 1.7 m (eye height) above the surface points that were clicked, so 1.7 m below
     // each end there is a surface of the level (to the millimetre the points are rounded to).
     let world = &harness.state().document.world;

@@ -112,7 +112,7 @@ fn the_kind_and_verdict_filters_narrow_the_list() {
         .probes
         .probes
         .iter()
-        .filter(|p| p.query.kind() == "overlap")
+        .filter(|p| p.query.kind().name() == "overlap")
         .count();
     assert!(overlaps > 0 && overlaps < total);
 

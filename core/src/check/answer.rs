@@ -14,7 +14,7 @@ use crate::query::{ClosestProbe, ProbeShape, QueryError, View, World};
 
 /// Answers one probe and judges it against its expectation.
 pub fn answer_probe(world: &World, probe: &Probe) -> ProbeResult {
-    let kind = probe.query.kind().to_string();
+    let kind = probe.query.kind();
     match answer(world, probe) {
         Ok((hits, clearance)) => {
             let (verdict, reason) = judge(probe, &hits, clearance.as_ref());
@@ -29,7 +29,7 @@ pub fn answer_probe(world: &World, probe: &Probe) -> ProbeResult {
         }
         Err(error) => ProbeResult {
             id: probe.id.clone(),
-            hits: Hits::empty(&kind),
+            hits: Hits::empty(kind),
             kind,
             verdict: Verdict::Error,
             reason: format!("could not be answered: {error}"),

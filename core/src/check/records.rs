@@ -4,6 +4,8 @@ use std::sync::Arc;
 
 use serde::{Deserialize, Serialize};
 
+use crate::probe::ProbeKind;
+
 /// How a probe's expectation fared.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "lowercase")]
@@ -179,12 +181,12 @@ impl Hits {
     }
 
     /// No hits, of the given probe kind.
-    pub fn empty(kind: &str) -> Hits {
+    pub fn empty(kind: ProbeKind) -> Hits {
         match kind {
-            "ray" => Hits::Ray(Vec::new()),
-            "sweep" => Hits::Sweep(Vec::new()),
-            "closest" => Hits::Closest(Vec::new()),
-            _ => Hits::Overlap(Vec::new()),
+            ProbeKind::Ray => Hits::Ray(Vec::new()),
+            ProbeKind::Sweep => Hits::Sweep(Vec::new()),
+            ProbeKind::Closest => Hits::Closest(Vec::new()),
+            ProbeKind::Overlap => Hits::Overlap(Vec::new()),
         }
     }
 }
@@ -194,8 +196,8 @@ impl Hits {
 pub struct ProbeResult {
     /// The probe's id.
     pub id: String,
-    /// `ray`, `sweep`, `closest` or `overlap`.
-    pub kind: String,
+    /// The probe's kind.
+    pub kind: ProbeKind,
     /// How the expectation fared.
     pub verdict: Verdict,
     /// One sentence a designer can read.
@@ -359,7 +361,7 @@ mod layout {
             };
             let mut f = vec![
                 ("id", Json::Str(&self.id)),
-                ("kind", Json::Str(&self.kind)),
+                ("kind", Json::Str(self.kind.name())),
                 ("verdict", Json::Str(self.verdict.word())),
                 ("reason", Json::Str(&self.reason)),
                 ("hits", Json::Arr(hits)),

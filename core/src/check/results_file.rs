@@ -8,12 +8,9 @@ use serde_json::Value;
 use serde_json::value::RawValue;
 use sha2::{Digest, Sha256};
 
-use super::records::{
-    ClearanceRecord, ClosestRecord, Hits, OverlapRecord, ProbeResult, RayHitRecord, Summary,
-    SweepHitRecord, Verdict,
-};
+use super::records::{ClearanceRecord, Hits, ProbeResult, Summary, Verdict};
 use crate::error::{InputError, check_header};
-use crate::probe::{ProbeSet, probe_set_to_json};
+use crate::probe::{ProbeKind, ProbeSet, probe_set_to_json};
 
 /// A results file: what was checked, on which geometry, and every probe's result.
 #[derive(Debug, Clone, PartialEq)]
@@ -120,7 +117,7 @@ struct RawResults<'a> {
 #[serde(deny_unknown_fields)]
 struct RawResult {
     id: String,
-    kind: String,
+    kind: ProbeKind,
     verdict: Verdict,
     reason: String,
     hits: Vec<Value>,
@@ -144,7 +141,7 @@ pub fn load_results(path: &Path) -> Result<ResultsFile, InputError> {
     for item in &raw.results {
         let r: RawResult = serde_json::from_str(item.get())
             .map_err(|e| InputError::json_in(path, text, item.get(), &e))?;
-        let hits = parse_hits(&r.kind, r.hits).map_err(|m| {
+        let hits = parse_hits(r.kind, r.hits).map_err(|m| {
             InputError::at_fragment(path, text, item.get(), format!("result \"{}\": {m}", r.id))
         })?;
         results.push(ProbeResult {
@@ -168,18 +165,13 @@ pub fn load_results(path: &Path) -> Result<ResultsFile, InputError> {
     })
 }
 
-fn parse_hits(kind: &str, hits: Vec<Value>) -> Result<Hits, String> {
+fn parse_hits(kind: ProbeKind, hits: Vec<Value>) -> Result<Hits, String> {
     let value = Value::Array(hits);
     let err = |e: serde_json::Error| format!("hits: {e}");
     Ok(match kind {
-        "ray" => Hits::Ray(serde_json::from_value::<Vec<RayHitRecord>>(value).map_err(err)?),
-        "sweep" => Hits::Sweep(serde_json::from_value::<Vec<SweepHitRecord>>(value).map_err(err)?),
-        "closest" => {
-            Hits::Closest(serde_json::from_value::<Vec<ClosestRecord>>(value).map_err(err)?)
-        }
-        "overlap" => {
-            Hits::Overlap(serde_json::from_value::<Vec<OverlapRecord>>(value).map_err(err)?)
-        }
-        other => return Err(format!("unknown kind \"{other}\"")),
+        ProbeKind::Ray => Hits::Ray(serde_json::from_value(value).map_err(err)?),
+        ProbeKind::Sweep => Hits::Sweep(serde_json::from_value(value).map_err(err)?),
+        ProbeKind::Closest => Hits::Closest(serde_json::from_value(value).map_err(err)?),
+        ProbeKind::Overlap => Hits::Overlap(serde_json::from_value(value).map_err(err)?),
     })
 }

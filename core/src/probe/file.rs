@@ -9,7 +9,9 @@ use serde::Deserialize;
 use serde_json::value::RawValue;
 use serde_json::{Map, Value, json};
 
-use super::model::{Conditions, Expect, ExpectWord, HitsMode, Probe, ProbeQuery, ProbeSet};
+use super::model::{
+    Conditions, Expect, ExpectWord, HitsMode, Probe, ProbeKind, ProbeQuery, ProbeSet,
+};
 use crate::error::{InputError, check_header};
 use crate::level::ShapeSpec;
 use crate::query::{Filter, ProbeShape};
@@ -150,16 +152,17 @@ fn parse_probe(path: &Path, text: &str, fragment: &str) -> Result<Probe, InputEr
 }
 
 fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
-    let allowed: &[&str] = match raw.kind.as_str() {
-        "ray" => &["from", "to", "hits"],
-        "sweep" => &["shape", "rotation", "path", "hits", "duration", "clearance"],
-        "closest" => &["shape", "at", "rotation", "max_distance"],
-        "overlap" => &["shape", "at", "rotation"],
-        other => {
-            return Err(format!(
-                "unknown kind \"{other}\" (expected ray, sweep, closest or overlap)"
-            ));
-        }
+    let kind = ProbeKind::from_name(&raw.kind).ok_or_else(|| {
+        format!(
+            "unknown kind \"{}\" (expected ray, sweep, closest or overlap)",
+            raw.kind
+        )
+    })?;
+    let allowed: &[&str] = match kind {
+        ProbeKind::Ray => &["from", "to", "hits"],
+        ProbeKind::Sweep => &["shape", "rotation", "path", "hits", "duration", "clearance"],
+        ProbeKind::Closest => &["shape", "at", "rotation", "max_distance"],
+        ProbeKind::Overlap => &["shape", "at", "rotation"],
     };
     let present = [
         ("from", raw.from.is_some()),
@@ -181,8 +184,8 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
     }
     let need = |field: &str| format!("a {} probe needs \"{field}\"", raw.kind);
     let rotation = raw.rotation.map(unit_quaternion).transpose()?;
-    Ok(match raw.kind.as_str() {
-        "ray" => {
+    Ok(match kind {
+        ProbeKind::Ray => {
             let from = finite_point("from", raw.from.ok_or_else(|| need("from"))?)?;
             let to = finite_point("to", raw.to.ok_or_else(|| need("to"))?)?;
             if from == to {
@@ -194,7 +197,7 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
                 hits: raw.hits,
             }
         }
-        "sweep" => {
+        ProbeKind::Sweep => {
             let shape = probe_shape(
                 raw.shape.as_ref().ok_or_else(|| need("shape"))?,
                 rotation,
@@ -230,7 +233,7 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
                 clearance: raw.clearance,
             }
         }
-        "closest" => {
+        ProbeKind::Closest => {
             let shape = probe_shape(
                 raw.shape.as_ref().ok_or_else(|| need("shape"))?,
                 rotation,
@@ -252,7 +255,7 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
                 max_distance,
             }
         }
-        _ => {
+        ProbeKind::Overlap => {
             let shape = probe_shape(
                 raw.shape.as_ref().ok_or_else(|| need("shape"))?,
                 rotation,
@@ -350,7 +353,7 @@ fn check_conditions(c: &Conditions, query: &ProbeQuery) -> Result<(), String> {
         }
     };
     if let Some(r) = c.distance {
-        if kind == "overlap" {
+        if kind == ProbeKind::Overlap {
             return Err(
                 "expect.distance does not apply to an overlap probe (use max_depth)".into(),
             );
@@ -365,7 +368,7 @@ fn check_conditions(c: &Conditions, query: &ProbeQuery) -> Result<(), String> {
         }
     }
     if let Some(v) = c.min_clearance {
-        if kind != "sweep" {
+        if kind != ProbeKind::Sweep {
             return Err(format!(
                 "expect.min_clearance applies to sweeps, not to a {kind} probe"
             ));
@@ -373,7 +376,7 @@ fn check_conditions(c: &Conditions, query: &ProbeQuery) -> Result<(), String> {
         metres("min_clearance", v)?;
     }
     if let Some(v) = c.max_depth {
-        if kind != "overlap" {
+        if kind != ProbeKind::Overlap {
             return Err(format!(
                 "expect.max_depth applies to overlaps, not to a {kind} probe"
             ));
@@ -389,7 +392,7 @@ fn probe_to_value(p: &Probe) -> Value {
     if let Some(label) = &p.label {
         m.insert("label".into(), json!(label));
     }
-    m.insert("kind".into(), json!(p.query.kind()));
+    m.insert("kind".into(), json!(p.query.kind().name()));
     let vec3 = |v: DVec3| json!(v.to_array());
     let quat = |q: &Option<DQuat>, m: &mut Map<String, Value>| {
         if let Some(q) = q {

@@ -8,4 +8,6 @@ mod file;
 mod model;
 
 pub use file::{load_probe_set, parse_probe_set, probe_set_to_json, validate_probe};
-pub use model::{Conditions, Expect, ExpectWord, HitsMode, Probe, ProbeQuery, ProbeSet, Range};
+pub use model::{
+    Conditions, Expect, ExpectWord, HitsMode, Probe, ProbeKind, ProbeQuery, ProbeSet, Range,
+};

@@ -40,7 +40,52 @@ pub enum HitsMode {
     All,
 }
 
-/// The four kinds of probe.
+/// The kinds of probe, as named in files (`"kind"`).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize, Deserialize)]
+#[serde(rename_all = "lowercase")]
+pub enum ProbeKind {
+    /// A segment: its first or every crossing.
+    Ray,
+    /// A shape moved along a path.
+    Sweep,
+    /// The nearest object to a point or a shape.
+    Closest,
+    /// Every object a placed shape overlaps.
+    Overlap,
+}
+
+impl ProbeKind {
+    /// Every kind, in the order the documentation lists them.
+    pub const ALL: [ProbeKind; 4] = [
+        ProbeKind::Ray,
+        ProbeKind::Sweep,
+        ProbeKind::Closest,
+        ProbeKind::Overlap,
+    ];
+
+    /// The kind's name as written in files.
+    pub fn name(self) -> &'static str {
+        match self {
+            ProbeKind::Ray => "ray",
+            ProbeKind::Sweep => "sweep",
+            ProbeKind::Closest => "closest",
+            ProbeKind::Overlap => "overlap",
+        }
+    }
+
+    /// The kind with this name, if there is one.
+    pub fn from_name(name: &str) -> Option<ProbeKind> {
+        ProbeKind::ALL.into_iter().find(|k| k.name() == name)
+    }
+}
+
+impl std::fmt::Display for ProbeKind {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(self.name())
+    }
+}
+
+/// The question a probe asks, by kind.
 #[derive(Debug, Clone, PartialEq)]
 pub enum ProbeQuery {
     /// The segment `from → to`.
@@ -90,13 +135,13 @@ pub enum ProbeQuery {
 }
 
 impl ProbeQuery {
-    /// The kind's name as written in files: `ray`, `sweep`, `closest`, `overlap`.
-    pub fn kind(&self) -> &'static str {
+    /// The probe's kind.
+    pub fn kind(&self) -> ProbeKind {
         match self {
-            ProbeQuery::Ray { .. } => "ray",
-            ProbeQuery::Sweep { .. } => "sweep",
-            ProbeQuery::Closest { .. } => "closest",
-            ProbeQuery::Overlap { .. } => "overlap",
+            ProbeQuery::Ray { .. } => ProbeKind::Ray,
+            ProbeQuery::Sweep { .. } => ProbeKind::Sweep,
+            ProbeQuery::Closest { .. } => ProbeKind::Closest,
+            ProbeQuery::Overlap { .. } => ProbeKind::Overlap,
         }
     }
 

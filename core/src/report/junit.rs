@@ -23,7 +23,7 @@ pub fn junit_xml(results: &ResultsFile, suite_name: &str) -> String {
         let open = format!(
             "    <testcase name=\"{}\" classname=\"plumbline.{}\"",
             escape(&r.id),
-            escape(&r.kind)
+            escape(r.kind.name())
         );
         match r.verdict {
             Verdict::Pass => out.push_str(&format!("{open}/>\n")),
