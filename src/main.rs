@@ -61,7 +61,7 @@ enum Command {
 /// Opens the window on `file`, or on the bundled demo's probe set.
 fn open(file: Option<PathBuf>, window: cli::WindowArgs) -> Result<ExitCode, String> {
     let file = file.unwrap_or_else(|| demo_scenes().join(plumbline_core::demo::files::PROBES));
-    plumbline::app::run(&file, window.options()?)?;
+    plumbline::app::launch(&file, window.options()?)?;
     Ok(ExitCode::SUCCESS)
 }
 

@@ -4,13 +4,22 @@
 use eframe::egui;
 use egui::{Color32, Pos2, Rect, Sense, Shape, Stroke, Vec2};
 
-use crate::view::palette::{StateMark, verdict_colour, verdict_mark, verdict_word};
+use crate::view::palette::{Rgb, StateMark, verdict_colour, verdict_mark, verdict_word};
 use plumbline_core::check::Verdict;
+
+/// A palette colour, for egui.
+pub fn color32([r, g, b]: Rgb) -> Color32 {
+    Color32::from_rgb(r, g, b)
+}
+
+/// A palette colour with an opacity (0 see-through, 255 opaque), for egui.
+pub fn color32_alpha([r, g, b]: Rgb, alpha: u8) -> Color32 {
+    Color32::from_rgba_unmultiplied(r, g, b, alpha)
+}
 
 /// The colour of a verdict, for egui.
 pub fn verdict_color32(verdict: Verdict) -> Color32 {
-    let [r, g, b] = verdict_colour(verdict);
-    Color32::from_rgb(r, g, b)
+    color32(verdict_colour(verdict))
 }
 
 /// Paints a verdict's marker shape centred on `centre`, `radius` points across half its width.

@@ -8,7 +8,7 @@ use std::sync::{Arc, Mutex};
 use eframe::egui;
 
 use super::Workbench;
-use super::viewport::FrameLog;
+use super::viewport::paint::FrameLog;
 use crate::view::renderer::FrameKind;
 
 /// Frames drawn before the screenshot is asked for: the first lays the panels out, the second draws

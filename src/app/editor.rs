@@ -7,6 +7,9 @@ use eframe::egui;
 use egui::{DragValue, RichText};
 use glam::DVec3;
 
+use super::badge::color32;
+use crate::view::palette;
+
 use plumbline_core::level::ShapeSpec;
 use plumbline_core::probe::{Conditions, Expect, ExpectWord, HitsMode, Probe, ProbeQuery, Range};
 
@@ -88,7 +91,7 @@ pub fn probe_editor(
             String::new()
         };
         if !why.is_empty() {
-            ui.label(RichText::new(why).color(egui::Color32::from_rgb(230, 159, 0)));
+            ui.label(RichText::new(why).color(color32(palette::WARNING)));
         }
     }
     ui.add_space(4.0);

@@ -3,18 +3,18 @@
 //! with several probes selected, edits for all of them at once.
 
 use eframe::egui;
-use egui::{Color32, RichText};
+use egui::RichText;
 use egui_plot::{Legend, Line, MarkerShape, Plot, Points, VLine};
 use glam::{DQuat, DVec3};
 
 use std::collections::HashMap;
 
 use super::Selection;
-use super::badge::badge;
+use super::badge::{badge, color32};
 use super::commands::{Command, tooltip};
 use super::document::Document;
 use super::editor::{Edit, EditorState, probe_editor};
-use crate::view::palette::{SELECTED, okabe_ito};
+use crate::view::palette::{self, SELECTED, okabe_ito};
 use plumbline_core::check::{Aspect, Hits, ProbeResult, Verdict, metres};
 use plumbline_core::level::ShapeSpec;
 use plumbline_core::probe::{Expect, Probe, ProbeQuery};
@@ -128,7 +128,7 @@ pub fn inspector_ui(
         let words: Vec<String> = aspects.iter().map(|a| a.to_string()).collect();
         ui.label(
             RichText::new(format!("Changed at the level reload: {}", words.join("; ")))
-                .color(Color32::from_rgb(240, 228, 66)),
+                .color(color32(palette::CHANGED)),
         );
     }
     ui.label(
@@ -431,9 +431,6 @@ fn hits_table(ui: &mut egui::Ui, result: &ProbeResult, selection: &mut Selection
 
 fn clearance_plot(ui: &mut egui::Ui, plot: &ClearancePlot) {
     let points: Vec<[f64; 2]> = plot.profile.iter().map(|&(x, y)| [x, y]).collect();
-    let [r, g, b] = okabe_ito::BLUE;
-    let [sr, sg, sb] = SELECTED;
-    let [vr, vg, vb] = okabe_ito::VERMILLION;
     Plot::new("clearance")
         .height(170.0)
         .legend(Legend::default())
@@ -444,7 +441,7 @@ fn clearance_plot(ui: &mut egui::Ui, plot: &ClearancePlot) {
         .show(ui, |p| {
             p.line(
                 Line::new("clearance", points)
-                    .color(Color32::from_rgb(r, g, b))
+                    .color(color32(okabe_ito::BLUE))
                     .width(2.0),
             );
             if let Some((x, y)) = plot.minimum {
@@ -452,7 +449,7 @@ fn clearance_plot(ui: &mut egui::Ui, plot: &ClearancePlot) {
                     Points::new(format!("least {}", metres(y)), vec![[x, y]])
                         .shape(MarkerShape::Diamond)
                         .radius(6.0)
-                        .color(Color32::from_rgb(sr, sg, sb)),
+                        .color(color32(SELECTED)),
                 );
             }
             for (i, x) in plot.impacts.iter().enumerate() {
@@ -463,7 +460,7 @@ fn clearance_plot(ui: &mut egui::Ui, plot: &ClearancePlot) {
                 };
                 p.vline(
                     VLine::new(name, *x)
-                        .color(Color32::from_rgb(vr, vg, vb))
+                        .color(color32(okabe_ito::VERMILLION))
                         .style(egui_plot::LineStyle::dashed_loose())
                         .width(1.5),
                 );

@@ -1,19 +1,18 @@
 //! The clearance plot is measured off the UI thread (a long path takes tens of milliseconds on a big
 //! level), so dragging a sweep's points stays smooth; the newest request wins.
 
-use std::sync::mpsc;
-
 use eframe::egui;
 
 use super::document::Document;
 use super::inspector::ClearancePlot;
+use super::jobs::Background;
 use plumbline_core::probe::ProbeKind;
 
 /// Measures clearance plots in the background.
 #[derive(Default)]
 pub struct PlotWorker {
     current: Option<ClearancePlot>,
-    pending: Option<mpsc::Receiver<Option<ClearancePlot>>>,
+    job: Background<Option<ClearancePlot>>,
 }
 
 impl PlotWorker {
@@ -27,33 +26,22 @@ impl PlotWorker {
         });
         let Some((index, probe, result)) = job else {
             self.current = None;
-            self.pending = None;
+            self.job.cancel();
             return;
         };
         if self.current.as_ref().is_some_and(|p| p.probe != index) {
             self.current = None;
         }
-        let (send, receive) = mpsc::channel();
         let world = document.world.clone();
-        let ctx = ctx.clone();
-        std::thread::spawn(move || {
-            let _ = send.send(ClearancePlot::of(&world, &probe, &result, index));
-            ctx.request_repaint();
+        self.job.start(ctx, move || {
+            ClearancePlot::of(&world, &probe, &result, index)
         });
-        self.pending = Some(receive);
     }
 
     /// Takes a finished measurement, if one arrived.
     pub fn poll(&mut self) {
-        if let Some(receive) = &self.pending {
-            match receive.try_recv() {
-                Ok(plot) => {
-                    self.current = plot;
-                    self.pending = None;
-                }
-                Err(mpsc::TryRecvError::Empty) => {}
-                Err(mpsc::TryRecvError::Disconnected) => self.pending = None,
-            }
+        if let Some(plot) = self.job.take() {
+            self.current = plot;
         }
     }
 
@@ -64,6 +52,6 @@ impl PlotWorker {
 
     /// True while a measurement is running.
     pub fn is_busy(&self) -> bool {
-        self.pending.is_some()
+        self.job.is_running()
     }
 }

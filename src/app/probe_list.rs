@@ -7,9 +7,9 @@ use egui::{Color32, RichText};
 use std::collections::HashMap;
 
 use super::Selection;
-use super::badge::{paint_mark, verdict_color32};
+use super::badge::{color32, paint_mark, verdict_color32};
 use super::document::Document;
-use crate::view::palette::verdict_word;
+use crate::view::palette::{self, verdict_word};
 use plumbline_core::check::Aspect;
 use plumbline_core::check::Verdict;
 use plumbline_core::probe::ProbeKind;
@@ -222,7 +222,7 @@ fn probe_row(
             egui::Align2::LEFT_TOP,
             "changed",
             egui::FontId::proportional(11.5),
-            Color32::from_rgb(240, 228, 66),
+            color32(palette::CHANGED),
         );
     }
     let mut job = egui::text::LayoutJob::simple(

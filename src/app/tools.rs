@@ -10,7 +10,7 @@ use plumbline_core::probe::{Probe, ProbeQuery};
 use plumbline_core::query::Filter;
 
 /// What a click in the view does.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default)]
 pub enum Tool {
     /// Clicks select probes; drags move handles or the camera.
     #[default]

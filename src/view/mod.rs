@@ -9,6 +9,7 @@ pub mod marks;
 pub mod palette;
 pub mod probe_marks;
 pub mod renderer;
+pub mod scene_marks;
 pub mod surface;
 
 pub use camera::OrbitCamera;

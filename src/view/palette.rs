@@ -76,6 +76,17 @@ pub const HIT: Rgb = okabe_ito::YELLOW;
 pub const NORMAL: Rgb = okabe_ito::BLUE;
 /// The selected probe's outline and the point of least clearance.
 pub const SELECTED: Rgb = okabe_ito::ORANGE;
+/// Probes whose answer changed when the level was reloaded, and the news of it.
+pub const CHANGED: Rgb = okabe_ito::YELLOW;
+/// Messages about something that went wrong (a failed save, an invalid field).
+pub const WARNING: Rgb = okabe_ito::ORANGE;
+/// Handles of the selected probe and points being placed: near white, apart from every state colour.
+pub const HANDLE: Rgb = [245, 245, 245];
+/// The outline of the triangle under the pointer.
+pub const HOVER_OUTLINE: Rgb = [250, 250, 250];
+/// The dark backing behind labels, the axis marker and the hover note in the view, so text reads
+/// against any level colour.
+pub const BACKING: Rgb = [20, 22, 28];
 
 /// Surface tones for well-known tags; anything else gets one of [`SPARE_TONES`] by its tag's name.
 const TAG_TONES: &[(&str, Rgb)] = &[

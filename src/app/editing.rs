@@ -1,0 +1,151 @@
+//! Edits of the probe set: every change goes through [`Workbench::replace_probes`] or
+//! [`Workbench::edit_probe`] (history first, then the document answers what changed), and the placing
+//! tools turn clicks into new probes.
+
+use glam::DVec3;
+
+use super::tools::{Lift, new_probe};
+use super::{Selection, Workbench, document};
+use plumbline_core::check::expectation_from;
+use plumbline_core::probe::{Probe, validate_probe};
+
+impl Workbench {
+    /// Replaces every probe as one edit (recorded for undo under `key`), answering what changed.
+    pub fn replace_probes(&mut self, key: &str, what: &str, probes: Vec<Probe>) {
+        self.history.record(key, what, &self.document.probes.probes);
+        self.set_probes(probes);
+    }
+
+    pub(super) fn set_probes(&mut self, probes: Vec<Probe>) {
+        self.document.set_probes(probes);
+        self.after_probes_changed();
+    }
+
+    /// Keeps the selection within the probes and asks for new marks and a new plot.
+    pub(super) fn after_probes_changed(&mut self) {
+        self.results_revision += 1;
+        let n = self.document.probes.probes.len();
+        let kept: Vec<usize> = self
+            .selection
+            .all()
+            .into_iter()
+            .filter(|i| *i < n)
+            .collect();
+        let probe = self.selection.probe.filter(|i| *i < n);
+        let hit = self.selection.hit;
+        self.selection = Selection::of(probe.or(kept.first().copied()), kept);
+        self.selection.hit = hit;
+        // The plot follows the probe's new answer.
+        self.plot_wanted = true;
+    }
+
+    /// Applies an edit of one probe when it is valid; says why not otherwise.
+    pub fn edit_probe(&mut self, index: usize, field: &str, probe: Probe) {
+        if let Err(why) = validate_probe(&probe) {
+            self.say(why.message);
+            return;
+        }
+        // By position, so that renaming a probe letter by letter stays one step.
+        let key = format!("{index}:{field}");
+        self.history
+            .record(&key, &format!("edit {field}"), &self.document.probes.probes);
+        // Only this probe is answered again: a drag edits it every frame.
+        self.document.replace_probe(index, probe);
+        self.after_probes_changed();
+    }
+
+    pub(super) fn duplicate(&mut self) {
+        let chosen = self.selection.all();
+        if chosen.is_empty() {
+            return;
+        }
+        let mut probes = self.document.probes.probes.clone();
+        let mut copies = Vec::new();
+        for &i in &chosen {
+            let mut copy = probes[i].clone();
+            copy.id = document::unused_id(&probes, &format!("{}-copy", copy.id));
+            probes.push(copy);
+            copies.push(probes.len() - 1);
+        }
+        self.replace_probes("duplicate", "duplicate", probes);
+        self.history.seal();
+        self.selection = Selection::of(copies.first().copied(), copies);
+        self.scroll_list = true;
+    }
+
+    pub(super) fn delete(&mut self) {
+        let chosen = self.selection.all();
+        if chosen.is_empty() {
+            return;
+        }
+        let probes = self
+            .document
+            .probes
+            .probes
+            .iter()
+            .enumerate()
+            .filter(|(i, _)| !chosen.contains(i))
+            .map(|(_, p)| p.clone())
+            .collect();
+        self.selection = Selection::default();
+        self.replace_probes("delete", "delete", probes);
+        self.history.seal();
+        self.say(format!(
+            "Deleted {} probe(s); Ctrl+Z brings them back.",
+            chosen.len()
+        ));
+    }
+
+    /// Sets each selected probe's expectation to what it shows now.
+    pub(super) fn expect_answers(&mut self) {
+        let chosen = self.selection.all();
+        let mut probes = self.document.probes.probes.clone();
+        let mut set = 0;
+        for &i in &chosen {
+            if let Some(expect) = self.document.results.get(i).and_then(expectation_from) {
+                probes[i].expect = Some(expect);
+                set += 1;
+            }
+        }
+        if set > 0 {
+            self.replace_probes("expect", "expect this answer", probes);
+            self.history.seal();
+        }
+    }
+
+    pub(super) fn lift(&self) -> Lift {
+        Lift {
+            height: self
+                .lifts
+                .get(&self.tool)
+                .copied()
+                .unwrap_or(self.tool.default_lift()),
+            along_normal: self.lift_along_normal,
+        }
+    }
+
+    pub(super) fn place(&mut self, point: DVec3) {
+        self.placed.push(point);
+        if self.tool.clicks() == Some(self.placed.len()) {
+            self.finish_path();
+        }
+    }
+
+    /// Turns the placed points into a new probe, selected.
+    pub(super) fn finish_path(&mut self) {
+        let base = self.tool.name().to_lowercase();
+        let id = document::unused_id(&self.document.probes.probes, &base);
+        let Some(probe) = new_probe(self.tool, id, &self.placed) else {
+            return;
+        };
+        self.placed.clear();
+        let mut probes = self.document.probes.probes.clone();
+        probes.push(probe);
+        let what = format!("new {}", self.tool.name().to_lowercase());
+        self.replace_probes("new", &what, probes);
+        self.history.seal();
+        self.selection = Selection::one(self.document.probes.probes.len() - 1);
+        self.after_selection(false);
+        self.scroll_list = true;
+    }
+}

@@ -1,0 +1,199 @@
+//! One frame of the window: the panels laid out around the 3D view, what they ask for applied, the
+//! keyboard shortcuts, and the background work polled.
+
+use eframe::egui;
+
+use super::commands::Command;
+use super::editor::Edit;
+use super::inspector::{InspectorAction, inspector_ui};
+use super::probe_list::probe_list_ui;
+use super::tools::Authoring;
+use super::viewport::{self, ViewEvents};
+use super::{Selection, Workbench};
+
+impl Workbench {
+    /// Does what a menu item, button or shortcut asks.
+    pub fn perform(&mut self, command: Command, ctx: &egui::Context) {
+        match command {
+            Command::Open => self.ask_open(),
+            Command::Save => self.save(),
+            Command::SaveAs => self.ask_save_as(),
+            Command::Quit => ctx.send_viewport_cmd(egui::ViewportCommand::Close),
+            Command::Undo => {
+                if let Some(probes) = self.history.undo(&self.document.probes.probes) {
+                    self.set_probes(probes);
+                }
+            }
+            Command::Redo => {
+                if let Some(probes) = self.history.redo(&self.document.probes.probes) {
+                    self.set_probes(probes);
+                }
+            }
+            Command::Duplicate => self.duplicate(),
+            Command::Delete => self.delete(),
+            Command::ExpectAnswer => self.expect_answers(),
+            Command::SelectAll => {
+                let shown = self.shown();
+                self.selection = Selection::of(shown.first().copied(), shown);
+            }
+            Command::Tool(tool) => {
+                self.tool = tool;
+                self.placed.clear();
+            }
+            Command::FinishPath => self.finish_path(),
+            Command::FrameLevel => self.viewport.frame_level(),
+            Command::FrameProbe => self.after_selection(true),
+            Command::ToggleFly => self.viewport.fly = !self.viewport.fly,
+        }
+    }
+
+    /// Lays out and runs every panel for one frame.
+    pub fn ui(&mut self, ui: &mut egui::Ui) {
+        let ctx = ui.ctx().clone();
+        if ctx.input(|i| i.viewport().close_requested()) {
+            self.close_requested(&ctx);
+        }
+        self.check_disk(&ctx);
+        self.shortcuts(&ctx);
+        self.autosave();
+        self.plots.poll();
+        let shown = self.shown();
+
+        egui::Panel::top("menus").show(ui, |ui| self.menu_bar(ui));
+        egui::Panel::top("toolbar").show(ui, |ui| self.toolbar(ui));
+        egui::Panel::bottom("summary").show(ui, |ui| self.summary_bar(ui));
+        egui::Panel::left("probes")
+            .resizable(true)
+            .default_size(310.0)
+            .min_size(220.0)
+            .show(ui, |ui| {
+                ui.add_space(4.0);
+                ui.heading("Probes");
+                let scroll = std::mem::take(&mut self.scroll_list);
+                let picked = probe_list_ui(
+                    ui,
+                    &mut self.filter,
+                    &self.document,
+                    &shown,
+                    &mut self.selection,
+                    &self.changes,
+                    scroll,
+                );
+                if picked {
+                    self.after_selection(self.selection.others.is_empty());
+                }
+            });
+        egui::Panel::right("inspector")
+            .resizable(true)
+            .default_size(400.0)
+            .min_size(280.0)
+            .show(ui, |ui| {
+                ui.add_space(4.0);
+                let mut action = None;
+                egui::ScrollArea::vertical()
+                    .auto_shrink([false, false])
+                    .show(ui, |ui| {
+                        action = inspector_ui(
+                            ui,
+                            &self.document,
+                            &mut self.selection,
+                            &mut self.editor,
+                            self.plots.plot(),
+                            &self.changes,
+                        );
+                    });
+                match action {
+                    Some(InspectorAction::Edit(index, edit)) => {
+                        let Edit { field, probe } = *edit;
+                        self.edit_probe(index, &field, probe)
+                    }
+                    Some(InspectorAction::Run(command)) => self.perform(command, &ctx),
+                    Some(InspectorAction::Bulk(what, probes)) => {
+                        self.replace_probes("bulk", &what, probes);
+                        self.history.seal();
+                    }
+                    None => {}
+                }
+            });
+        egui::CentralPanel::no_frame().show(ui, |ui| {
+            let authoring = Authoring {
+                tool: self.tool,
+                placed: self.placed.clone(),
+                lift: self.lift(),
+                drag_mode: self.drag_mode,
+            };
+            let scene = viewport::Scene {
+                document: &self.document,
+                results_revision: self.results_revision,
+                shown: &shown,
+                selection: &self.selection,
+                authoring: &authoring,
+                changes: &self.changes,
+            };
+            let events = self.viewport.ui(ui, &scene);
+            self.view_events(events, &shown);
+        });
+        self.dialog_ui(&ctx);
+        // One measurement at a time; changes made meanwhile are measured when it is done.
+        if self.plot_wanted && !self.plots.is_busy() {
+            self.plot_wanted = false;
+            self.plots
+                .request(&self.document, self.selection.probe, &ctx);
+        }
+        // A gesture ends when nothing is being dragged or typed into.
+        if ctx.dragged_id().is_none() && ctx.memory(|m| m.focused().is_none()) {
+            self.history.seal();
+        }
+    }
+
+    pub(super) fn view_events(&mut self, events: ViewEvents, shown: &[usize]) {
+        if let Some(picked) = events.clicked_probe {
+            let before = self.selection.clone();
+            match picked {
+                Some(i) if events.modifiers.command => self.selection.toggle(i),
+                Some(i) if events.modifiers.shift => self.selection.extend_to(i, shown),
+                Some(i) => self.selection = Selection::one(i),
+                None if events.modifiers.any() => {}
+                None => self.selection = Selection::default(),
+            }
+            if self.selection != before {
+                self.scroll_list = true;
+                self.after_selection(false);
+            }
+        }
+        if let Some(point) = events.placed {
+            self.place(point);
+        }
+        if events.finish {
+            self.finish_path();
+        }
+        if let (Some((k, to)), Some(i)) = (events.moved, self.selection.single()) {
+            let mut probe = self.document.probes.probes[i].clone();
+            if let Some(p) = probe.query.point_mut(k) {
+                *p = to;
+                self.edit_probe(i, &format!("point {k}"), probe);
+            }
+        }
+    }
+
+    pub(super) fn shortcuts(&mut self, ctx: &egui::Context) {
+        if self.dialog.is_some() {
+            return;
+        }
+        let typing = ctx.egui_wants_keyboard_input();
+        let flying = self.viewport.fly;
+        for command in Command::WITH_SHORTCUTS {
+            if typing && !command.works_while_typing()
+                || flying && command.is_bare_key() && command != Command::ToggleFly
+            {
+                continue;
+            }
+            let Some(shortcut) = command.shortcut() else {
+                continue;
+            };
+            if ctx.input_mut(|i| i.consume_shortcut(&shortcut)) {
+                self.perform(command, ctx);
+            }
+        }
+    }
+}

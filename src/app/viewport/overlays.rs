@@ -1,0 +1,150 @@
+//! What egui paints over the 3D view: labels beside failing, changed and selected probes (stepping
+//! aside so none covers another), the axis marker, and the note under the pointer.
+
+use std::collections::HashMap;
+
+use eframe::egui;
+use egui::{Align2, FontId, Pos2, Rect, Stroke, Vec2};
+use glam::DVec3;
+
+use super::super::Selection;
+use super::super::badge::{color32, color32_alpha, paint_mark, verdict_color32};
+use super::super::document::Document;
+use super::{Hover, MAX_DRAWN_PROBES, Viewport};
+use crate::view::palette::{BACKING, okabe_ito, verdict_word};
+use crate::view::probe_marks::start_point;
+use plumbline_core::check::{Aspect, Verdict};
+
+impl Viewport {
+    /// Names beside failing probes and the selected one, so the answer is readable at a glance.
+    pub(super) fn paint_labels(
+        &self,
+        ui: &egui::Ui,
+        document: &Document,
+        shown: &[usize],
+        selection: &Selection,
+        changes: &HashMap<String, Vec<Aspect>>,
+        rect: Rect,
+    ) {
+        let painter = ui.painter().with_clip_rect(rect);
+        let font = FontId::proportional(13.0);
+        // Labels already placed; a label that would cover one moves down below it.
+        let mut taken: Vec<Rect> = Vec::new();
+        for &i in shown.iter().take(MAX_DRAWN_PROBES) {
+            let (Some(probe), Some(result)) =
+                (document.probes.probes.get(i), document.results.get(i))
+            else {
+                continue;
+            };
+            let selected = selection.probe == Some(i);
+            let changed = changes.contains_key(&probe.id);
+            if !selected && !changed && !matches!(result.verdict, Verdict::Fail | Verdict::Error) {
+                continue;
+            }
+            let Some(at) = self.to_screen(rect, start_point(&probe.query)) else {
+                continue;
+            };
+            let text = if changed {
+                format!("{}  {}  · changed", verdict_word(result.verdict), probe.id)
+            } else {
+                format!("{}  {}", verdict_word(result.verdict), probe.id)
+            };
+            let galley = painter.layout_no_wrap(text, font.clone(), egui::Color32::WHITE);
+            let mut pos = at + Vec2::new(26.0, -galley.size().y - 6.0);
+            let frame_at = |pos: Pos2| {
+                Rect::from_min_size(
+                    pos - Vec2::new(16.0, 0.0),
+                    galley.size() + Vec2::new(16.0, 0.0),
+                )
+                .expand2(Vec2::new(5.0, 2.0))
+            };
+            while let Some(below) = taken.iter().find(|r| r.intersects(frame_at(pos))) {
+                pos.y = below.bottom() + 3.0;
+            }
+            let frame = frame_at(pos);
+            taken.push(frame);
+            painter.rect_filled(frame, 3.0, color32_alpha(BACKING, 225));
+            painter.rect_stroke(
+                frame,
+                3.0,
+                Stroke::new(
+                    if selected { 2.0 } else { 1.0 },
+                    verdict_color32(result.verdict),
+                ),
+                egui::StrokeKind::Outside,
+            );
+            paint_mark(
+                &painter,
+                pos + Vec2::new(-8.0, galley.size().y * 0.5),
+                5.0,
+                result.verdict,
+            );
+            painter.galley(pos, galley, egui::Color32::WHITE);
+        }
+    }
+
+    /// A small axis marker in the bottom-left corner; the level's up axis is drawn thicker.
+    pub(super) fn paint_axes(&self, ui: &egui::Ui, rect: Rect) {
+        let painter = ui.painter().with_clip_rect(rect);
+        let centre = Pos2::new(rect.left() + 42.0, rect.bottom() - 42.0);
+        let right = self.camera.right();
+        let screen_up = self.camera.screen_up();
+        let axes = [
+            ("X", DVec3::X, okabe_ito::VERMILLION),
+            ("Y", DVec3::Y, okabe_ito::BLUISH_GREEN),
+            ("Z", DVec3::Z, okabe_ito::SKY_BLUE),
+        ];
+        painter.circle_filled(centre, 36.0, color32_alpha(BACKING, 170));
+        for (name, axis, rgb) in axes {
+            let d = Vec2::new(axis.dot(right) as f32, -axis.dot(screen_up) as f32) * 26.0;
+            let is_up = axis.dot(self.camera.up).abs() > 0.99;
+            let colour = color32(rgb);
+            painter.line_segment(
+                [centre, centre + d],
+                Stroke::new(if is_up { 3.5 } else { 2.0 }, colour),
+            );
+            let label = if is_up {
+                format!("{name} up")
+            } else {
+                name.to_string()
+            };
+            painter.text(
+                centre + d * 1.25,
+                Align2::CENTER_CENTER,
+                label,
+                FontId::proportional(11.0),
+                colour,
+            );
+        }
+    }
+}
+
+pub(super) fn paint_hover(ui: &egui::Ui, rect: Rect, pointer: Option<Pos2>, hover: &Hover) {
+    let Some(pointer) = pointer else {
+        return;
+    };
+    let tags = if hover.tags.is_empty() {
+        "no tags".to_string()
+    } else {
+        hover.tags.join(", ")
+    };
+    let triangle = hover
+        .triangle
+        .map_or(String::new(), |t| format!("\ntriangle {t}"));
+    let text = format!(
+        "{}\n{tags}{triangle}\n{:.2} m from the eye",
+        hover.object, hover.distance
+    );
+    let painter = ui.painter().with_clip_rect(rect);
+    let galley = painter.layout_no_wrap(text, FontId::proportional(12.5), egui::Color32::WHITE);
+    let mut pos = pointer + Vec2::new(16.0, 16.0);
+    if pos.x + galley.size().x > rect.right() - 8.0 {
+        pos.x = pointer.x - galley.size().x - 16.0;
+    }
+    if pos.y + galley.size().y > rect.bottom() - 8.0 {
+        pos.y = pointer.y - galley.size().y - 16.0;
+    }
+    let frame = Rect::from_min_size(pos, galley.size()).expand(6.0);
+    painter.rect_filled(frame, 4.0, color32_alpha(BACKING, 235));
+    painter.galley(pos, galley, egui::Color32::WHITE);
+}

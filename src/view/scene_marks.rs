@@ -1,0 +1,237 @@
+//! Every mark of the view for one frame, as pure geometry (no egui, no GL, so it is tested without a
+//! window): each shown probe with its answer (the selection emphasised, the rest stepping back), the
+//! objects the selected overlap probe overlaps, the selected probe's handles, the points being placed,
+//! and the outline of the triangle under the pointer.
+
+use glam::DVec3;
+
+use super::marks::Mark;
+use super::palette::{HANDLE, HOVER_OUTLINE, StateMark, okabe_ito};
+use super::probe_marks::{Emphasis, probe_marks};
+use plumbline_core::check::{Hits, ProbeResult};
+use plumbline_core::level::{Geometry, Level};
+use plumbline_core::probe::Probe;
+use plumbline_core::query::{primitive_shape, shape_surface};
+
+/// Overlapped meshes with more triangles than this are not highlighted (the copy would cost more to
+/// draw than it tells). Ours.
+pub const HIGHLIGHT_TRIANGLES: usize = 20_000;
+
+/// How far a highlighted object's copy is pushed out from its centre, metres, so that it does not
+/// fight the object's own surface for depth. Ours.
+const HIGHLIGHT_PUSH: f64 = 0.02;
+
+/// Size of a selected probe's handles, pixels.
+const HANDLE_SIZE: f64 = 11.0;
+/// Size of a placed point, pixels.
+const PLACED_SIZE: f64 = 9.0;
+
+/// What the view shows this frame.
+pub struct SceneMarks<'a> {
+    /// The level (for the objects an overlap probe overlaps).
+    pub level: &'a Level,
+    /// Every probe.
+    pub probes: &'a [Probe],
+    /// Their answers, in the same order.
+    pub results: &'a [ProbeResult],
+    /// The probes to draw, by index.
+    pub shown: &'a [usize],
+    /// The inspected probe.
+    pub selected: Option<usize>,
+    /// Every selected probe, ascending (empty when nothing is selected).
+    pub selected_all: &'a [usize],
+    /// The picked hit of the inspected probe.
+    pub hit: Option<usize>,
+    /// The selected probe's draggable points.
+    pub handles: &'a [DVec3],
+    /// Points placed so far with a placing tool, and where the next would go.
+    pub preview: &'a [DVec3],
+    /// The triangle under the pointer.
+    pub hover_triangle: Option<[DVec3; 3]>,
+}
+
+/// The marks of a frame, in drawing order.
+pub fn scene_marks(scene: &SceneMarks) -> Vec<Mark> {
+    let mut marks = Vec::new();
+    for &i in scene.shown {
+        let (Some(probe), Some(result)) = (scene.probes.get(i), scene.results.get(i)) else {
+            continue;
+        };
+        let emphasis = Emphasis {
+            selected: scene.selected == Some(i),
+            muted: !scene.selected_all.is_empty() && scene.selected_all.binary_search(&i).is_err(),
+            hit: scene.hit,
+        };
+        probe_marks(probe, result, emphasis, &mut marks);
+        if emphasis.selected {
+            overlapped_objects(scene.level, result, &mut marks);
+        }
+    }
+    for h in scene.handles {
+        marks.push(Mark::Point {
+            at: *h,
+            colour: HANDLE,
+            size: HANDLE_SIZE,
+            mark: StateMark::Square,
+        });
+    }
+    for (k, p) in scene.preview.iter().enumerate() {
+        marks.push(Mark::Point {
+            at: *p,
+            colour: HANDLE,
+            size: PLACED_SIZE,
+            mark: StateMark::Round,
+        });
+        if k > 0 {
+            marks.push(Mark::Line {
+                from: scene.preview[k - 1],
+                to: *p,
+                colour: HANDLE,
+                width: 2.5,
+                dashed: k + 1 == scene.preview.len(),
+            });
+        }
+    }
+    if let Some(t) = scene.hover_triangle {
+        for k in 0..3 {
+            marks.push(Mark::Line {
+                from: t[k],
+                to: t[(k + 1) % 3],
+                colour: HOVER_OUTLINE,
+                width: 2.0,
+                dashed: false,
+            });
+        }
+    }
+    marks
+}
+
+/// Highlights the objects an overlap probe overlaps (see-through copies of their surfaces).
+fn overlapped_objects(level: &Level, result: &ProbeResult, marks: &mut Vec<Mark>) {
+    let Hits::Overlap(hits) = &result.hits else {
+        return;
+    };
+    for hit in hits {
+        let Some(object) = level.objects.iter().find(|o| *o.name == *hit.object) else {
+            continue;
+        };
+        let (vertices, triangles) = match &object.geometry {
+            Geometry::Mesh(mesh) if mesh.triangles.len() <= HIGHLIGHT_TRIANGLES => {
+                (mesh.vertices.clone(), mesh.triangles.clone())
+            }
+            Geometry::Mesh(_) => continue,
+            Geometry::Primitive {
+                shape,
+                translation,
+                rotation,
+            } => {
+                let Ok(parry) = primitive_shape(shape) else {
+                    continue;
+                };
+                let (vertices, triangles) = shape_surface(&parry);
+                let placed = vertices
+                    .iter()
+                    .map(|v| *translation + *rotation * *v)
+                    .collect();
+                (placed, triangles)
+            }
+        };
+        let centre = vertices.iter().copied().sum::<DVec3>() / vertices.len().max(1) as f64;
+        let vertices = vertices
+            .iter()
+            .map(|v| *v + (*v - centre).normalize_or_zero() * HIGHLIGHT_PUSH)
+            .collect();
+        marks.push(Mark::Ghost {
+            vertices,
+            triangles,
+            colour: okabe_ito::ORANGE,
+            alpha: 130,
+        });
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use plumbline_core::check::{OverlapRecord, Verdict};
+    use plumbline_core::level::{LevelObject, Primitive, ShapeSpec};
+    use plumbline_core::probe::ProbeQuery;
+    use plumbline_core::query::Filter;
+
+    fn overlap_probe() -> (Level, Probe, ProbeResult) {
+        let level = Level {
+            up: DVec3::Y,
+            objects: vec![LevelObject {
+                name: "drum".into(),
+                tags: Vec::new(),
+                geometry: Geometry::Primitive {
+                    shape: Primitive::Sphere { radius: 1.0 },
+                    translation: DVec3::new(5.0, 0.0, 0.0),
+                    rotation: glam::DQuat::IDENTITY,
+                },
+            }],
+        };
+        let probe = Probe {
+            id: "spawn".into(),
+            label: None,
+            filter: Filter::default(),
+            query: ProbeQuery::Overlap {
+                shape: ShapeSpec::Sphere { radius: 0.5 },
+                at: DVec3::new(4.0, 0.0, 0.0),
+                rotation: None,
+            },
+            expect: None,
+        };
+        let result = ProbeResult {
+            id: "spawn".into(),
+            kind: probe.query.kind(),
+            verdict: Verdict::Unchecked,
+            reason: String::new(),
+            hits: Hits::Overlap(vec![OverlapRecord {
+                object: "drum".into(),
+                tags: Vec::<String>::new().into(),
+                depth: 0.5,
+                direction: [-1.0, 0.0, 0.0],
+                point: [4.0, 0.0, 0.0],
+                enclosed: false,
+            }]),
+            clearance: None,
+        };
+        (level, probe, result)
+    }
+
+    #[test]
+    fn the_selected_overlap_highlights_what_it_overlaps_and_handles_follow_the_selection() {
+        let (level, probe, result) = overlap_probe();
+        let (probes, results) = ([probe], [result]);
+        let handles = [DVec3::new(4.0, 0.0, 0.0)];
+        let mut scene = SceneMarks {
+            level: &level,
+            probes: &probes,
+            results: &results,
+            shown: &[0],
+            selected: None,
+            selected_all: &[],
+            hit: None,
+            handles: &[],
+            preview: &[],
+            hover_triangle: None,
+        };
+        let highlights = |marks: &[Mark]| {
+            marks
+                .iter()
+                .filter(|m| matches!(m, Mark::Ghost { colour, .. } if *colour == okabe_ito::ORANGE))
+                .count()
+        };
+        assert_eq!(highlights(&scene_marks(&scene)), 0, "nothing highlighted");
+        scene.selected = Some(0);
+        scene.selected_all = &[0];
+        scene.handles = &handles;
+        let marks = scene_marks(&scene);
+        assert_eq!(highlights(&marks), 1, "the drum is highlighted");
+        assert!(marks.iter().any(|m| matches!(
+            m,
+            Mark::Point { colour, mark: StateMark::Square, .. } if *colour == HANDLE
+        )));
+    }
+}
