@@ -4,7 +4,7 @@
 //! [`Workbench`] keeps the window's state; each panel and dialog is a small function or `impl
 //! Workbench` block in a file of its own that borrows it ([`menus`], [`toolbar`], [`probe_list`],
 //! [`inspector`], [`summary_bar`], [`dialogs`], [`viewport`]), so tests drive them headlessly.
-//! [`frame`] lays them out for one frame; [`editing`] is the one way probes change; [`launcher`]
+//! [`frame`] lays them out for one frame; [`editing`] is the one way probes change; [`launch`]
 //! starts the window.
 
 pub mod badge;
@@ -19,12 +19,12 @@ pub mod frame;
 pub mod history;
 pub mod inspector;
 pub mod jobs;
-pub mod launcher;
+mod launcher;
 pub mod menus;
 pub mod plotting;
 pub mod probe_list;
 pub mod reload;
-pub mod selection;
+mod selection;
 pub mod summary_bar;
 pub mod toolbar;
 pub mod tools;

@@ -4,7 +4,7 @@
 use eframe::egui;
 use glam::{DVec2, DVec3};
 
-use crate::view::OrbitCamera;
+use crate::view::camera::OrbitCamera;
 use plumbline_core::level::ShapeSpec;
 use plumbline_core::probe::{Probe, ProbeQuery};
 use plumbline_core::query::Filter;

@@ -11,9 +11,3 @@ pub mod probe_marks;
 pub mod renderer;
 pub mod scene_marks;
 pub mod surface;
-
-pub use camera::OrbitCamera;
-pub use level_drawing::LevelDrawing;
-pub use marks::{Mark, MarkSurfaces, Sizing, mark_surfaces};
-pub use probe_marks::{Emphasis, probe_marks};
-pub use renderer::{FrameInput, FrameKind, Renderer, Target};

@@ -11,12 +11,12 @@
 use std::sync::Arc;
 
 use glam::{DQuat, DVec2, DVec3};
-use plumbline::view::renderer::BACKGROUND;
+use plumbline::view::camera::OrbitCamera;
+use plumbline::view::level_drawing::LevelDrawing;
+use plumbline::view::marks::{MarkSurfaces, Sizing, mark_surfaces};
+use plumbline::view::probe_marks::{Emphasis, probe_marks};
+use plumbline::view::renderer::{BACKGROUND, FrameInput, Renderer};
 use plumbline::view::surface::Surface;
-use plumbline::view::{
-    Emphasis, FrameInput, LevelDrawing, MarkSurfaces, OrbitCamera, Renderer, Sizing, mark_surfaces,
-    probe_marks,
-};
 use plumbline_core::check::answer_probe;
 use plumbline_core::level::{Geometry, Level, LevelObject, Primitive};
 use plumbline_core::probe::{Probe, ProbeQuery};

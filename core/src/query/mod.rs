@@ -1,5 +1,7 @@
 //! The query core: a [`World`] of parry3d-f64 shapes with one BVH over objects, and one file per
-//! probe kind — [`ray`], [`sweep`] (with [`clearance`]), [`closest`], [`overlap`].
+//! probe kind, each adding methods to [`View`] — rays ([`View::ray_first`], [`View::ray_all`]), sweeps
+//! ([`View::sweep_first`], [`View::sweep_all`], with [`View::sweep_clearance`]), closest points
+//! ([`View::closest`]) and overlaps ([`View::overlap`]).
 //!
 //! Architecture invariant: the core computes in f64 and never samples; every answer is either a
 //! closed-form or converged query of parry3d-f64 or our own exact test (watertight ray–triangle).
@@ -7,12 +9,12 @@
 //! objects go to the one met first in the BVH's fixed traversal order (first-hit rays, closest
 //! points) or to the lower object index (sweeps, overlaps, all-hit lists).
 
-pub mod clearance;
-pub mod closest;
-pub mod overlap;
-pub mod ray;
+mod clearance;
+mod closest;
+mod overlap;
+mod ray;
 mod shapes;
-pub mod sweep;
+mod sweep;
 mod watertight;
 mod world;
 

@@ -7,8 +7,7 @@ use std::time::Instant;
 
 use eframe::{egui, egui_glow};
 
-use crate::view::renderer::FrameKind;
-use crate::view::{FrameInput, Renderer, Target};
+use crate::view::renderer::{FrameInput, FrameKind, Renderer, Target};
 
 thread_local! {
     /// The GPU scene. three-d objects are not `Send`, and the paint callback runs on the UI thread.
