@@ -5,7 +5,7 @@ use eframe::egui;
 use egui::{Color32, Pos2, Rect, Sense, Shape, Stroke, Vec2};
 
 use crate::view::palette::{Rgb, StateMark, verdict_colour, verdict_mark, verdict_word};
-use plumbline_core::check::Verdict;
+use plumbline_core::check::{Summary, Verdict};
 
 /// A palette colour, for egui.
 pub fn color32([r, g, b]: Rgb) -> Color32 {
@@ -58,6 +58,19 @@ pub fn paint_mark(painter: &egui::Painter, centre: Pos2, radius: f32, verdict: V
                 stroke,
             );
         }
+    }
+}
+
+/// A badge and count for each verdict, in one row: pass, FAIL, error, unchecked.
+pub fn verdict_counts(ui: &mut egui::Ui, summary: &Summary) {
+    for (verdict, count) in [
+        (Verdict::Pass, summary.pass),
+        (Verdict::Fail, summary.fail),
+        (Verdict::Error, summary.error),
+        (Verdict::Unchecked, summary.unchecked),
+    ] {
+        badge(ui, verdict, &format!(" {count}"));
+        ui.add_space(6.0);
     }
 }
 

@@ -10,12 +10,12 @@ use glam::{DQuat, DVec3};
 use std::collections::HashMap;
 
 use super::Selection;
-use super::badge::{badge, color32};
+use super::badge::{badge, color32, verdict_counts};
 use super::commands::{Command, tooltip};
 use super::document::Document;
 use super::editor::{Edit, EditorState, probe_editor};
 use crate::view::palette::{self, SELECTED, okabe_ito};
-use plumbline_core::check::{Aspect, Hits, ProbeResult, Verdict, metres};
+use plumbline_core::check::{Aspect, Hits, ProbeResult, metres};
 use plumbline_core::level::ShapeSpec;
 use plumbline_core::probe::{Expect, Probe, ProbeQuery};
 use plumbline_core::query::{ProbeShape, World};
@@ -190,16 +190,7 @@ fn bulk_ui(
             .filter_map(|&i| document.results.get(i).cloned())
             .collect::<Vec<_>>(),
     );
-    ui.horizontal(|ui| {
-        for (verdict, count) in [
-            (Verdict::Pass, summary.pass),
-            (Verdict::Fail, summary.fail),
-            (Verdict::Error, summary.error),
-            (Verdict::Unchecked, summary.unchecked),
-        ] {
-            badge(ui, verdict, &format!(" {count}"));
-        }
-    });
+    ui.horizontal(|ui| verdict_counts(ui, &summary));
     ui.label("Ctrl+click adds or removes a probe; Shift+click selects a run.");
     ui.separator();
     ui.horizontal_wrapped(|ui| {

@@ -9,7 +9,6 @@ use egui::RichText;
 use super::Workbench;
 use super::badge;
 use crate::view::palette;
-use plumbline_core::check::Verdict;
 
 /// How long a status message stays.
 const MESSAGE_FOR: Duration = Duration::from_secs(8);
@@ -19,15 +18,7 @@ impl Workbench {
     pub(super) fn summary_bar(&mut self, ui: &mut egui::Ui) {
         let summary = self.document.summary();
         ui.horizontal(|ui| {
-            for (verdict, count) in [
-                (Verdict::Pass, summary.pass),
-                (Verdict::Fail, summary.fail),
-                (Verdict::Error, summary.error),
-                (Verdict::Unchecked, summary.unchecked),
-            ] {
-                badge::badge(ui, verdict, &format!(" {count}"));
-                ui.add_space(6.0);
-            }
+            badge::verdict_counts(ui, &summary);
             ui.separator();
             let level = self
                 .document

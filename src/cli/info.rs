@@ -3,7 +3,7 @@
 use std::path::Path;
 use std::process::ExitCode;
 
-use plumbline_core::level::{Geometry, Primitive};
+use plumbline_core::level::Geometry;
 use plumbline_core::session::{OpenLevel, OpenOptions, open};
 
 use super::terminal::write_stdout;
@@ -56,7 +56,7 @@ pub fn info(path: &Path) -> Result<ExitCode, String> {
         let (kind, triangles) = match &object.geometry {
             Geometry::Mesh(m) if world.is_closed(id) => ("closed", m.triangles.len().to_string()),
             Geometry::Mesh(m) => ("mesh", m.triangles.len().to_string()),
-            Geometry::Primitive { shape, .. } => (primitive_name(shape), "-".to_string()),
+            Geometry::Primitive { shape, .. } => (shape.type_name(), "-".to_string()),
         };
         out.push_str(&format!(
             "{:<width$}  {kind:<8}  {triangles:>9}  {}\n",
@@ -72,14 +72,4 @@ pub fn info(path: &Path) -> Result<ExitCode, String> {
     }
     write_stdout(&out);
     Ok(ExitCode::SUCCESS)
-}
-
-fn primitive_name(shape: &Primitive) -> &'static str {
-    match shape {
-        Primitive::Sphere { .. } => "sphere",
-        Primitive::Box { .. } => "box",
-        Primitive::Capsule { .. } => "capsule",
-        Primitive::Cylinder { .. } => "cylinder",
-        Primitive::Convex { .. } => "convex",
-    }
 }

@@ -8,7 +8,7 @@ use glam::DVec3;
 use super::palette::{Rgb, tag_tone};
 use super::surface::{Surface, face_normal, shaded, sun_light};
 use plumbline_core::level::{Geometry, Level};
-use plumbline_core::query::{primitive_shape, shape_surface};
+use plumbline_core::query::placed_primitive_surface;
 
 /// Levels with more triangles than this get a proxy for frames while the camera moves.
 pub const PROXY_ABOVE: usize = 250_000;
@@ -101,16 +101,13 @@ fn world_triangles(level: &Level) -> Vec<([DVec3; 3], Rgb)> {
                 translation,
                 rotation,
             } => {
-                let Ok(parry) = primitive_shape(shape) else {
-                    continue;
-                };
-                let (vertices, triangles) = shape_surface(&parry);
-                out.extend(triangles.iter().map(|t| {
-                    (
-                        t.map(|i| *translation + *rotation * vertices[i as usize]),
-                        tone,
-                    )
-                }));
+                let (vertices, triangles) =
+                    placed_primitive_surface(shape, *translation, *rotation);
+                out.extend(
+                    triangles
+                        .iter()
+                        .map(|t| (t.map(|i| vertices[i as usize]), tone)),
+                );
             }
         }
     }

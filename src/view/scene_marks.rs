@@ -11,7 +11,7 @@ use super::probe_marks::{Emphasis, probe_marks};
 use plumbline_core::check::{Hits, ProbeResult};
 use plumbline_core::level::{Geometry, Level};
 use plumbline_core::probe::Probe;
-use plumbline_core::query::{primitive_shape, shape_surface};
+use plumbline_core::query::placed_primitive_surface;
 
 /// Overlapped meshes with more triangles than this are not highlighted (the copy would cost more to
 /// draw than it tells). Ours.
@@ -124,17 +124,7 @@ fn overlapped_objects(level: &Level, result: &ProbeResult, marks: &mut Vec<Mark>
                 shape,
                 translation,
                 rotation,
-            } => {
-                let Ok(parry) = primitive_shape(shape) else {
-                    continue;
-                };
-                let (vertices, triangles) = shape_surface(&parry);
-                let placed = vertices
-                    .iter()
-                    .map(|v| *translation + *rotation * *v)
-                    .collect();
-                (placed, triangles)
-            }
+            } => placed_primitive_surface(shape, *translation, *rotation),
         };
         let centre = vertices.iter().copied().sum::<DVec3>() / vertices.len().max(1) as f64;
         let vertices = vertices

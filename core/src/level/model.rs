@@ -81,6 +81,19 @@ pub enum Primitive {
     },
 }
 
+impl Primitive {
+    /// The shape's `type` name as written in files.
+    pub fn type_name(&self) -> &'static str {
+        match self {
+            Primitive::Sphere { .. } => "sphere",
+            Primitive::Box { .. } => "box",
+            Primitive::Capsule { .. } => "capsule",
+            Primitive::Cylinder { .. } => "cylinder",
+            Primitive::Convex { .. } => "convex",
+        }
+    }
+}
+
 impl Level {
     /// Total triangle count over all mesh objects.
     pub fn triangle_count(&self) -> usize {

@@ -24,7 +24,9 @@ pub use clearance::Clearance;
 pub use closest::{ClosestHit, ClosestProbe};
 pub use overlap::{OverlapHit, TOUCH_TOLERANCE};
 pub use ray::RayHit;
-pub use shapes::{ProbeShape, box_surface, primitive_shape, shape_surface};
+pub use shapes::{
+    ProbeShape, box_surface, placed_primitive_surface, primitive_shape, shape_surface,
+};
 pub use sweep::SweepHit;
 pub use watertight::ShearedRay;
 pub use world::{BuildCause, BuildError, Filter, ObjectId, PART_TRIANGLES, View, World};

@@ -49,6 +49,24 @@ pub fn shape_surface(shape: &SharedShape) -> (Vec<DVec3>, Vec<[u32; 3]>) {
     }
 }
 
+/// The triangulated surface of a primitive placed at `translation` with `rotation`, in level
+/// coordinates (for drawing); empty when the shape cannot be built.
+pub fn placed_primitive_surface(
+    primitive: &Primitive,
+    translation: DVec3,
+    rotation: DQuat,
+) -> (Vec<DVec3>, Vec<[u32; 3]>) {
+    let Ok(shape) = primitive_shape(primitive) else {
+        return (Vec::new(), Vec::new());
+    };
+    let (vertices, triangles) = shape_surface(&shape);
+    let placed = vertices
+        .into_iter()
+        .map(|v| translation + rotation * v)
+        .collect();
+    (placed, triangles)
+}
+
 /// The surface of a box with the given half extents, centred on the origin.
 pub fn box_surface(half_extents: DVec3) -> (Vec<DVec3>, Vec<[u32; 3]>) {
     shape_surface(&SharedShape::cuboid(
