@@ -53,8 +53,11 @@ enum Command {
     },
     /// Lists a level's objects, tags, triangle counts, bounds and load warnings.
     Info {
-        /// A .level.json, .gltf, .glb or .obj file.
+        /// A .level.json, .gltf, .glb or .obj file (or a probe set: its level).
         level: PathBuf,
+        /// Let files name paths outside their own folder (absolute, or `..` above it).
+        #[arg(long)]
+        allow_outside_paths: bool,
     },
 }
 
@@ -75,7 +78,15 @@ fn demo_scenes() -> PathBuf {
     }
 }
 
+/// Exit status of a run interrupted by a signal (128 + SIGINT, as shells report it).
+const EXIT_INTERRUPTED: i32 = 130;
+
 fn main() -> ExitCode {
+    // An interrupted run leaves no temporary files behind (the files it replaces stay as they were).
+    let _ = ctrlc::set_handler(|| {
+        plumbline_core::atomic::remove_unfinished();
+        std::process::exit(EXIT_INTERRUPTED);
+    });
     let parsed = match Cli::try_parse() {
         Ok(cli) => cli,
         Err(e) => {
@@ -110,7 +121,10 @@ fn run(parsed: Cli) -> Result<ExitCode, String> {
             new,
             tolerance,
         }) => cli::diff(&old, &new, tolerance),
-        Some(Command::Info { level }) => cli::info(&level),
+        Some(Command::Info {
+            level,
+            allow_outside_paths,
+        }) => cli::info(&level, allow_outside_paths),
         Some(Command::Open { file, window }) => open(file, window),
         None => open(None, parsed.window),
     }

@@ -19,12 +19,15 @@ fn main() {
     };
     let before = peak_rss_bytes().unwrap_or(0);
     let start = Instant::now();
-    let level = plumbline_core::level::load_level(std::path::Path::new(&path))
-        .unwrap_or_else(|e| {
-            eprintln!("{e}");
-            std::process::exit(2);
-        })
-        .level;
+    let level = plumbline_core::level::load_level(
+        std::path::Path::new(&path),
+        plumbline_core::input::PathPolicy::default(),
+    )
+    .unwrap_or_else(|e| {
+        eprintln!("{e}");
+        std::process::exit(2);
+    })
+    .level;
     let loaded = start.elapsed();
     let triangles = level.triangle_count();
     // As `plumbline check` does: the World takes the level over.

@@ -1,42 +1,232 @@
 //! Writing user files safely: a temporary file in the same folder, flushed to disk, renamed over the
 //! target, and the folder flushed; a replaced file can keep its previous version as `<name>.bak`.
+//!
+//! The temporary file is `.<name>.<process id>.tmp`. It is removed when the write fails or is dropped
+//! unfinished; [`remove_unfinished`] removes those of writes in progress (the command line calls it
+//! when interrupted); and the temporary files that runs killed outright left behind are cleaned up
+//! the next time the same file is written (their process is gone).
 
 use std::fs::{self, File, OpenOptions};
-use std::io::{self, Write};
+use std::io::{self, BufWriter, Write};
 use std::path::{Path, PathBuf};
+use std::sync::Mutex;
 
-/// Writes `bytes` to `path` atomically: readers see the old file or the new one, never a mix.
-pub fn write_atomic(path: &Path, bytes: &[u8]) -> io::Result<()> {
-    let folder = match path.parent() {
-        Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
-        _ => PathBuf::from("."),
-    };
-    let name = path
-        .file_name()
-        .ok_or_else(|| io::Error::new(io::ErrorKind::InvalidInput, "no file name"))?;
-    let temp = folder.join(format!(
-        ".{}.{}.tmp",
-        name.to_string_lossy(),
-        std::process::id()
-    ));
-    let result = (|| {
-        let mut file = OpenOptions::new()
+/// The temporary files of writes in progress, for [`remove_unfinished`].
+static IN_PROGRESS: Mutex<Vec<PathBuf>> = Mutex::new(Vec::new());
+
+/// A file being written atomically: write to it, then [`AtomicFile::commit`]. Dropped without a
+/// commit, it leaves the target untouched and removes its temporary file.
+pub struct AtomicFile {
+    target: PathBuf,
+    folder: PathBuf,
+    temp: PathBuf,
+    out: Option<BufWriter<File>>,
+}
+
+impl AtomicFile {
+    /// Starts writing `path` (nothing is visible there until the commit). Leftover temporary files of
+    /// earlier runs that were killed while writing the same file are removed first.
+    pub fn create(path: &Path) -> io::Result<AtomicFile> {
+        let folder = match path.parent() {
+            Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
+            _ => PathBuf::from("."),
+        };
+        let name = path
+            .file_name()
+            .ok_or_else(|| io::Error::new(io::ErrorKind::InvalidInput, "no file name"))?
+            .to_string_lossy()
+            .into_owned();
+        remove_stale(&folder, &name);
+        let temp = folder.join(format!(".{name}.{}.tmp", std::process::id()));
+        let file = OpenOptions::new()
             .write(true)
             .create_new(true)
             .open(&temp)?;
-        file.write_all(bytes)?;
+        register(&temp, true);
+        Ok(AtomicFile {
+            target: path.to_path_buf(),
+            folder,
+            temp,
+            out: Some(BufWriter::with_capacity(1 << 16, file)),
+        })
+    }
+
+    /// Flushes the file to disk and puts it in place of the target.
+    pub fn commit(mut self) -> io::Result<()> {
+        let out = self.out.take().expect("an uncommitted file has its writer");
+        let file = out.into_inner().map_err(|e| e.into_error())?;
         file.sync_all()?;
-        fs::rename(&temp, path)?;
+        drop(file);
+        fs::rename(&self.temp, &self.target)?;
+        register(&self.temp, false);
         // Make the rename itself durable (not possible on every platform; harmless where not).
-        if let Ok(dir) = File::open(&folder) {
+        if let Ok(dir) = File::open(&self.folder) {
             let _ = dir.sync_all();
         }
         Ok(())
-    })();
-    if result.is_err() {
-        let _ = fs::remove_file(&temp);
     }
-    result
+}
+
+impl Write for AtomicFile {
+    fn write(&mut self, buf: &[u8]) -> io::Result<usize> {
+        self.writer()?.write(buf)
+    }
+
+    fn write_all(&mut self, buf: &[u8]) -> io::Result<()> {
+        self.writer()?.write_all(buf)
+    }
+
+    fn flush(&mut self) -> io::Result<()> {
+        self.writer()?.flush()
+    }
+}
+
+impl AtomicFile {
+    fn writer(&mut self) -> io::Result<&mut BufWriter<File>> {
+        self.out
+            .as_mut()
+            .ok_or_else(|| io::Error::other("the file was committed"))
+    }
+}
+
+impl Drop for AtomicFile {
+    fn drop(&mut self) {
+        if self.out.take().is_some() {
+            let _ = fs::remove_file(&self.temp);
+            register(&self.temp, false);
+        }
+    }
+}
+
+/// A scratch file beside an output, for the part of it that is written before what must come first
+/// is known (a results file's summary precedes its results): appended to, then copied into the
+/// output and removed. Removed when dropped, and when the run is interrupted.
+pub struct Spill {
+    path: PathBuf,
+    out: BufWriter<File>,
+}
+
+impl Spill {
+    /// A scratch file for the output `target`: `.<name>.part.<pid>.tmp` in its folder.
+    pub fn beside(target: &Path) -> io::Result<Spill> {
+        let mut name = target.file_name().unwrap_or_default().to_os_string();
+        name.push(".part");
+        let part = target.with_file_name(name);
+        let folder = match part.parent() {
+            Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
+            _ => PathBuf::from("."),
+        };
+        let name = part
+            .file_name()
+            .unwrap_or_default()
+            .to_string_lossy()
+            .into_owned();
+        remove_stale(&folder, &name);
+        let path = folder.join(format!(".{name}.{}.tmp", std::process::id()));
+        let file = OpenOptions::new()
+            .read(true)
+            .write(true)
+            .create_new(true)
+            .open(&path)?;
+        register(&path, true);
+        Ok(Spill {
+            path,
+            out: BufWriter::with_capacity(1 << 16, file),
+        })
+    }
+
+    /// Copies everything written so far to the end of `into`, and removes the scratch file.
+    pub fn copy_into(mut self, into: &mut impl Write) -> io::Result<()> {
+        use std::io::{Seek, SeekFrom};
+        self.out.flush()?;
+        let file = self.out.get_mut();
+        file.seek(SeekFrom::Start(0))?;
+        io::copy(file, into)?;
+        Ok(())
+    }
+}
+
+impl Write for Spill {
+    fn write(&mut self, buf: &[u8]) -> io::Result<usize> {
+        self.out.write(buf)
+    }
+
+    fn write_all(&mut self, buf: &[u8]) -> io::Result<()> {
+        self.out.write_all(buf)
+    }
+
+    fn flush(&mut self) -> io::Result<()> {
+        self.out.flush()
+    }
+}
+
+impl Drop for Spill {
+    fn drop(&mut self) {
+        let _ = fs::remove_file(&self.path);
+        register(&self.path, false);
+    }
+}
+
+fn register(temp: &Path, writing: bool) {
+    if let Ok(mut list) = IN_PROGRESS.lock() {
+        if writing {
+            list.push(temp.to_path_buf());
+        } else {
+            list.retain(|p| p != temp);
+        }
+    }
+}
+
+/// Removes the temporary files of every write in progress (for an interrupted run, just before it
+/// exits). Safe to call from a signal handler thread.
+pub fn remove_unfinished() {
+    if let Ok(list) = IN_PROGRESS.lock() {
+        for temp in list.iter() {
+            let _ = fs::remove_file(temp);
+        }
+    }
+}
+
+/// Removes `.<name>.<pid>.tmp` files in `folder` whose process no longer runs.
+fn remove_stale(folder: &Path, name: &str) {
+    let prefix = format!(".{name}.");
+    let Ok(entries) = fs::read_dir(folder) else {
+        return;
+    };
+    for entry in entries.flatten() {
+        let file_name = entry.file_name();
+        let Some(pid) = file_name
+            .to_str()
+            .and_then(|n| n.strip_prefix(&prefix))
+            .and_then(|rest| rest.strip_suffix(".tmp"))
+            .and_then(|pid| pid.parse::<u32>().ok())
+        else {
+            continue;
+        };
+        if !process_runs(pid) {
+            let _ = fs::remove_file(entry.path());
+        }
+    }
+}
+
+/// True when a process with this id runs (on Linux, by /proc; elsewhere every other id counts as
+/// running, so nothing that might be in use is removed).
+fn process_runs(pid: u32) -> bool {
+    if pid == std::process::id() {
+        return true;
+    }
+    if Path::new("/proc/self").exists() {
+        Path::new(&format!("/proc/{pid}")).exists()
+    } else {
+        true
+    }
+}
+
+/// Writes `bytes` to `path` atomically: readers see the old file or the new one, never a mix.
+pub fn write_atomic(path: &Path, bytes: &[u8]) -> io::Result<()> {
+    let mut file = AtomicFile::create(path)?;
+    file.write_all(bytes)?;
+    file.commit()
 }
 
 /// The backup path kept beside a file: `<name>.bak`.
@@ -59,6 +249,14 @@ pub fn write_with_backup(path: &Path, bytes: &[u8]) -> io::Result<()> {
 mod tests {
     use super::*;
 
+    fn leftovers(dir: &Path) -> Vec<String> {
+        fs::read_dir(dir)
+            .unwrap()
+            .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+            .filter(|n| n.ends_with(".tmp"))
+            .collect()
+    }
+
     #[test]
     fn replaces_and_keeps_a_backup() {
         let dir = tempfile::tempdir().unwrap();
@@ -68,17 +266,7 @@ mod tests {
         write_with_backup(&path, b"two").unwrap();
         assert_eq!(fs::read(&path).unwrap(), b"two");
         assert_eq!(fs::read(backup_path(&path)).unwrap(), b"one");
-        let leftovers: Vec<_> = fs::read_dir(dir.path())
-            .unwrap()
-            .filter(|e| {
-                e.as_ref()
-                    .unwrap()
-                    .file_name()
-                    .to_string_lossy()
-                    .ends_with(".tmp")
-            })
-            .collect();
-        assert!(leftovers.is_empty());
+        assert!(leftovers(dir.path()).is_empty());
     }
 
     #[test]
@@ -92,5 +280,49 @@ mod tests {
         fs::create_dir(dir.path().join("x.json.d")).unwrap();
         assert!(write_atomic(&dir.path().join("x.json.d"), b"new").is_err());
         assert_eq!(fs::read(&target).unwrap(), b"original");
+    }
+
+    #[test]
+    fn an_unfinished_write_leaves_nothing_behind_and_stale_temporaries_are_swept() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("run.results.json");
+        fs::write(&path, b"before").unwrap();
+        let mut file = AtomicFile::create(&path).unwrap();
+        file.write_all(b"half of it").unwrap();
+        assert_eq!(leftovers(dir.path()).len(), 1);
+        drop(file);
+        assert!(leftovers(dir.path()).is_empty());
+        assert_eq!(fs::read(&path).unwrap(), b"before");
+        // A run killed while writing (its process id long gone) left its temporary file.
+        let stale = dir.path().join(".run.results.json.4294967294.tmp");
+        fs::write(&stale, b"partial").unwrap();
+        write_atomic(&path, b"after").unwrap();
+        assert!(!stale.exists());
+        assert_eq!(fs::read(&path).unwrap(), b"after");
+    }
+
+    #[test]
+    fn a_spill_lands_after_what_is_written_first_and_leaves_nothing() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("run.junit.xml");
+        let mut body = Spill::beside(&path).unwrap();
+        body.write_all(b"<case/>").unwrap();
+        let mut file = AtomicFile::create(&path).unwrap();
+        file.write_all(b"<suite>").unwrap();
+        body.copy_into(&mut file).unwrap();
+        file.write_all(b"</suite>").unwrap();
+        file.commit().unwrap();
+        assert_eq!(fs::read(&path).unwrap(), b"<suite><case/></suite>");
+        assert!(leftovers(dir.path()).is_empty());
+    }
+
+    #[test]
+    fn interrupted_writes_are_removed_on_request() {
+        let dir = tempfile::tempdir().unwrap();
+        let mut file = AtomicFile::create(&dir.path().join("a.json")).unwrap();
+        file.write_all(b"x").unwrap();
+        remove_unfinished();
+        assert!(leftovers(dir.path()).is_empty());
+        drop(file);
     }
 }

@@ -25,6 +25,16 @@ pub enum Error {
     /// The worker threads could not be started.
     #[error("cannot start worker threads: {0}")]
     Threads(#[from] rayon::ThreadPoolBuildError),
+    /// An output would overwrite one of the run's inputs, or another output.
+    #[error("{}: the {what} would overwrite {clash}; choose another path", output.display())]
+    OutputClash {
+        /// The output path as given.
+        output: PathBuf,
+        /// Which output (`--out`, `--junit`…).
+        what: String,
+        /// What it would overwrite, in words.
+        clash: String,
+    },
     /// A file could not be written.
     #[error("{}: cannot write the file: {source}", path.display())]
     Write {
@@ -186,11 +196,12 @@ fn write_located(
     place: Option<&Place>,
     message: &dyn fmt::Display,
 ) -> fmt::Result {
-    write!(f, "{}", path.display())?;
+    use crate::input::escape_controls;
+    write!(f, "{}", escape_controls(&path.display().to_string()))?;
     if let Some(place) = place {
-        write!(f, ": {place}")?;
+        write!(f, ": {}", escape_controls(&place.to_string()))?;
     }
-    write!(f, ": {message}")
+    write!(f, ": {}", escape_controls(&message.to_string()))
 }
 
 impl fmt::Display for InputError {
@@ -228,16 +239,32 @@ pub enum Warning {
         /// Its mode (points, lines…).
         mode: String,
     },
+    /// OBJ faces of fewer than three corners (edges that exporters write as faces) were skipped.
+    ShortFaces {
+        /// How many.
+        count: usize,
+    },
+    /// A text file is not UTF-8; it was read with the bytes that are not replaced.
+    NotUtf8,
+    /// Triangles of a mesh are wound against their neighbours, so its inside is ambiguous.
+    InconsistentWinding {
+        /// The object.
+        object: String,
+        /// Shared edges that two neighbouring triangles run the same way.
+        edges: usize,
+    },
 }
 
 impl Warning {
     /// Where in the file the warning applies, when it does.
     pub fn place(&self) -> Option<Place> {
         match self {
-            Warning::DegenerateDropped { object, .. } | Warning::EmptyObject { object } => {
+            Warning::DegenerateDropped { object, .. }
+            | Warning::EmptyObject { object }
+            | Warning::InconsistentWinding { object, .. } => {
                 Some(Place::Part(format!("object \"{object}\"")))
             }
-            Warning::SkippedElements { .. } => None,
+            Warning::SkippedElements { .. } | Warning::ShortFaces { .. } | Warning::NotUtf8 => None,
             Warning::SkippedPrimitive { part, .. } => Some(Place::Part(part.clone())),
         }
     }
@@ -262,6 +289,18 @@ impl fmt::Display for Warning {
             Warning::SkippedPrimitive { mode, .. } => write!(
                 f,
                 "{mode} primitive skipped (only triangles are collision geometry)"
+            ),
+            Warning::ShortFaces { count } => write!(
+                f,
+                "{count} face(s) of fewer than three corners skipped (edges, not surfaces)"
+            ),
+            Warning::NotUtf8 => f.write_str(
+                "the text is not UTF-8; bytes that are not were replaced (names may read oddly)",
+            ),
+            Warning::InconsistentWinding { edges, .. } => write!(
+                f,
+                "{edges} shared edge(s) join triangles wound opposite ways (front and back \
+                 disagree; inside tests on this mesh are unreliable)"
             ),
         }
     }

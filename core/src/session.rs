@@ -14,11 +14,14 @@
 
 use std::path::{Path, PathBuf};
 
-use crate::check::{ProbeResult, run_probes, text_digest};
+use std::borrow::Cow;
+use std::ops::Range;
+
+use crate::check::{ProbeResult, Runner, Summary, text_digest};
 use crate::error::{Diagnostic, Error, InputError};
-use crate::input::read_input;
+use crate::input::{PathPolicy, resolve_named};
 use crate::level::{Level, LoadedLevel, level_digest, load_level};
-use crate::probe::{Probe, ProbeSet, parse_probe_set};
+use crate::probe::{Probe, ProbeSet, ProbeText};
 use crate::query::World;
 
 /// How to open.
@@ -31,6 +34,8 @@ pub struct OpenOptions {
     /// Keep the level model beside the query world (the window draws it); without it the world takes
     /// the level over, so peak memory holds one copy of the geometry.
     pub keep_level: bool,
+    /// Where paths named inside the files may lead (README, "Paths named inside files").
+    pub paths: PathPolicy,
 }
 
 /// A probe set (or a level alone) opened: the probes, and the level they are about, ready to answer.
@@ -39,11 +44,76 @@ pub struct Opened {
     pub probes_path: Option<PathBuf>,
     /// `sha256:` of the probe-set file's bytes as read; `None` for a level opened alone.
     pub probes_digest: Option<String>,
-    /// The probes (empty for a level opened alone).
-    pub probes: ProbeSet,
+    /// The probes (none for a level opened alone).
+    pub probes: Probes,
     /// The level.
     pub level: OpenLevel,
 }
+
+/// The probes of an opened probe set: the checked file, parsed a chunk at a time as they are
+/// answered, or probes given in memory (the window's edited set).
+pub enum Probes {
+    /// A checked probe-set file.
+    File(ProbeText),
+    /// Probes given in memory, about the level named.
+    Given(ProbeSet),
+}
+
+impl Probes {
+    /// How many probes there are.
+    pub fn len(&self) -> usize {
+        match self {
+            Probes::File(text) => text.len(),
+            Probes::Given(set) => set.probes.len(),
+        }
+    }
+
+    /// True when there are none.
+    pub fn is_empty(&self) -> bool {
+        self.len() == 0
+    }
+
+    /// The length of the longest probe id, in characters (for laying out tables).
+    pub fn longest_id(&self) -> usize {
+        match self {
+            Probes::File(text) => text.longest_id(),
+            Probes::Given(set) => set
+                .probes
+                .iter()
+                .map(|p| p.id.chars().count())
+                .max()
+                .unwrap_or(0),
+        }
+    }
+
+    /// The level, as the probe set names it.
+    pub fn level(&self) -> &str {
+        match self {
+            Probes::File(text) => text.level(),
+            Probes::Given(set) => &set.level,
+        }
+    }
+
+    /// The probes in `range`, parsed.
+    pub fn chunk(&self, range: Range<usize>) -> Result<Cow<'_, [Probe]>, Error> {
+        Ok(match self {
+            Probes::File(text) => Cow::Owned(text.probes(range)?),
+            Probes::Given(set) => Cow::Borrowed(&set.probes[range]),
+        })
+    }
+
+    /// The whole set, parsed.
+    pub fn to_set(&self) -> Result<ProbeSet, Error> {
+        Ok(match self {
+            Probes::File(text) => text.to_set()?,
+            Probes::Given(set) => set.clone(),
+        })
+    }
+}
+
+/// Probes are answered this many at a time: enough to keep every core busy, few enough that a run
+/// of any size holds little (README, "Limits"). Ours.
+const CHUNK: usize = 8192;
 
 /// The level of an opened probe set: where it came from, what it holds, and its query world.
 pub struct OpenLevel {
@@ -77,15 +147,14 @@ pub fn is_probe_set(path: &Path) -> bool {
 /// query world. Nothing is answered yet: see [`Opened::answer`].
 pub fn open(path: &Path, options: &OpenOptions) -> Result<Opened, Error> {
     let (probes_path, probes_digest, mut probes, level_path) = if is_probe_set(path) {
-        let bytes = read_input(path)?;
-        let text = std::str::from_utf8(&bytes)
-            .map_err(|e| InputError::file(path, format!("not UTF-8 text: {e}")))?;
-        let set = parse_probe_set(path, text)?;
-        let beside = path.parent().unwrap_or(Path::new("")).join(&set.level);
+        let text = ProbeText::read(path)?;
+        let digest = text_digest(text.text().as_bytes());
+        let beside = resolve_named(path, text.level(), options.paths)
+            .map_err(|m| InputError::at(path, "field \"level\"", m))?;
         (
             Some(path.to_path_buf()),
-            Some(text_digest(&bytes)),
-            set,
+            Some(digest),
+            Probes::File(text),
             beside,
         )
     } else {
@@ -94,13 +163,16 @@ pub fn open(path: &Path, options: &OpenOptions) -> Result<Opened, Error> {
             level: name.to_string(),
             probes: Vec::new(),
         };
-        (None, None, set, path.to_path_buf())
+        (None, None, Probes::Given(set), path.to_path_buf())
     };
     if let Some(edited) = &options.probes {
-        probes.probes = edited.clone();
+        probes = Probes::Given(ProbeSet {
+            level: probes.level().to_string(),
+            probes: edited.clone(),
+        });
     }
     let level_path = options.level.clone().unwrap_or(level_path);
-    let level = open_level(&level_path, options.keep_level)?;
+    let level = open_level(&level_path, options)?;
     Ok(Opened {
         probes_path,
         probes_digest,
@@ -110,19 +182,19 @@ pub fn open(path: &Path, options: &OpenOptions) -> Result<Opened, Error> {
 }
 
 /// Loads a level and builds its world.
-fn open_level(path: &Path, keep_level: bool) -> Result<OpenLevel, Error> {
+fn open_level(path: &Path, options: &OpenOptions) -> Result<OpenLevel, Error> {
     let LoadedLevel {
         level,
         diagnostics,
         files,
-    } = load_level(path)?;
+    } = load_level(path, options.paths)?;
     let digest = level_digest(&level);
     let (triangles, objects) = (level.triangle_count(), level.objects.len());
     let build_error = |cause| Error::Build {
         level: path.to_path_buf(),
         cause,
     };
-    let (model, world) = if keep_level {
+    let (model, world) = if options.keep_level {
         let world = World::new(&level).map_err(build_error)?;
         (Some(level), world)
     } else {
@@ -148,7 +220,38 @@ impl Opened {
         jobs: Option<usize>,
         progress: &(dyn Fn(usize) + Sync),
     ) -> Result<Vec<ProbeResult>, Error> {
-        run_probes(&self.level.world, &self.probes.probes, jobs, progress)
+        let mut results = Vec::with_capacity(self.probes.len());
+        self.answer_each(jobs, progress, &mut |_, result| {
+            results.push(result);
+            Ok(())
+        })?;
+        Ok(results)
+    }
+
+    /// Answers every probe as [`Opened::answer`] does, handing each probe and its result to `each` in
+    /// probe order as soon as its chunk is done, so that nothing of the run is held beyond one chunk.
+    /// Returns the counts by verdict.
+    pub fn answer_each(
+        &self,
+        jobs: Option<usize>,
+        progress: &(dyn Fn(usize) + Sync),
+        each: &mut dyn FnMut(&Probe, ProbeResult) -> Result<(), Error>,
+    ) -> Result<Summary, Error> {
+        let runner = Runner::new(jobs)?;
+        let mut summary = Summary::default();
+        let total = self.probes.len();
+        let mut start = 0;
+        while start < total {
+            let range = start..(start + CHUNK).min(total);
+            let probes = self.probes.chunk(range.clone())?;
+            let results = runner.answer(&self.level.world, &probes, start, progress);
+            for (probe, result) in probes.iter().zip(results) {
+                summary.count(result.verdict);
+                each(probe, result)?;
+            }
+            start = range.end;
+        }
+        Ok(summary)
     }
 
     /// Every file this run reads: the probe set, then the level's files.

@@ -10,6 +10,7 @@ use plumbline_core::check::{
     Aspect, DEFAULT_TOLERANCE, ProbeResult, Summary, answer_probe, changes,
 };
 use plumbline_core::error::{Diagnostic, Error};
+use plumbline_core::input::PathPolicy;
 use plumbline_core::level::{Geometry, Level};
 use plumbline_core::probe::{Probe, ProbeSet, parse_probe_set, probe_set_to_json};
 use plumbline_core::query::World;
@@ -33,6 +34,8 @@ pub struct Document {
     pub level_digest: String,
     /// Load warnings.
     pub diagnostics: Vec<Diagnostic>,
+    /// Where paths named inside the files may lead (kept for reloads).
+    pub paths: PathPolicy,
     stamps: Vec<(PathBuf, Option<SystemTime>)>,
     /// Edits made since opening; compared with `saved_edits` to tell unsaved changes.
     edits: u64,
@@ -40,9 +43,14 @@ pub struct Document {
 }
 
 impl Document {
-    /// Opens a probe set (`*.probes.json`, with the level it names) or a level on its own.
-    pub fn open(path: &Path) -> Result<Document, Error> {
-        let Answered { opened, results } = Answered::open(path, None)?;
+    /// Opens a probe set (`*.probes.json`, with the level it names) or a level on its own; paths
+    /// named inside the files are resolved under `paths`.
+    pub fn open(path: &Path, paths: PathPolicy) -> Result<Document, Error> {
+        let Answered {
+            opened,
+            probes,
+            results,
+        } = Answered::open(path, None, paths)?;
         let stamps = stamps(&opened.level.files);
         let level = opened.level;
         Ok(Document {
@@ -50,10 +58,11 @@ impl Document {
             probes_path: opened.probes_path,
             level: level.model.expect(KEPT),
             world: Arc::new(level.world),
-            probes: opened.probes,
+            probes,
             results,
             level_digest: level.digest,
             diagnostics: level.diagnostics,
+            paths,
             stamps,
             edits: 0,
             saved_edits: 0,
@@ -166,10 +175,11 @@ impl Document {
     pub fn apply_reload(&mut self, reloaded: Reloaded) -> Vec<(usize, Vec<Aspect>)> {
         let Answered {
             opened,
+            probes,
             mut results,
         } = reloaded.0;
         let level = opened.level;
-        if opened.probes.probes != self.probes.probes {
+        if probes.probes != self.probes.probes {
             results = self
                 .probes
                 .probes
@@ -228,20 +238,27 @@ const KEPT: &str = "the session keeps the level model when asked";
 /// ([`plumbline_core::session::open`]), keeping the level model for drawing.
 struct Answered {
     opened: Opened,
+    probes: ProbeSet,
     results: Vec<ProbeResult>,
 }
 
 impl Answered {
     /// Opens `path` (answering `probes` instead of the file's, when given) and answers every probe.
-    fn open(path: &Path, probes: Option<Vec<Probe>>) -> Result<Answered, Error> {
+    fn open(path: &Path, probes: Option<Vec<Probe>>, paths: PathPolicy) -> Result<Answered, Error> {
         let options = OpenOptions {
             probes,
             keep_level: true,
+            paths,
             ..OpenOptions::default()
         };
         let opened = open(path, &options)?;
         let results = opened.answer(None, &|_| {})?;
-        Ok(Answered { opened, results })
+        let probes = opened.probes.to_set()?;
+        Ok(Answered {
+            opened,
+            probes,
+            results,
+        })
     }
 }
 
@@ -252,8 +269,12 @@ pub struct Reloaded(Answered);
 impl Reloaded {
     /// Loads the level at `level_path` and answers `probes` on it (the slow part of a reload; it
     /// needs nothing from the open document, so it can run on another thread).
-    pub fn load(level_path: PathBuf, probes: Vec<Probe>) -> Result<Reloaded, Error> {
-        Answered::open(&level_path, Some(probes)).map(Reloaded)
+    pub fn load(
+        level_path: PathBuf,
+        probes: Vec<Probe>,
+        paths: PathPolicy,
+    ) -> Result<Reloaded, Error> {
+        Answered::open(&level_path, Some(probes), paths).map(Reloaded)
     }
 }
 
@@ -269,8 +290,9 @@ pub fn unused_id(probes: &[Probe], base: &str) -> String {
         .expect("some number is free")
 }
 
-/// How a probe set saved at `probes_path` names the level: relative to its folder when the level is
-/// in that folder or below it, else the level's full path.
+/// How a probe set saved at `probes_path` names the level: relative to the probe set's folder (with
+/// `..` when the level lies outside it, which opening then needs `--allow-outside-paths` for), or the
+/// level's full path when the two share no folder at all.
 fn level_reference(probes_path: &Path, level_path: &Path) -> String {
     let absolute = |p: &Path| std::path::absolute(p).unwrap_or_else(|_| p.to_path_buf());
     let level = absolute(level_path);
@@ -278,10 +300,23 @@ fn level_reference(probes_path: &Path, level_path: &Path) -> String {
         .parent()
         .map(Path::to_path_buf)
         .unwrap_or_default();
-    match level.strip_prefix(&folder) {
-        Ok(relative) => relative.to_string_lossy().replace('\\', "/"),
-        Err(_) => level.to_string_lossy().into_owned(),
+    let level_parts: Vec<_> = level.components().collect();
+    let folder_parts: Vec<_> = folder.components().collect();
+    let shared = level_parts
+        .iter()
+        .zip(&folder_parts)
+        .take_while(|(a, b)| a == b)
+        .count();
+    if shared <= 1 {
+        return level.to_string_lossy().into_owned();
     }
+    let mut relative: Vec<String> = vec!["..".into(); folder_parts.len() - shared];
+    relative.extend(
+        level_parts[shared..]
+            .iter()
+            .map(|c| c.as_os_str().to_string_lossy().into_owned()),
+    );
+    relative.join("/")
 }
 
 /// Modification times of the files a level was read from.
@@ -313,10 +348,13 @@ mod tests {
             level_reference(&probes, &root.join("parts").join("yard.glb")),
             "parts/yard.glb"
         );
-        let elsewhere = std::path::absolute(Path::new("/other/yard.level.json")).unwrap();
+        let beside = std::path::absolute(Path::new("/shared/yard.level.json")).unwrap();
         assert_eq!(
-            level_reference(&probes, &elsewhere),
-            elsewhere.to_string_lossy()
+            level_reference(
+                &std::path::absolute(Path::new("/shared/probes/a.probes.json")).unwrap(),
+                &beside
+            ),
+            "../yard.level.json"
         );
     }
 

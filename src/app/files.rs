@@ -76,7 +76,7 @@ impl Workbench {
             });
             return Ok(());
         }
-        let document = Document::open(path).map_err(|e| e.to_string())?;
+        let document = Document::open(path, self.document.paths).map_err(|e| e.to_string())?;
         self.document.forget_recovery();
         self.replace_document(document);
         self.remember_recent(path);

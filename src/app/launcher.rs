@@ -22,6 +22,8 @@ pub struct WindowOptions {
     pub bench_frames: Option<usize>,
     /// The id of a probe to select at the start.
     pub select: Option<String>,
+    /// Where paths named inside the files opened may lead.
+    pub paths: plumbline_core::input::PathPolicy,
 }
 
 /// Where the recent files are kept in the window's saved state.
@@ -50,7 +52,7 @@ pub fn launch(path: &std::path::Path, options: WindowOptions) -> Result<(), Stri
     // Opening a big level takes a few seconds before the window can appear: say what is happening.
     let started = Instant::now();
     eprintln!("plumbline: opening {} …", path.display());
-    let document = Document::open(path).map_err(|e| e.to_string())?;
+    let document = Document::open(path, options.paths).map_err(|e| e.to_string())?;
     eprintln!(
         "plumbline: {} objects ({} mesh triangles) loaded and {} probes answered in {:.1} s",
         document.level.objects.len(),

@@ -34,7 +34,9 @@ impl Workbench {
                 );
                 let path = self.document.level_path.clone();
                 let probes = self.document.probes.probes.clone();
-                self.reload.start(ctx, move || Reloaded::load(path, probes));
+                let paths = self.document.paths;
+                self.reload
+                    .start(ctx, move || Reloaded::load(path, probes, paths));
             }
         }
         ctx.request_repaint_after(DISK_CHECK);

@@ -1,20 +1,21 @@
-//! `plumbline check`: answer every probe of a set, print a summary, write the requested files, and
-//! compare with a baseline; `--watch` re-runs on every change on disk.
+//! `plumbline check`: answer every probe of a set, print a line per probe and the totals, write the
+//! requested files, and compare with a baseline. Everything streams: each probe's line, results-file
+//! entry and report row is written as its chunk is answered, so a run of any size holds one chunk.
 
+use std::collections::HashMap;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
-use std::sync::mpsc;
-use std::time::Duration;
 
-use plumbline_core::atomic::write_atomic;
 use plumbline_core::check::{
-    Comparison, DEFAULT_TOLERANCE, ResultsFile, Verdict, compare, load_results,
+    Comparer, Comparison, DEFAULT_TOLERANCE, ProbeResult, ResultsFile, ResultsHead, ResultsWriter,
+    Summary, Verdict, load_results,
 };
-use plumbline_core::probe::ProbeSet;
-use plumbline_core::report::{junit_xml, markdown_summary};
+use plumbline_core::error::Error;
+use plumbline_core::input::{PathPolicy, check_outputs};
+use plumbline_core::report::{JunitWriter, MarkdownWriter};
 use plumbline_core::session::{OpenOptions, open};
 
-use super::terminal::{Progress, Style, Tone, write_stdout};
+use super::terminal::{Lines, Progress, Style, Tone, column_width, write_stdout};
 use super::{EXIT_FAILED, print_comparison};
 
 /// The options of `plumbline check`.
@@ -49,15 +50,35 @@ pub struct CheckOptions {
     /// List only failures, errors and changes.
     #[arg(long)]
     pub brief: bool,
+    /// Let files name paths outside their own folder (absolute, or `..` above it).
+    #[arg(long)]
+    pub allow_outside_paths: bool,
 }
 
-/// One complete run: the inputs as loaded and the results.
-struct Run {
-    set: ProbeSet,
-    level_path: PathBuf,
-    results: ResultsFile,
-    triangles: usize,
-    warnings: Vec<String>,
+impl CheckOptions {
+    /// The outputs asked for, with what each is, for messages.
+    fn outputs(&self) -> Vec<(&'static str, &Path)> {
+        [
+            ("results file (--out)", &self.out),
+            ("JUnit report (--junit)", &self.junit),
+            ("Markdown summary (--markdown)", &self.markdown),
+        ]
+        .into_iter()
+        .filter_map(|(what, path)| path.as_deref().map(|p| (what, p)))
+        .collect()
+    }
+}
+
+/// What one run found.
+pub struct Outcome {
+    /// Counts by verdict.
+    pub summary: Summary,
+    /// What changed since the baseline, when one was given.
+    pub comparison: Option<Comparison>,
+    /// Every file the run read (for `--watch`).
+    pub inputs: Vec<PathBuf>,
+    /// The whole results, when asked for (the next `--watch` run compares with them).
+    pub results: Option<ResultsFile>,
 }
 
 /// Runs the check once, prints the summary and writes the files. Exit 0, 1 or 2 (SPEC §4).
@@ -68,20 +89,13 @@ pub fn check(options: &CheckOptions) -> Result<ExitCode, String> {
         .map(load_results)
         .transpose()
         .map_err(|e| e.to_string())?;
-    let run = run_once(options)?;
-    let comparison = baseline
-        .as_ref()
-        .map(|b| compare(b, &run.results, options.tolerance));
     let style = Style::detect();
-    print_run(&run, options.brief, style);
-    if let Some(c) = &comparison {
-        print_comparison(c, style);
-    }
-    write_outputs(options, &run, comparison.as_ref())?;
-    print_totals(&run.results, style);
-    let changed = comparison.as_ref().is_some_and(|c| !c.is_empty());
+    let outcome = run_once(options, baseline.as_ref(), options.brief, false, style)
+        .map_err(|e| e.to_string())?;
+    print_totals(&outcome.summary, style);
+    let changed = outcome.comparison.as_ref().is_some_and(|c| !c.is_empty());
     Ok(
-        if run.results.summary.all_hold() && !(options.fail_on_change && changed) {
+        if outcome.summary.all_hold() && !(options.fail_on_change && changed) {
             ExitCode::SUCCESS
         } else {
             ExitCode::from(EXIT_FAILED)
@@ -89,198 +103,181 @@ pub fn check(options: &CheckOptions) -> Result<ExitCode, String> {
     )
 }
 
-/// Re-runs the check whenever the probe set or anything beside the level changes on disk, printing
-/// what changed since the previous run. Runs until interrupted.
-pub fn watch(options: &CheckOptions) -> Result<ExitCode, String> {
-    use notify::{RecursiveMode, Watcher};
-    let style = Style::detect();
-    let mut previous: Option<ResultsFile> = None;
-    let (tx, rx) = mpsc::channel();
-    let mut watcher =
-        notify::recommended_watcher(tx).map_err(|e| format!("cannot watch files: {e}"))?;
-    let mut watched: Vec<PathBuf> = Vec::new();
-    loop {
-        match run_once(options) {
-            Ok(run) => {
-                print_run(&run, true, style);
-                if let Some(old) = &previous {
-                    print_comparison(&compare(old, &run.results, options.tolerance), style);
-                }
-                if let Err(e) = write_outputs(options, &run, None) {
-                    eprintln!("plumbline: {e}");
-                }
-                print_totals(&run.results, style);
-                let folders = [folder_of(&options.probes), folder_of(&run.level_path)];
-                for folder in folders {
-                    if !watched.contains(&folder) {
-                        watcher
-                            .watch(&folder, RecursiveMode::NonRecursive)
-                            .map_err(|e| format!("cannot watch {}: {e}", folder.display()))?;
-                        watched.push(folder);
-                    }
-                }
-                previous = Some(run.results);
-            }
-            Err(message) => {
-                eprintln!("plumbline: {message}");
-                if watched.is_empty() {
-                    let folder = folder_of(&options.probes);
-                    watcher
-                        .watch(&folder, RecursiveMode::NonRecursive)
-                        .map_err(|e| e.to_string())?;
-                    watched.push(folder);
-                }
-            }
-        }
-        write_stdout(&style.paint(Tone::Dim, "watching for changes (Ctrl-C to stop)\n"));
-        wait_for_relevant_change(&rx, options)?;
+/// The files one run writes, streamed as the results come.
+struct Writers {
+    results: Option<ResultsWriter>,
+    junit: Option<JunitWriter>,
+    markdown: Option<MarkdownWriter>,
+}
+
+impl Writers {
+    fn create(options: &CheckOptions, total: usize) -> Result<Writers, Error> {
+        let failed = |path: &Path| {
+            let path = path.to_path_buf();
+            move |source| Error::Write { path, source }
+        };
+        let suite = options
+            .probes
+            .file_name()
+            .map_or("probes".into(), |n| n.to_string_lossy().to_string());
+        Ok(Writers {
+            results: options
+                .out
+                .as_deref()
+                .map(|p| ResultsWriter::create(p, total).map_err(failed(p)))
+                .transpose()?,
+            junit: options
+                .junit
+                .as_deref()
+                .map(|p| JunitWriter::create(p, &suite).map_err(failed(p)))
+                .transpose()?,
+            markdown: options
+                .markdown
+                .as_deref()
+                .map(|p| MarkdownWriter::create(p).map_err(failed(p)))
+                .transpose()?,
+        })
     }
 }
 
-/// Blocks until a file the check reads changes, then lets a burst of events settle.
-fn wait_for_relevant_change(
-    rx: &mpsc::Receiver<notify::Result<notify::Event>>,
+/// Answers every probe once: prints a line per probe (only failures, errors and changes with
+/// `brief`), compares with `baseline`, writes the requested files, and prints what changed.
+pub fn run_once(
     options: &CheckOptions,
-) -> Result<(), String> {
-    let relevant = |event: &notify::Event| {
-        !event.kind.is_access()
-            && event.paths.iter().any(|p| {
-                let own_output = [&options.out, &options.junit, &options.markdown]
-                    .iter()
-                    .any(|o| o.as_deref() == Some(p.as_path()));
-                let name = p
-                    .file_name()
-                    .map(|n| n.to_string_lossy().to_string())
-                    .unwrap_or_default();
-                let interesting = [".json", ".glb", ".gltf", ".bin", ".obj"]
-                    .iter()
-                    .any(|e| name.ends_with(e));
-                interesting && !own_output && !name.starts_with('.')
-            })
-    };
-    loop {
-        let event = rx
-            .recv()
-            .map_err(|_| "the file watcher stopped".to_string())?;
-        if event.is_ok_and(|e| relevant(&e)) {
-            break;
-        }
-    }
-    while rx.recv_timeout(Duration::from_millis(300)).is_ok() {}
-    Ok(())
-}
-
-fn folder_of(path: &Path) -> PathBuf {
-    match path.parent() {
-        Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
-        _ => PathBuf::from("."),
-    }
-}
-
-fn run_once(options: &CheckOptions) -> Result<Run, String> {
+    baseline: Option<&ResultsFile>,
+    brief: bool,
+    keep_results: bool,
+    style: Style,
+) -> Result<Outcome, Error> {
     let opened = open(
         &options.probes,
         &OpenOptions {
             level: options.level.clone(),
+            paths: PathPolicy {
+                anywhere: options.allow_outside_paths,
+            },
             ..OpenOptions::default()
         },
-    )
-    .map_err(|e| e.to_string())?;
-    let progress = Progress::new(opened.probes.probes.len());
-    let results = opened
-        .answer(options.jobs.map(|j| j as usize), &|done| {
-            progress.update(done)
-        })
-        .map_err(|e| e.to_string())?;
-    progress.finish();
-    let level = opened.level;
-    let results = ResultsFile::new(
-        options.probes.display().to_string(),
-        level.path.display().to_string(),
-        level.digest,
-        opened.probes_digest.unwrap_or_default(),
-        results,
+    )?;
+    let mut inputs = opened.inputs();
+    inputs.extend(options.baseline.clone());
+    check_outputs(&inputs, &options.outputs())?;
+    let total = opened.probes.len();
+    let level = &opened.level;
+    let mut header = format!(
+        "{} on {} ({total} probes, {} triangles)\n",
+        options.probes.display(),
+        level.path.display(),
+        level.triangles
     );
-    Ok(Run {
-        set: opened.probes,
-        level_path: level.path,
+    for w in &level.diagnostics {
+        header.push_str(&style.paint(Tone::Note, &format!("warning: {w}\n")));
+    }
+    write_stdout(&header);
+    let mut writers = Writers::create(options, total)?;
+    let mut comparer = baseline.map(|b| Comparer::new(b, &level.digest, options.tolerance));
+    let mut changed_labels: HashMap<String, Option<String>> = HashMap::new();
+    let mut kept = Vec::new();
+    let width = column_width(opened.probes.longest_id());
+    let progress = Progress::new(total);
+    let mut lines = Lines::new(&progress);
+    let summary = opened.answer_each(
+        options.jobs.map(|j| j as usize),
+        &|done| progress.update(done),
+        &mut |probe, result| {
+            if !(brief && matches!(result.verdict, Verdict::Pass | Verdict::Unchecked)) {
+                lines.push(&result_line(&result, width, style));
+            }
+            if let Some(c) = &mut comparer
+                && c.observe(&result)
+            {
+                changed_labels.insert(result.id.clone(), probe.label.clone());
+            }
+            let write = |path: &Option<PathBuf>, e| Error::Write {
+                path: path.clone().unwrap_or_default(),
+                source: e,
+            };
+            if let Some(w) = &mut writers.results {
+                w.push(&result).map_err(|e| write(&options.out, e))?;
+            }
+            if let Some(w) = &mut writers.junit {
+                w.push(&result).map_err(|e| write(&options.junit, e))?;
+            }
+            if let Some(w) = &mut writers.markdown {
+                w.push(probe, &result)
+                    .map_err(|e| write(&options.markdown, e))?;
+            }
+            if keep_results {
+                kept.push(result);
+            }
+            Ok(())
+        },
+    )?;
+    lines.finish();
+    progress.finish();
+    let comparison = comparer.map(Comparer::finish);
+    if let Some(c) = &comparison {
+        print_comparison(c, style);
+    }
+    let head = ResultsHead {
+        probes: options.probes.display().to_string(),
+        level: level.path.display().to_string(),
+        level_digest: level.digest.clone(),
+        probes_digest: opened.probes_digest.clone().unwrap_or_default(),
+    };
+    let written = |path: &Option<PathBuf>| {
+        let path = path.clone().unwrap_or_default();
+        move |source| Error::Write { path, source }
+    };
+    if let Some(w) = writers.results {
+        w.finish(&head, &summary).map_err(written(&options.out))?;
+    }
+    if let Some(w) = writers.junit {
+        w.finish(&summary).map_err(written(&options.junit))?;
+    }
+    if let Some(w) = writers.markdown {
+        let labels = |id: &str| changed_labels.get(id).cloned().flatten();
+        w.finish(&summary, &head.level, comparison.as_ref(), &labels)
+            .map_err(written(&options.markdown))?;
+    }
+    let results = keep_results.then(|| {
+        ResultsFile::new(
+            head.probes,
+            head.level,
+            head.level_digest,
+            head.probes_digest,
+            kept,
+        )
+    });
+    Ok(Outcome {
+        summary,
+        comparison,
+        inputs,
         results,
-        triangles: level.triangles,
-        warnings: level.diagnostics.iter().map(|w| w.to_string()).collect(),
     })
 }
 
-fn print_run(run: &Run, brief: bool, style: Style) {
-    let mut out = format!(
-        "{} on {} ({} probes, {} triangles)\n",
-        run.results.probes,
-        run.level_path.display(),
-        run.set.probes.len(),
-        run.triangles
-    );
-    for w in &run.warnings {
-        out.push_str(&style.paint(Tone::Note, &format!("warning: {w}\n")));
-    }
-    let width = run
-        .results
-        .results
-        .iter()
-        .map(|r| r.id.len())
-        .max()
-        .unwrap_or(0);
-    for r in &run.results.results {
-        let (word, tone) = match r.verdict {
-            Verdict::Pass => ("pass ", Tone::Good),
-            Verdict::Fail => ("FAIL ", Tone::Bad),
-            Verdict::Error => ("ERROR", Tone::Bad),
-            Verdict::Unchecked => ("  -  ", Tone::Dim),
-        };
-        if brief && matches!(r.verdict, Verdict::Pass | Verdict::Unchecked) {
-            continue;
-        }
-        out.push_str(&format!(
-            "  {}  {:<width$}  {}\n",
-            style.paint(tone, word),
-            r.id,
-            r.reason
-        ));
-    }
-    write_stdout(&out);
+/// One probe's line: its verdict, id and reason.
+fn result_line(r: &ProbeResult, width: usize, style: Style) -> String {
+    let (word, tone) = match r.verdict {
+        Verdict::Pass => ("pass ", Tone::Good),
+        Verdict::Fail => ("FAIL ", Tone::Bad),
+        Verdict::Error => ("ERROR", Tone::Bad),
+        Verdict::Unchecked => ("  -  ", Tone::Dim),
+    };
+    format!(
+        "  {}  {:<width$}  {}\n",
+        style.paint(tone, word),
+        r.id,
+        r.reason
+    )
 }
 
-fn print_totals(results: &ResultsFile, style: Style) {
-    let s = &results.summary;
+/// The last line: counts by verdict.
+pub fn print_totals(s: &Summary, style: Style) {
     let line = format!(
         "{} probes: {} pass, {} fail, {} error, {} unchecked\n",
         s.probes, s.pass, s.fail, s.error, s.unchecked
     );
     write_stdout(&style.paint(if s.all_hold() { Tone::Good } else { Tone::Bad }, &line));
-}
-
-fn write_outputs(
-    options: &CheckOptions,
-    run: &Run,
-    comparison: Option<&Comparison>,
-) -> Result<(), String> {
-    let write = |path: &Path, text: &str| {
-        write_atomic(path, text.as_bytes())
-            .map_err(|e| format!("{}: cannot write the file: {e}", path.display()))
-    };
-    if let Some(out) = &options.out {
-        write(out, &run.results.to_json())?;
-    }
-    if let Some(junit) = &options.junit {
-        let suite = options
-            .probes
-            .file_name()
-            .map_or("probes".into(), |n| n.to_string_lossy().to_string());
-        write(junit, &junit_xml(&run.results, &suite))?;
-    }
-    if let Some(markdown) = &options.markdown {
-        write(
-            markdown,
-            &markdown_summary(&run.results, &run.set, comparison),
-        )?;
-    }
-    Ok(())
 }

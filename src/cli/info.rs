@@ -3,17 +3,21 @@
 use std::path::Path;
 use std::process::ExitCode;
 
+use plumbline_core::input::PathPolicy;
 use plumbline_core::level::Geometry;
 use plumbline_core::session::{OpenLevel, OpenOptions, open};
 
-use super::terminal::write_stdout;
+use super::terminal::{column_width, write_stdout};
 
 /// Prints what the level holds; exit 0, or an error for unreadable input.
-pub fn info(path: &Path) -> Result<ExitCode, String> {
+pub fn info(path: &Path, allow_outside_paths: bool) -> Result<ExitCode, String> {
     let opened = open(
         path,
         &OpenOptions {
             keep_level: true,
+            paths: PathPolicy {
+                anywhere: allow_outside_paths,
+            },
             ..OpenOptions::default()
         },
     )
@@ -41,13 +45,15 @@ pub fn info(path: &Path) -> Result<ExitCode, String> {
         ));
     }
     out.push_str(&format!("digest    {digest}\n\n"));
-    let width = level
-        .objects
-        .iter()
-        .map(|o| o.name.len())
-        .max()
-        .unwrap_or(0)
-        .max(6);
+    let width = column_width(
+        level
+            .objects
+            .iter()
+            .map(|o| o.name.chars().count())
+            .max()
+            .unwrap_or(0)
+            .max(6),
+    );
     out.push_str(&format!(
         "{:<width$}  {:<8}  {:>9}  tags\n",
         "object", "kind", "triangles"

@@ -4,11 +4,13 @@ mod check;
 mod diff;
 mod info;
 mod terminal;
+mod watch;
 mod window;
 
-pub use check::{CheckOptions, check, watch};
+pub use check::{CheckOptions, check};
 pub use diff::diff;
 pub use info::info;
+pub use watch::watch;
 pub use window::WindowArgs;
 
 use plumbline_core::check::Comparison;
@@ -47,13 +49,19 @@ fn print_comparison(c: &Comparison, style: Style) {
         Tone::Note,
         &format!("Changed since the baseline ({}):\n", c.count()),
     ));
-    let width = c
-        .changed
-        .iter()
-        .map(|p| p.id.len())
-        .chain(c.added.iter().chain(&c.removed).map(String::len))
-        .max()
-        .unwrap_or(0);
+    let width = terminal::column_width(
+        c.changed
+            .iter()
+            .map(|p| p.id.chars().count())
+            .chain(
+                c.added
+                    .iter()
+                    .chain(&c.removed)
+                    .map(|id| id.chars().count()),
+            )
+            .max()
+            .unwrap_or(0),
+    );
     for p in &c.changed {
         let what: Vec<String> = p.aspects.iter().map(|a| a.to_string()).collect();
         out.push_str(&format!("  {:<width$}  {}\n", p.id, what.join("; ")));

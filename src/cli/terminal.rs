@@ -49,6 +49,49 @@ pub enum Tone {
     Dim,
 }
 
+/// The widest a table's name column is padded to, in characters: longer names (ids may be up to a
+/// thousand characters) push their own line's text along instead of every line's. Ours.
+const MAX_COLUMN: usize = 40;
+
+/// The width to pad a name column to, for names up to `longest` characters.
+pub fn column_width(longest: usize) -> usize {
+    longest.min(MAX_COLUMN)
+}
+
+/// Lines for stdout written as a run goes, a batch at a time, around the progress bar.
+pub struct Lines<'a> {
+    progress: &'a Progress,
+    pending: String,
+}
+
+impl<'a> Lines<'a> {
+    /// Lines that keep clear of `progress`.
+    pub fn new(progress: &'a Progress) -> Lines<'a> {
+        Lines {
+            progress,
+            pending: String::new(),
+        }
+    }
+
+    /// Adds a line (ending in a newline); written once a batch has gathered.
+    pub fn push(&mut self, line: &str) {
+        self.pending.push_str(line);
+        if self.pending.len() >= 1 << 16 {
+            self.flush();
+        }
+    }
+
+    fn flush(&mut self) {
+        let text = std::mem::take(&mut self.pending);
+        self.progress.bar.suspend(|| write_stdout(&text));
+    }
+
+    /// Writes what is left.
+    pub fn finish(mut self) {
+        self.flush();
+    }
+}
+
 /// Writes to stdout; a closed pipe (`plumbline check … | head`) is not an error.
 pub fn write_stdout(text: &str) {
     let _ = std::io::stdout().lock().write_all(text.as_bytes());

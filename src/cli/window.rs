@@ -21,6 +21,9 @@ pub struct WindowArgs {
     /// then exit.
     #[arg(long, value_name = "N", value_parser = clap::value_parser!(u32).range(1..))]
     pub bench_frames: Option<u32>,
+    /// Let files name paths outside their own folder (absolute, or `..` above it).
+    #[arg(long)]
+    pub allow_outside_paths: bool,
 }
 
 impl WindowArgs {
@@ -31,6 +34,9 @@ impl WindowArgs {
             size: self.size,
             bench_frames: self.bench_frames.map(|n| n as usize),
             select: self.select.clone(),
+            paths: plumbline_core::input::PathPolicy {
+                anywhere: self.allow_outside_paths,
+            },
         })
     }
 }

@@ -28,7 +28,8 @@ fn demo_copy() -> (tempfile::TempDir, PathBuf) {
 }
 
 fn harness(path: &Path) -> Harness<'static, Workbench> {
-    let workbench = Workbench::new(Document::open(path).expect("the copy opens"));
+    let workbench =
+        Workbench::new(Document::open(path, Default::default()).expect("the copy opens"));
     let mut harness = Harness::builder()
         .with_size([1400.0, 900.0])
         .build_ui_state(|ui, workbench: &mut Workbench| workbench.ui(ui), workbench);
@@ -180,7 +181,7 @@ fn editing_a_number_in_the_inspector_answers_the_probe_again() {
 #[test]
 fn a_recovery_file_is_offered_at_start_and_restored() {
     let (_folder, path) = demo_copy();
-    let document = Document::open(&path).unwrap();
+    let document = Document::open(&path, Default::default()).unwrap();
     // A session that had deleted the first probe, then stopped without saving.
     let mut probes = document.probes.clone();
     probes.probes.remove(0);

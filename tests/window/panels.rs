@@ -14,7 +14,7 @@ fn demo() -> Document {
     let path = PathBuf::from(env!("CARGO_MANIFEST_DIR"))
         .join("scenes")
         .join(files::PROBES);
-    Document::open(&path).expect("the demo opens")
+    Document::open(&path, Default::default()).expect("the demo opens")
 }
 
 fn harness() -> Harness<'static, Workbench> {

@@ -1,6 +1,7 @@
 //! What changed between two runs of a probe set: verdicts, blocked/clear, first object, and
 //! distances that moved by more than a tolerance.
 
+use std::collections::HashMap;
 use std::fmt;
 
 use super::records::{ProbeResult, Verdict};
@@ -87,31 +88,73 @@ impl Comparison {
 
 /// Compares two runs; distances must move by more than `tolerance` metres to count.
 pub fn compare(old: &ResultsFile, new: &ResultsFile, tolerance: f64) -> Comparison {
-    let mut comparison = Comparison {
-        level_differs: old.level_digest != new.level_digest,
-        ..Comparison::default()
-    };
-    for n in &new.results {
-        match old.results.iter().find(|o| o.id == n.id) {
-            Some(o) => {
-                let aspects = changes(o, n, tolerance);
-                if !aspects.is_empty() {
-                    comparison.changed.push(ProbeChange {
-                        id: n.id.clone(),
-                        aspects,
-                    });
-                }
-            }
-            None => comparison.added.push(n.id.clone()),
+    let mut comparer = Comparer::new(old, &new.level_digest, tolerance);
+    for result in &new.results {
+        comparer.observe(result);
+    }
+    comparer.finish()
+}
+
+/// Compares a run with an earlier one as its results come, in the new run's order.
+pub struct Comparer<'a> {
+    old: &'a ResultsFile,
+    by_id: HashMap<&'a str, usize>,
+    seen: Vec<bool>,
+    tolerance: f64,
+    comparison: Comparison,
+}
+
+impl<'a> Comparer<'a> {
+    /// A comparison with `old`, for a new run on the level whose digest is `level_digest`.
+    pub fn new(old: &'a ResultsFile, level_digest: &str, tolerance: f64) -> Comparer<'a> {
+        Comparer {
+            by_id: old
+                .results
+                .iter()
+                .enumerate()
+                .map(|(k, r)| (r.id.as_str(), k))
+                .collect(),
+            seen: vec![false; old.results.len()],
+            old,
+            tolerance,
+            comparison: Comparison {
+                level_differs: old.level_digest != level_digest,
+                ..Comparison::default()
+            },
         }
     }
-    comparison.removed = old
-        .results
-        .iter()
-        .filter(|o| !new.results.iter().any(|n| n.id == o.id))
-        .map(|o| o.id.clone())
-        .collect();
-    comparison
+
+    /// Takes in the next result of the new run; true when it changed (or is new).
+    pub fn observe(&mut self, new: &ProbeResult) -> bool {
+        match self.by_id.get(new.id.as_str()) {
+            Some(&k) => {
+                self.seen[k] = true;
+                let aspects = changes(&self.old.results[k], new, self.tolerance);
+                if aspects.is_empty() {
+                    return false;
+                }
+                self.comparison.changed.push(ProbeChange {
+                    id: new.id.clone(),
+                    aspects,
+                });
+            }
+            None => self.comparison.added.push(new.id.clone()),
+        }
+        true
+    }
+
+    /// What changed: the probes of the old run never seen are the removed ones.
+    pub fn finish(mut self) -> Comparison {
+        self.comparison.removed = self
+            .old
+            .results
+            .iter()
+            .zip(&self.seen)
+            .filter(|(_, seen)| !**seen)
+            .map(|(r, _)| r.id.clone())
+            .collect();
+        self.comparison
+    }
 }
 
 /// The aspects of one probe's answer that changed.

@@ -12,12 +12,14 @@ mod run;
 mod verdict;
 
 pub use answer::answer_probe;
-pub use compare::{Aspect, Comparison, DEFAULT_TOLERANCE, ProbeChange, changes, compare};
+pub use compare::{Aspect, Comparer, Comparison, DEFAULT_TOLERANCE, ProbeChange, changes, compare};
 pub use expectation::expectation_from;
 pub use records::{
     ClearanceRecord, ClosestRecord, Hits, OverlapRecord, ProbeResult, RayHitRecord, Summary,
     SweepHitRecord, Verdict,
 };
-pub use results_file::{ResultsFile, load_results, probes_digest, text_digest};
-pub use run::run_probes;
+pub use results_file::{
+    ResultsFile, ResultsHead, ResultsWriter, load_results, probes_digest, text_digest,
+};
+pub use run::{Runner, run_probes};
 pub use verdict::metres;

@@ -227,19 +227,22 @@ pub struct Summary {
 impl Summary {
     /// Counts the verdicts of a list of results.
     pub fn of(results: &[ProbeResult]) -> Summary {
-        let mut s = Summary {
-            probes: results.len(),
-            ..Summary::default()
-        };
+        let mut s = Summary::default();
         for r in results {
-            match r.verdict {
-                Verdict::Pass => s.pass += 1,
-                Verdict::Fail => s.fail += 1,
-                Verdict::Unchecked => s.unchecked += 1,
-                Verdict::Error => s.error += 1,
-            }
+            s.count(r.verdict);
         }
         s
+    }
+
+    /// Counts one more probe with this verdict.
+    pub fn count(&mut self, verdict: Verdict) {
+        self.probes += 1;
+        match verdict {
+            Verdict::Pass => self.pass += 1,
+            Verdict::Fail => self.fail += 1,
+            Verdict::Unchecked => self.unchecked += 1,
+            Verdict::Error => self.error += 1,
+        }
     }
 
     /// True when every expectation holds and no probe erred.

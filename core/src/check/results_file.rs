@@ -1,7 +1,8 @@
 //! The results file (`*.results.json`, SPEC §3): written stable and byte-identical for the same
 //! inputs, and read back for baselines and `diff`.
 
-use std::path::Path;
+use std::io::{self, Write};
+use std::path::{Path, PathBuf};
 
 use serde::Deserialize;
 use serde_json::Value;
@@ -9,6 +10,7 @@ use serde_json::value::RawValue;
 use sha2::{Digest, Sha256};
 
 use super::records::{ClearanceRecord, Hits, ProbeResult, Summary, Verdict};
+use crate::atomic::{AtomicFile, Spill};
 use crate::error::{InputError, check_header};
 use crate::probe::{ProbeKind, ProbeSet, probe_set_to_json};
 
@@ -54,34 +56,112 @@ impl ResultsFile {
         }
     }
 
-    /// The file's text: stable JSON, no timestamps. Written result by result, so no value tree of
-    /// the whole run is ever built.
+    /// The file's text: stable JSON, no timestamps (the same layout [`ResultsWriter`] streams).
     pub fn to_json(&self) -> String {
-        use crate::json_text::{to_pretty, write_pretty};
-        let head = serde_json::json!({
-            "plumbline": self.plumbline, "version": self.version, "probes": self.probes, "level": self.level,
-            "level_digest": self.level_digest, "probes_digest": self.probes_digest, "summary": self.summary,
-            "results": [],
-        });
-        let head = to_pretty(&head);
-        // The head ends with `"results": []\n}\n`; open the array there and write each result into it.
-        let mut out = head[..head.len() - "[]\n}\n".len()].to_string();
-        if self.results.is_empty() {
-            out.push_str("[]\n}\n");
-            return out;
-        }
-        out.push_str("[\n");
+        let mut out = head_text(&self.head(), &self.summary, self.results.len());
         for (k, result) in self.results.iter().enumerate() {
-            out.push_str("    ");
-            write_pretty(&result.to_json(), 2, &mut out);
-            out.push_str(if k + 1 < self.results.len() {
-                ",\n"
-            } else {
-                "\n"
-            });
+            entry_text(result, k + 1 == self.results.len(), &mut out);
         }
-        out.push_str("  ]\n}\n");
+        out.push_str(tail_text(self.results.len()));
         out
+    }
+
+    /// What the file says about the run, apart from its results.
+    pub fn head(&self) -> ResultsHead {
+        ResultsHead {
+            probes: self.probes.clone(),
+            level: self.level.clone(),
+            level_digest: self.level_digest.clone(),
+            probes_digest: self.probes_digest.clone(),
+        }
+    }
+}
+
+/// What a results file says about its run: the inputs as named, and their digests.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct ResultsHead {
+    /// The probe set, as named on the command line.
+    pub probes: String,
+    /// The level, as named on the command line or in the probe set.
+    pub level: String,
+    /// Digest of the level geometry as loaded.
+    pub level_digest: String,
+    /// Digest of the probe set's content.
+    pub probes_digest: String,
+}
+
+/// The file up to its first result: the head, the summary, and the opening of the results array.
+fn head_text(head: &ResultsHead, summary: &Summary, count: usize) -> String {
+    use crate::json_text::to_pretty;
+    let value = serde_json::json!({
+        "plumbline": "results", "version": 1, "probes": head.probes, "level": head.level,
+        "level_digest": head.level_digest, "probes_digest": head.probes_digest,
+        "summary": summary, "results": [],
+    });
+    let text = to_pretty(&value);
+    // The text ends with `"results": []\n}\n`: open the array there instead.
+    let mut out = text[..text.len() - "[]\n}\n".len()].to_string();
+    out.push_str(if count == 0 { "[]" } else { "[\n" });
+    out
+}
+
+/// One result as an element of the results array.
+fn entry_text(result: &ProbeResult, last: bool, out: &mut String) {
+    out.push_str("    ");
+    crate::json_text::write_pretty(&result.to_json(), 2, out);
+    out.push_str(if last { "\n" } else { ",\n" });
+}
+
+/// The end of the file after the last result.
+fn tail_text(count: usize) -> &'static str {
+    if count == 0 { "\n}\n" } else { "  ]\n}\n" }
+}
+
+/// Writes a results file result by result, as a check answers its probes, so that a run of a
+/// million probes never holds its whole results in memory: the results go to a scratch file beside
+/// the output, and [`ResultsWriter::finish`] writes the head with the summary, then copies them in.
+/// Byte for byte what [`ResultsFile::to_json`] gives for the same run.
+pub struct ResultsWriter {
+    path: PathBuf,
+    body: Spill,
+    written: usize,
+    total: usize,
+    entry: String,
+}
+
+impl ResultsWriter {
+    /// Starts writing `path` for a run of `total` probes.
+    pub fn create(path: &Path, total: usize) -> io::Result<ResultsWriter> {
+        Ok(ResultsWriter {
+            path: path.to_path_buf(),
+            body: Spill::beside(path)?,
+            written: 0,
+            total,
+            entry: String::new(),
+        })
+    }
+
+    /// Adds the next result, in probe order.
+    pub fn push(&mut self, result: &ProbeResult) -> io::Result<()> {
+        self.written += 1;
+        self.entry.clear();
+        entry_text(result, self.written == self.total, &mut self.entry);
+        self.body.write_all(self.entry.as_bytes())
+    }
+
+    /// Writes the file atomically: head and summary, then every result pushed.
+    pub fn finish(self, head: &ResultsHead, summary: &Summary) -> io::Result<()> {
+        if self.written != self.total {
+            return Err(io::Error::other(format!(
+                "{} of {} results were written",
+                self.written, self.total
+            )));
+        }
+        let mut file = AtomicFile::create(&self.path)?;
+        file.write_all(head_text(head, summary, self.total).as_bytes())?;
+        self.body.copy_into(&mut file)?;
+        file.write_all(tail_text(self.total).as_bytes())?;
+        file.commit()
     }
 }
 

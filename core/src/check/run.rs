@@ -1,4 +1,5 @@
-//! Running a whole probe set: every probe answered in parallel, results in probe-set order.
+//! Running probes: each answered on a pool of worker threads, the results in probe order whatever
+//! the thread count.
 
 use rayon::prelude::*;
 
@@ -7,6 +8,46 @@ use super::records::ProbeResult;
 use crate::error::Error;
 use crate::probe::Probe;
 use crate::query::World;
+
+/// A pool of worker threads that answers probes.
+pub struct Runner {
+    pool: rayon::ThreadPool,
+}
+
+impl Runner {
+    /// A pool of `jobs` threads (all cores when `None`).
+    pub fn new(jobs: Option<usize>) -> Result<Runner, Error> {
+        let mut builder = rayon::ThreadPoolBuilder::new();
+        if let Some(n) = jobs {
+            builder = builder.num_threads(n.max(1));
+        }
+        Ok(Runner {
+            pool: builder.build()?,
+        })
+    }
+
+    /// Answers `probes` in parallel; the results are in probe order. `progress` is told each time a
+    /// probe is done (with how many are done, counting `done_before`), from any thread.
+    pub fn answer(
+        &self,
+        world: &World,
+        probes: &[Probe],
+        done_before: usize,
+        progress: &(dyn Fn(usize) + Sync),
+    ) -> Vec<ProbeResult> {
+        let done = std::sync::atomic::AtomicUsize::new(done_before);
+        self.pool.install(|| {
+            probes
+                .par_iter()
+                .map(|probe| {
+                    let result = answer_probe(world, probe);
+                    progress(done.fetch_add(1, std::sync::atomic::Ordering::Relaxed) + 1);
+                    result
+                })
+                .collect()
+        })
+    }
+}
 
 /// Answers every probe on `jobs` threads (all cores when `None`). `progress` is called with the number
 /// of probes finished so far, from any thread. The results are in probe order and do not depend on
@@ -17,20 +58,5 @@ pub fn run_probes(
     jobs: Option<usize>,
     progress: &(dyn Fn(usize) + Sync),
 ) -> Result<Vec<ProbeResult>, Error> {
-    let mut builder = rayon::ThreadPoolBuilder::new();
-    if let Some(n) = jobs {
-        builder = builder.num_threads(n.max(1));
-    }
-    let pool = builder.build()?;
-    let done = std::sync::atomic::AtomicUsize::new(0);
-    Ok(pool.install(|| {
-        probes
-            .par_iter()
-            .map(|probe| {
-                let result = answer_probe(world, probe);
-                progress(done.fetch_add(1, std::sync::atomic::Ordering::Relaxed) + 1);
-                result
-            })
-            .collect()
-    }))
+    Ok(Runner::new(jobs)?.answer(world, probes, 0, progress))
 }

@@ -1,6 +1,6 @@
 //! The level file (`*.level.json`, SPEC §1): objects composed from mesh files and primitives.
 
-use std::collections::HashSet;
+use std::collections::{HashMap, HashSet};
 use std::path::{Path, PathBuf};
 
 use glam::{DQuat, DVec3};
@@ -9,11 +9,11 @@ use serde::Deserialize;
 use super::glob::glob_matches;
 use super::load_mesh_file;
 use super::mesh::build_mesh;
-use super::model::{Geometry, Level, LevelObject};
+use super::model::{Geometry, Level, LevelObject, MeshOrigin};
 use super::shape::ShapeSpec;
 use super::transform::Transform;
 use crate::error::{Diagnostic, InputError, Warning, check_header};
-use crate::input::read_input;
+use crate::input::{MAX_TRIANGLES, PathPolicy, check_name, one_line, read_input, resolve_named};
 
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -29,8 +29,11 @@ struct LevelFile {
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
 struct TagRule {
+    /// A glob over object names.
     #[serde(rename = "match")]
-    pattern: String,
+    pattern: Option<String>,
+    /// A glob over material names: the tags go to those faces.
+    material: Option<String>,
     tags: Vec<String>,
 }
 
@@ -54,9 +57,11 @@ enum Scale {
     PerAxis([f64; 3]),
 }
 
-/// Loads a level file and every mesh file it refers to.
+/// Loads a level file and every mesh file it refers to (each mesh file read once however many
+/// objects use it), adding every file read to `files`.
 pub fn load_level_file(
     path: &Path,
+    policy: PathPolicy,
     files: &mut Vec<PathBuf>,
 ) -> Result<(Level, Vec<Diagnostic>), InputError> {
     let text = read_input(path)?;
@@ -66,38 +71,59 @@ pub fn load_level_file(
     let file: LevelFile = serde_json::from_str(text).map_err(|e| InputError::json(path, &e))?;
     check_header(path, &file.plumbline, file.version, "level", "a level")?;
     let up = parse_up(path, file.up)?;
-    let folder = path.parent().unwrap_or(Path::new(""));
+    check_tag_rules(path, &file.tag_rules)?;
     let mut diagnostics = Vec::new();
     let mut objects = Vec::new();
+    let mut mesh_files: HashMap<PathBuf, Vec<LevelObject>> = HashMap::new();
+    let mut triangles = 0usize;
     let mut names = HashSet::new();
     for (k, spec) in file.objects.iter().enumerate() {
-        let place = format!("objects[{k}] \"{}\"", spec.name);
+        let place = format!("objects[{k}] \"{}\"", one_line(&spec.name));
         let fail = |message: String| InputError::at(path, place.clone(), message);
         if spec.name.is_empty() {
             return Err(fail("an object needs a non-empty name".into()));
         }
-        if !names.insert(spec.name.clone()) {
+        check_name("the object's name", &spec.name).map_err(fail)?;
+        if !names.insert(spec.name.as_str()) {
             return Err(fail("another object already has this name".into()));
+        }
+        for tag in &spec.tags {
+            check_name("a tag", tag).map_err(fail)?;
         }
         let transform = parse_transform(spec).map_err(fail)?;
         match (&spec.mesh, &spec.shape) {
             (Some(mesh), None) => {
-                let mesh_path = folder.join(mesh);
-                if !mesh_path.is_file() {
+                let mesh_path = resolve_named(path, mesh, policy)
+                    .map_err(|m| fail(format!("mesh file: {m}")))?;
+                if std::fs::metadata(&mesh_path).is_err() {
                     return Err(fail(format!(
-                        "mesh file \"{mesh}\" cannot be read: no such file"
+                        "mesh file \"{}\" cannot be read: no such file",
+                        one_line(mesh)
                     )));
                 }
-                let (inner, inner_diagnostics) = load_mesh_file(&mesh_path, files)?;
-                diagnostics.extend(inner_diagnostics);
+                if !mesh_files.contains_key(&mesh_path) {
+                    let (inner, inner_diagnostics) = load_mesh_file(&mesh_path, policy, files)?;
+                    diagnostics.extend(inner_diagnostics);
+                    mesh_files.insert(mesh_path.clone(), inner);
+                }
                 let matrix = transform.matrix();
-                for object in inner {
+                for object in &mesh_files[&mesh_path] {
                     let Geometry::Mesh(m) = &object.geometry else {
                         continue;
                     };
-                    let triangles: Vec<[u64; 3]> =
+                    triangles += m.triangles.len();
+                    if triangles > MAX_TRIANGLES {
+                        return Err(fail(format!(
+                            "the level holds more than {MAX_TRIANGLES} triangles"
+                        )));
+                    }
+                    let corners: Vec<[u64; 3]> =
                         m.triangles.iter().map(|t| t.map(u64::from)).collect();
-                    let built = build_mesh(&m.vertices, &triangles, &matrix)
+                    let origin = MeshOrigin {
+                        file: Some(mesh.as_str().into()),
+                        ..m.origin.clone()
+                    };
+                    let built = build_mesh(&m.vertices, &corners, &matrix, origin)
                         .map_err(|f| fail(format!("{}: {}", f.place(), f.message())))?;
                     let name = format!("{}/{}", spec.name, object.name);
                     if built.degenerate_dropped > 0 {
@@ -114,6 +140,14 @@ pub fn load_level_file(
                 let (geometry, dropped) = shape
                     .level_geometry(&transform)
                     .map_err(|m| fail(format!("shape: {m}")))?;
+                if let Geometry::Mesh(m) = &geometry {
+                    triangles += m.triangles.len();
+                    if triangles > MAX_TRIANGLES {
+                        return Err(fail(format!(
+                            "the level holds more than {MAX_TRIANGLES} triangles"
+                        )));
+                    }
+                }
                 if dropped > 0 {
                     diagnostics.push(degenerate_warning(path, &spec.name, dropped));
                 }
@@ -130,9 +164,45 @@ pub fn load_level_file(
             }
         }
     }
+    check_unique_names(path, &objects)?;
     apply_tag_rules(&file.tag_rules, &mut objects);
     drop_empty_objects(path, &mut objects, &mut diagnostics);
     Ok((Level { up, objects }, diagnostics))
+}
+
+/// Every object name must be unique, including the `<object>/<inner>` names of objects inside mesh
+/// files (an object `shed/a` beside a mesh object `shed` holding `a` would give two).
+fn check_unique_names(path: &Path, objects: &[LevelObject]) -> Result<(), InputError> {
+    let mut seen = HashSet::new();
+    for object in objects {
+        if !seen.insert(object.name.as_str()) {
+            return Err(InputError::at(
+                path,
+                format!("object \"{}\"", one_line(&object.name)),
+                "two objects have this name (object names, including those of objects inside \
+                 mesh files, must be unique)",
+            ));
+        }
+    }
+    Ok(())
+}
+
+/// A tag rule names objects (`match`), materials (`material`), or both.
+fn check_tag_rules(path: &Path, rules: &[TagRule]) -> Result<(), InputError> {
+    for (k, rule) in rules.iter().enumerate() {
+        let place = format!("tag_rules[{k}]");
+        if rule.pattern.is_none() && rule.material.is_none() {
+            return Err(InputError::at(
+                path,
+                place,
+                "a tag rule needs \"match\" (object names), \"material\" (material names) or both",
+            ));
+        }
+        for tag in &rule.tags {
+            check_name("a tag", tag).map_err(|m| InputError::at(path, place.clone(), m))?;
+        }
+    }
+    Ok(())
 }
 
 fn parse_up(path: &Path, up: Option<[f64; 3]>) -> Result<DVec3, InputError> {
@@ -187,13 +257,26 @@ fn merged_tags(own: &[String], inner: &[String]) -> Vec<String> {
     tags
 }
 
+/// Adds each rule's tags to the objects whose names match it, or, for a rule with `material`, to the
+/// matching materials of those objects (every object when the rule has no `match`).
 fn apply_tag_rules(rules: &[TagRule], objects: &mut [LevelObject]) {
     for object in objects {
-        for rule in rules
-            .iter()
-            .filter(|r| glob_matches(&r.pattern, &object.name))
-        {
-            object.tags = merged_tags(&object.tags, &rule.tags);
+        for rule in rules.iter().filter(|r| {
+            r.pattern
+                .as_ref()
+                .is_none_or(|p| glob_matches(p, &object.name))
+        }) {
+            match (&rule.material, &mut object.geometry) {
+                (None, _) => object.tags = merged_tags(&object.tags, &rule.tags),
+                (Some(pattern), Geometry::Mesh(mesh)) => {
+                    for run in &mut mesh.origin.materials {
+                        if glob_matches(pattern, &run.name) {
+                            run.tags = merged_tags(&run.tags, &rule.tags);
+                        }
+                    }
+                }
+                (Some(_), Geometry::Primitive { .. }) => {}
+            }
         }
     }
 }

@@ -2,7 +2,7 @@
 
 use glam::{DMat4, DVec3};
 
-use super::model::Mesh;
+use super::model::{Mesh, MeshOrigin};
 use super::transform::{apply, mirrors};
 
 /// Relative area below which a triangle counts as degenerate: its doubled area is at most this
@@ -66,11 +66,14 @@ pub struct BuiltMesh {
 }
 
 /// Validates raw vertices and triangles, transforms them by `matrix` (flipping the winding where it
-/// mirrors space) and drops degenerate triangles.
+/// mirrors space) and drops degenerate triangles. `origin` says where the triangles come from (its
+/// `numbers`, when not empty, number the given triangles); the built mesh's origin numbers the
+/// triangles it keeps.
 pub fn build_mesh(
     vertices: &[DVec3],
     triangles: &[[u64; 3]],
     matrix: &DMat4,
+    origin: MeshOrigin,
 ) -> Result<BuiltMesh, MeshFault> {
     if let Some(bad) = vertices.iter().position(|v| !v.is_finite()) {
         return Err(MeshFault::NonFiniteVertex(bad));
@@ -90,22 +93,38 @@ pub fn build_mesh(
     }
     let flip = mirrors(matrix);
     let mut kept = Vec::with_capacity(triangles.len());
-    for tri in triangles {
+    let mut numbers = Vec::new();
+    for (k, tri) in triangles.iter().enumerate() {
         let [a, b, c] = tri.map(|i| i as u32);
         let tri = if flip { [a, c, b] } else { [a, b, c] };
-        if !is_degenerate(
+        if is_degenerate(
             placed[tri[0] as usize],
             placed[tri[1] as usize],
             placed[tri[2] as usize],
         ) {
+            // At the first dropped triangle, the numbers of those kept so far are written down; every
+            // triangle kept after it needs its own.
+            if kept.len() == k {
+                numbers.extend((0..k as u32).map(|j| origin.number(j)));
+            }
+        } else {
+            if kept.len() < k {
+                numbers.push(origin.number(k as u32));
+            }
             kept.push(tri);
         }
     }
     let degenerate_dropped = triangles.len() - kept.len();
+    let numbers = if degenerate_dropped == 0 {
+        origin.numbers
+    } else {
+        numbers
+    };
     Ok(BuiltMesh {
         mesh: Mesh {
             vertices: placed,
             triangles: kept,
+            origin: MeshOrigin { numbers, ..origin },
         },
         degenerate_dropped,
     })

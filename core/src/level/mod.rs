@@ -20,12 +20,15 @@ use std::path::{Path, PathBuf};
 pub use digest::level_digest;
 pub use glob::glob_matches;
 pub use mesh::{DEGENERATE_RELATIVE_AREA, MeshFault, is_degenerate};
-pub use model::{Geometry, Level, LevelObject, Mesh, Primitive};
+pub use model::{
+    FaceLayout, FacePlace, Geometry, Level, LevelObject, MaterialRun, Mesh, MeshOrigin, ObjFace,
+    Primitive,
+};
 pub use shape::{ShapeError, ShapeSpec};
 pub use transform::Transform;
 
 use crate::error::{Diagnostic, InputError};
-use crate::input::read_input;
+use crate::input::{PathPolicy, read_input};
 
 /// The largest coordinate, in metres, a level or probe may use: 10,000 km. Beyond it f64 keeps too
 /// few digits below the millimetre, and parry's iterative queries can fail outright. Ours.
@@ -50,13 +53,14 @@ pub struct LoadedLevel {
     pub files: Vec<PathBuf>,
 }
 
-/// Loads a level from a level file (`.json`), a glTF 2.0 file (`.gltf`, `.glb`) or an OBJ file.
-pub fn load_level(path: &Path) -> Result<LoadedLevel, InputError> {
+/// Loads a level from a level file (`.json`), a glTF 2.0 file (`.gltf`, `.glb`) or an OBJ file;
+/// paths named inside it are resolved under `policy`.
+pub fn load_level(path: &Path, policy: PathPolicy) -> Result<LoadedLevel, InputError> {
     let mut files = Vec::new();
     let (level, diagnostics) = match extension(path).as_str() {
-        "json" => level_file::load_level_file(path, &mut files)?,
+        "json" => level_file::load_level_file(path, policy, &mut files)?,
         "gltf" | "glb" | "obj" => {
-            let (objects, mut diagnostics) = load_mesh_file(path, &mut files)?;
+            let (objects, mut diagnostics) = load_mesh_file(path, policy, &mut files)?;
             let mut level = Level {
                 up: glam::DVec3::Y,
                 objects,
@@ -82,17 +86,14 @@ pub fn load_level(path: &Path) -> Result<LoadedLevel, InputError> {
 /// `files`.
 pub(crate) fn load_mesh_file(
     path: &Path,
+    policy: PathPolicy,
     files: &mut Vec<PathBuf>,
 ) -> Result<(Vec<LevelObject>, Vec<Diagnostic>), InputError> {
     let bytes = read_input(path)?;
     files.push(path.to_path_buf());
     match extension(path).as_str() {
-        "gltf" | "glb" => gltf::load_gltf(path, &bytes, files),
-        "obj" => {
-            let text = std::str::from_utf8(&bytes)
-                .map_err(|e| InputError::file(path, format!("not UTF-8 text: {e}")))?;
-            obj::load_obj(path, text)
-        }
+        "gltf" | "glb" => gltf::load_gltf(path, &bytes, policy, files),
+        "obj" => obj::load_obj(path, &bytes),
         _ => Err(InputError::file(
             path,
             "not a mesh file: expected .gltf, .glb or .obj",

@@ -1,5 +1,7 @@
 //! The loaded level: named, tagged objects whose geometry is in level (world) coordinates.
 
+use std::sync::Arc;
+
 use glam::{DQuat, DVec3};
 
 /// A level as loaded: every object with its geometry in level coordinates, and the up axis.
@@ -45,6 +47,145 @@ pub struct Mesh {
     pub vertices: Vec<DVec3>,
     /// Counter-clockwise triangles (seen from the front) as vertex indices.
     pub triangles: Vec<[u32; 3]>,
+    /// Where the triangles come from in the user's file, and their materials.
+    pub origin: MeshOrigin,
+}
+
+/// Where a mesh's triangles come from in the user's file. Triangles are numbered as the file gives
+/// them — per object, counting polygons' fan triangles and the degenerate triangles that were dropped
+/// — so that a number found in a hit is the same face in the user's modelling tool.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct MeshOrigin {
+    /// The mesh file, as named by the level (none for triangles written in a level file).
+    pub file: Option<Arc<str>>,
+    /// For each kept triangle, its number; empty when none was dropped (triangle `k` is number `k`).
+    pub numbers: Vec<u32>,
+    /// How numbers map to the file's own faces and primitives.
+    pub layout: FaceLayout,
+    /// Material runs, ascending by first number; empty when the file names no material.
+    pub materials: Vec<MaterialRun>,
+}
+
+/// How a mesh's triangle numbers map to places in its file.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub enum FaceLayout {
+    /// The numbers are the places: a level file's `triangles` list, a heightfield's cells (two
+    /// triangles each, row by row), generated meshes.
+    #[default]
+    Listed,
+    /// An OBJ group: its faces in file order.
+    Obj(Vec<ObjFace>),
+    /// A glTF mesh instance: its primitives in order.
+    Gltf {
+        /// The mesh's index in the file.
+        mesh: u32,
+        /// For each primitive with triangles: (its first triangle number, its index in the mesh).
+        primitives: Vec<(u32, u32)>,
+    },
+}
+
+/// One face (`f` statement) of an OBJ group.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct ObjFace {
+    /// The number of its first triangle (a polygon of n corners gives n − 2, as a fan).
+    pub first_triangle: u32,
+    /// Its line in the file (1-based).
+    pub line: u32,
+    /// Its ordinal among all faces of the file (0-based).
+    pub file_face: u32,
+}
+
+/// The triangles from `first` on (up to the next run) have this material.
+#[derive(Debug, Clone, PartialEq)]
+pub struct MaterialRun {
+    /// The first triangle number of the run.
+    pub first: u32,
+    /// The material's name (`usemtl` in OBJ; the material's name, or `material#i`, in glTF).
+    pub name: Arc<str>,
+    /// Tags the level's tag rules give this material, sorted.
+    pub tags: Vec<String>,
+}
+
+/// Where one triangle of a mesh is in the user's file.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum FacePlace {
+    /// Triangle `number` of a list (see [`FaceLayout::Listed`]).
+    Listed,
+    /// An OBJ face.
+    Obj {
+        /// Its line in the file.
+        line: u32,
+        /// Its ordinal among the file's faces (0-based).
+        face: u32,
+        /// Its ordinal among its group's faces (0-based).
+        group_face: u32,
+        /// Which triangle of the polygon's fan (0 for a triangle).
+        fan: u32,
+    },
+    /// A triangle of a glTF primitive.
+    Gltf {
+        /// The mesh's index.
+        mesh: u32,
+        /// The primitive's index within the mesh.
+        primitive: u32,
+        /// The triangle's index within the primitive (strips and fans counted as glTF orders them).
+        triangle: u32,
+    },
+}
+
+impl MeshOrigin {
+    /// The file's number of kept triangle `k`.
+    pub fn number(&self, k: u32) -> u32 {
+        self.numbers.get(k as usize).copied().unwrap_or(k)
+    }
+
+    /// The kept triangle with file number `number`, if it was kept.
+    pub fn kept(&self, number: u32) -> Option<u32> {
+        if self.numbers.is_empty() {
+            return Some(number);
+        }
+        self.numbers.binary_search(&number).ok().map(|k| k as u32)
+    }
+
+    /// Where triangle number `number` is in the file.
+    pub fn place(&self, number: u32) -> FacePlace {
+        match &self.layout {
+            FaceLayout::Listed => FacePlace::Listed,
+            FaceLayout::Obj(faces) => {
+                let k = faces
+                    .partition_point(|f| f.first_triangle <= number)
+                    .saturating_sub(1);
+                let face = faces.get(k).copied().unwrap_or(ObjFace {
+                    first_triangle: 0,
+                    line: 0,
+                    file_face: 0,
+                });
+                FacePlace::Obj {
+                    line: face.line,
+                    face: face.file_face,
+                    group_face: k as u32,
+                    fan: number - face.first_triangle.min(number),
+                }
+            }
+            FaceLayout::Gltf { mesh, primitives } => {
+                let k = primitives
+                    .partition_point(|(first, _)| *first <= number)
+                    .saturating_sub(1);
+                let (first, primitive) = primitives.get(k).copied().unwrap_or((0, 0));
+                FacePlace::Gltf {
+                    mesh: *mesh,
+                    primitive,
+                    triangle: number - first.min(number),
+                }
+            }
+        }
+    }
+
+    /// The material run of triangle number `number`, if the file names materials.
+    pub fn material(&self, number: u32) -> Option<&MaterialRun> {
+        let k = self.materials.partition_point(|m| m.first <= number);
+        k.checked_sub(1).map(|k| &self.materials[k])
+    }
 }
 
 /// Convex primitive shapes, in their local frame (axis along local Y for capsule and cylinder).

@@ -5,14 +5,15 @@ use serde::{Deserialize, Serialize};
 
 use super::MAX_SIZE;
 use super::mesh::{BuiltMesh, MeshFault, build_mesh};
-use super::model::{Geometry, Primitive};
+use super::model::{Geometry, MeshOrigin, Primitive};
 use super::transform::Transform;
+use crate::input::number;
 
 /// What is wrong with a shape as written in a level file or a probe set.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
 pub enum ShapeError {
     /// A size that must be positive is not (or is beyond [`MAX_SIZE`]).
-    #[error("{field} must be a positive number of metres up to {MAX_SIZE:e}, not {value}")]
+    #[error("{field} must be a positive number of metres up to {MAX_SIZE:e}, not {}", number(*.value))]
     NotPositive {
         /// The field.
         field: &'static str,
@@ -20,11 +21,22 @@ pub enum ShapeError {
         value: f64,
     },
     /// A size that must not be negative is (or is beyond [`MAX_SIZE`]).
-    #[error("{field} must be zero or a positive number of metres up to {MAX_SIZE:e}, not {value}")]
+    #[error(
+        "{field} must be zero or a positive number of metres up to {MAX_SIZE:e}, not {}",
+        number(*.value)
+    )]
     Negative {
         /// The field.
         field: &'static str,
         /// Its value.
+        value: f64,
+    },
+    /// A size that is too large once the object's scale is applied.
+    #[error("{field} is {} m once scaled; at most {MAX_SIZE:e} m is allowed", number(*.value))]
+    ScaledTooLarge {
+        /// The field.
+        field: &'static str,
+        /// Its scaled value.
         value: f64,
     },
     /// A convex shape's point is not finite or too far from the centre.
@@ -50,7 +62,12 @@ pub enum ShapeError {
     #[error("rotation must be a unit quaternion [x, y, z, w]")]
     Rotation,
     /// A scale that is zero or not finite along some axis.
-    #[error("scale must be finite and non-zero, not {0:?}")]
+    #[error(
+        "scale must be finite and non-zero, not [{}, {}, {}]",
+        number(.0[0]),
+        number(.0[1]),
+        number(.0[2])
+    )]
     Scale([f64; 3]),
     /// A sphere given a scale that is not uniform.
     #[error("a sphere can only take a uniform scale")]
@@ -242,7 +259,13 @@ fn mesh_geometry(
     let BuiltMesh {
         mesh,
         degenerate_dropped,
-    } = build_mesh(vertices, triangles, &transform.matrix()).map_err(ShapeError::Mesh)?;
+    } = build_mesh(
+        vertices,
+        triangles,
+        &transform.matrix(),
+        MeshOrigin::default(),
+    )
+    .map_err(ShapeError::Mesh)?;
     Ok((Geometry::Mesh(mesh), degenerate_dropped))
 }
 
@@ -341,6 +364,34 @@ fn scale_primitive(primitive: Primitive, scale: DVec3) -> Result<Primitive, Shap
             points: points.iter().map(|p| *p * scale).collect(),
         },
     })
+    .and_then(within_size)
+}
+
+/// A scaled primitive must still be within [`MAX_SIZE`] (beyond it parry's iterative queries fail).
+fn within_size(primitive: Primitive) -> Result<Primitive, ShapeError> {
+    let too_large = |field: &'static str, value: f64| {
+        (value.is_nan() || value > MAX_SIZE).then_some(ShapeError::ScaledTooLarge { field, value })
+    };
+    let fault = match &primitive {
+        Primitive::Sphere { radius } => too_large("radius", *radius),
+        Primitive::Box { half_extents } => too_large("half_extents", half_extents.max_element()),
+        Primitive::Capsule {
+            radius,
+            half_height,
+        }
+        | Primitive::Cylinder {
+            radius,
+            half_height,
+        } => too_large("radius", *radius).or(too_large("half_height", *half_height)),
+        Primitive::Convex { points } => too_large(
+            "points",
+            points
+                .iter()
+                .map(|p| p.abs().max_element())
+                .fold(0.0, f64::max),
+        ),
+    };
+    fault.map_or(Ok(primitive), Err)
 }
 
 /// The vertices and triangles of a height grid (rows along Z, columns along X, centred).

@@ -1,48 +1,74 @@
-//! JUnit XML: one test case per probe, so CI systems show probe failures like test failures.
+//! JUnit XML: one test case per probe, so CI systems show probe failures like test failures. Written
+//! as the check goes ([`JunitWriter`]): the test cases to a scratch file, then the counts the suite
+//! opens with, then the cases, so a run of any size holds none of them in memory.
 
-use crate::check::{ResultsFile, Verdict};
+use std::io::{self, Write};
+use std::path::{Path, PathBuf};
 
-/// The JUnit XML report of a run. Failing probes carry their reason as the failure message; probes
-/// without an expectation are reported as skipped; probes that could not be answered as errors.
-pub fn junit_xml(results: &ResultsFile, suite_name: &str) -> String {
-    let s = &results.summary;
-    let mut out = String::from("<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n");
-    out.push_str(&format!(
-        "<testsuites name=\"plumbline\" tests=\"{}\" failures=\"{}\" errors=\"{}\" skipped=\"{}\">\n",
-        s.probes, s.fail, s.error, s.unchecked
-    ));
-    out.push_str(&format!(
-        "  <testsuite name=\"{}\" tests=\"{}\" failures=\"{}\" errors=\"{}\" skipped=\"{}\">\n",
-        escape(suite_name),
-        s.probes,
-        s.fail,
-        s.error,
-        s.unchecked
-    ));
-    for r in &results.results {
+use crate::atomic::{AtomicFile, Spill};
+use crate::check::{ProbeResult, Summary, Verdict};
+
+/// Writes a JUnit XML report probe by probe. Failing probes carry their reason as the failure
+/// message; probes without an expectation are reported as skipped; probes that could not be
+/// answered as errors.
+pub struct JunitWriter {
+    path: PathBuf,
+    suite: String,
+    cases: Spill,
+}
+
+impl JunitWriter {
+    /// Starts the report at `path` for a suite named `suite` (the probe set's file name).
+    pub fn create(path: &Path, suite: &str) -> io::Result<JunitWriter> {
+        Ok(JunitWriter {
+            path: path.to_path_buf(),
+            suite: suite.to_string(),
+            cases: Spill::beside(path)?,
+        })
+    }
+
+    /// Adds the test case of the next result.
+    pub fn push(&mut self, r: &ProbeResult) -> io::Result<()> {
         let open = format!(
             "    <testcase name=\"{}\" classname=\"plumbline.{}\"",
             escape(&r.id),
             escape(r.kind.name())
         );
-        match r.verdict {
-            Verdict::Pass => out.push_str(&format!("{open}/>\n")),
-            Verdict::Fail => out.push_str(&format!(
+        let case = match r.verdict {
+            Verdict::Pass => format!("{open}/>\n"),
+            Verdict::Fail => format!(
                 "{open}>\n      <failure message=\"{0}\" type=\"expectation\">{0}</failure>\n    </testcase>\n",
                 escape(&r.reason)
-            )),
-            Verdict::Error => out.push_str(&format!(
+            ),
+            Verdict::Error => format!(
                 "{open}>\n      <error message=\"{0}\" type=\"unanswerable\">{0}</error>\n    </testcase>\n",
                 escape(&r.reason)
-            )),
-            Verdict::Unchecked => out.push_str(&format!(
+            ),
+            Verdict::Unchecked => format!(
                 "{open}>\n      <skipped message=\"no expectation: {}\"/>\n    </testcase>\n",
                 escape(&r.reason)
-            )),
-        }
+            ),
+        };
+        self.cases.write_all(case.as_bytes())
     }
-    out.push_str("  </testsuite>\n</testsuites>\n");
-    out
+
+    /// Writes the report atomically with the run's counts.
+    pub fn finish(self, s: &Summary) -> io::Result<()> {
+        let mut file = AtomicFile::create(&self.path)?;
+        let counts = format!(
+            "tests=\"{}\" failures=\"{}\" errors=\"{}\" skipped=\"{}\"",
+            s.probes, s.fail, s.error, s.unchecked
+        );
+        write!(
+            file,
+            "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n<testsuites name=\"plumbline\" {counts}>\n  \
+             <testsuite name=\"{}\" {counts}>\n",
+            escape(&self.suite)
+        )?;
+        self.cases.copy_into(&mut file)?;
+        file.write_all(b"  </testsuite>\n</testsuites>\n")?;
+        file.commit()
+    }
 }
 
 /// Escapes text for XML attributes and content; drops characters XML 1.0 cannot hold.

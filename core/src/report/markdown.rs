@@ -1,76 +1,103 @@
 //! A Markdown summary for a code-review comment: counts, then failing and changed probes in tables.
 
-use crate::check::{Comparison, ResultsFile, Verdict};
-use crate::probe::ProbeSet;
+use std::io::{self, Write};
+use std::path::{Path, PathBuf};
 
-/// The Markdown summary of a run, with what changed since the baseline when one was given.
-pub fn markdown_summary(
-    results: &ResultsFile,
-    set: &ProbeSet,
-    changes: Option<&Comparison>,
-) -> String {
-    let s = &results.summary;
-    let label = |id: &str| {
-        set.probes
-            .iter()
-            .find(|p| p.id == id)
-            .and_then(|p| p.label.clone())
-    };
-    let mut out = format!(
-        "### Plumbline check: {} of {} probes pass\n\n",
-        s.pass, s.probes
-    );
-    out.push_str(&format!(
-        "{} pass · {} fail · {} error · {} unchecked — level `{}`\n",
-        s.pass, s.fail, s.error, s.unchecked, results.level
-    ));
-    let bad: Vec<_> = results
-        .results
-        .iter()
-        .filter(|r| matches!(r.verdict, Verdict::Fail | Verdict::Error))
-        .collect();
-    if !bad.is_empty() {
-        out.push_str("\n#### Failing\n\n| Probe | Kind | Verdict | Reason |\n|---|---|---|---|\n");
-        for r in bad {
-            out.push_str(&format!(
-                "| {} | {} | {} | {} |\n",
-                probe_cell(&r.id, label(&r.id).as_deref()),
-                r.kind,
-                r.verdict.word(),
-                cell(&r.reason)
-            ));
-        }
+use crate::atomic::{AtomicFile, Spill};
+use crate::check::{Comparison, ProbeResult, Summary, Verdict};
+use crate::probe::Probe;
+
+/// Writes the Markdown summary probe by probe: failing rows go to a scratch file, and
+/// [`MarkdownWriter::finish`] writes the counts, the failing table and what changed since the
+/// baseline.
+pub struct MarkdownWriter {
+    path: PathBuf,
+    failing: Spill,
+    any_failing: bool,
+}
+
+impl MarkdownWriter {
+    /// Starts the summary at `path`.
+    pub fn create(path: &Path) -> io::Result<MarkdownWriter> {
+        Ok(MarkdownWriter {
+            path: path.to_path_buf(),
+            failing: Spill::beside(path)?,
+            any_failing: false,
+        })
     }
-    if let Some(c) = changes {
+
+    /// Adds the next result (a table row when it fails or errs).
+    pub fn push(&mut self, probe: &Probe, r: &ProbeResult) -> io::Result<()> {
+        if !matches!(r.verdict, Verdict::Fail | Verdict::Error) {
+            return Ok(());
+        }
+        self.any_failing = true;
+        writeln!(
+            self.failing,
+            "| {} | {} | {} | {} |",
+            probe_cell(&r.id, probe.label.as_deref()),
+            r.kind,
+            r.verdict.word(),
+            cell(&r.reason)
+        )
+    }
+
+    /// Writes the summary atomically. `labels` names the probes listed in `changes`.
+    pub fn finish(
+        self,
+        summary: &Summary,
+        level: &str,
+        changes: Option<&Comparison>,
+        labels: &dyn Fn(&str) -> Option<String>,
+    ) -> io::Result<()> {
+        let s = summary;
+        let mut file = AtomicFile::create(&self.path)?;
+        write!(
+            file,
+            "### Plumbline check: {} of {} probes pass\n\n{} pass · {} fail · {} error · {} \
+             unchecked — level `{}`\n",
+            s.pass, s.probes, s.pass, s.fail, s.error, s.unchecked, level
+        )?;
+        if self.any_failing {
+            file.write_all(
+                b"\n#### Failing\n\n| Probe | Kind | Verdict | Reason |\n|---|---|---|---|\n",
+            )?;
+            self.failing.copy_into(&mut file)?;
+        }
+        if let Some(c) = changes {
+            file.write_all(changes_text(c, labels).as_bytes())?;
+        }
+        file.commit()
+    }
+}
+
+/// The section on what changed since the baseline.
+fn changes_text(c: &Comparison, labels: &dyn Fn(&str) -> Option<String>) -> String {
+    let mut out = format!("\n#### Changed since the baseline ({})\n\n", c.count());
+    if c.level_differs {
+        out.push_str("The baseline was computed on different level geometry.\n\n");
+    }
+    if c.is_empty() {
+        out.push_str("Nothing changed.\n");
+        return out;
+    }
+    out.push_str("| Probe | What changed |\n|---|---|\n");
+    for p in &c.changed {
+        let what: Vec<String> = p.aspects.iter().map(|a| a.to_string()).collect();
         out.push_str(&format!(
-            "\n#### Changed since the baseline ({})\n\n",
-            c.count()
+            "| {} | {} |\n",
+            probe_cell(&p.id, labels(&p.id).as_deref()),
+            cell(&what.join("; "))
         ));
-        if c.level_differs {
-            out.push_str("The baseline was computed on different level geometry.\n\n");
-        }
-        if c.is_empty() {
-            out.push_str("Nothing changed.\n");
-        } else {
-            out.push_str("| Probe | What changed |\n|---|---|\n");
-            for p in &c.changed {
-                let what: Vec<String> = p.aspects.iter().map(|a| a.to_string()).collect();
-                out.push_str(&format!(
-                    "| {} | {} |\n",
-                    probe_cell(&p.id, label(&p.id).as_deref()),
-                    cell(&what.join("; "))
-                ));
-            }
-            for id in &c.added {
-                out.push_str(&format!(
-                    "| {} | new probe |\n",
-                    probe_cell(id, label(id).as_deref())
-                ));
-            }
-            for id in &c.removed {
-                out.push_str(&format!("| `{}` | removed |\n", cell(id)));
-            }
-        }
+    }
+    for id in &c.added {
+        out.push_str(&format!(
+            "| {} | new probe |\n",
+            probe_cell(id, labels(id).as_deref())
+        ));
+    }
+    for id in &c.removed {
+        out.push_str(&format!("| `{}` | removed |\n", cell(id)));
     }
     out
 }

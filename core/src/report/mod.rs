@@ -1,7 +1,8 @@
-//! Reports of a run for other tools and people: JUnit XML for CI systems, Markdown for code review.
+//! Reports for people and CI systems: JUnit XML and a Markdown summary, each written as the check
+//! goes, probe by probe.
 
 mod junit;
 mod markdown;
 
-pub use junit::junit_xml;
-pub use markdown::markdown_summary;
+pub use junit::JunitWriter;
+pub use markdown::MarkdownWriter;

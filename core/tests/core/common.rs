@@ -26,6 +26,7 @@ impl LevelBuilder {
             geometry: Geometry::Mesh(Mesh {
                 vertices,
                 triangles,
+                ..Mesh::default()
             }),
         });
         self

@@ -5,6 +5,7 @@ use std::path::Path;
 
 use plumbline_core::check::{ResultsFile, Verdict, probes_digest, run_probes};
 use plumbline_core::demo::{files, write_demo_scene};
+use plumbline_core::input::PathPolicy;
 use plumbline_core::level::{LoadedLevel, level_digest, load_level};
 use plumbline_core::probe::load_probe_set;
 use plumbline_core::query::World;
@@ -40,7 +41,7 @@ fn demo_levels_load_without_warnings_and_are_in_the_promised_size() {
             level,
             diagnostics: warnings,
             ..
-        } = load_level(&scenes().join(name)).unwrap();
+        } = load_level(&scenes().join(name), PathPolicy::default()).unwrap();
         assert!(warnings.is_empty(), "{name}: {warnings:?}");
         let triangles = level.triangle_count();
         assert!(
@@ -75,7 +76,8 @@ fn the_probe_set_gives_the_reviewed_baseline() {
         set.probes.iter().all(|p| p.label.is_some()),
         "every probe says what it checks"
     );
-    let LoadedLevel { level, .. } = load_level(&scenes().join(files::LEVEL)).unwrap();
+    let LoadedLevel { level, .. } =
+        load_level(&scenes().join(files::LEVEL), PathPolicy::default()).unwrap();
     let world = World::new(&level).unwrap();
     let results = run_probes(&world, &set.probes, Some(2), &|_| {}).unwrap();
     let failing: Vec<_> = results

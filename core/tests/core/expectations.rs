@@ -5,6 +5,7 @@ use std::path::PathBuf;
 
 use plumbline_core::check::{Verdict, answer_probe, expectation_from};
 use plumbline_core::demo::files;
+use plumbline_core::input::PathPolicy;
 use plumbline_core::level::{LoadedLevel, load_level};
 use plumbline_core::probe::load_probe_set;
 use plumbline_core::query::World;
@@ -14,7 +15,8 @@ fn an_expectation_taken_from_an_answer_passes_on_that_answer() {
     let scenes = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../scenes");
     let set = load_probe_set(&scenes.join(files::PROBES)).unwrap();
     for level in [files::LEVEL, files::EDITED_LEVEL] {
-        let LoadedLevel { level, .. } = load_level(&scenes.join(level)).unwrap();
+        let LoadedLevel { level, .. } =
+            load_level(&scenes.join(level), PathPolicy::default()).unwrap();
         let world = World::new(&level).unwrap();
         for probe in &set.probes {
             let result = answer_probe(&world, probe);

@@ -7,6 +7,7 @@ use std::path::{Path, PathBuf};
 
 use base64::Engine;
 use glam::DVec3;
+use plumbline_core::input::PathPolicy;
 use plumbline_core::level::{Geometry, Level, LoadedLevel, Primitive, level_digest, load_level};
 use plumbline_core::query::World;
 
@@ -139,7 +140,7 @@ fn gltf_with_embedded_buffer() {
         level,
         diagnostics: warnings,
         ..
-    } = load_level(&path).unwrap();
+    } = load_level(&path, PathPolicy::default()).unwrap();
     check_gltf_level(&level);
     assert_eq!(warnings.len(), 1, "{warnings:?}");
     assert!(
@@ -158,17 +159,17 @@ fn gltf_with_external_buffer_and_glb() {
         "yard.gltf",
         gltf_json(Some("yard%20data.bin"), "").as_bytes(),
     );
-    check_gltf_level(&load_level(&path).unwrap().level);
+    check_gltf_level(&load_level(&path, PathPolicy::default()).unwrap().level);
     let glb_path = write(
         dir.path(),
         "yard.glb",
         &glb(&gltf_json(None, ""), &buffer()),
     );
-    let LoadedLevel { level, .. } = load_level(&glb_path).unwrap();
+    let LoadedLevel { level, .. } = load_level(&glb_path, PathPolicy::default()).unwrap();
     check_gltf_level(&level);
     assert_eq!(
         level_digest(&level),
-        level_digest(&load_level(&path).unwrap().level)
+        level_digest(&load_level(&path, PathPolicy::default()).unwrap().level)
     );
 }
 
@@ -180,7 +181,7 @@ fn gltf_extras_tags_reach_objects() {
         r#"{"name": "roof", "mesh": 2, "extras": {"tags": ["glass", "glass", "prop"]}}"#,
     );
     let path = write(dir.path(), "t.glb", &glb(&json, &buffer()));
-    let LoadedLevel { level, .. } = load_level(&path).unwrap();
+    let LoadedLevel { level, .. } = load_level(&path, PathPolicy::default()).unwrap();
     assert_eq!(level.objects[2].tags, ["glass", "prop"]);
 }
 
@@ -193,7 +194,7 @@ fn obj_groups_negative_indices_and_polygons() {
         level,
         diagnostics: warnings,
         ..
-    } = load_level(&path).unwrap();
+    } = load_level(&path, PathPolicy::default()).unwrap();
     let names: Vec<&str> = level.objects.iter().map(|o| o.name.as_str()).collect();
     assert_eq!(names, ["crate", "ramp"]);
     assert_eq!(mesh(&level, "crate").triangles.len(), 3);
@@ -232,7 +233,7 @@ fn level_file_composes_meshes_primitives_transforms_and_tag_rules() {
         level,
         diagnostics: warnings,
         ..
-    } = load_level(&path).unwrap();
+    } = load_level(&path, PathPolicy::default()).unwrap();
     assert!(warnings.is_empty(), "{warnings:?}");
     assert_eq!(level.up, DVec3::Z);
     let names: Vec<&str> = level.objects.iter().map(|o| o.name.as_str()).collect();

@@ -1,30 +1,18 @@
-//! Reading and writing probe-set files (`*.probes.json`, SPEC §2). Unknown fields, wrong types and
-//! bad values are errors with the line and column of the probe or field at fault.
+//! One probe of a probe-set file, parsed from its own slice of the text so that every error carries
+//! the line and column of the probe or field at fault: unknown fields, wrong types, fields that do
+//! not apply to the kind, and bad values.
 
-use std::collections::HashSet;
 use std::path::Path;
 
 use glam::{DQuat, DVec3};
 use serde::Deserialize;
 use serde_json::value::RawValue;
-use serde_json::{Map, Value, json};
 
-use super::model::{
-    Conditions, Expect, ExpectWord, HitsMode, Probe, ProbeKind, ProbeQuery, ProbeSet,
-};
-use crate::error::{InputError, check_header};
+use super::model::{Conditions, Expect, ExpectWord, HitsMode, Probe, ProbeKind, ProbeQuery};
+use crate::error::InputError;
+use crate::input::{MAX_NAME_CHARS, check_name, number, one_line};
 use crate::level::ShapeSpec;
 use crate::query::{Filter, ProbeShape};
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawSet<'a> {
-    plumbline: String,
-    version: u32,
-    level: String,
-    #[serde(borrow)]
-    probes: Vec<&'a RawValue>,
-}
 
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -49,84 +37,46 @@ struct RawProbe<'a> {
     expect: Option<&'a RawValue>,
 }
 
-/// Reads and validates a probe-set file.
-pub fn load_probe_set(path: &Path) -> Result<ProbeSet, InputError> {
-    let bytes = crate::input::read_input(path)?;
-    let text = std::str::from_utf8(&bytes)
-        .map_err(|e| InputError::file(path, format!("not UTF-8 text: {e}")))?;
-    parse_probe_set(path, text)
-}
+/// The longest label, in characters (a sentence or two). Ours.
+const MAX_LABEL_CHARS: usize = 4 * MAX_NAME_CHARS;
 
-/// Parses and validates probe-set text; `path` is used in error messages.
-pub fn parse_probe_set(path: &Path, text: &str) -> Result<ProbeSet, InputError> {
-    let raw: RawSet = serde_json::from_str(text).map_err(|e| InputError::json(path, &e))?;
-    check_header(path, &raw.plumbline, raw.version, "probes", "a probe set")?;
-    let mut ids = HashSet::new();
-    let mut probes = Vec::with_capacity(raw.probes.len());
-    for item in &raw.probes {
-        let probe = parse_probe(path, text, item.get())?;
-        if !ids.insert(probe.id.clone()) {
-            return Err(InputError::at_fragment(
-                path,
-                text,
-                item.get(),
-                format!("probe id \"{}\" is used twice", probe.id),
-            ));
-        }
-        probes.push(probe);
+/// Labels, tags and object names within their limits.
+fn check_names(raw: &RawProbe) -> Result<(), String> {
+    if let Some(label) = &raw.label
+        && label.chars().count() > MAX_LABEL_CHARS
+    {
+        return Err(format!(
+            "the label is longer than {MAX_LABEL_CHARS} characters"
+        ));
     }
-    Ok(ProbeSet {
-        level: raw.level,
-        probes,
-    })
+    let names = [&raw.ignore_tags, &raw.only_tags, &raw.ignore_objects];
+    for name in names.into_iter().flatten().flatten() {
+        check_name("a tag or object name", name)?;
+    }
+    Ok(())
 }
 
-/// Checks one probe against every rule of the file format (by writing it as a file and reading it
-/// back, so editing in the window and loading from disk can never disagree). The error's message
-/// names the probe and what is wrong.
-pub fn validate_probe(probe: &Probe) -> Result<(), InputError> {
-    let set = ProbeSet {
-        level: "level".into(),
-        probes: vec![probe.clone()],
-    };
-    parse_probe_set(Path::new("probe"), &probe_set_to_json(&set)).map(|_| ())
-}
-
-/// Serialises a probe set in the file format, stable and ready to save.
-pub fn probe_set_to_json(set: &ProbeSet) -> String {
-    let probes: Vec<Value> = set.probes.iter().map(probe_to_value).collect();
-    let value =
-        json!({ "plumbline": "probes", "version": 1, "level": set.level, "probes": probes });
-    crate::json_text::to_pretty(&value)
-}
-
-fn parse_probe(path: &Path, text: &str, fragment: &str) -> Result<Probe, InputError> {
+/// Parses probe `fragment`, a slice of the file's `text`.
+pub(super) fn parse_probe(path: &Path, text: &str, fragment: &str) -> Result<Probe, InputError> {
     let raw: RawProbe = serde_json::from_str(fragment)
         .map_err(|e| InputError::json_in(path, text, fragment, &e))?;
-    let fail = |message: String| {
-        InputError::at_fragment(
-            path,
-            text,
-            fragment,
-            format!("probe \"{}\": {message}", raw.id),
-        )
-    };
+    let here = |message: String| InputError::at_fragment(path, text, fragment, message);
+    if let Err(m) = check_name("the probe's id", &raw.id) {
+        return Err(here(m));
+    }
     if raw.id.is_empty()
         || !raw
             .id
             .chars()
             .all(|c| c.is_ascii_alphanumeric() || matches!(c, '.' | '_' | '-'))
     {
-        return Err(InputError::at_fragment(
-            path,
-            text,
-            fragment,
-            format!(
-                "probe id \"{}\" must be letters, digits, '.', '_' or '-'",
-                raw.id
-            ),
-        ));
+        return Err(here(format!(
+            "probe id \"{}\" must be letters, digits, '.', '_' or '-'",
+            one_line(&raw.id)
+        )));
     }
+    let fail = |message: String| here(format!("probe \"{}\": {message}", raw.id));
+    check_names(&raw).map_err(fail)?;
     let query = parse_query(&raw).map_err(fail)?;
     let expect = match raw.expect {
         None => None,
@@ -221,7 +171,8 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
                 && !(d.is_finite() && d > 0.0)
             {
                 return Err(format!(
-                    "duration must be a positive number of seconds, not {d}"
+                    "duration must be a positive number of seconds, not {}",
+                    number(d)
                 ));
             }
             ProbeQuery::Sweep {
@@ -245,7 +196,8 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
                 && (0.0..=crate::level::MAX_COORDINATE).contains(&max_distance))
             {
                 return Err(format!(
-                    "max_distance must be zero or a positive number of metres, not {max_distance}"
+                    "max_distance must be zero or a positive number of metres, not {}",
+                    number(max_distance)
                 ));
             }
             ProbeQuery::Closest {
@@ -348,7 +300,8 @@ fn check_conditions(c: &Conditions, query: &ProbeQuery) -> Result<(), String> {
             Ok(())
         } else {
             Err(format!(
-                "expect.{field} must be zero or more metres, not {v}"
+                "expect.{field} must be zero or more metres, not {}",
+                number(v)
             ))
         }
     };
@@ -384,129 +337,4 @@ fn check_conditions(c: &Conditions, query: &ProbeQuery) -> Result<(), String> {
         metres("max_depth", v)?;
     }
     Ok(())
-}
-
-fn probe_to_value(p: &Probe) -> Value {
-    let mut m = Map::new();
-    m.insert("id".into(), json!(p.id));
-    if let Some(label) = &p.label {
-        m.insert("label".into(), json!(label));
-    }
-    m.insert("kind".into(), json!(p.query.kind().name()));
-    let vec3 = |v: DVec3| json!(v.to_array());
-    let quat = |q: &Option<DQuat>, m: &mut Map<String, Value>| {
-        if let Some(q) = q {
-            m.insert("rotation".into(), json!(q.to_array()));
-        }
-    };
-    let shape = |s: &ShapeSpec| serde_json::to_value(s).expect("shapes serialise");
-    match &p.query {
-        ProbeQuery::Ray { from, to, hits } => {
-            m.insert("from".into(), vec3(*from));
-            m.insert("to".into(), vec3(*to));
-            if let Some(h) = hits {
-                m.insert("hits".into(), json!(h));
-            }
-        }
-        ProbeQuery::Sweep {
-            shape: s,
-            rotation,
-            path,
-            hits,
-            duration,
-            clearance,
-        } => {
-            m.insert("shape".into(), shape(s));
-            quat(rotation, &mut m);
-            m.insert(
-                "path".into(),
-                json!(path.iter().map(|p| p.to_array()).collect::<Vec<_>>()),
-            );
-            if let Some(h) = hits {
-                m.insert("hits".into(), json!(h));
-            }
-            if let Some(d) = duration {
-                m.insert("duration".into(), json!(d));
-            }
-            if let Some(c) = clearance {
-                m.insert("clearance".into(), json!(c));
-            }
-        }
-        ProbeQuery::Closest {
-            shape: s,
-            at,
-            rotation,
-            max_distance,
-        } => {
-            m.insert("shape".into(), shape(s));
-            m.insert("at".into(), vec3(*at));
-            quat(rotation, &mut m);
-            m.insert("max_distance".into(), json!(max_distance));
-        }
-        ProbeQuery::Overlap {
-            shape: s,
-            at,
-            rotation,
-        } => {
-            m.insert("shape".into(), shape(s));
-            m.insert("at".into(), vec3(*at));
-            quat(rotation, &mut m);
-        }
-    }
-    if !p.filter.ignore_tags.is_empty() {
-        m.insert("ignore_tags".into(), json!(p.filter.ignore_tags));
-    }
-    if let Some(only) = &p.filter.only_tags {
-        m.insert("only_tags".into(), json!(only));
-    }
-    if !p.filter.ignore_objects.is_empty() {
-        m.insert("ignore_objects".into(), json!(p.filter.ignore_objects));
-    }
-    if let Some(e) = &p.expect {
-        m.insert(
-            "expect".into(),
-            serde_json::to_value(e).expect("expectations serialise"),
-        );
-    }
-    Value::Object(m)
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-    use crate::probe::ProbeQuery;
-    use glam::DVec3;
-
-    #[test]
-    fn an_edited_probe_is_held_to_the_file_format() {
-        let mut probe = Probe {
-            id: "gate".into(),
-            label: None,
-            filter: Filter::default(),
-            query: ProbeQuery::Ray {
-                from: DVec3::ZERO,
-                to: DVec3::X,
-                hits: None,
-            },
-            expect: None,
-        };
-        assert_eq!(validate_probe(&probe), Ok(()));
-        probe.id = "gate view".into();
-        assert!(
-            validate_probe(&probe)
-                .unwrap_err()
-                .message
-                .contains("letters, digits")
-        );
-        probe.id = "gate".into();
-        probe.query = ProbeQuery::Sweep {
-            shape: crate::level::ShapeSpec::Sphere { radius: 0.5 },
-            rotation: None,
-            path: vec![DVec3::ZERO],
-            hits: None,
-            duration: None,
-            clearance: None,
-        };
-        assert!(validate_probe(&probe).is_err(), "a path needs two points");
-    }
 }

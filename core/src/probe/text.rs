@@ -1,0 +1,210 @@
+//! A probe-set file (`*.probes.json`, SPEC §2) read and checked whole, its probes parsed again when
+//! they are needed, a chunk at a time: a check of a million probes never holds a million parsed
+//! probes (about 400 bytes each), only the file's text (about 150 bytes a probe) and where each
+//! probe lies in it.
+
+use std::collections::HashSet;
+use std::ops::Range;
+use std::path::{Path, PathBuf};
+
+use serde::Deserialize;
+use serde_json::value::RawValue;
+
+use super::model::{Probe, ProbeSet};
+use super::parse::parse_probe;
+use crate::error::{InputError, check_header};
+use crate::input::{MAX_PROBES, read_input};
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawSet<'a> {
+    plumbline: String,
+    version: u32,
+    level: String,
+    #[serde(borrow)]
+    probes: Vec<&'a RawValue>,
+}
+
+/// A checked probe-set file: every probe in it is valid and ids are unique.
+#[derive(Debug, Clone)]
+pub struct ProbeText {
+    path: PathBuf,
+    text: String,
+    level: String,
+    /// Where each probe lies in `text`, in file order.
+    spans: Vec<(usize, usize)>,
+    /// The length of the longest id, in characters.
+    longest_id: usize,
+}
+
+impl ProbeText {
+    /// Reads and checks a probe-set file.
+    pub fn read(path: &Path) -> Result<ProbeText, InputError> {
+        let bytes = read_input(path)?;
+        let text = String::from_utf8(bytes)
+            .map_err(|e| InputError::file(path, format!("not UTF-8 text: {}", e.utf8_error())))?;
+        ProbeText::parse(path, text)
+    }
+
+    /// Checks probe-set text; `path` is named in errors.
+    pub fn parse(path: &Path, text: String) -> Result<ProbeText, InputError> {
+        let (level, spans) = {
+            let raw: RawSet =
+                serde_json::from_str(&text).map_err(|e| InputError::json(path, &e))?;
+            check_header(path, &raw.plumbline, raw.version, "probes", "a probe set")?;
+            if raw.probes.len() > MAX_PROBES {
+                return Err(InputError::at(
+                    path,
+                    "field \"probes\"",
+                    format!("{} probes; at most {MAX_PROBES} are read", raw.probes.len()),
+                ));
+            }
+            let base = text.as_ptr() as usize;
+            let spans: Vec<(usize, usize)> = raw
+                .probes
+                .iter()
+                .map(|p| {
+                    let start = p.get().as_ptr() as usize - base;
+                    (start, start + p.get().len())
+                })
+                .collect();
+            (raw.level, spans)
+        };
+        let mut checked = ProbeText {
+            path: path.to_path_buf(),
+            text,
+            level,
+            spans,
+            longest_id: 0,
+        };
+        checked.longest_id = checked.check_every_probe()?;
+        Ok(checked)
+    }
+
+    /// Parses every probe once (each valid, ids unique), keeping nothing but the ids; returns the
+    /// length of the longest.
+    fn check_every_probe(&self) -> Result<usize, InputError> {
+        let mut ids = HashSet::with_capacity(self.spans.len());
+        let mut longest = 0;
+        for k in 0..self.spans.len() {
+            let probe = self.probe(k)?;
+            longest = longest.max(probe.id.chars().count());
+            if !ids.insert(probe.id) {
+                let (start, end) = self.spans[k];
+                let id = self.probe(k)?.id;
+                return Err(InputError::at_fragment(
+                    &self.path,
+                    &self.text,
+                    &self.text[start..end],
+                    format!("probe id \"{id}\" is used twice"),
+                ));
+            }
+        }
+        Ok(longest)
+    }
+
+    fn probe(&self, k: usize) -> Result<Probe, InputError> {
+        let (start, end) = self.spans[k];
+        parse_probe(&self.path, &self.text, &self.text[start..end])
+    }
+
+    /// The level, as the file names it.
+    pub fn level(&self) -> &str {
+        &self.level
+    }
+
+    /// How many probes the file holds.
+    pub fn len(&self) -> usize {
+        self.spans.len()
+    }
+
+    /// True when the file holds no probes.
+    pub fn is_empty(&self) -> bool {
+        self.spans.is_empty()
+    }
+
+    /// The probes in `range` (of file order), parsed.
+    pub fn probes(&self, range: Range<usize>) -> Result<Vec<Probe>, InputError> {
+        range.map(|k| self.probe(k)).collect()
+    }
+
+    /// The whole set, parsed.
+    pub fn to_set(&self) -> Result<ProbeSet, InputError> {
+        Ok(ProbeSet {
+            level: self.level.clone(),
+            probes: self.probes(0..self.len())?,
+        })
+    }
+
+    /// The length of the longest probe id, in characters.
+    pub fn longest_id(&self) -> usize {
+        self.longest_id
+    }
+
+    /// The file's text as read.
+    pub fn text(&self) -> &str {
+        &self.text
+    }
+}
+
+/// Reads and validates a probe-set file.
+pub fn load_probe_set(path: &Path) -> Result<ProbeSet, InputError> {
+    ProbeText::read(path)?.to_set()
+}
+
+/// Parses and validates probe-set text; `path` is used in error messages.
+pub fn parse_probe_set(path: &Path, text: &str) -> Result<ProbeSet, InputError> {
+    ProbeText::parse(path, text.to_string())?.to_set()
+}
+
+/// Checks one probe against every rule of the file format (by writing it as a file and reading it
+/// back, so editing in the window and loading from disk can never disagree). The error's message
+/// names the probe and what is wrong.
+pub fn validate_probe(probe: &Probe) -> Result<(), InputError> {
+    let set = ProbeSet {
+        level: "level".into(),
+        probes: vec![probe.clone()],
+    };
+    ProbeText::parse(Path::new("probe"), super::probe_set_to_json(&set)).map(|_| ())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::probe::ProbeQuery;
+    use crate::query::Filter;
+    use glam::DVec3;
+
+    #[test]
+    fn an_edited_probe_is_held_to_the_file_format() {
+        let mut probe = Probe {
+            id: "gate".into(),
+            label: None,
+            filter: Filter::default(),
+            query: ProbeQuery::Ray {
+                from: DVec3::ZERO,
+                to: DVec3::X,
+                hits: None,
+            },
+            expect: None,
+        };
+        assert_eq!(validate_probe(&probe), Ok(()));
+        probe.id = "gate view".into();
+        assert!(
+            validate_probe(&probe)
+                .unwrap_err()
+                .message
+                .contains("letters, digits")
+        );
+        probe.id = "gate".into();
+        probe.query = ProbeQuery::Sweep {
+            shape: crate::level::ShapeSpec::Sphere { radius: 0.5 },
+            rotation: None,
+            path: vec![DVec3::ZERO],
+            hits: None,
+            duration: None,
+            clearance: None,
+        };
+        assert!(validate_probe(&probe).is_err(), "a path needs two points");
+    }
+}

@@ -1,0 +1,101 @@
+//! Writing probe sets in the file format: stable (the same set gives the same bytes) and laid out
+//! for people to read and review; loading what is written gives the same set.
+
+use glam::{DQuat, DVec3};
+use serde_json::{Map, Value, json};
+
+use super::model::{Probe, ProbeQuery, ProbeSet};
+use crate::level::ShapeSpec;
+
+/// Serialises a probe set in the file format, stable and ready to save.
+pub fn probe_set_to_json(set: &ProbeSet) -> String {
+    let probes: Vec<Value> = set.probes.iter().map(probe_to_value).collect();
+    let value =
+        json!({ "plumbline": "probes", "version": 1, "level": set.level, "probes": probes });
+    crate::json_text::to_pretty(&value)
+}
+
+fn probe_to_value(p: &Probe) -> Value {
+    let mut m = Map::new();
+    m.insert("id".into(), json!(p.id));
+    if let Some(label) = &p.label {
+        m.insert("label".into(), json!(label));
+    }
+    m.insert("kind".into(), json!(p.query.kind().name()));
+    let vec3 = |v: DVec3| json!(v.to_array());
+    let quat = |q: &Option<DQuat>, m: &mut Map<String, Value>| {
+        if let Some(q) = q {
+            m.insert("rotation".into(), json!(q.to_array()));
+        }
+    };
+    let shape = |s: &ShapeSpec| serde_json::to_value(s).expect("shapes serialise");
+    match &p.query {
+        ProbeQuery::Ray { from, to, hits } => {
+            m.insert("from".into(), vec3(*from));
+            m.insert("to".into(), vec3(*to));
+            if let Some(h) = hits {
+                m.insert("hits".into(), json!(h));
+            }
+        }
+        ProbeQuery::Sweep {
+            shape: s,
+            rotation,
+            path,
+            hits,
+            duration,
+            clearance,
+        } => {
+            m.insert("shape".into(), shape(s));
+            quat(rotation, &mut m);
+            m.insert(
+                "path".into(),
+                json!(path.iter().map(|p| p.to_array()).collect::<Vec<_>>()),
+            );
+            if let Some(h) = hits {
+                m.insert("hits".into(), json!(h));
+            }
+            if let Some(d) = duration {
+                m.insert("duration".into(), json!(d));
+            }
+            if let Some(c) = clearance {
+                m.insert("clearance".into(), json!(c));
+            }
+        }
+        ProbeQuery::Closest {
+            shape: s,
+            at,
+            rotation,
+            max_distance,
+        } => {
+            m.insert("shape".into(), shape(s));
+            m.insert("at".into(), vec3(*at));
+            quat(rotation, &mut m);
+            m.insert("max_distance".into(), json!(max_distance));
+        }
+        ProbeQuery::Overlap {
+            shape: s,
+            at,
+            rotation,
+        } => {
+            m.insert("shape".into(), shape(s));
+            m.insert("at".into(), vec3(*at));
+            quat(rotation, &mut m);
+        }
+    }
+    if !p.filter.ignore_tags.is_empty() {
+        m.insert("ignore_tags".into(), json!(p.filter.ignore_tags));
+    }
+    if let Some(only) = &p.filter.only_tags {
+        m.insert("only_tags".into(), json!(only));
+    }
+    if !p.filter.ignore_objects.is_empty() {
+        m.insert("ignore_objects".into(), json!(p.filter.ignore_objects));
+    }
+    if let Some(e) = &p.expect {
+        m.insert(
+            "expect".into(),
+            serde_json::to_value(e).expect("expectations serialise"),
+        );
+    }
+    Value::Object(m)
+}
