@@ -3,4 +3,5 @@
 
 mod check;
 mod demo;
+mod hostile;
 mod info;
