@@ -19,7 +19,7 @@ pub use records::{
     SweepHitRecord, Verdict,
 };
 pub use results_file::{
-    ResultsFile, ResultsHead, ResultsWriter, load_results, probes_digest, text_digest,
+    ResultsFile, ResultsHead, ResultsWriter, load_results, parse_results, probes_digest, text_digest,
 };
 pub use run::{Runner, run_probes};
 pub use verdict::metres;

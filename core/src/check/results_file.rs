@@ -209,6 +209,11 @@ pub fn load_results(path: &Path) -> Result<ResultsFile, InputError> {
     let bytes = crate::input::read_input(path)?;
     let text = std::str::from_utf8(&bytes)
         .map_err(|e| InputError::file(path, format!("not UTF-8 text: {e}")))?;
+    parse_results(path, text)
+}
+
+/// Parses the text of a results file; `path` is named in errors.
+pub fn parse_results(path: &Path, text: &str) -> Result<ResultsFile, InputError> {
     let raw: RawResults = serde_json::from_str(text).map_err(|e| InputError::json(path, &e))?;
     check_header(
         path,

@@ -13,7 +13,7 @@ use super::model::{Geometry, Level, LevelObject, MeshOrigin};
 use super::shape::ShapeSpec;
 use super::transform::Transform;
 use crate::error::{Diagnostic, InputError, Warning, check_header};
-use crate::input::{MAX_TRIANGLES, PathPolicy, check_name, one_line, read_input, resolve_named};
+use crate::input::{MAX_TRIANGLES, PathPolicy, check_name, one_line, resolve_named};
 
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -57,16 +57,15 @@ enum Scale {
     PerAxis([f64; 3]),
 }
 
-/// Loads a level file and every mesh file it refers to (each mesh file read once however many
-/// objects use it), adding every file read to `files`.
+/// Loads a level file from its bytes and every mesh file it refers to (each mesh file read once
+/// however many objects use it), adding every file read to `files`.
 pub fn load_level_file(
     path: &Path,
+    bytes: &[u8],
     policy: PathPolicy,
     files: &mut Vec<PathBuf>,
 ) -> Result<(Level, Vec<Diagnostic>), InputError> {
-    let text = read_input(path)?;
-    files.push(path.to_path_buf());
-    let text = std::str::from_utf8(&text)
+    let text = std::str::from_utf8(bytes)
         .map_err(|e| InputError::file(path, format!("not UTF-8 text: {e}")))?;
     let file: LevelFile = serde_json::from_str(text).map_err(|e| InputError::json(path, &e))?;
     check_header(path, &file.plumbline, file.version, "level", "a level")?;

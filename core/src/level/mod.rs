@@ -56,11 +56,21 @@ pub struct LoadedLevel {
 /// Loads a level from a level file (`.json`), a glTF 2.0 file (`.gltf`, `.glb`) or an OBJ file;
 /// paths named inside it are resolved under `policy`.
 pub fn load_level(path: &Path, policy: PathPolicy) -> Result<LoadedLevel, InputError> {
-    let mut files = Vec::new();
+    load_level_from(path, &read_input(path)?, policy)
+}
+
+/// Loads a level as [`load_level`] does, from the bytes of the file at `path` already read (the
+/// files it names are read from disk, relative to `path`).
+pub fn load_level_from(
+    path: &Path,
+    bytes: &[u8],
+    policy: PathPolicy,
+) -> Result<LoadedLevel, InputError> {
+    let mut files = vec![path.to_path_buf()];
     let (level, diagnostics) = match extension(path).as_str() {
-        "json" => level_file::load_level_file(path, policy, &mut files)?,
+        "json" => level_file::load_level_file(path, bytes, policy, &mut files)?,
         "gltf" | "glb" | "obj" => {
-            let (objects, mut diagnostics) = load_mesh_file(path, policy, &mut files)?;
+            let (objects, mut diagnostics) = mesh_file_objects(path, bytes, policy, &mut files)?;
             let mut level = Level {
                 up: glam::DVec3::Y,
                 objects,
@@ -91,9 +101,19 @@ pub(crate) fn load_mesh_file(
 ) -> Result<(Vec<LevelObject>, Vec<Diagnostic>), InputError> {
     let bytes = read_input(path)?;
     files.push(path.to_path_buf());
+    mesh_file_objects(path, &bytes, policy, files)
+}
+
+/// The objects of a glTF or OBJ file's bytes.
+fn mesh_file_objects(
+    path: &Path,
+    bytes: &[u8],
+    policy: PathPolicy,
+    files: &mut Vec<PathBuf>,
+) -> Result<(Vec<LevelObject>, Vec<Diagnostic>), InputError> {
     match extension(path).as_str() {
-        "gltf" | "glb" => gltf::load_gltf(path, &bytes, policy, files),
-        "obj" => obj::load_obj(path, &bytes),
+        "gltf" | "glb" => gltf::load_gltf(path, bytes, policy, files),
+        "obj" => obj::load_obj(path, bytes),
         _ => Err(InputError::file(
             path,
             "not a mesh file: expected .gltf, .glb or .obj",

@@ -5,6 +5,7 @@ mod bad_input;
 mod common;
 mod demo_scene;
 mod expectations;
+mod fuzz_corpus;
 mod hostile_input;
 mod loaders;
 mod probe_files;

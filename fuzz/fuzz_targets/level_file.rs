@@ -1,0 +1,7 @@
+//! Fuzz target: level_file (see fuzz/harness.rs).
+#![no_main]
+
+#[path = "../harness.rs"]
+mod harness;
+
+libfuzzer_sys::fuzz_target!(|bytes: &[u8]| harness::run("level_file", bytes));
