@@ -17,7 +17,11 @@ pub fn run(target: &str, bytes: &[u8]) {
         "obj" => level(bytes, "fuzz.obj"),
         "gltf" => {
             // A GLB container when the input starts like one, else glTF JSON.
-            let name = if bytes.starts_with(b"glTF") { "fuzz.glb" } else { "fuzz.gltf" };
+            let name = if bytes.starts_with(b"glTF") {
+                "fuzz.glb"
+            } else {
+                "fuzz.gltf"
+            };
             level(bytes, name)
         }
         "probe_set" => probe_set(bytes),

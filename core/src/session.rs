@@ -18,7 +18,7 @@ use std::borrow::Cow;
 use std::ops::Range;
 
 use crate::check::{ProbeResult, Runner, Summary, text_digest};
-use crate::error::{Diagnostic, Error, InputError};
+use crate::error::{Diagnostic, Error, InputError, Warning};
 use crate::input::{PathPolicy, resolve_named};
 use crate::level::{Level, LoadedLevel, level_digest, load_level};
 use crate::probe::{Probe, ProbeSet, ProbeText};
@@ -200,6 +200,19 @@ fn open_level(path: &Path, options: &OpenOptions) -> Result<OpenLevel, Error> {
     } else {
         (None, World::from_level(level).map_err(build_error)?)
     };
+    let mut diagnostics = diagnostics;
+    diagnostics.extend((0..world.len()).filter_map(|id| {
+        let edges = world.winding_faults(id);
+        (edges > 0).then(|| {
+            Diagnostic::new(
+                path,
+                Warning::InconsistentWinding {
+                    object: world.name(id).to_string(),
+                    edges,
+                },
+            )
+        })
+    }));
     Ok(OpenLevel {
         path: path.to_path_buf(),
         model,

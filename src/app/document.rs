@@ -218,12 +218,14 @@ impl Document {
         stamps(&files) != self.stamps
     }
 
-    /// The three corners of a triangle of an object's mesh, by object name and triangle index.
+    /// The three corners of a triangle of an object's mesh, by object name and the triangle's number
+    /// as the file gives it (as hits name triangles).
     pub fn triangle(&self, object: &str, triangle: u32) -> Option<[glam::DVec3; 3]> {
         let found = self.level.objects.iter().find(|o| o.name == object)?;
         match &found.geometry {
             Geometry::Mesh(mesh) => {
-                let t = mesh.triangles.get(triangle as usize)?;
+                let kept = mesh.origin.kept(triangle)?;
+                let t = mesh.triangles.get(kept as usize)?;
                 Some(t.map(|i| mesh.vertices[i as usize]))
             }
             Geometry::Primitive { .. } => None,

@@ -351,14 +351,18 @@ fn hits_table(ui: &mut egui::Ui, result: &ProbeResult, selection: &mut Selection
         Hits::Overlap(_) => ["#", "object", "depth", "direction", "enclosed"],
     };
     // Per hit: object, distance or depth, normal or direction, and the kind's own last column.
-    let cells: Vec<(&str, f64, [f64; 3], String)> = match &result.hits {
+    let named = |object: &str, material: &Option<std::sync::Arc<str>>| match material {
+        Some(m) => format!("{object} · {m}"),
+        None => object.to_string(),
+    };
+    let cells: Vec<(String, f64, [f64; 3], String)> = match &result.hits {
         Hits::Ray(h) => h
             .iter()
             .map(|x| {
                 let triangle = x.triangle.map_or("—".into(), |t| t.to_string());
                 let back = if x.back_face { " back" } else { "" };
                 let last = format!("{:.4} · {triangle}{back}", x.t);
-                (&*x.object, x.distance, x.normal, last)
+                (named(&x.object, &x.material), x.distance, x.normal, last)
             })
             .collect(),
         Hits::Sweep(h) => h
@@ -373,16 +377,27 @@ fn hits_table(ui: &mut egui::Ui, result: &ProbeResult, selection: &mut Selection
                 } else {
                     ""
                 };
-                (&*x.object, x.distance, x.normal, format!("{time}{inside}"))
+                (
+                    named(&x.object, &x.material),
+                    x.distance,
+                    x.normal,
+                    format!("{time}{inside}"),
+                )
             })
             .collect(),
         Hits::Closest(h) => h
             .iter()
-            .map(|x| (&*x.object, x.distance, x.normal, yes_no(x.overlapping)))
+            .map(|x| {
+                let object = named(&x.object, &x.material);
+                (object, x.distance, x.normal, yes_no(x.overlapping))
+            })
             .collect(),
         Hits::Overlap(h) => h
             .iter()
-            .map(|x| (&*x.object, x.depth, x.direction, yes_no(x.enclosed)))
+            .map(|x| {
+                let object = named(&x.object, &x.material);
+                (object, x.depth, x.direction, yes_no(x.enclosed))
+            })
             .collect(),
     };
     let rows: Vec<[String; 5]> = cells
@@ -391,7 +406,7 @@ fn hits_table(ui: &mut egui::Ui, result: &ProbeResult, selection: &mut Selection
         .map(|(i, (object, measure, towards, last))| {
             [
                 (i + 1).to_string(),
-                object.to_string(),
+                object,
                 metres(measure),
                 direction(towards.into()),
                 last,

@@ -184,6 +184,7 @@ mod tests {
                 direction: [-1.0, 0.0, 0.0],
                 point: [4.0, 0.0, 0.0],
                 enclosed: false,
+                material: None,
             }]),
             clearance: None,
         };

@@ -3,14 +3,14 @@
 use glam::DQuat;
 
 use super::records::{
-    ClearanceRecord, ClosestRecord, Hits, OverlapRecord, ProbeResult, RayHitRecord, SweepHitRecord,
-    Verdict,
+    ClearanceRecord, ClosestRecord, Hits, OverlapRecord, ProbeResult, RayHitRecord, SourceRecord,
+    SweepHitRecord, Verdict,
 };
 use super::verdict::judge;
 use crate::json_text::{round9, round9_vec};
-use crate::level::ShapeSpec;
+use crate::level::{FacePlace, ShapeSpec};
 use crate::probe::{HitsMode, Probe, ProbeQuery};
-use crate::query::{ClosestProbe, ProbeShape, QueryError, View, World};
+use crate::query::{ClosestProbe, MaterialId, ObjectId, ProbeShape, QueryError, View, World};
 
 /// Answers one probe and judges it against its expectation.
 pub fn answer_probe(world: &World, probe: &Probe) -> ProbeResult {
@@ -42,8 +42,10 @@ type Answer = (Hits, Option<ClearanceRecord>);
 
 fn answer(world: &World, probe: &Probe) -> Result<Answer, QueryError> {
     let view = world.view(&probe.filter);
-    let tags = |id| world.shared_tags(id);
+    let tags = |id, material| world.hit_tags(id, material);
     let name = |id| world.shared_name(id);
+    let material = |m: Option<MaterialId>| m.map(|m| world.shared_material(m));
+    let source = |id, triangle: Option<u32>| source_record(world, id, triangle?);
     Ok(match &probe.query {
         ProbeQuery::Ray { from, to, hits } => {
             let found = if *hits == Some(HitsMode::All) {
@@ -55,12 +57,14 @@ fn answer(world: &World, probe: &Probe) -> Result<Answer, QueryError> {
                 .iter()
                 .map(|h| RayHitRecord {
                     object: name(h.object),
-                    tags: tags(h.object),
+                    tags: tags(h.object, h.material),
                     distance: round9(h.distance),
                     t: round9(h.t),
                     point: round9_vec(h.point),
                     normal: round9_vec(h.normal),
                     triangle: h.triangle,
+                    source: source(h.object, h.triangle),
+                    material: material(h.material),
                     back_face: h.back_face,
                 })
                 .collect();
@@ -84,7 +88,7 @@ fn answer(world: &World, probe: &Probe) -> Result<Answer, QueryError> {
                 .iter()
                 .map(|h| SweepHitRecord {
                     object: name(h.object),
-                    tags: tags(h.object),
+                    tags: tags(h.object, h.material),
                     distance: round9(h.distance),
                     t: round9(h.t),
                     segment: h.segment,
@@ -93,6 +97,9 @@ fn answer(world: &World, probe: &Probe) -> Result<Answer, QueryError> {
                     point: round9_vec(h.point),
                     normal: round9_vec(h.normal),
                     started_inside: h.started_inside,
+                    triangle: h.triangle,
+                    source: source(h.object, h.triangle),
+                    material: material(h.material),
                 })
                 .collect();
             let clearance = if probe.query.wants_clearance(probe.expect.as_ref()) {
@@ -126,12 +133,13 @@ fn answer(world: &World, probe: &Probe) -> Result<Answer, QueryError> {
                 .closest(target, *at, *max_distance)?
                 .map(|h| ClosestRecord {
                     object: name(h.object),
-                    tags: tags(h.object),
+                    tags: tags(h.object, h.material),
                     distance: round9(h.distance),
                     point: round9_vec(h.point),
                     shape_point: round9_vec(h.shape_point),
                     normal: round9_vec(h.normal),
                     overlapping: h.overlapping,
+                    material: material(h.material),
                 })
                 .into_iter()
                 .collect();
@@ -160,13 +168,47 @@ fn overlap_records(
         .iter()
         .map(|h| OverlapRecord {
             object: world.shared_name(h.object),
-            tags: world.shared_tags(h.object),
+            tags: world.hit_tags(h.object, h.material),
             depth: round9(h.depth),
             direction: round9_vec(h.direction),
             point: round9_vec(h.point),
             enclosed: h.enclosed,
+            material: h.material.map(|m| world.shared_material(m)),
         })
         .collect())
+}
+
+/// Where triangle `number` of a mesh object is in the user's file (nothing for a list of triangles
+/// written in the level file, whose number is the place).
+fn source_record(world: &World, object: ObjectId, number: u32) -> Option<SourceRecord> {
+    let file = world.source_file(object).map(str::to_string);
+    match world.face_place(object, number)? {
+        FacePlace::Listed => None,
+        FacePlace::Obj {
+            line, face, fan, ..
+        } => Some(SourceRecord {
+            file,
+            line: Some(line),
+            face: Some(face),
+            fan: Some(fan),
+            mesh: None,
+            primitive: None,
+            triangle: None,
+        }),
+        FacePlace::Gltf {
+            mesh,
+            primitive,
+            triangle,
+        } => Some(SourceRecord {
+            file,
+            line: None,
+            face: None,
+            fan: None,
+            mesh: Some(mesh),
+            primitive: Some(primitive),
+            triangle: Some(triangle),
+        }),
+    }
 }
 
 fn probe_shape(shape: &ShapeSpec, rotation: Option<DQuat>) -> Result<ProbeShape, QueryError> {

@@ -15,11 +15,12 @@ pub use answer::answer_probe;
 pub use compare::{Aspect, Comparer, Comparison, DEFAULT_TOLERANCE, ProbeChange, changes, compare};
 pub use expectation::expectation_from;
 pub use records::{
-    ClearanceRecord, ClosestRecord, Hits, OverlapRecord, ProbeResult, RayHitRecord, Summary,
-    SweepHitRecord, Verdict,
+    ClearanceRecord, ClosestRecord, Hits, OverlapRecord, ProbeResult, RayHitRecord, SourceRecord,
+    Summary, SweepHitRecord, Verdict,
 };
 pub use results_file::{
-    ResultsFile, ResultsHead, ResultsWriter, load_results, parse_results, probes_digest, text_digest,
+    ResultsFile, ResultsHead, ResultsWriter, load_results, parse_results, probes_digest,
+    text_digest,
 };
 pub use run::{Runner, run_probes};
 pub use verdict::metres;

@@ -48,12 +48,46 @@ pub struct RayHitRecord {
     pub point: [f64; 3],
     /// Unit normal facing the start.
     pub normal: [f64; 3],
-    /// Triangle index in the object's mesh (meshes only).
+    /// The triangle as the object's file numbers it (meshes only).
     #[serde(default)]
     pub triangle: Option<u32>,
+    /// Where that triangle is in the user's file (meshes read from files).
+    #[serde(default)]
+    pub source: Option<SourceRecord>,
+    /// The material of the surface, when the file names one.
+    #[serde(default)]
+    pub material: Option<Arc<str>>,
     /// Crossed from behind.
     #[serde(default)]
     pub back_face: bool,
+}
+
+/// Where a triangle is in the user's file: an OBJ face (its line, its ordinal among the file's faces,
+/// and which triangle of a polygon's fan), or a glTF primitive's triangle.
+#[derive(Debug, Clone, PartialEq, Eq, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct SourceRecord {
+    /// The mesh file, as the level names it.
+    #[serde(default)]
+    pub file: Option<String>,
+    /// OBJ: the face's line (1-based).
+    #[serde(default)]
+    pub line: Option<u32>,
+    /// OBJ: the face's ordinal among the file's faces (0-based).
+    #[serde(default)]
+    pub face: Option<u32>,
+    /// OBJ: which triangle of the polygon's fan (polygons of more than three corners).
+    #[serde(default)]
+    pub fan: Option<u32>,
+    /// glTF: the mesh's index.
+    #[serde(default)]
+    pub mesh: Option<u32>,
+    /// glTF: the primitive's index within the mesh.
+    #[serde(default)]
+    pub primitive: Option<u32>,
+    /// glTF: the triangle's index within the primitive.
+    #[serde(default)]
+    pub triangle: Option<u32>,
 }
 
 /// A sweep's first impact with one object.
@@ -82,6 +116,15 @@ pub struct SweepHitRecord {
     /// Overlapping at the start of the path.
     #[serde(default)]
     pub started_inside: bool,
+    /// The triangle touched, as the object's file numbers it (meshes, when known).
+    #[serde(default)]
+    pub triangle: Option<u32>,
+    /// Where that triangle is in the user's file.
+    #[serde(default)]
+    pub source: Option<SourceRecord>,
+    /// The material of the surface, when the file names one.
+    #[serde(default)]
+    pub material: Option<Arc<str>>,
 }
 
 /// The nearest object to a closest-point probe.
@@ -103,6 +146,9 @@ pub struct ClosestRecord {
     /// The probe overlaps the object.
     #[serde(default)]
     pub overlapping: bool,
+    /// The material of the surface, when the file names one.
+    #[serde(default)]
+    pub material: Option<Arc<str>>,
 }
 
 /// One object an overlap probe overlaps.
@@ -122,6 +168,9 @@ pub struct OverlapRecord {
     /// The shape is entirely inside a closed mesh.
     #[serde(default)]
     pub enclosed: bool,
+    /// The material of the surface, when the file names one.
+    #[serde(default)]
+    pub material: Option<Arc<str>>,
 }
 
 /// The least clearance of a sweep over its whole path.
@@ -261,6 +310,40 @@ mod layout {
         Json::Arr(tags.iter().map(|t| Json::Str(t)).collect())
     }
 
+    /// The triangle, where it is in the file, and the material, each when known.
+    fn face_fields<'a>(
+        triangle: Option<u32>,
+        source: &'a Option<SourceRecord>,
+        material: &'a Option<Arc<str>>,
+        f: &mut Vec<(&'static str, Json<'a>)>,
+    ) {
+        if let Some(t) = triangle {
+            f.push(("triangle", Json::int(u64::from(t))));
+        }
+        if let Some(s) = source {
+            let mut fields = Vec::new();
+            if let Some(file) = &s.file {
+                fields.push(("file", Json::Str(file)));
+            }
+            for (key, value) in [
+                ("line", s.line),
+                ("face", s.face),
+                ("fan", s.fan),
+                ("mesh", s.mesh),
+                ("primitive", s.primitive),
+                ("triangle", s.triangle),
+            ] {
+                if let Some(v) = value {
+                    fields.push((key, Json::int(u64::from(v))));
+                }
+            }
+            f.push(("source", Json::Obj(fields)));
+        }
+        if let Some(m) = material {
+            f.push(("material", Json::Str(m)));
+        }
+    }
+
     impl RayHitRecord {
         /// This record as laid out in results files.
         pub fn to_json(&self) -> Json<'_> {
@@ -272,9 +355,7 @@ mod layout {
                 ("point", Json::vec3(self.point)),
                 ("normal", Json::vec3(self.normal)),
             ];
-            if let Some(t) = self.triangle {
-                f.push(("triangle", Json::int(u64::from(t))));
-            }
+            face_fields(self.triangle, &self.source, &self.material, &mut f);
             if self.back_face {
                 f.push(("back_face", Json::Bool(true)));
             }
@@ -301,6 +382,7 @@ mod layout {
             if self.started_inside {
                 f.push(("started_inside", Json::Bool(true)));
             }
+            face_fields(self.triangle, &self.source, &self.material, &mut f);
             Json::Obj(f)
         }
     }
@@ -319,6 +401,7 @@ mod layout {
             if self.overlapping {
                 f.push(("overlapping", Json::Bool(true)));
             }
+            face_fields(None, &None, &self.material, &mut f);
             Json::Obj(f)
         }
     }
@@ -336,6 +419,7 @@ mod layout {
             if self.enclosed {
                 f.push(("enclosed", Json::Bool(true)));
             }
+            face_fields(None, &None, &self.material, &mut f);
             Json::Obj(f)
         }
     }

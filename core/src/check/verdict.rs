@@ -82,26 +82,30 @@ fn describe(hits: &Hits, clearance: Option<&ClearanceRecord>) -> String {
         String::new()
     };
     let found = match hits {
-        Hits::Ray(h) => h
-            .first()
-            .map(|x| format!("blocked by {} at {}{more}", x.object, metres(x.distance))),
+        Hits::Ray(h) => h.first().map(|x| {
+            let what = named(&x.object, &x.material);
+            format!("blocked by {what} at {}{more}", metres(x.distance))
+        }),
         Hits::Sweep(h) => h.first().map(|x| {
+            let what = named(&x.object, &x.material);
             if x.started_inside {
-                format!("starts inside {}{more}", x.object)
+                format!("starts inside {what}{more}")
             } else {
-                format!("hits {} after {}{more}", x.object, metres(x.distance))
+                format!("hits {what} after {}{more}", metres(x.distance))
             }
         }),
         Hits::Closest(h) => h.first().map(|x| {
+            let what = named(&x.object, &x.material);
             if x.overlapping {
-                format!("overlaps {}", x.object)
+                format!("overlaps {what}")
             } else {
-                format!("nearest is {} at {}", x.object, metres(x.distance))
+                format!("nearest is {what} at {}", metres(x.distance))
             }
         }),
         Hits::Overlap(h) => h.first().map(|x| {
             let how = if x.enclosed { "is inside" } else { "overlaps" };
-            format!("{how} {} by {}{more}", x.object, metres(x.depth))
+            let what = named(&x.object, &x.material);
+            format!("{how} {what} by {}{more}", metres(x.depth))
         }),
     };
     match (found, clearance) {
@@ -116,6 +120,14 @@ fn describe(hits: &Hits, clearance: Option<&ClearanceRecord>) -> String {
             Hits::Closest(_) => "nothing within reach".to_string(),
             _ => "clear".to_string(),
         },
+    }
+}
+
+/// An object as a reason names it, with the material of the surface when the file names one.
+fn named(object: &str, material: &Option<std::sync::Arc<str>>) -> String {
+    match material {
+        Some(m) => format!("{object} ({m})"),
+        None => object.to_string(),
     }
 }
 

@@ -4,9 +4,10 @@ use glam::DVec3;
 use parry3d_f64::query::{ClosestPoints, closest_points};
 
 use super::QueryError;
+use super::body::Body;
 use super::shapes::ProbeShape;
 use super::sweep::contact_geometry;
-use super::world::{Body, ObjectId, View};
+use super::world::{MaterialId, ObjectId, View};
 
 /// The nearest object to a closest-point probe.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -23,6 +24,8 @@ pub struct ClosestHit {
     pub normal: DVec3,
     /// True when the probe overlaps the object (touching, penetrating, or enclosed by a closed mesh).
     pub overlapping: bool,
+    /// The material of the surface nearest, when the file names one.
+    pub material: Option<MaterialId>,
 }
 
 /// What a closest-point probe places: a point, or a convex shape.
@@ -83,8 +86,8 @@ impl View<'_> {
                 {
                     Some(proj) => proj,
                     // Farther than `limit` from the surface, but possibly inside a solid.
-                    None if (body.closed || body.mesh().is_none())
-                        && body.shape.contains_point(&body.pose, at) =>
+                    None if body.encloses(at)
+                        || (body.mesh().is_none() && body.shape.contains_point(&body.pose, at)) =>
                     {
                         body.shape.project_point(&body.pose, at, false)
                     }
@@ -94,7 +97,7 @@ impl View<'_> {
                 let inside = proj.point != at
                     && match body.mesh() {
                         None => body.shape.contains_point(&body.pose, at),
-                        Some(_) => body.closed && proj.is_inside,
+                        Some(_) => body.encloses(at),
                     };
                 let distance = if inside { 0.0 } else { proj.point.distance(at) };
                 if distance > limit {
@@ -109,6 +112,7 @@ impl View<'_> {
                     shape_point: at,
                     normal,
                     overlapping: inside,
+                    material: body.material,
                 })
             }
             ClosestProbe::Shape(shape) => {
@@ -122,6 +126,7 @@ impl View<'_> {
                         shape_point: at,
                         normal,
                         overlapping: true,
+                        material: body.material,
                     });
                 }
                 match closest_points(&body.pose, &*body.shape, &pose, &*shape.shape, limit).ok()? {
@@ -134,6 +139,7 @@ impl View<'_> {
                             shape_point: point,
                             normal,
                             overlapping: true,
+                            material: body.material,
                         })
                     }
                     ClosestPoints::WithinMargin(p1, p2) => {
@@ -146,6 +152,7 @@ impl View<'_> {
                             shape_point: p2,
                             normal,
                             overlapping: false,
+                            material: body.material,
                         })
                     }
                     ClosestPoints::Disjoint => None,

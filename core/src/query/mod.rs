@@ -9,6 +9,7 @@
 //! objects go to the one met first in the BVH's fixed traversal order (first-hit rays, closest
 //! points) or to the lower object index (sweeps, overlaps, all-hit lists).
 
+mod body;
 mod clearance;
 mod closest;
 mod overlap;
@@ -20,6 +21,7 @@ mod world;
 
 use glam::DVec3;
 
+pub use body::PART_TRIANGLES;
 pub use clearance::Clearance;
 pub use closest::{ClosestHit, ClosestProbe};
 pub use overlap::{OverlapHit, TOUCH_TOLERANCE};
@@ -29,7 +31,7 @@ pub use shapes::{
 };
 pub use sweep::SweepHit;
 pub use watertight::ShearedRay;
-pub use world::{BuildCause, BuildError, Filter, ObjectId, PART_TRIANGLES, View, World};
+pub use world::{BuildCause, BuildError, Filter, MATERIAL_TAG, MaterialId, ObjectId, View, World};
 
 /// Why the core cannot answer a probe as asked; shown to users as one sentence.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]

@@ -5,7 +5,7 @@ use parry3d_f64::query::contact;
 
 use super::QueryError;
 use super::shapes::ProbeShape;
-use super::world::{ObjectId, View};
+use super::world::{MaterialId, ObjectId, View};
 
 /// Contacts shallower than this count as touching, not overlapping: a capsule set down exactly on a
 /// floor must not be reported as inside it because of rounding. Common practice; the value is ours.
@@ -24,6 +24,8 @@ pub struct OverlapHit {
     pub point: DVec3,
     /// True when the shape is entirely inside a closed mesh.
     pub enclosed: bool,
+    /// The material of the surface overlapped, when the file names one.
+    pub material: Option<MaterialId>,
 }
 
 impl View<'_> {
@@ -45,7 +47,7 @@ impl View<'_> {
                 .flatten();
             if body.encloses(at) {
                 // The centre is inside a closed mesh: push the shape out through the nearest wall.
-                let wall = body.shape.project_point(&body.pose, at, false).point;
+                let wall = body.nearest_wall(at);
                 let direction = (wall - at).try_normalize().unwrap_or(self.world.up());
                 let depth = wall.distance(at) + shape.extent_along(-direction);
                 let enclosed = touching.is_none_or(|c| c.dist > 0.0);
@@ -55,6 +57,7 @@ impl View<'_> {
                     direction,
                     point: wall,
                     enclosed,
+                    material: body.material,
                 });
             } else if let Some(c) = touching.filter(|c| c.dist < -TOUCH_TOLERANCE) {
                 let direction = c.normal1.try_normalize().unwrap_or(self.world.up());
@@ -64,6 +67,7 @@ impl View<'_> {
                     direction,
                     point: c.point1,
                     enclosed: false,
+                    material: body.material,
                 });
             }
         }

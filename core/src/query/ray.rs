@@ -1,13 +1,31 @@
 //! Ray probes: the first crossing, or every crossing, of the segment `from → to` with the level.
+//!
+//! Rules on real, messy meshes (README, "Exactness"):
+//! - Ties: where the segment meets several triangles at exactly the same distance (through a shared
+//!   edge or vertex), the first hit is the one earliest in the level's file order — objects in
+//!   order, each object's triangles as its file numbers them — so the answer does not depend on how
+//!   the level is cut into objects and parts, nor on the BVH.
+//! - Crossings: all-hit rays give one hit per surface crossing whatever the triangles' winding.
+//!   Hits of one object at the same distance (within [`merge_tolerance`]) are one place; exactly
+//!   coincident duplicate faces there count once; and how many times the segment crosses the surface
+//!   there is counted on copies of the segment moved a hair sideways in eight directions, where no
+//!   edge or vertex is hit: the most any copy crosses is the number of hits reported. A crossing
+//!   through an edge or vertex is one hit; a segment grazing a ridge or a vertex from outside, which
+//!   nearby copies cross twice or not at all, is two (reaching the surface and leaving it, so a
+//!   closed surface is still crossed an even number of times from outside to outside); a touch on an
+//!   open edge is one. The reported hits of a place are its triangles earliest in file order, each
+//!   with its own normal and `back_face`.
 
 use std::cell::Cell;
 
 use glam::DVec3;
+use parry3d_f64::bounding_volume::{Aabb, BoundingVolume};
 use parry3d_f64::partitioning::BvhNode;
-use parry3d_f64::query::Ray;
+use parry3d_f64::query::{PointQuery, Ray};
 
+use super::body::Body;
 use super::watertight::ShearedRay;
-use super::world::{Body, ObjectId, View};
+use super::world::{MaterialId, ObjectId, View, World};
 use super::{QueryError, merge_tolerance};
 
 /// Where a ray probe crosses a surface.
@@ -23,8 +41,11 @@ pub struct RayHit {
     pub point: DVec3,
     /// Unit surface normal, turned to face the segment's start.
     pub normal: DVec3,
-    /// Triangle index within the object's mesh; `None` for primitives.
+    /// The triangle as the object's file numbers it (see [`World::face_place`]); `None` for
+    /// primitives.
     pub triangle: Option<u32>,
+    /// The material of the surface crossed, when the file names one.
+    pub material: Option<MaterialId>,
     /// True when the segment crosses the surface from behind (from inside a solid).
     pub back_face: bool,
 }
@@ -54,28 +75,23 @@ impl Segment {
             len,
         })
     }
+}
 
-    fn hit(
-        &self,
-        object: ObjectId,
-        distance: f64,
-        outward_normal: DVec3,
-        triangle: Option<u32>,
-    ) -> RayHit {
-        let back_face = outward_normal.dot(self.dir) > 0.0;
-        RayHit {
-            object,
-            distance,
-            t: distance / self.len,
-            point: self.from + self.dir * distance,
-            normal: if back_face {
-                -outward_normal
-            } else {
-                outward_normal
-            },
-            triangle,
-            back_face,
-        }
+/// A hit on one triangle or primitive, with what the merging and tie rules need.
+#[derive(Debug, Clone, Copy)]
+struct Candidate {
+    hit: RayHit,
+    /// Place in the level's file order (the tie-break).
+    ordinal: u64,
+    /// The triangle's corners (meshes only), to merge duplicates and count crossings.
+    corners: Option<[DVec3; 3]>,
+    /// The hit lies on (or within a hair of) an edge or vertex of its triangle.
+    on_edge: bool,
+}
+
+impl Candidate {
+    fn key(&self) -> (f64, u64) {
+        (self.hit.distance, self.ordinal)
     }
 }
 
@@ -85,56 +101,73 @@ impl View<'_> {
         let seg = Segment::new(from, to)?;
         let ray = Ray::new(seg.from, seg.dir);
         let sheared = ShearedRay::new(seg.from, seg.dir);
-        let best: Cell<Option<RayHit>> = Cell::new(None);
+        let best: Cell<Option<Candidate>> = Cell::new(None);
+        // Leaves report the next float above their best distance, so that nodes and triangles met
+        // at exactly that distance are still opened and the tie rule sees them all.
         self.world.bvh.find_best(
-            seg.len,
+            seg.len.next_up(),
             |node, best| node_entry(node, &ray, seg.inv_dir, best),
             |leaf, best_so_far| {
                 let body = self.body(leaf)?;
-                let hit = first_hit_on_body(body, &seg, &ray, &sheared, best_so_far)?;
-                if best
-                    .get()
-                    .is_none_or(|b| (hit.distance, hit.object) < (b.distance, b.object))
-                {
+                let reach = best_so_far.min(seg.len);
+                let hit = first_on_body(self.world, body, &seg, &ray, &sheared, reach)?;
+                if best.get().is_none_or(|b| hit.key() < b.key()) {
                     best.set(Some(hit));
                 }
-                Some(hit.distance)
+                Some(
+                    best.get()
+                        .map_or(hit.hit.distance, |b| b.hit.distance)
+                        .next_up(),
+                )
             },
         );
-        Ok(best.get())
+        Ok(best.get().map(|c| c.hit))
     }
 
-    /// Every surface crossing on the segment `from → to`, sorted by distance; where the segment passes
-    /// through an edge or vertex shared by several triangles of one object, that is one crossing.
+    /// Every surface crossing on the segment `from → to`, sorted by distance (the crossing rules of
+    /// this module's documentation).
     pub fn ray_all(&self, from: DVec3, to: DVec3) -> Result<Vec<RayHit>, QueryError> {
         let seg = Segment::new(from, to)?;
         let ray = Ray::new(seg.from, seg.dir);
         let sheared = ShearedRay::new(seg.from, seg.dir);
-        let mut hits = Vec::new();
+        let mut candidates = Vec::new();
         for leaf in self
             .world
             .bvh
             .leaves(|node| node_entry(node, &ray, seg.inv_dir, seg.len) <= seg.len)
         {
             if let Some(body) = self.body(leaf) {
-                all_hits_on_body(body, &seg, &ray, &sheared, &mut hits);
+                all_on_body(self.world, body, &seg, &ray, &sheared, &mut candidates);
             }
         }
-        // One crossing where the segment passes through an edge or vertex shared by several triangles
-        // of one object (also across the parts of a split mesh): hits on the same object at the same
-        // distance, crossing the same way, are the same crossing.
-        hits.sort_by(|a, b| {
-            a.object
-                .cmp(&b.object)
-                .then(a.distance.total_cmp(&b.distance))
-                .then(a.triangle.cmp(&b.triangle))
+        candidates.sort_by(|a, b| {
+            a.hit.object.cmp(&b.hit.object).then(
+                a.key()
+                    .partial_cmp(&b.key())
+                    .unwrap_or(std::cmp::Ordering::Equal),
+            )
         });
         let tolerance = merge_tolerance(seg.len);
-        hits.dedup_by(|later, kept| {
-            later.object == kept.object
-                && later.back_face == kept.back_face
-                && later.distance - kept.distance <= tolerance
-        });
+        let mut hits = Vec::with_capacity(candidates.len());
+        let mut start = 0;
+        while start < candidates.len() {
+            let first = candidates[start];
+            let end = start
+                + candidates[start..]
+                    .iter()
+                    .take_while(|c| {
+                        c.hit.object == first.hit.object
+                            && c.hit.distance - first.hit.distance <= tolerance
+                    })
+                    .count();
+            let place = &candidates[start..end];
+            if place.len() == 1 && !place[0].on_edge {
+                hits.push(place[0].hit);
+            } else {
+                self.crossings_at(place, &seg, &mut hits);
+            }
+            start = end;
+        }
         hits.sort_by(|a, b| {
             a.distance
                 .total_cmp(&b.distance)
@@ -142,49 +175,221 @@ impl View<'_> {
         });
         Ok(hits)
     }
+
+    /// The hits reported where the segment meets an object on an edge or vertex, or several
+    /// triangles at once (`place`, sorted by file order): one per crossing of the object's faces
+    /// there, counted on copies of the segment moved sideways.
+    fn crossings_at(&self, place: &[Candidate], seg: &Segment, out: &mut Vec<RayHit>) {
+        if place.iter().any(|c| c.corners.is_none()) {
+            // A primitive's entry and exit are already one hit each.
+            out.extend(place.iter().map(|c| c.hit));
+            return;
+        }
+        let faces = self.faces_at(place[0], seg);
+        let count = match crossings_nearby(&faces, seg) {
+            // A touch that no nearby copy crosses: reaching the surface and leaving it.
+            0 => faces.len().min(2),
+            n => n,
+        };
+        out.extend(faces.iter().take(count).map(|f| f.hit));
+    }
+
+    /// Every face of `at`'s object (that the view queries) holding `at`'s point, as hits there,
+    /// sorted by file order, exactly coincident faces once.
+    fn faces_at(&self, at: Candidate, seg: &Segment) -> Vec<Candidate> {
+        let p = at.hit.point;
+        let reach = edge_tolerance(p, 0.0);
+        let around = Aabb::from_points([p]).loosened(reach);
+        let mut faces: Vec<Candidate> = Vec::new();
+        for leaf in self.world.bvh.intersect_aabb(&around) {
+            let Some(body) = self.body(leaf) else {
+                continue;
+            };
+            let Some(mesh) = body.mesh().filter(|_| body.object == at.hit.object) else {
+                continue;
+            };
+            for tri in mesh.bvh().intersect_aabb(&around) {
+                let t = mesh.triangle(tri);
+                if t.project_local_point(p, false).point.distance(p) <= reach {
+                    let mut face = candidate(
+                        self.world,
+                        body,
+                        seg,
+                        at.hit.distance,
+                        triangle_normal(t.a, t.b, t.c),
+                        Some((tri, [t.a, t.b, t.c])),
+                    );
+                    face.hit.point = p;
+                    faces.push(face);
+                }
+            }
+        }
+        faces.sort_by_key(|f| f.ordinal);
+        let mut kept: Vec<Candidate> = Vec::with_capacity(faces.len());
+        for face in faces {
+            let corners = face.corners.expect("a triangle");
+            if !kept
+                .iter()
+                .any(|k| k.corners.is_some_and(|other| same_face(corners, other)))
+            {
+                kept.push(face);
+            }
+        }
+        if kept.is_empty() {
+            kept.push(at);
+        }
+        kept
+    }
 }
 
-fn first_hit_on_body(
+/// How close to a triangle's edge a hit may lie and still count as on it (where rounding could
+/// decide which of the triangles around it the segment meets): a nanometre near the origin, growing
+/// with the coordinates' size, plus a billionth of the triangle's size. Ours.
+fn edge_tolerance(p: DVec3, size: f64) -> f64 {
+    1e-9 * (1.0 + p.abs().max_element()) + 1e-9 * size
+}
+
+/// True when `p`, a point of triangle `abc`, lies on (or within [`edge_tolerance`] of) its edges.
+fn on_edge(p: DVec3, [a, b, c]: [DVec3; 3]) -> bool {
+    let size = a.distance(b).max(b.distance(c)).max(c.distance(a));
+    let reach = edge_tolerance(p, size);
+    [(a, b), (b, c), (c, a)].iter().any(|&(u, v)| {
+        let edge = v - u;
+        let s = ((p - u).dot(edge) / edge.length_squared()).clamp(0.0, 1.0);
+        (u + edge * s).distance(p) <= reach
+    })
+}
+
+/// The most crossings of the faces by copies of the segment moved sideways a hair (a ten-thousandth
+/// of the faces' shortest edge) in eight directions.
+fn crossings_nearby(faces: &[Candidate], seg: &Segment) -> usize {
+    let corners: Vec<[DVec3; 3]> = faces.iter().filter_map(|f| f.corners).collect();
+    let shortest = corners
+        .iter()
+        .flat_map(|[a, b, c]| [a.distance(*b), b.distance(*c), c.distance(*a)])
+        .fold(f64::INFINITY, f64::min);
+    let point = faces[0].hit.point;
+    let shift = (1e-4 * shortest).max(1e3 * edge_tolerance(point, 0.0));
+    let (u, v) = seg.dir.any_orthonormal_pair();
+    // Angles away from multiples of 45°, so no copy runs along an axis-aligned edge.
+    (0..8)
+        .map(|k| {
+            let angle = 0.371 + k as f64 * std::f64::consts::FRAC_PI_4;
+            let origin = seg.from + (u * angle.cos() + v * angle.sin()) * shift;
+            let moved = ShearedRay::new(origin, seg.dir);
+            corners
+                .iter()
+                .filter(|[a, b, c]| moved.intersect(*a, *b, *c, seg.len).is_some())
+                .count()
+        })
+        .max()
+        .unwrap_or(0)
+}
+
+/// True when two triangles have the same three corners, in any order.
+fn same_face(a: [DVec3; 3], b: [DVec3; 3]) -> bool {
+    let key = |v: DVec3| v.to_array().map(|c| if c == 0.0 { 0.0 } else { c });
+    let mut a = a.map(key);
+    let mut b = b.map(key);
+    a.sort_by(|x, y| x.partial_cmp(y).unwrap_or(std::cmp::Ordering::Equal));
+    b.sort_by(|x, y| x.partial_cmp(y).unwrap_or(std::cmp::Ordering::Equal));
+    a == b
+}
+
+/// The hit of a body's triangle or primitive crossing, with its ordinal.
+fn candidate(
+    world: &World,
+    body: &Body,
+    seg: &Segment,
+    distance: f64,
+    outward_normal: DVec3,
+    triangle: Option<(u32, [DVec3; 3])>,
+) -> Candidate {
+    let back_face = outward_normal.dot(seg.dir) > 0.0;
+    let number =
+        triangle.map(|(local, _)| world.triangle_number(body.object, body.triangle_id(local)));
+    let point = seg.from + seg.dir * distance;
+    Candidate {
+        hit: RayHit {
+            object: body.object,
+            distance,
+            t: distance / seg.len,
+            point,
+            normal: if back_face {
+                -outward_normal
+            } else {
+                outward_normal
+            },
+            triangle: number,
+            material: body.material,
+            back_face,
+        },
+        ordinal: world.ordinal(body.object, number.unwrap_or(0)),
+        corners: triangle.map(|(_, corners)| corners),
+        on_edge: triangle.is_some_and(|(_, corners)| on_edge(point, corners)),
+    }
+}
+
+/// The body's first crossing within `max_distance`, earliest in file order among equal distances.
+fn first_on_body(
+    world: &World,
     body: &Body,
     seg: &Segment,
     ray: &Ray,
     sheared: &ShearedRay,
     max_distance: f64,
-) -> Option<RayHit> {
-    match body.mesh() {
-        Some(mesh) => {
-            let (tri, distance) = mesh.bvh().find_best(
-                max_distance,
-                |node, best| node_entry(node, ray, seg.inv_dir, best),
-                |tri, best| {
-                    let t = mesh.triangle(tri);
-                    sheared.intersect(t.a, t.b, t.c, best)
-                },
-            )?;
-            Some(seg.hit(
-                body.object,
-                distance,
-                triangle_normal(mesh, tri),
-                Some(body.triangle_id(tri)),
-            ))
-        }
-        None => primitive_crossings(body, seg, ray)
+) -> Option<Candidate> {
+    let Some(mesh) = body.mesh() else {
+        return primitive_crossings(world, body, seg, ray)
             .into_iter()
             .flatten()
-            .find(|h| h.distance <= max_distance),
-    }
+            .find(|h| h.hit.distance <= max_distance);
+    };
+    let best: Cell<Option<(f64, u64, u32)>> = Cell::new(None);
+    mesh.bvh().find_best(
+        max_distance,
+        |node, best| node_entry(node, ray, seg.inv_dir, best),
+        |tri, best_so_far| {
+            let t = mesh.triangle(tri);
+            let distance = sheared.intersect(t.a, t.b, t.c, best_so_far)?;
+            let number = world.triangle_number(body.object, body.triangle_id(tri));
+            let ordinal = world.ordinal(body.object, number);
+            if best
+                .get()
+                .is_none_or(|(d, o, _)| (distance, ordinal) < (d, o))
+            {
+                best.set(Some((distance, ordinal, tri)));
+            }
+            best.get().map(|(d, _, _)| d.next_up())
+        },
+    );
+    let (distance, _, tri) = best.get()?;
+    let t = mesh.triangle(tri);
+    Some(candidate(
+        world,
+        body,
+        seg,
+        distance,
+        triangle_normal(t.a, t.b, t.c),
+        Some((tri, [t.a, t.b, t.c])),
+    ))
 }
 
-/// Pushes every crossing of the segment with one body (merged across shared edges by the caller).
-fn all_hits_on_body(
+/// Every crossing of the segment with one body (merged across shared edges by the caller).
+fn all_on_body(
+    world: &World,
     body: &Body,
     seg: &Segment,
     ray: &Ray,
     sheared: &ShearedRay,
-    out: &mut Vec<RayHit>,
+    out: &mut Vec<Candidate>,
 ) {
     let Some(mesh) = body.mesh() else {
-        out.extend(primitive_crossings(body, seg, ray).into_iter().flatten());
+        out.extend(
+            primitive_crossings(world, body, seg, ray)
+                .into_iter()
+                .flatten(),
+        );
         return;
     };
     out.extend(
@@ -193,11 +398,13 @@ fn all_hits_on_body(
             .filter_map(|tri| {
                 let t = mesh.triangle(tri);
                 let distance = sheared.intersect(t.a, t.b, t.c, seg.len)?;
-                Some(seg.hit(
-                    body.object,
+                Some(candidate(
+                    world,
+                    body,
+                    seg,
                     distance,
-                    triangle_normal(mesh, tri),
-                    Some(body.triangle_id(tri)),
+                    triangle_normal(t.a, t.b, t.c),
+                    Some((tri, [t.a, t.b, t.c])),
                 ))
             }),
     );
@@ -226,7 +433,12 @@ fn node_entry(node: &BvhNode, ray: &Ray, inv_dir: DVec3, max_distance: f64) -> f
 
 /// The crossings of a convex primitive, in order along the segment: where the segment enters it
 /// (when `from` is outside) and where it leaves it (when `to` is outside). A grazing touch is one.
-fn primitive_crossings(body: &Body, seg: &Segment, ray: &Ray) -> [Option<RayHit>; 2] {
+fn primitive_crossings(
+    world: &World,
+    body: &Body,
+    seg: &Segment,
+    ray: &Ray,
+) -> [Option<Candidate>; 2] {
     let shape = &*body.shape;
     let to = seg.from + seg.dir * seg.len;
     let strictly_inside = |p: DVec3| {
@@ -236,18 +448,19 @@ fn primitive_crossings(body: &Body, seg: &Segment, ray: &Ray) -> [Option<RayHit>
     let entry = (!strictly_inside(seg.from))
         .then(|| shape.cast_ray_and_get_normal(&body.pose, ray, seg.len, false))
         .flatten()
-        .map(|i| seg.hit(body.object, i.time_of_impact, i.normal, None));
+        .map(|i| candidate(world, body, seg, i.time_of_impact, i.normal, None));
     let back = Ray::new(to, -seg.dir);
     let exit = (!strictly_inside(to))
         .then(|| shape.cast_ray_and_get_normal(&body.pose, &back, seg.len, false))
         .flatten()
-        .map(|i| seg.hit(body.object, seg.len - i.time_of_impact, i.normal, None))
-        .filter(|x| entry.is_none_or(|e| x.distance - e.distance > merge_tolerance(seg.len)));
+        .map(|i| candidate(world, body, seg, seg.len - i.time_of_impact, i.normal, None))
+        .filter(|x| {
+            entry.is_none_or(|e| x.hit.distance - e.hit.distance > merge_tolerance(seg.len))
+        });
     [entry, exit]
 }
 
-/// The unit geometric normal of a mesh triangle (counter-clockwise front).
-fn triangle_normal(mesh: &parry3d_f64::shape::TriMesh, tri: u32) -> DVec3 {
-    let t = mesh.triangle(tri);
-    (t.b - t.a).cross(t.c - t.a).normalize()
+/// The unit geometric normal of a triangle (counter-clockwise front).
+fn triangle_normal(a: DVec3, b: DVec3, c: DVec3) -> DVec3 {
+    (b - a).cross(c - a).normalize()
 }

@@ -11,8 +11,9 @@ use parry3d_f64::query::{
 use parry3d_f64::query::{PointQuery, Ray, RayCast};
 use parry3d_f64::shape::{Segment, Shape, Triangle};
 
+use super::body::Body;
 use super::shapes::ProbeShape;
-use super::world::{Body, ObjectId, View};
+use super::world::{MaterialId, ObjectId, View};
 use super::{PathGeometry, QueryError};
 
 /// Where a swept shape first touches one object.
@@ -34,6 +35,10 @@ pub struct SweepHit {
     pub normal: DVec3,
     /// True when the shape already overlaps the object at the start of the path (then `t` is 0).
     pub started_inside: bool,
+    /// The triangle touched, as the object's file numbers it, when known (meshes).
+    pub triangle: Option<u32>,
+    /// The material of the surface touched, when the file names one.
+    pub material: Option<MaterialId>,
 }
 
 /// How far before an impact the contact geometry is measured again, so that the witness point and
@@ -192,6 +197,13 @@ impl View<'_> {
             (impact.toi, point, normal)
         });
         let distance = geometry.distance_at(impact.segment, toi);
+        let triangle = body
+            .mesh()
+            .filter(|m| impact.part < m.num_triangles() as u32)
+            .map(|_| {
+                self.world
+                    .triangle_number(body.object, body.triangle_id(impact.part))
+            });
         SweepHit {
             object: impact.object,
             distance,
@@ -201,6 +213,8 @@ impl View<'_> {
             point,
             normal,
             started_inside: impact.started_inside,
+            triangle,
+            material: body.material,
         }
     }
 }

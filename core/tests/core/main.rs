@@ -8,6 +8,7 @@ mod expectations;
 mod fuzz_corpus;
 mod hostile_input;
 mod loaders;
+mod messy_meshes;
 mod probe_files;
 mod probe_robustness;
 mod query_properties;
