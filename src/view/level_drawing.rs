@@ -5,7 +5,7 @@ use std::collections::{HashMap, HashSet};
 
 use glam::DVec3;
 
-use super::palette::{Rgb, tag_tone};
+use super::palette::{Rgb, material_tone, tag_tone};
 use super::surface::{Surface, face_normal, shaded, sun_light};
 use plumbline_core::level::{Geometry, Level};
 use plumbline_core::query::placed_primitive_surface;
@@ -85,17 +85,20 @@ fn sun_direction(up: DVec3) -> DVec3 {
     (up * 0.75 + side * 0.45 + other * 0.3).normalize()
 }
 
-/// Every triangle of the level in world coordinates, with its object's tone.
+/// Every triangle of the level in world coordinates, with its tone: its material's where the file
+/// names materials (the parts users named, e.g. floors and roofs, read apart), else its object's.
 fn world_triangles(level: &Level) -> Vec<([DVec3; 3], Rgb)> {
     let mut out = Vec::with_capacity(level.triangle_count());
     for object in &level.objects {
         let tone = tag_tone(&object.tags);
         match &object.geometry {
-            Geometry::Mesh(mesh) => out.extend(
-                mesh.triangles
-                    .iter()
-                    .map(|t| (t.map(|i| mesh.vertices[i as usize]), tone)),
-            ),
+            Geometry::Mesh(mesh) => out.extend(mesh.triangles.iter().enumerate().map(|(k, t)| {
+                let origin = &mesh.origin;
+                let tone = origin
+                    .material(origin.number(k as u32))
+                    .map_or(tone, |m| material_tone(&m.name));
+                (t.map(|i| mesh.vertices[i as usize]), tone)
+            })),
             Geometry::Primitive {
                 shape,
                 translation,

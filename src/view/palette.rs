@@ -122,8 +122,18 @@ pub fn tag_tone(tags: &[String]) -> Rgb {
     if let Some((_, tone)) = TAG_TONES.iter().find(|(name, _)| name == tag) {
         return *tone;
     }
-    // FNV-1a, so the pick is stable across runs and platforms.
-    let hash = tag.bytes().fold(0x811c_9dc5_u32, |h, b| {
+    spare_tone(tag)
+}
+
+/// The surface tone of a material, by its name (the same name keeps its tone).
+pub fn material_tone(name: &str) -> Rgb {
+    spare_tone(name)
+}
+
+/// One of [`SPARE_TONES`], picked by a stable hash of a name (FNV-1a, the same on every run and
+/// platform).
+fn spare_tone(name: &str) -> Rgb {
+    let hash = name.bytes().fold(0x811c_9dc5_u32, |h, b| {
         (h ^ b as u32).wrapping_mul(0x0100_0193)
     });
     SPARE_TONES[hash as usize % SPARE_TONES.len()]
