@@ -25,6 +25,7 @@ fn probe(id: usize, query: ProbeQuery) -> Probe {
         filter: Filter::default(),
         query,
         expect: None,
+        from_rule: None,
     }
 }
 

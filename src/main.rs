@@ -1,6 +1,6 @@
 //! The `plumbline` command: a thin shell over the library. Exit status (SPEC §4): 0 every expectation
-//! holds (for `diff`: no changes), 1 an expectation fails or a probe errs (for `diff`: changes found),
-//! 2 bad usage or input that cannot be read.
+//! holds (for `diff`: no changes; for `lint`: nothing found), 1 an expectation fails or a probe errs
+//! (for `diff`: changes found; for `lint`: findings), 2 bad usage or input that cannot be read.
 
 mod cli;
 
@@ -50,6 +50,12 @@ enum Command {
         /// Metres a distance must move to count as a change.
         #[arg(long, default_value_t = DEFAULT_TOLERANCE, value_parser = cli::parse_tolerance)]
         tolerance: f64,
+    },
+    /// Finds what is wrong with a level's own geometry: objects that interpenetrate or leave
+    /// narrow gaps, props that float or sink, open meshes, duplicate faces, slivers.
+    Lint {
+        #[command(flatten)]
+        args: cli::LintArgs,
     },
     /// Lists a level's objects, tags, triangle counts, bounds and load warnings.
     Info {
@@ -125,6 +131,7 @@ fn run(parsed: Cli) -> Result<ExitCode, String> {
             level,
             allow_outside_paths,
         }) => cli::info(&level, allow_outside_paths),
+        Some(Command::Lint { args }) => cli::lint(&args),
         Some(Command::Open { file, window }) => open(file, window),
         None => open(None, parsed.window),
     }

@@ -79,6 +79,7 @@ fn probes() -> Vec<Probe> {
                 filter: Filter::default(),
                 query,
                 expect: Some(Expect::Word(ExpectWord::Clear)),
+                from_rule: None,
             }
         })
         .collect()
@@ -110,6 +111,11 @@ fn bare_queries(world: &World, probes: &[Probe]) -> usize {
                 let shape = ProbeShape::new(shape, DQuat::IDENTITY).unwrap();
                 view.overlap(&shape, *at).unwrap().len()
             }
+            ProbeQuery::Rest { .. }
+            | ProbeQuery::Sightlines { .. }
+            | ProbeQuery::Coverage { .. } => {
+                unreachable!("the generated probes are single queries")
+            }
         };
     }
     found
@@ -122,6 +128,7 @@ fn bench(c: &mut Criterion) {
     let set = ProbeSet {
         level: "bench.level.json".into(),
         probes: probes(),
+        rules: Vec::new(),
     };
     let out = tempfile::tempdir().unwrap();
     // check digests the probe-set file as read; keep its text as the file would hold it.

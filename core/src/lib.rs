@@ -46,6 +46,7 @@ pub mod error;
 pub mod input;
 pub mod json_text;
 pub mod level;
+pub mod lint;
 pub mod probe;
 pub mod query;
 pub mod report;

@@ -17,11 +17,11 @@ use std::path::{Path, PathBuf};
 use std::borrow::Cow;
 use std::ops::Range;
 
-use crate::check::{ProbeResult, Runner, Summary, text_digest};
+use crate::check::{ProbeResult, Runner, Summary, expand_rules, text_digest};
 use crate::error::{Diagnostic, Error, InputError, Warning};
 use crate::input::{PathPolicy, resolve_named};
-use crate::level::{Level, LoadedLevel, level_digest, load_level};
-use crate::probe::{Probe, ProbeSet, ProbeText};
+use crate::level::{Level, LintSettings, LoadedLevel, level_digest, load_level};
+use crate::probe::{Probe, ProbeSet, ProbeText, Rule};
 use crate::query::World;
 
 /// How to open.
@@ -29,13 +29,23 @@ use crate::query::World;
 pub struct OpenOptions {
     /// Use this level instead of the one the probe set names.
     pub level: Option<PathBuf>,
-    /// Answer these probes instead of the file's (the window's edited probes, on a reloaded level).
-    pub probes: Option<Vec<Probe>>,
+    /// Answer these probes (and rules) instead of the file's (the window's edited set, on a
+    /// reloaded level).
+    pub probes: Option<Edited>,
     /// Keep the level model beside the query world (the window draws it); without it the world takes
     /// the level over, so peak memory holds one copy of the geometry.
     pub keep_level: bool,
     /// Where paths named inside the files may lead (README, "Paths named inside files").
     pub paths: PathPolicy,
+}
+
+/// A probe set being edited: its written probes, and its rules when they were edited too.
+#[derive(Debug, Clone, Default)]
+pub struct Edited {
+    /// The written probes (not those rules give).
+    pub probes: Vec<Probe>,
+    /// The rules, when they differ from the file's.
+    pub rules: Option<Vec<Rule>>,
 }
 
 /// A probe set (or a level alone) opened: the probes, and the level they are about, ready to answer.
@@ -50,9 +60,16 @@ pub struct Opened {
     pub level: OpenLevel,
 }
 
-/// The probes of an opened probe set: the checked file, parsed a chunk at a time as they are
-/// answered, or probes given in memory (the window's edited set).
-pub enum Probes {
+/// The probes of an opened probe set: the checked file (parsed a chunk at a time as they are
+/// answered) or probes given in memory (the window's edited set), then the probes its rules give on
+/// the level.
+pub struct Probes {
+    source: Source,
+    /// The probes the rules give, in rule order.
+    expanded: Vec<Probe>,
+}
+
+enum Source {
     /// A checked probe-set file.
     File(ProbeText),
     /// Probes given in memory, about the level named.
@@ -60,12 +77,16 @@ pub enum Probes {
 }
 
 impl Probes {
-    /// How many probes there are.
-    pub fn len(&self) -> usize {
-        match self {
-            Probes::File(text) => text.len(),
-            Probes::Given(set) => set.probes.len(),
+    fn explicit(&self) -> usize {
+        match &self.source {
+            Source::File(text) => text.len(),
+            Source::Given(set) => set.probes.len(),
         }
+    }
+
+    /// How many probes there are, those the rules give included.
+    pub fn len(&self) -> usize {
+        self.explicit() + self.expanded.len()
     }
 
     /// True when there are none.
@@ -75,39 +96,67 @@ impl Probes {
 
     /// The length of the longest probe id, in characters (for laying out tables).
     pub fn longest_id(&self) -> usize {
-        match self {
-            Probes::File(text) => text.longest_id(),
-            Probes::Given(set) => set
+        let own = match &self.source {
+            Source::File(text) => text.longest_id(),
+            Source::Given(set) => set
                 .probes
                 .iter()
                 .map(|p| p.id.chars().count())
                 .max()
                 .unwrap_or(0),
-        }
+        };
+        self.expanded
+            .iter()
+            .map(|p| p.id.chars().count())
+            .fold(own, usize::max)
     }
 
     /// The level, as the probe set names it.
     pub fn level(&self) -> &str {
-        match self {
-            Probes::File(text) => text.level(),
-            Probes::Given(set) => &set.level,
+        match &self.source {
+            Source::File(text) => text.level(),
+            Source::Given(set) => &set.level,
         }
     }
 
-    /// The probes in `range`, parsed.
+    /// The rules.
+    pub fn rules(&self) -> &[Rule] {
+        match &self.source {
+            Source::File(text) => text.rules(),
+            Source::Given(set) => &set.rules,
+        }
+    }
+
+    /// The probes in `range` (of the written probes, then the rules'), parsed.
     pub fn chunk(&self, range: Range<usize>) -> Result<Cow<'_, [Probe]>, Error> {
-        Ok(match self {
-            Probes::File(text) => Cow::Owned(text.probes(range)?),
-            Probes::Given(set) => Cow::Borrowed(&set.probes[range]),
+        let explicit = self.explicit();
+        if range.start >= explicit {
+            return Ok(Cow::Borrowed(
+                &self.expanded[range.start - explicit..range.end - explicit],
+            ));
+        }
+        let own_end = range.end.min(explicit);
+        let mut probes: Vec<Probe> = match &self.source {
+            Source::File(text) => text.probes(range.start..own_end)?,
+            Source::Given(set) => set.probes[range.start..own_end].to_vec(),
+        };
+        if range.end > explicit {
+            probes.extend_from_slice(&self.expanded[..range.end - explicit]);
+        }
+        Ok(Cow::Owned(probes))
+    }
+
+    /// The set as written — its probes and its rules — parsed.
+    pub fn to_set(&self) -> Result<ProbeSet, Error> {
+        Ok(match &self.source {
+            Source::File(text) => text.to_set()?,
+            Source::Given(set) => set.clone(),
         })
     }
 
-    /// The whole set, parsed.
-    pub fn to_set(&self) -> Result<ProbeSet, Error> {
-        Ok(match self {
-            Probes::File(text) => text.to_set()?,
-            Probes::Given(set) => set.clone(),
-        })
+    /// Every probe, the rules' included, parsed.
+    pub fn all(&self) -> Result<Vec<Probe>, Error> {
+        Ok(self.chunk(0..self.len())?.into_owned())
     }
 }
 
@@ -131,6 +180,8 @@ pub struct OpenLevel {
     pub diagnostics: Vec<Diagnostic>,
     /// Every file read to load the level (the level file first).
     pub files: Vec<PathBuf>,
+    /// The level file's `lint` section.
+    pub lint: LintSettings,
     /// The query world.
     pub world: World,
 }
@@ -154,7 +205,7 @@ pub fn open(path: &Path, options: &OpenOptions) -> Result<Opened, Error> {
         (
             Some(path.to_path_buf()),
             Some(digest),
-            Probes::File(text),
+            Source::File(text),
             beside,
         )
     } else {
@@ -162,21 +213,35 @@ pub fn open(path: &Path, options: &OpenOptions) -> Result<Opened, Error> {
         let set = ProbeSet {
             level: name.to_string(),
             probes: Vec::new(),
+            rules: Vec::new(),
         };
-        (None, None, Probes::Given(set), path.to_path_buf())
+        (None, None, Source::Given(set), path.to_path_buf())
     };
     if let Some(edited) = &options.probes {
-        probes = Probes::Given(ProbeSet {
-            level: probes.level().to_string(),
-            probes: edited.clone(),
+        let (level, rules) = match &probes {
+            Source::File(text) => (text.level().to_string(), text.rules().to_vec()),
+            Source::Given(set) => (set.level.clone(), set.rules.clone()),
+        };
+        probes = Source::Given(ProbeSet {
+            level,
+            probes: edited.probes.clone(),
+            rules: edited.rules.clone().unwrap_or(rules),
         });
     }
     let level_path = options.level.clone().unwrap_or(level_path);
     let level = open_level(&level_path, options)?;
+    let rules = match &probes {
+        Source::File(text) => text.rules(),
+        Source::Given(set) => &set.rules,
+    };
+    let expanded = expand_rules(rules, &level.world);
     Ok(Opened {
         probes_path,
         probes_digest,
-        probes,
+        probes: Probes {
+            source: probes,
+            expanded,
+        },
         level,
     })
 }
@@ -187,6 +252,7 @@ fn open_level(path: &Path, options: &OpenOptions) -> Result<OpenLevel, Error> {
         level,
         diagnostics,
         files,
+        lint,
     } = load_level(path, options.paths)?;
     let digest = level_digest(&level);
     let (triangles, objects) = (level.triangle_count(), level.objects.len());
@@ -221,6 +287,7 @@ fn open_level(path: &Path, options: &OpenOptions) -> Result<OpenLevel, Error> {
         objects,
         diagnostics,
         files,
+        lint,
         world,
     })
 }

@@ -279,7 +279,8 @@ fn write_marks(
         .take(super::viewport::MAX_DRAWN_PROBES)
         .filter_map(|&i| {
             let probe = &document.probes.probes[i];
-            let at = viewport.to_screen(rect, start_point(&probe.query))?;
+            let result = document.results.get(i);
+            let at = viewport.to_screen(rect, start_point(&probe.query, result))?;
             rect.contains(at).then(|| {
                 serde_json::json!({
                     "id": probe.id,

@@ -39,11 +39,13 @@ pub enum Command {
     FrameProbe,
     /// Fly mode on or off.
     ToggleFly,
+    /// Open or close the rules window.
+    Rules,
 }
 
 impl Command {
     /// Commands that have a shortcut, in the order shortcuts are tried.
-    pub const WITH_SHORTCUTS: [Command; 19] = [
+    pub const WITH_SHORTCUTS: [Command; 20] = [
         Command::Open,
         Command::SaveAs,
         Command::Save,
@@ -63,6 +65,7 @@ impl Command {
         Command::FrameLevel,
         Command::FrameProbe,
         Command::ToggleFly,
+        Command::Rules,
     ];
 
     /// The menu item's words.
@@ -87,6 +90,7 @@ impl Command {
             Command::FrameLevel => "Frame level",
             Command::FrameProbe => "Frame probe",
             Command::ToggleFly => "Fly mode",
+            Command::Rules => "Rules…",
         }
     }
 
@@ -110,6 +114,7 @@ impl Command {
             Command::FrameLevel => plain(Key::Home),
             Command::FrameProbe => plain(Key::F),
             Command::ToggleFly => plain(Key::G),
+            Command::Rules => command(Key::R),
         })
     }
 

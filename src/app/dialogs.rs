@@ -194,7 +194,13 @@ impl Workbench {
             ui.horizontal(|ui| {
                 if ui.button("Restore").clicked() {
                     if let Some(recovered) = self.document.recovered() {
-                        self.replace_probes("restore", "restore recovered changes", recovered);
+                        self.history.record(
+                            "restore",
+                            "restore recovered changes",
+                            &self.document.written(),
+                        );
+                        self.history.seal();
+                        self.restore(recovered);
                         self.say("Recovered changes restored; save to keep them.".into());
                     }
                     close = true;

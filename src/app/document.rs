@@ -7,14 +7,14 @@ use std::time::SystemTime;
 
 use plumbline_core::atomic::{write_atomic, write_with_backup};
 use plumbline_core::check::{
-    Aspect, DEFAULT_TOLERANCE, ProbeResult, Summary, answer_probe, changes,
+    Aspect, DEFAULT_TOLERANCE, ProbeResult, Summary, answer_probe, changes, expand_rules,
 };
 use plumbline_core::error::{Diagnostic, Error};
 use plumbline_core::input::PathPolicy;
 use plumbline_core::level::{Geometry, Level};
-use plumbline_core::probe::{Probe, ProbeSet, parse_probe_set, probe_set_to_json};
+use plumbline_core::probe::{Probe, ProbeSet, Rule, parse_probe_set, probe_set_to_json};
 use plumbline_core::query::World;
-use plumbline_core::session::{OpenOptions, Opened, open};
+use plumbline_core::session::{Edited, OpenOptions, Opened, open};
 
 /// An open level with its probes answered.
 pub struct Document {
@@ -70,8 +70,12 @@ impl Document {
     }
 
     /// Replaces the probes, answering the ones that changed (a probe equal to one with its id before
-    /// keeps that answer), and counts an edit.
+    /// keeps that answer), and counts an edit. The written probes are listed first, in the order
+    /// given, then the rules' probes.
     pub fn set_probes(&mut self, probes: Vec<Probe>) {
+        let (mut probes, made): (Vec<Probe>, Vec<Probe>) =
+            probes.into_iter().partition(|p| p.from_rule.is_none());
+        probes.extend(made);
         let old: std::collections::HashMap<&str, (&Probe, &ProbeResult)> = self
             .probes
             .probes
@@ -89,6 +93,29 @@ impl Document {
         self.results = results;
         self.probes.probes = probes;
         self.edits += 1;
+    }
+
+    /// The probe set as the user wrote it: the written probes and the rules (what undo keeps).
+    pub fn written(&self) -> Written {
+        Written {
+            probes: written_probes(&self.probes.probes),
+            rules: self.probes.rules.clone(),
+        }
+    }
+
+    /// Puts back a written state: its probes, and its rules' probes given anew on the level;
+    /// answers what changed and counts an edit.
+    pub fn restore(&mut self, written: Written) {
+        let mut probes = written.probes;
+        probes.extend(expand_rules(&written.rules, &self.world));
+        self.probes.rules = written.rules;
+        self.set_probes(probes);
+    }
+
+    /// Replaces the rules (the written probes stay), answers what changed, and counts an edit.
+    pub fn set_rules(&mut self, rules: Vec<Rule>) {
+        let probes = written_probes(&self.probes.probes);
+        self.restore(Written { probes, rules });
     }
 
     /// Replaces probe `index` and answers it, and counts an edit.
@@ -117,7 +144,8 @@ impl Document {
     fn probe_set_for(&self, path: &Path) -> ProbeSet {
         ProbeSet {
             level: level_reference(path, &self.level_path),
-            probes: self.probes.probes.clone(),
+            probes: written_probes(&self.probes.probes),
+            rules: self.probes.rules.clone(),
         }
     }
 
@@ -155,13 +183,17 @@ impl Document {
         write_atomic(&path, text.as_bytes()).map_err(|e| format!("{}: {e}", path.display()))
     }
 
-    /// The probes kept in a recovery file from an earlier session, when there is one that differs
-    /// from what is open.
-    pub fn recovered(&self) -> Option<Vec<Probe>> {
+    /// The probes and rules kept in a recovery file from an earlier session, when there is one
+    /// that differs from what is open.
+    pub fn recovered(&self) -> Option<Written> {
         let path = self.recovery_path();
         let text = std::fs::read_to_string(&path).ok()?;
         let set = parse_probe_set(&path, &text).ok()?;
-        (set.probes != self.probes.probes).then_some(set.probes)
+        let kept = Written {
+            probes: set.probes,
+            rules: set.rules,
+        };
+        (kept != self.written()).then_some(kept)
     }
 
     /// Deletes the recovery file (changes saved or discarded).
@@ -179,24 +211,32 @@ impl Document {
             mut results,
         } = reloaded.0;
         let level = opened.level;
-        if probes.probes != self.probes.probes {
-            results = self
-                .probes
-                .probes
-                .iter()
-                .map(|p| answer_probe(&level.world, p))
-                .collect();
+        // The rules' probes as they are on the new level, after the written probes as edited now.
+        let mut now = written_probes(&self.probes.probes);
+        now.extend(expand_rules(&self.probes.rules, &level.world));
+        if probes.probes != now {
+            results = now.iter().map(|p| answer_probe(&level.world, p)).collect();
         }
-        let changed = self
-            .results
+        // Changes are told for probes there before and after (a rule's probe for a new object is
+        // new, not changed).
+        let before: std::collections::HashMap<&str, &ProbeResult> = self
+            .probes
+            .probes
+            .iter()
+            .zip(&self.results)
+            .map(|(p, r)| (p.id.as_str(), r))
+            .collect();
+        let changed = now
             .iter()
             .zip(&results)
             .enumerate()
-            .filter_map(|(i, (old, new))| {
+            .filter_map(|(i, (probe, new))| {
+                let old = before.get(probe.id.as_str())?;
                 let aspects = changes(old, new, DEFAULT_TOLERANCE);
                 (!aspects.is_empty()).then_some((i, aspects))
             })
             .collect();
+        self.probes.probes = now;
         self.stamps = stamps(&level.files);
         self.level_digest = level.digest;
         self.diagnostics = level.diagnostics;
@@ -233,6 +273,24 @@ impl Document {
     }
 }
 
+/// The probe set as the user wrote it: probes and rules, without the probes the rules give.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Written {
+    /// The written probes, in order.
+    pub probes: Vec<Probe>,
+    /// The rules, in order.
+    pub rules: Vec<Rule>,
+}
+
+/// The probes of `probes` that the user wrote (not given by a rule).
+fn written_probes(probes: &[Probe]) -> Vec<Probe> {
+    probes
+        .iter()
+        .filter(|p| p.from_rule.is_none())
+        .cloned()
+        .collect()
+}
+
 /// The session keeps the level model when asked, and the document always asks.
 const KEPT: &str = "the session keeps the level model when asked";
 
@@ -246,7 +304,7 @@ struct Answered {
 
 impl Answered {
     /// Opens `path` (answering `probes` instead of the file's, when given) and answers every probe.
-    fn open(path: &Path, probes: Option<Vec<Probe>>, paths: PathPolicy) -> Result<Answered, Error> {
+    fn open(path: &Path, probes: Option<Edited>, paths: PathPolicy) -> Result<Answered, Error> {
         let options = OpenOptions {
             probes,
             keep_level: true,
@@ -255,7 +313,12 @@ impl Answered {
         };
         let opened = open(path, &options)?;
         let results = opened.answer(None, &|_| {})?;
-        let probes = opened.probes.to_set()?;
+        let written = opened.probes.to_set()?;
+        // The document lists every probe, the rules' included (they are not saved: their rules are).
+        let probes = ProbeSet {
+            probes: opened.probes.all()?,
+            ..written
+        };
         Ok(Answered {
             opened,
             probes,
@@ -271,12 +334,12 @@ pub struct Reloaded(Answered);
 impl Reloaded {
     /// Loads the level at `level_path` and answers `probes` on it (the slow part of a reload; it
     /// needs nothing from the open document, so it can run on another thread).
-    pub fn load(
-        level_path: PathBuf,
-        probes: Vec<Probe>,
-        paths: PathPolicy,
-    ) -> Result<Reloaded, Error> {
-        Answered::open(&level_path, Some(probes), paths).map(Reloaded)
+    pub fn load(level_path: PathBuf, set: &ProbeSet, paths: PathPolicy) -> Result<Reloaded, Error> {
+        let edited = Edited {
+            probes: written_probes(&set.probes),
+            rules: Some(set.rules.clone()),
+        };
+        Answered::open(&level_path, Some(edited), paths).map(Reloaded)
     }
 }
 
@@ -372,6 +435,7 @@ mod tests {
                 hits: None,
             },
             expect: None,
+            from_rule: None,
         };
         let probes = [probe("ray"), probe("ray-2")];
         assert_eq!(unused_id(&probes, "ray"), "ray-3");

@@ -11,7 +11,9 @@ use super::badge::color32;
 use crate::view::palette;
 
 use plumbline_core::level::ShapeSpec;
-use plumbline_core::probe::{Conditions, Expect, ExpectWord, HitsMode, Probe, ProbeQuery, Range};
+use plumbline_core::probe::{
+    Conditions, Expect, ExpectWord, HitsMode, Probe, ProbeQuery, Range, Spots,
+};
 
 /// An edit made in the inspector.
 #[derive(Debug, Clone, PartialEq)]
@@ -246,8 +248,59 @@ fn query_fields(ui: &mut egui::Ui, query: &mut ProbeQuery) -> Option<String> {
             mark(shape_editor(ui, shape, false), "shape");
             mark(point(ui, "at", at), "at");
         }
+        ProbeQuery::Rest {
+            shape, at, search, ..
+        } => {
+            mark(shape_editor(ui, shape, false), "shape");
+            mark(point(ui, "at", at), "at");
+            let mut reach = search.unwrap_or(plumbline_core::probe::REST_SEARCH);
+            if number(ui, "look below", &mut reach, " m", 0.01) {
+                *search = Some(reach);
+                mark(true, "search");
+            }
+        }
+        ProbeQuery::Sightlines { spots } => spots_editor(ui, spots, &mut mark),
+        ProbeQuery::Coverage {
+            spots,
+            region,
+            spacing,
+        } => {
+            spots_editor(ui, spots, &mut mark);
+            let mut lo = DVec3::from_array(region.min);
+            let mut hi = DVec3::from_array(region.max);
+            if point(ui, "region from", &mut lo) {
+                region.min = lo.to_array();
+                mark(true, "region");
+            }
+            if point(ui, "region to", &mut hi) {
+                region.max = hi.to_array();
+                mark(true, "region");
+            }
+            mark(number(ui, "spacing", spacing, " m", 0.05), "spacing");
+        }
     }
     field
+}
+
+/// A set of spots: each named point, and how far above tagged objects their eyes are.
+fn spots_editor(ui: &mut egui::Ui, spots: &mut Spots, mark: &mut dyn FnMut(bool, &str)) {
+    for (k, spot) in spots.points.iter_mut().enumerate() {
+        let mut at = DVec3::from_array(spot.at);
+        if point(ui, &spot.name.clone(), &mut at) {
+            spot.at = at.to_array();
+            mark(true, &format!("spot {k}"));
+        }
+    }
+    if !spots.tags.is_empty() {
+        ui.label("tagged spots");
+        ui.label(spots.tags.join(", "));
+        ui.end_row();
+        let mut eye = spots.eye.unwrap_or(plumbline_core::probe::EYE_HEIGHT);
+        if number(ui, "eye height", &mut eye, " m", -1.0e6) {
+            spots.eye = Some(eye);
+            mark(true, "eye");
+        }
+    }
 }
 
 fn hits_mode(ui: &mut egui::Ui, hits: &mut Option<HitsMode>) -> bool {

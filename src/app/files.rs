@@ -86,9 +86,9 @@ impl Workbench {
 
     /// Offers back the recovery file of the open document, when there is one.
     pub fn offer_recovery(&mut self) {
-        if let Some(probes) = self.document.recovered() {
+        if let Some(kept) = self.document.recovered() {
             self.dialog = Some(Dialog::Recovery {
-                probes: probes.len(),
+                probes: kept.probes.len(),
             });
         }
     }

@@ -20,13 +20,13 @@ impl Workbench {
             Command::SaveAs => self.ask_save_as(),
             Command::Quit => ctx.send_viewport_cmd(egui::ViewportCommand::Close),
             Command::Undo => {
-                if let Some(probes) = self.history.undo(&self.document.probes.probes) {
-                    self.set_probes(probes);
+                if let Some(state) = self.history.undo(self.document.written()) {
+                    self.restore(state);
                 }
             }
             Command::Redo => {
-                if let Some(probes) = self.history.redo(&self.document.probes.probes) {
-                    self.set_probes(probes);
+                if let Some(state) = self.history.redo(self.document.written()) {
+                    self.restore(state);
                 }
             }
             Command::Duplicate => self.duplicate(),
@@ -44,6 +44,7 @@ impl Workbench {
             Command::FrameLevel => self.viewport.frame_level(),
             Command::FrameProbe => self.after_selection(true),
             Command::ToggleFly => self.viewport.fly = !self.viewport.fly,
+            Command::Rules => self.toggle_rules(),
         }
     }
 
@@ -133,6 +134,7 @@ impl Workbench {
             let events = self.viewport.ui(ui, &scene);
             self.view_events(events, &shown);
         });
+        self.rules_window(&ctx);
         self.dialog_ui(&ctx);
         // One measurement at a time; changes made meanwhile are measured when it is done.
         if self.plot_wanted && !self.plots.is_busy() {

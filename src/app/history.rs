@@ -1,41 +1,49 @@
-//! Undo and redo for every edit of the probe set. Each entry is the whole list of probes before an
-//! edit (probes are small; answers are not kept, they are recomputed or reused by id). Consecutive
-//! edits of the same field, such as the frames of one drag or the keys typed into one box, make one
-//! entry until the history is sealed.
-
-use plumbline_core::probe::Probe;
+//! Undo and redo for every edit of the probe set. Each entry is the whole state before an edit (the
+//! written probes and the rules: small; answers are not kept, they are recomputed or reused by id).
+//! Consecutive edits of the same field, such as the frames of one drag or the keys typed into one
+//! box, make one entry until the history is sealed.
 
 /// Entries kept at most; the oldest go first.
 const DEPTH: usize = 500;
 
-/// One state of the probes, with what the edit that left it was called.
+/// One state, with what the edit that left it was called.
 #[derive(Debug, Clone, PartialEq)]
-pub struct Entry {
-    /// The probes.
-    pub probes: Vec<Probe>,
+pub struct Entry<S> {
+    /// The state.
+    pub state: S,
     /// The edit's name, for menus ("Undo move point").
     pub what: String,
 }
 
-/// The undo and redo stacks.
-#[derive(Debug, Default)]
-pub struct History {
-    undo: Vec<Entry>,
-    redo: Vec<Entry>,
+/// The undo and redo stacks of states `S`.
+#[derive(Debug)]
+pub struct History<S> {
+    undo: Vec<Entry<S>>,
+    redo: Vec<Entry<S>>,
     /// The field being edited, while consecutive edits of it merge.
     open: Option<String>,
 }
 
-impl History {
-    /// Records the probes as they were before an edit of `key`, called `what`. Another edit of the
+impl<S> Default for History<S> {
+    fn default() -> Self {
+        History {
+            undo: Vec::new(),
+            redo: Vec::new(),
+            open: None,
+        }
+    }
+}
+
+impl<S: Clone> History<S> {
+    /// Records the state as it was before an edit of `key`, called `what`. Another edit of the
     /// same key before [`History::seal`] adds nothing (it is the same gesture).
-    pub fn record(&mut self, key: &str, what: &str, before: &[Probe]) {
+    pub fn record(&mut self, key: &str, what: &str, before: &S) {
         if self.open.as_deref() == Some(key) {
             return;
         }
         self.open = Some(key.to_string());
         self.undo.push(Entry {
-            probes: before.to_vec(),
+            state: before.clone(),
             what: what.to_string(),
         });
         if self.undo.len() > DEPTH {
@@ -49,26 +57,26 @@ impl History {
         self.open = None;
     }
 
-    /// Steps back: returns the probes to restore, given the current ones (kept for redo).
-    pub fn undo(&mut self, current: &[Probe]) -> Option<Vec<Probe>> {
+    /// Steps back: returns the state to restore, given the current one (kept for redo).
+    pub fn undo(&mut self, current: S) -> Option<S> {
         self.seal();
         let entry = self.undo.pop()?;
         self.redo.push(Entry {
-            probes: current.to_vec(),
+            state: current,
             what: entry.what.clone(),
         });
-        Some(entry.probes)
+        Some(entry.state)
     }
 
     /// Steps forward again after an undo.
-    pub fn redo(&mut self, current: &[Probe]) -> Option<Vec<Probe>> {
+    pub fn redo(&mut self, current: S) -> Option<S> {
         self.seal();
         let entry = self.redo.pop()?;
         self.undo.push(Entry {
-            probes: current.to_vec(),
+            state: current,
             what: entry.what.clone(),
         });
-        Some(entry.probes)
+        Some(entry.state)
     }
 
     /// What undo would undo.
@@ -91,7 +99,7 @@ impl History {
 mod tests {
     use super::*;
     use glam::DVec3;
-    use plumbline_core::probe::ProbeQuery;
+    use plumbline_core::probe::{Probe, ProbeQuery};
 
     fn probe(id: &str) -> Probe {
         Probe {
@@ -104,12 +112,13 @@ mod tests {
                 hits: None,
             },
             expect: None,
+            from_rule: None,
         }
     }
 
     #[test]
     fn undo_and_redo_walk_the_states_and_a_gesture_is_one_step() {
-        let mut history = History::default();
+        let mut history = History::<Vec<Probe>>::default();
         let a = vec![probe("a")];
         let ab = vec![probe("a"), probe("b")];
         history.record("add", "add b", &a);
@@ -123,21 +132,21 @@ mod tests {
         }
         history.seal();
         assert_eq!(history.undo_name(), Some("move point"));
-        assert_eq!(history.undo(&dragged), Some(ab.clone()));
-        assert_eq!(history.undo(&ab), Some(a.clone()));
-        assert_eq!(history.undo(&a), None);
-        assert_eq!(history.redo(&a), Some(ab.clone()));
-        assert_eq!(history.redo(&ab), Some(dragged.clone()));
-        assert_eq!(history.redo(&dragged), None);
+        assert_eq!(history.undo(dragged.clone()), Some(ab.clone()));
+        assert_eq!(history.undo(ab.clone()), Some(a.clone()));
+        assert_eq!(history.undo(a.clone()), None);
+        assert_eq!(history.redo(a.clone()), Some(ab.clone()));
+        assert_eq!(history.redo(ab.clone()), Some(dragged.clone()));
+        assert_eq!(history.redo(dragged.clone()), None);
     }
 
     #[test]
     fn a_new_edit_after_undo_drops_the_redo_branch() {
-        let mut history = History::default();
+        let mut history = History::<Vec<Probe>>::default();
         let a = vec![probe("a")];
         history.record("k1", "first", &a);
         let b = vec![probe("b")];
-        assert_eq!(history.undo(&b), Some(a.clone()));
+        assert_eq!(history.undo(b.clone()), Some(a.clone()));
         history.record("k2", "second", &a);
         assert_eq!(history.redo_name(), None);
     }

@@ -139,7 +139,26 @@ pub fn inspector_ui(
         ))
         .weak(),
     );
-    ui.horizontal(|ui| command_buttons(ui, &mut action));
+    if let Some(from) = &probe.from_rule {
+        ui.label(
+            RichText::new(format!(
+                "Made by rule {} for {}. Edit the rule (Probe > Rules…) to change it;                  Duplicate makes a copy of your own.",
+                from.rule,
+                from.object.as_deref().unwrap_or("no object")
+            ))
+            .weak(),
+        );
+        ui.horizontal(|ui| {
+            if ui.button(Command::Duplicate.name()).clicked() {
+                action = Some(InspectorAction::Run(Command::Duplicate));
+            }
+            if ui.button(Command::Rules.name()).clicked() {
+                action = Some(InspectorAction::Run(Command::Rules));
+            }
+        });
+    } else {
+        ui.horizontal(|ui| command_buttons(ui, &mut action));
+    }
     ui.separator();
     egui::CollapsingHeader::new(format!("Hits ({})", result.hits.len()))
         .default_open(true)
@@ -148,6 +167,9 @@ pub fn inspector_ui(
         egui::CollapsingHeader::new("Clearance along the path")
             .default_open(true)
             .show(ui, |ui| clearance_plot(ui, plot));
+    }
+    if probe.from_rule.is_some() {
+        return action;
     }
     // Closed until first opened (then remembered): most selections are to read the answer, and the
     // editor's widgets cost a few milliseconds a frame on a CPU rasteriser.
@@ -256,7 +278,26 @@ fn question_words(probe: &Probe) -> String {
         }
         ProbeQuery::Closest { shape, .. } => format!("closest to a {}", shape_words(shape)),
         ProbeQuery::Overlap { shape, .. } => format!("overlap of a {}", shape_words(shape)),
+        ProbeQuery::Rest { shape, .. } => format!("rest of a {}", shape_words(shape)),
+        ProbeQuery::Sightlines { spots } => format!("sightlines among {}", spots_words(spots)),
+        ProbeQuery::Coverage { spots, spacing, .. } => format!(
+            "coverage from {}, every {}",
+            spots_words(spots),
+            metres(*spacing)
+        ),
     }
+}
+
+/// A set of spots in a few words.
+fn spots_words(spots: &plumbline_core::probe::Spots) -> String {
+    let mut parts = Vec::new();
+    if !spots.points.is_empty() {
+        parts.push(format!("{} spots", spots.points.len()));
+    }
+    if !spots.tags.is_empty() {
+        parts.push(format!("objects tagged {}", spots.tags.join(" or ")));
+    }
+    parts.join(" and ")
 }
 
 /// A unit direction, compactly (two decimals are enough to read which way it points).
@@ -340,6 +381,13 @@ fn yes_no(b: bool) -> String {
 
 /// The hits as a table; clicking a row marks that hit in the view.
 fn hits_table(ui: &mut egui::Ui, result: &ProbeResult, selection: &mut Selection) {
+    if matches!(
+        result.hits,
+        Hits::Rest(_) | Hits::Sightlines(_) | Hits::Coverage(_)
+    ) {
+        super::level_answers::answer_ui(ui, result, selection);
+        return;
+    }
     if result.hits.is_empty() {
         ui.label("No hits: the probe is clear.");
         return;
@@ -349,6 +397,7 @@ fn hits_table(ui: &mut egui::Ui, result: &ProbeResult, selection: &mut Selection
         Hits::Sweep(_) => ["#", "object", "distance", "normal", "time of impact"],
         Hits::Closest(_) => ["#", "object", "distance", "normal", "overlapping"],
         Hits::Overlap(_) => ["#", "object", "depth", "direction", "enclosed"],
+        Hits::Rest(_) | Hits::Sightlines(_) | Hits::Coverage(_) => return,
     };
     // Per hit: object, distance or depth, normal or direction, and the kind's own last column.
     let named = |object: &str, material: &Option<std::sync::Arc<str>>| match material {
@@ -399,6 +448,7 @@ fn hits_table(ui: &mut egui::Ui, result: &ProbeResult, selection: &mut Selection
                 (object, x.depth, x.direction, yes_no(x.enclosed))
             })
             .collect(),
+        Hits::Rest(_) | Hits::Sightlines(_) | Hits::Coverage(_) => Vec::new(),
     };
     let rows: Vec<[String; 5]> = cells
         .into_iter()

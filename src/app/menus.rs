@@ -76,6 +76,10 @@ impl Workbench {
                 if menu_item(ui, Command::FinishPath, self.tool == Tool::Sweep) {
                     chosen = Some(Command::FinishPath);
                 }
+                ui.separator();
+                if menu_item(ui, Command::Rules, true) {
+                    chosen = Some(Command::Rules);
+                }
             });
             ui.menu_button("View", |ui| {
                 for command in [Command::FrameLevel, Command::FrameProbe, Command::ToggleFly] {

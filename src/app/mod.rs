@@ -3,7 +3,8 @@
 //!
 //! [`Workbench`] keeps the window's state; each panel and dialog is a small function or `impl
 //! Workbench` block in a file of its own that borrows it ([`menus`], [`toolbar`], [`probe_list`],
-//! [`inspector`], [`summary_bar`], [`dialogs`], [`viewport`]), so tests drive them headlessly.
+//! [`inspector`], [`summary_bar`], [`dialogs`], [`rules_panel`], [`viewport`]), so tests drive them
+//! headlessly.
 //! [`frame`] lays them out for one frame; [`editing`] is the one way probes change; [`launch`]
 //! starts the window.
 
@@ -20,10 +21,12 @@ pub mod history;
 pub mod inspector;
 pub mod jobs;
 mod launcher;
+pub mod level_answers;
 pub mod menus;
 pub mod plotting;
 pub mod probe_list;
 pub mod reload;
+pub mod rules_panel;
 mod selection;
 pub mod summary_bar;
 pub mod toolbar;
@@ -62,7 +65,7 @@ pub struct Workbench {
     /// The 3D view.
     pub viewport: Viewport,
     /// Undo and redo.
-    pub history: History,
+    pub history: History<document::Written>,
     /// The tool in hand and the points placed with it so far.
     pub tool: Tool,
     placed: Vec<DVec3>,
@@ -86,6 +89,8 @@ pub struct Workbench {
     pub recent: Vec<PathBuf>,
     /// The question being asked, if any.
     pub dialog: Option<Dialog>,
+    /// The rules window, while it is open.
+    pub rules_draft: Option<rules_panel::RulesDraft>,
     message: Option<(String, Instant)>,
     last_autosave: Instant,
     autosaved: Option<u64>,
@@ -119,6 +124,7 @@ impl Workbench {
             reload: Background::default(),
             recent: Vec::new(),
             dialog: None,
+            rules_draft: None,
             message: None,
             last_autosave: Instant::now(),
             autosaved: None,

@@ -31,6 +31,36 @@ pub struct ListFilter {
     pub kind: Option<ProbeKind>,
     /// Only this verdict.
     pub verdict: Option<Verdict>,
+    /// Only the written probes, or only one rule's.
+    pub origin: Option<Origin>,
+}
+
+/// Where probes come from.
+#[derive(Debug, Clone, PartialEq, Eq, Hash)]
+pub enum Origin {
+    /// Written in the probe set.
+    Written,
+    /// Made by the rule with this id.
+    Rule(String),
+}
+
+impl Origin {
+    /// True when `probe` comes from here.
+    fn holds(&self, probe: &plumbline_core::probe::Probe) -> bool {
+        match (self, &probe.from_rule) {
+            (Origin::Written, None) => true,
+            (Origin::Rule(id), Some(from)) => *from.rule == **id,
+            _ => false,
+        }
+    }
+
+    /// The filter's words.
+    fn name(&self) -> String {
+        match self {
+            Origin::Written => "written".into(),
+            Origin::Rule(id) => format!("rule {id}"),
+        }
+    }
 }
 
 impl ListFilter {
@@ -47,7 +77,8 @@ impl ListFilter {
                 let Some(result) = document.results.get(i) else {
                     return false;
                 };
-                let kind_ok = self.kind.is_none_or(|k| probe.query.kind() == k);
+                let kind_ok = self.kind.is_none_or(|k| probe.query.kind() == k)
+                    && self.origin.as_ref().is_none_or(|o| o.holds(probe));
                 let verdict_ok = self.verdict.is_none_or(|v| result.verdict == v);
                 let text_ok = needle.is_empty()
                     || probe.id.to_lowercase().contains(&needle)
@@ -102,6 +133,25 @@ pub fn probe_list_ui(
                 }
             });
     });
+    if !document.probes.rules.is_empty() {
+        egui::ComboBox::from_label("From")
+            .selected_text(
+                filter
+                    .origin
+                    .as_ref()
+                    .map_or("written and rules".into(), Origin::name),
+            )
+            .width(170.0)
+            .show_ui(ui, |ui| {
+                ui.selectable_value(&mut filter.origin, None, "written and rules");
+                ui.selectable_value(&mut filter.origin, Some(Origin::Written), "written");
+                for rule in &document.probes.rules {
+                    let origin = Origin::Rule(rule.id.clone());
+                    let name = origin.name();
+                    ui.selectable_value(&mut filter.origin, Some(origin), name);
+                }
+            });
+    }
     ui.label(
         RichText::new(format!(
             "{} of {} probes",
@@ -209,10 +259,14 @@ fn probe_row(
         egui::FontId::proportional(13.0),
         ui.visuals().strong_text_color(),
     );
+    let kind_words = match &probe.from_rule {
+        Some(_) => format!("{} by rule", probe.query.kind().name()),
+        None => probe.query.kind().name().to_string(),
+    };
     let kind = painter.text(
         egui::pos2(id.right() + 8.0, top),
         egui::Align2::LEFT_TOP,
-        probe.query.kind().name(),
+        kind_words,
         egui::FontId::proportional(11.5),
         ui.visuals().weak_text_color(),
     );

@@ -33,10 +33,10 @@ impl Workbench {
                     "The level changed on disk: reloading it and answering every probe…".into(),
                 );
                 let path = self.document.level_path.clone();
-                let probes = self.document.probes.probes.clone();
+                let set = self.document.probes.clone();
                 let paths = self.document.paths;
                 self.reload
-                    .start(ctx, move || Reloaded::load(path, probes, paths));
+                    .start(ctx, move || Reloaded::load(path, &set, paths));
             }
         }
         ctx.request_repaint_after(DISK_CHECK);

@@ -197,6 +197,7 @@ pub fn new_probe(tool: Tool, id: String, points: &[DVec3]) -> Option<Probe> {
         filter: Filter::default(),
         query,
         expect: None,
+        from_rule: None,
     })
 }
 

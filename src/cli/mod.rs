@@ -3,6 +3,7 @@
 mod check;
 mod diff;
 mod info;
+mod lint;
 mod terminal;
 mod watch;
 mod window;
@@ -10,6 +11,7 @@ mod window;
 pub use check::{CheckOptions, check};
 pub use diff::diff;
 pub use info::info;
+pub use lint::{LintArgs, lint};
 pub use watch::watch;
 pub use window::WindowArgs;
 

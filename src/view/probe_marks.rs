@@ -48,7 +48,7 @@ pub fn probe_marks(probe: &Probe, result: &ProbeResult, emphasis: Emphasis, out:
     } else {
         WIDTH
     };
-    let start = start_point(&probe.query);
+    let start = start_point(&probe.query, Some(result));
     out.push(Mark::Point {
         at: start,
         colour: if emphasis.selected { SELECTED } else { colour },
@@ -150,24 +150,198 @@ pub fn probe_marks(probe: &Probe, result: &ProbeResult, emphasis: Emphasis, out:
                 hit_marks(point, direction, i, emphasis, out);
             }
         }
+        (
+            ProbeQuery::Rest {
+                shape,
+                at,
+                rotation,
+                ..
+            },
+            Hits::Rest(hits),
+        ) => {
+            ShapeGhost::new(shape, *rotation).place(*at, colour, 80, out);
+            for (i, hit) in hits.iter().enumerate() {
+                let point = DVec3::from(hit.point);
+                out.push(Mark::Line {
+                    from: *at,
+                    to: point,
+                    colour,
+                    width,
+                    dashed: true,
+                });
+                hit_marks(point, hit.normal.into(), i, emphasis, out);
+            }
+        }
+        (ProbeQuery::Sightlines { .. }, Hits::Sightlines(pairs)) if emphasis.selected => {
+            sightline_marks(pairs, colour, width, emphasis, out);
+        }
+        // Whole-level answers cover the view: drawn in full only while selected.
+        (ProbeQuery::Coverage { region, .. }, Hits::Coverage(records)) if emphasis.selected => {
+            box_outline(
+                region.min.into(),
+                region.max.into(),
+                colour,
+                width * 0.6,
+                out,
+            );
+            for record in records {
+                coverage_marks(record, out);
+            }
+        }
         _ => {}
     }
 }
 
-/// Where a probe's verdict marker goes: the ray's start, the path's first point, the placed shape.
-pub fn start_point(query: &ProbeQuery) -> DVec3 {
+/// Every sightline of a selected matrix: clear ones thin in the probe's colour, blocked ones solid
+/// up to the blocker and dashed beyond it with the blocker marked; the picked pair (as a hit index)
+/// thick and orange.
+fn sightline_marks(
+    pairs: &[plumbline_core::check::PairRecord],
+    colour: [u8; 3],
+    width: f64,
+    emphasis: Emphasis,
+    out: &mut Vec<Mark>,
+) {
+    let mut spots: Vec<[f64; 3]> = Vec::new();
+    for (i, pair) in pairs.iter().enumerate() {
+        let picked = emphasis.hit == Some(i);
+        let (from, to) = (DVec3::from(pair.from), DVec3::from(pair.to));
+        let (colour, width) = if picked {
+            (SELECTED, SELECTED_WIDTH)
+        } else {
+            (colour, width * if pair.sees { 0.5 } else { 0.8 })
+        };
+        match pair.point {
+            Some(blocked) => path_lines(&[from, to], Some((0, blocked.into())), colour, width, out),
+            None => path_lines(&[from, to], None, colour, width, out),
+        }
+        if let Some(at) = pair.point {
+            out.push(Mark::Point {
+                at: at.into(),
+                colour: if picked { SELECTED } else { HIT },
+                size: if picked {
+                    HIT_SIZE * 1.8
+                } else {
+                    HIT_SIZE * 0.8
+                },
+                mark: super::palette::StateMark::Round,
+            });
+        }
+        for p in [pair.from, pair.to] {
+            if !spots.contains(&p) {
+                spots.push(p);
+            }
+        }
+    }
+    for p in spots {
+        out.push(Mark::Point {
+            at: p.into(),
+            colour,
+            size: MARKER * 0.7,
+            mark: super::palette::StateMark::Diamond,
+        });
+    }
+}
+
+/// A coverage probe's sample points: seen ones as small round bluish-green dots, unseen ones as
+/// vermillion squares (shape and colour both tell them apart), and its spots.
+fn coverage_marks(record: &plumbline_core::check::CoverageRecord, out: &mut Vec<Mark>) {
+    let size = 4.0;
+    for p in &record.seen_points {
+        out.push(Mark::Point {
+            at: (*p).into(),
+            colour: super::palette::okabe_ito::BLUISH_GREEN,
+            size,
+            mark: super::palette::StateMark::Round,
+        });
+    }
+    for p in &record.unseen_points {
+        out.push(Mark::Point {
+            at: (*p).into(),
+            colour: super::palette::okabe_ito::VERMILLION,
+            size,
+            mark: super::palette::StateMark::Square,
+        });
+    }
+    for p in &record.spot_points {
+        out.push(Mark::Point {
+            at: (*p).into(),
+            colour: SELECTED,
+            size: MARKER * 0.8,
+            mark: super::palette::StateMark::Diamond,
+        });
+    }
+}
+
+/// The twelve edges of the box `lo`–`hi`.
+fn box_outline(lo: DVec3, hi: DVec3, colour: [u8; 3], width: f64, out: &mut Vec<Mark>) {
+    let corner = |k: usize| {
+        DVec3::new(
+            if k & 1 == 0 { lo.x } else { hi.x },
+            if k & 2 == 0 { lo.y } else { hi.y },
+            if k & 4 == 0 { lo.z } else { hi.z },
+        )
+    };
+    for a in 0..8 {
+        for bit in [1, 2, 4] {
+            if a & bit == 0 {
+                out.push(Mark::Line {
+                    from: corner(a),
+                    to: corner(a | bit),
+                    colour,
+                    width,
+                    dashed: true,
+                });
+            }
+        }
+    }
+}
+
+/// Where a probe's verdict marker goes: the ray's start, the path's first point, the placed shape,
+/// the first spot (from the answer, for spots of tagged objects).
+pub fn start_point(query: &ProbeQuery, result: Option<&ProbeResult>) -> DVec3 {
     match query {
         ProbeQuery::Ray { from, .. } => *from,
         ProbeQuery::Sweep { path, .. } => path[0],
-        ProbeQuery::Closest { at, .. } | ProbeQuery::Overlap { at, .. } => *at,
+        ProbeQuery::Closest { at, .. }
+        | ProbeQuery::Overlap { at, .. }
+        | ProbeQuery::Rest { at, .. } => *at,
+        ProbeQuery::Sightlines { .. } | ProbeQuery::Coverage { .. } => {
+            let answered = result.and_then(|r| match &r.hits {
+                Hits::Sightlines(pairs) => pairs.first().map(|p| DVec3::from(p.from)),
+                Hits::Coverage(records) => records
+                    .first()
+                    .and_then(|c| c.spot_points.first())
+                    .map(|p| DVec3::from(*p)),
+                _ => None,
+            });
+            answered
+                .or_else(|| query.points().first().copied())
+                .unwrap_or(DVec3::ZERO)
+        }
     }
 }
 
 /// Every point that should be in view when the probe is framed.
 pub fn probe_points(probe: &Probe, result: Option<&ProbeResult>) -> Vec<DVec3> {
     let mut points = probe.query.points();
-    if let Some(Hits::Closest(hits)) = result.map(|r| &r.hits) {
-        points.extend(hits.iter().map(|h| DVec3::from(h.point)));
+    match result.map(|r| &r.hits) {
+        Some(Hits::Closest(hits)) => points.extend(hits.iter().map(|h| DVec3::from(h.point))),
+        Some(Hits::Rest(hits)) => points.extend(hits.iter().map(|h| DVec3::from(h.point))),
+        Some(Hits::Sightlines(pairs)) => points.extend(
+            pairs
+                .iter()
+                .flat_map(|p| [DVec3::from(p.from), DVec3::from(p.to)]),
+        ),
+        Some(Hits::Coverage(records)) => points.extend(
+            records
+                .iter()
+                .flat_map(|c| c.spot_points.iter().map(|p| DVec3::from(*p))),
+        ),
+        _ => {}
+    }
+    if points.is_empty() {
+        points.push(start_point(&probe.query, result));
     }
     points
 }

@@ -171,6 +171,7 @@ mod tests {
                 rotation: None,
             },
             expect: None,
+            from_rule: None,
         };
         let result = ProbeResult {
             id: "spawn".into(),

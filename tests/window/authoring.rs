@@ -65,8 +65,9 @@ fn a_ray_placed_in_the_view_can_be_undone_redone_saved_and_reopened_unchanged() 
 
     let after = probes_of(&harness);
     assert_eq!(after.len(), before.len() + 1, "one new probe");
-    let new = after.last().unwrap();
-    assert_eq!(new.id, "ray");
+    // The new probe follows the written ones (the rules' probes come last).
+    let new = after.iter().find(|p| p.id == "ray").expect("the new probe");
+    assert!(new.from_rule.is_none());
     assert_eq!(new.query.kind().name(), "ray");
     // Both ends sit 1.7 m (eye height) above the surface points that were clicked, so 1.7 m below
     // each end there is a surface of the level (to the millimetre the points are rounded to).
@@ -79,7 +80,10 @@ fn a_ray_placed_in_the_view_can_be_undone_redone_saved_and_reopened_unchanged() 
             .unwrap();
         assert!(surface.is_some_and(|h| h.distance < 2e-3), "{end}");
     }
-    assert_eq!(harness.state().selection.probe, Some(after.len() - 1));
+    assert_eq!(
+        harness.state().selection.probe,
+        after.iter().position(|p| p.id == "ray")
+    );
     assert!(harness.state().document.is_dirty());
 
     harness.key_press_modifiers(Modifiers::COMMAND, Key::Z);
@@ -112,7 +116,14 @@ fn a_ray_placed_in_the_view_can_be_undone_redone_saved_and_reopened_unchanged() 
     );
 
     let reopened = load_probe_set(&saved).unwrap();
-    assert_eq!(reopened.probes, after);
+    // The file holds the written probes and the rules (the rules' probes are made again on load).
+    let written: Vec<_> = after
+        .iter()
+        .filter(|p| p.from_rule.is_none())
+        .cloned()
+        .collect();
+    assert_eq!(reopened.probes, written);
+    assert_eq!(reopened.rules, harness.state().document.probes.rules);
     assert_eq!(reopened.level, files::LEVEL);
     let bytes = std::fs::read_to_string(&saved).unwrap();
     assert_eq!(
@@ -191,6 +202,7 @@ fn a_recovery_file_is_offered_at_start_and_restored() {
         probe_set_to_json(&ProbeSet {
             level: files::LEVEL.into(),
             probes: probes.probes.clone(),
+            rules: probes.rules.clone(),
         }),
     )
     .unwrap();
@@ -207,7 +219,14 @@ fn a_recovery_file_is_offered_at_start_and_restored() {
     harness.key_press_modifiers(Modifiers::COMMAND, Key::S);
     harness.run_steps(2);
     assert!(!recovery.exists());
-    assert_eq!(load_probe_set(&path).unwrap().probes, probes.probes);
+    let written: Vec<_> = probes
+        .probes
+        .iter()
+        .filter(|p| p.from_rule.is_none())
+        .cloned()
+        .collect();
+    assert_eq!(load_probe_set(&path).unwrap().probes, written);
+    assert_eq!(load_probe_set(&path).unwrap().rules, probes.rules);
 }
 
 #[test]
@@ -284,9 +303,11 @@ fn a_level_edited_on_disk_is_reloaded_and_what_changed_is_shown_until_dismissed(
     harness.run_steps(2);
 
     let changes = harness.state().changes.clone();
-    assert_eq!(changes.len(), 3, "{changes:?}");
+    assert_eq!(changes.len(), 5, "{changes:?}");
     assert!(changes.contains_key("gate-sees-warehouse-door"));
-    harness.get_by_label("Level reloaded: 3 probe(s) changed");
+    // A rule's probe changes like any other: the lifted crate no longer rests.
+    assert!(changes.contains_key("props-rest/crate-2"));
+    harness.get_by_label("Level reloaded: 5 probe(s) changed");
     harness.get_by_label_contains("gate-sees-warehouse-door changed");
 
     harness.get_by_label("Dismiss").click();

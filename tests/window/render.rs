@@ -234,6 +234,7 @@ fn a_rays_hit_marker_lands_on_the_projected_hit_point() {
             hits: None,
         },
         expect: None,
+        from_rule: None,
     };
     let result = answer_probe(&world, &probe);
     let plumbline_core::check::Hits::Ray(hits) = &result.hits else {

@@ -2,6 +2,7 @@
 
 use glam::DQuat;
 
+use super::answer_level;
 use super::records::{
     ClearanceRecord, ClosestRecord, Hits, OverlapRecord, ProbeResult, RayHitRecord, SourceRecord,
     SweepHitRecord, Verdict,
@@ -15,6 +16,19 @@ use crate::query::{ClosestProbe, MaterialId, ObjectId, ProbeShape, QueryError, V
 /// Answers one probe and judges it against its expectation.
 pub fn answer_probe(world: &World, probe: &Probe) -> ProbeResult {
     let kind = probe.query.kind();
+    if let Some(rule) = probe.from_rule.as_ref().filter(|r| r.object.is_none()) {
+        return ProbeResult {
+            id: probe.id.clone(),
+            hits: Hits::empty(kind),
+            kind,
+            verdict: Verdict::Error,
+            reason: format!(
+                "The rule selects no object: the level has no {} (a tag or name changed?)",
+                rule.selection
+            ),
+            clearance: None,
+        };
+    }
     match answer(world, probe) {
         Ok((hits, clearance)) => {
             let (verdict, reason) = judge(probe, &hits, clearance.as_ref());
@@ -154,6 +168,24 @@ fn answer(world: &World, probe: &Probe) -> Result<Answer, QueryError> {
             let records = overlap_records(&view, &shape, *at)?;
             (Hits::Overlap(records), None)
         }
+        ProbeQuery::Rest {
+            shape,
+            at,
+            rotation,
+            search,
+        } => (
+            answer_level::rest(&view, shape, *rotation, *at, *search)?,
+            None,
+        ),
+        ProbeQuery::Sightlines { spots } => (answer_level::sightlines(&view, spots)?, None),
+        ProbeQuery::Coverage {
+            spots,
+            region,
+            spacing,
+        } => (
+            answer_level::coverage(&view, spots, region, *spacing)?,
+            None,
+        ),
     })
 }
 

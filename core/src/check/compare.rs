@@ -1,15 +1,23 @@
-//! What changed between two runs of a probe set: verdicts, blocked/clear, first object, and
-//! distances that moved by more than a tolerance.
+//! What changed between two runs of a probe set: verdicts, blocked/clear, first object, distances
+//! that moved by more than a tolerance, sightlines gained or lost, and coverage that moved.
 
 use std::collections::HashMap;
 use std::fmt;
 
-use super::records::{ProbeResult, Verdict};
+use super::records::{Hits, PairRecord, ProbeResult, Verdict};
 use super::results_file::ResultsFile;
 use super::verdict::metres;
+use crate::probe::ProbeKind;
 
 /// The default tolerance for distance changes, metres (SPEC §4).
 pub const DEFAULT_TOLERANCE: f64 = 0.01;
+
+/// How far a coverage share must move to count as a change: a tenth of a percentage point, the
+/// precision reports show it at (ours).
+pub const SHARE_TOLERANCE: f64 = 0.001;
+
+/// Two spots by name.
+pub type SpotPair = (String, String);
 
 /// One aspect of a probe's answer that changed.
 #[derive(Debug, Clone, PartialEq)]
@@ -24,6 +32,15 @@ pub enum Aspect {
     Distance(f64, f64),
     /// A sweep's least clearance moved.
     Clearance(f64, f64),
+    /// Pairs of spots that stopped seeing each other (`lost`) or started to (`gained`).
+    Sightlines {
+        /// Pairs that no longer see each other.
+        lost: Vec<SpotPair>,
+        /// Pairs that now see each other.
+        gained: Vec<SpotPair>,
+    },
+    /// The share of a region the spots see moved (0 to 1).
+    Coverage(f64, f64),
 }
 
 impl fmt::Display for Aspect {
@@ -47,6 +64,29 @@ impl fmt::Display for Aspect {
                 metres(*a),
                 metres(*b),
                 b - a
+            ),
+            Aspect::Sightlines { lost, gained } => {
+                let pairs = |list: &[SpotPair]| {
+                    list.iter()
+                        .map(|(a, b)| format!("{a}-{b}"))
+                        .collect::<Vec<_>>()
+                        .join(", ")
+                };
+                let mut parts = Vec::new();
+                if !lost.is_empty() {
+                    parts.push(format!("sightlines lost: {}", pairs(lost)));
+                }
+                if !gained.is_empty() {
+                    parts.push(format!("sightlines gained: {}", pairs(gained)));
+                }
+                write!(f, "{}", parts.join("; "))
+            }
+            Aspect::Coverage(a, b) => write!(
+                f,
+                "coverage {:.1}% -> {:.1}% ({:+.1} points)",
+                a * 100.0,
+                b * 100.0,
+                (b - a) * 100.0
             ),
         }
     }
@@ -163,8 +203,28 @@ pub fn changes(old: &ProbeResult, new: &ProbeResult, tolerance: f64) -> Vec<Aspe
     if old.verdict != new.verdict {
         aspects.push(Aspect::Verdict(old.verdict, new.verdict));
     }
+    match (&old.hits, &new.hits) {
+        (Hits::Sightlines(a), Hits::Sightlines(b)) => {
+            let (lost, gained) = sightline_changes(a, b);
+            if !lost.is_empty() || !gained.is_empty() {
+                aspects.push(Aspect::Sightlines { lost, gained });
+            }
+            return aspects;
+        }
+        (Hits::Coverage(a), Hits::Coverage(b)) => {
+            let share = |c: &[super::records::CoverageRecord]| c.first().map(|c| c.share);
+            if let (Some(a), Some(b)) = (share(a), share(b))
+                && (a - b).abs() > SHARE_TOLERANCE
+            {
+                aspects.push(Aspect::Coverage(a, b));
+            }
+            return aspects;
+        }
+        _ => {}
+    }
     let (was, is) = (!old.hits.is_empty(), !new.hits.is_empty());
-    if was != is {
+    // A rest probe with nothing under it shows as its support becoming nothing.
+    if was != is && new.kind != ProbeKind::Rest {
         aspects.push(Aspect::Blocked(was, is));
     }
     let first_object = |r: &ProbeResult| r.hits.first().map(|(o, _, _)| o.to_string());
@@ -182,4 +242,20 @@ pub fn changes(old: &ProbeResult, new: &ProbeResult, tolerance: f64) -> Vec<Aspe
         aspects.push(Aspect::Clearance(a.distance, b.distance));
     }
     aspects
+}
+
+/// The pairs of spots that stopped and started seeing each other, in the new run's order (pairs in
+/// only one run are not compared: a spot added or removed changes the probe, not its sightlines).
+fn sightline_changes(old: &[PairRecord], new: &[PairRecord]) -> (Vec<SpotPair>, Vec<SpotPair>) {
+    let before: HashMap<(&str, &str), bool> =
+        old.iter().map(|p| ((&*p.a, &*p.b), p.sees)).collect();
+    let (mut lost, mut gained) = (Vec::new(), Vec::new());
+    for pair in new {
+        match before.get(&(&*pair.a, &*pair.b)) {
+            Some(true) if !pair.sees => lost.push((pair.a.to_string(), pair.b.to_string())),
+            Some(false) if pair.sees => gained.push((pair.a.to_string(), pair.b.to_string())),
+            _ => {}
+        }
+    }
+    (lost, gained)
 }

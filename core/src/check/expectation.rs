@@ -7,9 +7,11 @@ use crate::probe::{Conditions, Expect, ExpectWord, Range};
 /// Slack around measured distances and clearances, metres (the default change tolerance).
 const SLACK: f64 = super::compare::DEFAULT_TOLERANCE;
 
-/// The expectation the answer meets: clear, or blocked by its first object; for closest points, the
-/// nearest object and its distance ± 1 cm; for sweeps that report clearance, the clearance rounded
-/// down to the centimetre. `None` when the probe could not be answered.
+/// The expectation the answer meets: clear, or blocked by its first object; for closest points and
+/// rests, the nearest object (the support) and its distance (gap) ± 1 cm; for sweeps that report
+/// clearance, the clearance rounded down to the centimetre; for sightlines, which pairs see each
+/// other and which do not; for coverage, at least the share seen now, rounded down to a tenth of a
+/// percent. `None` when the probe could not be answered.
 pub fn expectation_from(result: &ProbeResult) -> Option<Expect> {
     if result.verdict == Verdict::Error {
         return None;
@@ -18,12 +20,43 @@ pub fn expectation_from(result: &ProbeResult) -> Option<Expect> {
         .hits
         .first()
         .map(|(object, _, measure)| (object.to_string(), measure));
+    let around = |distance: f64, floor: f64| Range {
+        min: Some(((distance - SLACK) * 1000.0).floor().max(floor) / 1000.0),
+        max: Some(((distance + SLACK) * 1000.0).ceil() / 1000.0),
+    };
     Some(match (&result.hits, first) {
         (Hits::Closest(_), Some((object, distance))) => Expect::Conditions(Conditions {
             first_object: Some(object),
-            distance: Some(Range {
-                min: Some(((distance - SLACK) * 1000.0).floor().max(0.0) / 1000.0),
-                max: Some(((distance + SLACK) * 1000.0).ceil() / 1000.0),
+            distance: Some(around(distance, 0.0)),
+            ..Conditions::default()
+        }),
+        (Hits::Rest(_), Some((object, gap))) => Expect::Conditions(Conditions {
+            first_object: Some(object),
+            distance: Some(around(gap, f64::NEG_INFINITY)),
+            ..Conditions::default()
+        }),
+        (Hits::Sightlines(pairs), _) => {
+            let list = |sees: bool| {
+                let chosen: Vec<[String; 2]> = pairs
+                    .iter()
+                    .filter(|p| p.sees == sees)
+                    .map(|p| [p.a.to_string(), p.b.to_string()])
+                    .collect();
+                (!chosen.is_empty()).then_some(chosen)
+            };
+            Expect::Conditions(Conditions {
+                see: list(true),
+                blind: list(false),
+                ..Conditions::default()
+            })
+        }
+        (Hits::Coverage(c), _) => Expect::Conditions(Conditions {
+            seen: Some(Range {
+                min: Some(
+                    c.first()
+                        .map_or(0.0, |c| (c.share * 1000.0).floor() / 1000.0),
+                ),
+                max: None,
             }),
             ..Conditions::default()
         }),

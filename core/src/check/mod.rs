@@ -4,23 +4,30 @@
 //! on thread count, time or machine — so the results file is byte-identical for the same inputs.
 
 mod answer;
+mod answer_level;
 mod compare;
 mod expectation;
+mod level_records;
+mod level_verdict;
 mod records;
 mod results_file;
+mod rules;
 mod run;
 mod verdict;
 
 pub use answer::answer_probe;
+pub use answer_level::spot_list;
 pub use compare::{Aspect, Comparer, Comparison, DEFAULT_TOLERANCE, ProbeChange, changes, compare};
 pub use expectation::expectation_from;
+pub use level_records::MAX_LISTED_POINTS;
 pub use records::{
-    ClearanceRecord, ClosestRecord, Hits, OverlapRecord, ProbeResult, RayHitRecord, SourceRecord,
-    Summary, SweepHitRecord, Verdict,
+    ClearanceRecord, ClosestRecord, CoverageRecord, Hits, OverlapRecord, PairRecord, ProbeResult,
+    RayHitRecord, RestRecord, SourceRecord, Summary, SweepHitRecord, Verdict,
 };
 pub use results_file::{
     ResultsFile, ResultsHead, ResultsWriter, load_results, parse_results, probes_digest,
     text_digest,
 };
+pub use rules::expand_rules;
 pub use run::{Runner, run_probes};
 pub use verdict::metres;

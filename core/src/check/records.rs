@@ -4,6 +4,8 @@ use std::sync::Arc;
 
 use serde::{Deserialize, Serialize};
 
+pub use super::level_records::{CoverageRecord, PairRecord, RestRecord};
+use crate::json_text::Json;
 use crate::probe::ProbeKind;
 
 /// How a probe's expectation fared.
@@ -200,16 +202,25 @@ pub enum Hits {
     Closest(Vec<ClosestRecord>),
     /// Overlapped objects, deepest first.
     Overlap(Vec<OverlapRecord>),
+    /// At most one support.
+    Rest(Vec<RestRecord>),
+    /// Every pair of spots, in order.
+    Sightlines(Vec<PairRecord>),
+    /// One record of the region's coverage.
+    Coverage(Vec<CoverageRecord>),
 }
 
 impl Hits {
-    /// Number of hits.
+    /// Number of hits: for sightlines the pairs that are blocked, for coverage the points not seen.
     pub fn len(&self) -> usize {
         match self {
             Hits::Ray(h) => h.len(),
             Hits::Sweep(h) => h.len(),
             Hits::Closest(h) => h.len(),
             Hits::Overlap(h) => h.len(),
+            Hits::Rest(h) => h.len(),
+            Hits::Sightlines(h) => h.iter().filter(|p| !p.sees).count(),
+            Hits::Coverage(h) => h.iter().map(|c| c.points - c.seen).sum(),
         }
     }
 
@@ -219,13 +230,23 @@ impl Hits {
     }
 
     /// The first hit's object name and tags, and its measure: distance for rays, sweeps and closest,
-    /// depth for overlaps.
+    /// depth for overlaps, the gap for rests, the distance to the first blocked pair's blocker for
+    /// sightlines; none for coverage.
     pub fn first(&self) -> Option<(&str, &[String], f64)> {
         match self {
             Hits::Ray(h) => h.first().map(|x| (&*x.object, &x.tags[..], x.distance)),
             Hits::Sweep(h) => h.first().map(|x| (&*x.object, &x.tags[..], x.distance)),
             Hits::Closest(h) => h.first().map(|x| (&*x.object, &x.tags[..], x.distance)),
             Hits::Overlap(h) => h.first().map(|x| (&*x.object, &x.tags[..], x.depth)),
+            Hits::Rest(h) => h.first().map(|x| (&*x.object, &x.tags[..], x.gap)),
+            Hits::Sightlines(h) => h.iter().find(|p| !p.sees).map(|p| {
+                (
+                    p.object.as_deref().unwrap_or(""),
+                    p.tags.as_deref().unwrap_or(&[]),
+                    p.distance.unwrap_or(0.0),
+                )
+            }),
+            Hits::Coverage(_) => None,
         }
     }
 
@@ -236,6 +257,9 @@ impl Hits {
             ProbeKind::Sweep => Hits::Sweep(Vec::new()),
             ProbeKind::Closest => Hits::Closest(Vec::new()),
             ProbeKind::Overlap => Hits::Overlap(Vec::new()),
+            ProbeKind::Rest => Hits::Rest(Vec::new()),
+            ProbeKind::Sightlines => Hits::Sightlines(Vec::new()),
+            ProbeKind::Coverage => Hits::Coverage(Vec::new()),
         }
     }
 }
@@ -300,15 +324,18 @@ impl Summary {
     }
 }
 
+/// A list of tags as results files lay it out.
+pub(super) fn tags_json(tags: &[String]) -> Json<'_> {
+    Json::Arr(tags.iter().map(|t| Json::Str(t)).collect())
+}
+
 /// The records as the results file lays them out (the one writer of results; reading is serde's):
 /// built as borrowed JSON, without intermediate values.
 mod layout {
     use super::*;
     use crate::json_text::Json;
 
-    fn tags(tags: &[String]) -> Json<'_> {
-        Json::Arr(tags.iter().map(|t| Json::Str(t)).collect())
-    }
+    use super::tags_json as tags;
 
     /// The triangle, where it is in the file, and the material, each when known.
     fn face_fields<'a>(
@@ -445,6 +472,9 @@ mod layout {
                 Hits::Sweep(h) => h.iter().map(SweepHitRecord::to_json).collect(),
                 Hits::Closest(h) => h.iter().map(ClosestRecord::to_json).collect(),
                 Hits::Overlap(h) => h.iter().map(OverlapRecord::to_json).collect(),
+                Hits::Rest(h) => h.iter().map(RestRecord::to_json).collect(),
+                Hits::Sightlines(h) => h.iter().map(PairRecord::to_json).collect(),
+                Hits::Coverage(h) => h.iter().map(CoverageRecord::to_json).collect(),
             };
             let mut f = vec![
                 ("id", Json::Str(&self.id)),

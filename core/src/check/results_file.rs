@@ -258,5 +258,8 @@ fn parse_hits(kind: ProbeKind, hits: Vec<Value>) -> Result<Hits, String> {
         ProbeKind::Sweep => Hits::Sweep(serde_json::from_value(value).map_err(err)?),
         ProbeKind::Closest => Hits::Closest(serde_json::from_value(value).map_err(err)?),
         ProbeKind::Overlap => Hits::Overlap(serde_json::from_value(value).map_err(err)?),
+        ProbeKind::Rest => Hits::Rest(serde_json::from_value(value).map_err(err)?),
+        ProbeKind::Sightlines => Hits::Sightlines(serde_json::from_value(value).map_err(err)?),
+        ProbeKind::Coverage => Hits::Coverage(serde_json::from_value(value).map_err(err)?),
     })
 }

@@ -63,7 +63,7 @@ fn first_unmet(c: &Conditions, hits: &Hits, clearance: Option<&ClearanceRecord>)
     {
         return Some(format!("a depth of at most {}", metres(max)));
     }
-    None
+    super::level_verdict::first_unmet(c, hits)
 }
 
 fn first_word(hits: &Hits) -> &'static str {
@@ -71,6 +71,9 @@ fn first_word(hits: &Hits) -> &'static str {
         Hits::Ray(_) | Hits::Sweep(_) => "the first hit to be",
         Hits::Closest(_) => "the nearest object to be",
         Hits::Overlap(_) => "the deepest overlap to be",
+        Hits::Rest(_) => "the support to be",
+        Hits::Sightlines(_) => "the first blocked sightline's blocker to be",
+        Hits::Coverage(_) => "a blocker to be",
     }
 }
 
@@ -107,6 +110,9 @@ fn describe(hits: &Hits, clearance: Option<&ClearanceRecord>) -> String {
             let what = named(&x.object, &x.material);
             format!("{how} {what} by {}{more}", metres(x.depth))
         }),
+        Hits::Rest(_) | Hits::Sightlines(_) | Hits::Coverage(_) => {
+            return super::level_verdict::describe(hits);
+        }
     };
     match (found, clearance) {
         (Some(text), _) => text,
@@ -124,7 +130,7 @@ fn describe(hits: &Hits, clearance: Option<&ClearanceRecord>) -> String {
 }
 
 /// An object as a reason names it, with the material of the surface when the file names one.
-fn named(object: &str, material: &Option<std::sync::Arc<str>>) -> String {
+pub(super) fn named(object: &str, material: &Option<std::sync::Arc<str>>) -> String {
     match material {
         Some(m) => format!("{object} ({m})"),
         None => object.to_string(),

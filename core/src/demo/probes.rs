@@ -6,7 +6,9 @@ use glam::DVec3;
 use super::quay::layout::*;
 use super::quay::{bollards, crates, drums, ground_height};
 use crate::level::ShapeSpec;
-use crate::probe::{Conditions, Expect, ExpectWord, HitsMode, Probe, ProbeQuery, ProbeSet, Range};
+use crate::probe::{
+    Conditions, Expect, ExpectWord, HitsMode, Probe, ProbeQuery, ProbeSet, Range, Region, Spots,
+};
 use crate::query::Filter;
 
 /// A character: capsule of radius 0.35 m and 1.8 m tall.
@@ -33,6 +35,7 @@ fn probe(id: &str, label: &str, query: ProbeQuery, expect: Option<Expect>) -> Pr
         filter: Filter::default(),
         query,
         expect,
+        from_rule: None,
     }
 }
 
@@ -353,37 +356,7 @@ pub fn probe_set(level: &str) -> ProbeSet {
             ]),
             clear(),
         ),
-        // Spawn points.
-        probe(
-            "spawn-yard-east",
-            "Spawn in the east yard is clear",
-            spawn(v(30.0, standing(0.0), -20.0)),
-            clear(),
-        ),
-        probe(
-            "spawn-yard-west",
-            "Spawn in the west yard is clear",
-            spawn(v(-40.0, standing(0.0), -5.0)),
-            clear(),
-        ),
-        probe(
-            "spawn-warehouse",
-            "Spawn inside the warehouse is clear",
-            spawn(v(15.0, standing(0.0), 20.0)),
-            clear(),
-        ),
-        probe(
-            "spawn-catwalk",
-            "Spawn on the catwalk is clear",
-            spawn(v(40.7, standing(CATWALK_Y), 10.0)),
-            clear(),
-        ),
-        probe(
-            "spawn-office",
-            "Spawn inside the office is clear",
-            spawn(v(-37.0, standing(0.0), 22.0)),
-            clear(),
-        ),
+        // Spawn points off the pads (the pads have a rule of their own).
         probe(
             "spawn-near-boulder",
             "Spawn beside the boulder is clear",
@@ -461,10 +434,94 @@ pub fn probe_set(level: &str) -> ProbeSet {
             }),
         ));
     }
+    probes.extend(whole_level_probes());
     ProbeSet {
         level: level.to_string(),
         probes,
+        rules: rules(),
     }
+}
+
+/// The lookouts' sightline matrix and what share of the yard they see together.
+fn whole_level_probes() -> Vec<Probe> {
+    let lookouts = Spots {
+        points: Vec::new(),
+        tags: vec!["lookout".into()],
+        eye: None,
+    };
+    let pairs = |list: &[[&str; 2]]| {
+        Some(
+            list.iter()
+                .map(|p| p.map(|n| n.to_string()))
+                .collect::<Vec<_>>(),
+        )
+    };
+    vec![
+        ignoring_tags(
+            probe(
+                "lookout-matrix",
+                "Which lookouts see which (glass is see-through)",
+                ProbeQuery::Sightlines {
+                    spots: lookouts.clone(),
+                },
+                when(Conditions {
+                    see: pairs(&[
+                        ["lookout-gate", "lookout-crane"],
+                        ["lookout-crane", "lookout-warehouse-roof"],
+                        ["lookout-hill", "lookout-gate"],
+                    ]),
+                    blind: pairs(&[["lookout-gate", "lookout-catwalk"]]),
+                    ..Conditions::default()
+                }),
+            ),
+            &["glass"],
+        ),
+        ignoring_tags(
+            probe(
+                "yard-coverage",
+                "The lookouts together see most of the yard",
+                ProbeQuery::Coverage {
+                    spots: lookouts,
+                    region: Region {
+                        min: [-YARD_X + 4.0, -1.0, QUAY_Z],
+                        max: [YARD_X - 4.0, 3.0, FENCE_Z - 0.5],
+                    },
+                    spacing: 1.0,
+                },
+                when(Conditions {
+                    seen: Some(Range {
+                        min: Some(0.6),
+                        max: None,
+                    }),
+                    ..Conditions::default()
+                }),
+            ),
+            &["glass"],
+        ),
+    ]
+}
+
+/// The demo's rules: every spawn pad has room for a character, every prop rests on what is under
+/// it, and every lookout sees the quay gate.
+fn rules() -> Vec<crate::probe::Rule> {
+    let gate = [0.0, 1.0, QUAY_Z + 3.0];
+    let text = format!(
+        r#"[
+  {{"id": "spawns-clear", "label": "A character fits on the spawn pad",
+    "objects": {{"tags": ["spawn"]}},
+    "clear": {{"shape": {{"type": "capsule", "radius": 0.35, "half_height": 0.55}},
+               "at": {{"anchor": "top", "offset": [0, 0.91, 0]}}}}}},
+  {{"id": "props-rest", "label": "The prop rests on what is under it",
+    "objects": {{"tags": ["prop"]}}, "rests": {{"max_gap": 0.01, "max_sink": 0.01}}}},
+  {{"id": "lookouts-see-gate", "label": "The lookout sees the quay gate",
+    "objects": {{"tags": ["lookout"]}}, "ignore_tags": ["glass"],
+    "probe": {{"kind": "ray", "from": {{"anchor": "top", "offset": [0, 1.7, 0]}},
+               "to": [{}, {}, {}], "expect": "clear"}}}}
+]"#,
+        gate[0], gate[1], gate[2]
+    );
+    crate::probe::parse_rules(std::path::Path::new("demo rules"), &text)
+        .expect("the demo's rules are valid")
 }
 
 fn capitalised(name: &str) -> String {

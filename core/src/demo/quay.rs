@@ -64,6 +64,13 @@ pub mod layout {
     pub const BOULDER: glam::DVec3 = glam::DVec3::new(50.0, 1.0, 30.0);
     /// Embankment the culvert passes through: x range, z range, height.
     pub const EMBANKMENT: [f64; 5] = [-51.0, -49.0, -30.0, 0.0, 3.0];
+    /// Centre of the stone cairn by the office (a rock that lost a face).
+    pub const CAIRN: glam::DVec3 = glam::DVec3::new(-45.0, 0.3, 8.0);
+    /// The steel loading plate on the yard: min and max corners.
+    pub const LOADING_PLATE: (glam::DVec3, glam::DVec3) = (
+        glam::DVec3::new(-6.0, 0.0, -8.0),
+        glam::DVec3::new(-3.0, 0.03, -6.0),
+    );
 }
 
 use layout::*;
@@ -151,17 +158,17 @@ pub fn mesh_objects(detail: Detail) -> Vec<MeshObject> {
     add("culvert", vec!["vent"], culvert());
     add("embankment", vec!["ground"], embankment());
     add("north-fence", vec!["fence"], fence());
-    let mut random = Random::new(0x5A17_F3E2);
-    for (k, (x, z)) in tree_spots(&mut random).into_iter().enumerate() {
+    let scatter = scatter();
+    for (k, ((x, z), size)) in scatter.trees.iter().zip(&scatter.canopy_sizes).enumerate() {
+        let (x, z) = (*x, *z);
         let y = ground_height(x, z) - 0.3;
         let mut trunk = MeshBuilder::new();
         trunk.prism(DVec3::new(x, y, z), 0.25, 4.6, 8);
         add(&format!("tree-{:02}-trunk", k + 1), vec!["tree"], trunk);
         let mut canopy = MeshBuilder::new();
-        let size = random.range(0.85, 1.2);
         canopy.blob(
             DVec3::new(x, y + 5.8, z),
-            DVec3::new(2.2, 2.8, 2.2) * size,
+            DVec3::new(2.2, 2.8, 2.2) * *size,
             2,
         );
         add(
@@ -173,16 +180,40 @@ pub fn mesh_objects(detail: Detail) -> Vec<MeshObject> {
     let mut boulder = MeshBuilder::new();
     boulder.blob(BOULDER, DVec3::new(3.0, 2.0, 2.5), 2);
     add("boulder", vec!["rock"], boulder);
-    for k in 0..12 {
-        let x = -58.0 + 10.0 * k as f64 + random.range(-1.5, 1.5);
+    for (k, centre) in scatter.bushes.iter().enumerate() {
         let mut bush = MeshBuilder::new();
-        bush.blob(
-            DVec3::new(x, 0.35, FENCE_Z - 1.4),
-            DVec3::new(1.1, 0.75, 0.9),
-            1,
-        );
+        bush.blob(*centre, BUSH_RADII, 1);
         add(&format!("bush-{:02}", k + 1), vec!["foliage"], bush);
     }
+    // Two planted faults for lint: a stone cairn that should be closed but lost a face, and a
+    // steel plate whose top was exported twice.
+    let mut cairn = MeshBuilder::new();
+    cairn.blob(CAIRN, DVec3::new(0.8, 0.6, 0.8), 1);
+    let mut cairn = cairn.finish();
+    cairn.triangles.pop();
+    objects.push(MeshObject {
+        name: "stone-cairn".into(),
+        tags: vec!["rock"],
+        mesh: cairn,
+    });
+    let mut plate = MeshBuilder::new();
+    plate.cuboid(LOADING_PLATE.0, LOADING_PLATE.1);
+    let mut plate = plate.finish();
+    let up: Vec<[u32; 3]> = plate
+        .triangles
+        .iter()
+        .filter(|t| {
+            let [a, b, c] = t.map(|i| plate.vertices[i as usize]);
+            (b - a).cross(c - a).y > 0.0
+        })
+        .copied()
+        .collect();
+    plate.triangles.extend(up);
+    objects.push(MeshObject {
+        name: "loading-plate".into(),
+        tags: vec!["ground"],
+        mesh: plate,
+    });
     objects
 }
 
@@ -372,6 +403,8 @@ fn stairs() -> MeshBuilder {
     mb
 }
 
+/// The gantry crane. Its south legs stand 12 cm into the first row of containers: a fault left in
+/// on purpose for lint to find.
 fn crane() -> MeshBuilder {
     let mut mb = MeshBuilder::new();
     for x in [-12.0, 12.0] {
@@ -453,6 +486,37 @@ fn fence() -> MeshBuilder {
         DVec3::new(x + 0.04, 1.9, FENCE_Z + 0.04),
     );
     mb
+}
+
+/// Where the trees and bushes stand, drawn from one random sequence.
+pub struct Scatter {
+    /// Tree positions (x, z).
+    pub trees: Vec<(f64, f64)>,
+    /// Each tree's canopy size factor.
+    pub canopy_sizes: Vec<f64>,
+    /// Bush centres.
+    pub bushes: Vec<DVec3>,
+}
+
+/// The radii of every bush.
+pub const BUSH_RADII: DVec3 = DVec3::new(1.1, 0.75, 0.9);
+
+/// Trees along the yard's west edge and on the hills, and a row of bushes along the fence.
+pub fn scatter() -> Scatter {
+    let mut random = Random::new(0x5A17_F3E2);
+    let trees = tree_spots(&mut random);
+    let canopy_sizes = trees.iter().map(|_| random.range(0.85, 1.2)).collect();
+    let bushes = (0..12)
+        .map(|k| {
+            let x = -58.0 + 10.0 * k as f64 + random.range(-1.5, 1.5);
+            DVec3::new(x, 0.35, FENCE_Z - 1.4)
+        })
+        .collect();
+    Scatter {
+        trees,
+        canopy_sizes,
+        bushes,
+    }
 }
 
 /// Tree positions: a row along the yard's west edge and a scatter on the hills.
@@ -564,10 +628,15 @@ pub fn level_file(glb_name: &str, edited: bool) -> Value {
             at.y += e.lifted_crate.1;
         }
         objects.push(
-            json!({"name": name, "tags": ["pickup"], "translation": at.to_array(),
+            json!({"name": name, "tags": ["pickup", "prop"], "translation": at.to_array(),
             "shape": {"type": "box", "half_extents": [0.3, 0.3, 0.3]}}),
         );
     }
+    let (name, at) = FLOATING_CRATE;
+    objects.push(
+        json!({"name": name, "tags": ["pickup", "prop"], "translation": at.to_array(),
+        "shape": {"type": "box", "half_extents": [0.3, 0.3, 0.3]}}),
+    );
     for (name, at) in bollards() {
         objects.push(
             json!({"name": name, "tags": ["bollard"], "translation": at.to_array(),
@@ -575,8 +644,20 @@ pub fn level_file(glb_name: &str, edited: bool) -> Value {
         );
     }
     for (name, at) in drums() {
-        objects.push(json!({"name": name, "tags": ["drum"], "translation": at.to_array(),
+        objects.push(json!({"name": name, "tags": ["drum", "prop"], "translation": at.to_array(),
             "rotation": DQuat::IDENTITY.to_array(), "shape": {"type": "cylinder", "radius": 0.3, "half_height": 0.45}}));
+    }
+    for (name, at) in spawn_pads() {
+        objects.push(
+            json!({"name": name, "tags": ["spawn"], "translation": at.to_array(),
+            "shape": {"type": "cylinder", "radius": 0.3, "half_height": 0.02}}),
+        );
+    }
+    for (name, at, half) in lookouts() {
+        objects.push(
+            json!({"name": name, "tags": ["lookout"], "translation": at.to_array(),
+            "shape": {"type": "box", "half_extents": half}}),
+        );
     }
     if edited {
         let (at, half) = e.door_leaf;
@@ -591,5 +672,78 @@ pub fn level_file(glb_name: &str, edited: bool) -> Value {
         "up": [0.0, 1.0, 0.0],
         "tag_rules": [{"match": "*glass*", "tags": ["glass"]}],
         "objects": objects,
+        "lint": lint_section(),
     })
 }
+
+/// What the quay's level file tells lint: rocks must be closed, and the findings its authors
+/// accept, each with the reason.
+fn lint_section() -> Value {
+    json!({
+        "closed": {"tags": ["rock"]},
+        "props": {"tags": ["prop"]},
+        "allow": [
+            {"finding": "overlap",
+             "objects": ["yard/terrain", "yard/tree-*", "yard/bush-*", "yard/boulder", "yard/stone-*"],
+             "why": "trees, bushes and rocks are set into the ground, and each canopy sits on its trunk"},
+            {"finding": "overlap", "objects": ["yard/terrain", "yard/quay-wall", "yard/north-fence"],
+             "why": "the quay's bank and the fence's east end meet the terrain's slope below ground"},
+            {"finding": "duplicate-faces", "objects": ["yard/catwalk", "yard/crane"],
+             "why": "railings and crane beams are boxes that overlap where they join"},
+            {"finding": "slivers", "objects": ["yard/quay-wall"],
+             "why": "the quay's kerb is one 200 m box, so its 25 cm faces are long thin triangles"}
+        ]
+    })
+}
+
+/// Spawn pads (flat discs 0.6 m across on the floor, tagged `spawn`): name and centre. One lies in
+/// a bush by the fence, on purpose.
+pub fn spawn_pads() -> Vec<(String, DVec3)> {
+    let bush = scatter().bushes[4];
+    vec![
+        ("spawn-pad-east".into(), DVec3::new(30.0, 0.02, -20.0)),
+        ("spawn-pad-west".into(), DVec3::new(-40.0, 0.02, -5.0)),
+        ("spawn-pad-warehouse".into(), DVec3::new(15.0, 0.02, 20.0)),
+        ("spawn-pad-office".into(), DVec3::new(-37.0, 0.02, 22.0)),
+        ("spawn-pad-hedge".into(), DVec3::new(bush.x, 0.02, bush.z)),
+    ]
+}
+
+/// Lookout platforms (thin boxes tagged `lookout`; a spot stands 1.7 m above each): name, centre
+/// and half extents.
+pub fn lookouts() -> Vec<(&'static str, DVec3, [f64; 3])> {
+    let hill = |x: f64, z: f64| {
+        // Level on the slope, its highest corner just into the ground (within lint's tolerance).
+        let top = [(-0.5, -0.5), (-0.5, 0.5), (0.5, -0.5), (0.5, 0.5)]
+            .map(|(dx, dz)| ground_height(x + dx, z + dz))
+            .into_iter()
+            .fold(f64::MIN, f64::max);
+        DVec3::new(x, top + 0.045, z)
+    };
+    vec![
+        (
+            "lookout-gate",
+            DVec3::new(0.0, 0.05, QUAY_Z + 3.0),
+            [0.5, 0.05, 0.5],
+        ),
+        (
+            "lookout-crane",
+            DVec3::new(12.0, 11.05, -35.5),
+            [0.4, 0.05, 0.5],
+        ),
+        (
+            "lookout-catwalk",
+            DVec3::new(40.7, CATWALK_Y + 0.05, 23.0),
+            [0.3, 0.05, 0.3],
+        ),
+        (
+            "lookout-warehouse-roof",
+            DVec3::new(25.0, 8.35, 10.0),
+            [0.5, 0.05, 0.5],
+        ),
+        ("lookout-hill", hill(-6.0, 80.0), [0.5, 0.05, 0.5]),
+    ]
+}
+
+/// The crate that floats a quarter of a metre above the yard, on purpose: name and centre.
+pub const FLOATING_CRATE: (&str, DVec3) = ("crate-7", DVec3::new(12.0, 0.55, 2.0));

@@ -489,6 +489,7 @@ impl Loader<'_> {
         let origin = MeshOrigin {
             file: Some(self.file.clone()),
             numbers: Vec::new(),
+            dropped: Vec::new(),
             layout: FaceLayout::Gltf {
                 mesh: mesh_index as u32,
                 primitives,

@@ -7,6 +7,7 @@ use glam::{DQuat, DVec3};
 use serde::Deserialize;
 
 use super::glob::glob_matches;
+use super::lint_settings::LintSettings;
 use super::load_mesh_file;
 use super::mesh::build_mesh;
 use super::model::{Geometry, Level, LevelObject, MeshOrigin};
@@ -24,6 +25,8 @@ struct LevelFile {
     #[serde(default)]
     tag_rules: Vec<TagRule>,
     objects: Vec<ObjectSpec>,
+    #[serde(default)]
+    lint: LintSettings,
 }
 
 #[derive(Deserialize)]
@@ -64,13 +67,14 @@ pub fn load_level_file(
     bytes: &[u8],
     policy: PathPolicy,
     files: &mut Vec<PathBuf>,
-) -> Result<(Level, Vec<Diagnostic>), InputError> {
+) -> Result<(Level, Vec<Diagnostic>, LintSettings), InputError> {
     let text = std::str::from_utf8(bytes)
         .map_err(|e| InputError::file(path, format!("not UTF-8 text: {e}")))?;
     let file: LevelFile = serde_json::from_str(text).map_err(|e| InputError::json(path, &e))?;
     check_header(path, &file.plumbline, file.version, "level", "a level")?;
     let up = parse_up(path, file.up)?;
     check_tag_rules(path, &file.tag_rules)?;
+    file.lint.check(path)?;
     let mut diagnostics = Vec::new();
     let mut objects = Vec::new();
     let mut mesh_files: HashMap<PathBuf, Vec<LevelObject>> = HashMap::new();
@@ -166,7 +170,7 @@ pub fn load_level_file(
     check_unique_names(path, &objects)?;
     apply_tag_rules(&file.tag_rules, &mut objects);
     drop_empty_objects(path, &mut objects, &mut diagnostics);
-    Ok((Level { up, objects }, diagnostics))
+    Ok((Level { up, objects }, diagnostics, file.lint))
 }
 
 /// Every object name must be unique, including the `<object>/<inner>` names of objects inside mesh

@@ -94,6 +94,12 @@ pub fn build_mesh(
     let flip = mirrors(matrix);
     let mut kept = Vec::with_capacity(triangles.len());
     let mut numbers = Vec::new();
+    // Triangles an earlier build dropped keep their places, moved with the mesh.
+    let mut dropped: Vec<(u32, DVec3)> = origin
+        .dropped
+        .iter()
+        .map(|&(n, at)| (n, apply(matrix, at)))
+        .collect();
     for (k, tri) in triangles.iter().enumerate() {
         let [a, b, c] = tri.map(|i| i as u32);
         let tri = if flip { [a, c, b] } else { [a, b, c] };
@@ -106,6 +112,10 @@ pub fn build_mesh(
             // triangle kept after it needs its own.
             if kept.len() == k {
                 numbers.extend((0..k as u32).map(|j| origin.number(j)));
+            }
+            if dropped.len() < super::model::MAX_LISTED_DROPPED {
+                let middle = tri.map(|i| placed[i as usize]).iter().sum::<DVec3>() / 3.0;
+                dropped.push((origin.number(k as u32), middle));
             }
         } else {
             if kept.len() < k {
@@ -124,7 +134,11 @@ pub fn build_mesh(
         mesh: Mesh {
             vertices: placed,
             triangles: kept,
-            origin: MeshOrigin { numbers, ..origin },
+            origin: MeshOrigin {
+                numbers,
+                dropped,
+                ..origin
+            },
         },
         degenerate_dropped,
     })

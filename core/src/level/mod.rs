@@ -9,9 +9,11 @@ mod digest;
 mod glob;
 mod gltf;
 mod level_file;
+mod lint_settings;
 mod mesh;
 mod model;
 mod obj;
+mod selection;
 mod shape;
 mod transform;
 
@@ -19,11 +21,13 @@ use std::path::{Path, PathBuf};
 
 pub use digest::level_digest;
 pub use glob::glob_matches;
+pub use lint_settings::{Allowance, LintSettings};
 pub use mesh::{DEGENERATE_RELATIVE_AREA, MeshFault, is_degenerate};
 pub use model::{
-    FaceLayout, FacePlace, Geometry, Level, LevelObject, MaterialRun, Mesh, MeshOrigin, ObjFace,
-    Primitive,
+    FaceLayout, FacePlace, Geometry, Level, LevelObject, MAX_LISTED_DROPPED, MaterialRun, Mesh,
+    MeshOrigin, ObjFace, Primitive,
 };
+pub use selection::Selection;
 pub use shape::{ShapeError, ShapeSpec};
 pub use transform::Transform;
 
@@ -51,6 +55,8 @@ pub struct LoadedLevel {
     pub diagnostics: Vec<Diagnostic>,
     /// Every file read: the level file, then the mesh and buffer files it names, in reading order.
     pub files: Vec<PathBuf>,
+    /// The level file's `lint` section (empty for a glTF or OBJ file).
+    pub lint: LintSettings,
 }
 
 /// Loads a level from a level file (`.json`), a glTF 2.0 file (`.gltf`, `.glb`) or an OBJ file;
@@ -67,7 +73,7 @@ pub fn load_level_from(
     policy: PathPolicy,
 ) -> Result<LoadedLevel, InputError> {
     let mut files = vec![path.to_path_buf()];
-    let (level, diagnostics) = match extension(path).as_str() {
+    let (level, diagnostics, lint) = match extension(path).as_str() {
         "json" => level_file::load_level_file(path, bytes, policy, &mut files)?,
         "gltf" | "glb" | "obj" => {
             let (objects, mut diagnostics) = mesh_file_objects(path, bytes, policy, &mut files)?;
@@ -76,7 +82,7 @@ pub fn load_level_from(
                 objects,
             };
             level_file::drop_empty_objects(path, &mut level.objects, &mut diagnostics);
-            (level, diagnostics)
+            (level, diagnostics, LintSettings::default())
         }
         _ => {
             return Err(InputError::file(
@@ -89,6 +95,7 @@ pub fn load_level_from(
         level,
         diagnostics,
         files,
+        lint,
     })
 }
 

@@ -64,7 +64,13 @@ pub struct MeshOrigin {
     pub layout: FaceLayout,
     /// Material runs, ascending by first number; empty when the file names no material.
     pub materials: Vec<MaterialRun>,
+    /// Triangles dropped because they had no area: their numbers and where they were (the middle
+    /// of their corners), at most [`MAX_LISTED_DROPPED`] (the count of all is in the load warning).
+    pub dropped: Vec<(u32, glam::DVec3)>,
 }
+
+/// The most dropped triangles a mesh lists by place (lint names them). Ours.
+pub const MAX_LISTED_DROPPED: usize = 1000;
 
 /// How a mesh's triangle numbers map to places in its file.
 #[derive(Debug, Clone, PartialEq, Default)]
@@ -223,6 +229,34 @@ pub enum Primitive {
 }
 
 impl Primitive {
+    /// The shape as a file writes it.
+    pub fn spec(&self) -> super::ShapeSpec {
+        use super::ShapeSpec;
+        match self {
+            Primitive::Sphere { radius } => ShapeSpec::Sphere { radius: *radius },
+            Primitive::Box { half_extents } => ShapeSpec::Box {
+                half_extents: half_extents.to_array(),
+            },
+            Primitive::Capsule {
+                radius,
+                half_height,
+            } => ShapeSpec::Capsule {
+                radius: *radius,
+                half_height: *half_height,
+            },
+            Primitive::Cylinder {
+                radius,
+                half_height,
+            } => ShapeSpec::Cylinder {
+                radius: *radius,
+                half_height: *half_height,
+            },
+            Primitive::Convex { points } => ShapeSpec::Convex {
+                points: points.iter().map(|p| p.to_array()).collect(),
+            },
+        }
+    }
+
     /// The shape's `type` name as written in files.
     pub fn type_name(&self) -> &'static str {
         match self {

@@ -191,6 +191,7 @@ pub fn load_obj(
         let origin = MeshOrigin {
             file: Some(file_name.clone()),
             numbers: Vec::new(),
+            dropped: Vec::new(),
             layout: FaceLayout::Obj(group.faces),
             materials: group.materials,
         };

@@ -6,11 +6,14 @@
 
 mod model;
 mod parse;
+mod rules;
 mod text;
 mod write;
 
 pub use model::{
-    Conditions, Expect, ExpectWord, HitsMode, Probe, ProbeKind, ProbeQuery, ProbeSet, Range,
+    Conditions, EYE_HEIGHT, Expect, ExpectWord, HitsMode, Probe, ProbeKind, ProbeQuery, ProbeSet,
+    REST_SEARCH, Range, Region, Spot, Spots,
 };
+pub use rules::{Anchor, FromRule, Landmark, REST_TOLERANCE, Rule, Template, parse_rules};
 pub use text::{ProbeText, load_probe_set, parse_probe_set, validate_probe};
-pub use write::probe_set_to_json;
+pub use write::{probe_set_to_json, rules_to_json};

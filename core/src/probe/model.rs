@@ -3,16 +3,19 @@
 use glam::{DQuat, DVec3};
 use serde::{Deserialize, Serialize};
 
+use super::rules::{FromRule, Rule};
 use crate::level::ShapeSpec;
 use crate::query::Filter;
 
-/// A probe set: the level it is about and its probes, in file order.
+/// A probe set: the level it is about, its probes and its rules, in file order.
 #[derive(Debug, Clone, PartialEq)]
 pub struct ProbeSet {
     /// The level file, as written (relative to the probe set's folder).
     pub level: String,
     /// The probes, in order.
     pub probes: Vec<Probe>,
+    /// The rules, in order (their probes are made on the level: [`crate::check::expand_rules`]).
+    pub rules: Vec<Rule>,
 }
 
 /// One probe: a question about the level, and optionally the answer it should get.
@@ -28,6 +31,8 @@ pub struct Probe {
     pub query: ProbeQuery,
     /// The expected answer; `None` leaves the probe unchecked.
     pub expect: Option<Expect>,
+    /// The rule that gave this probe, when a rule did (such probes are not saved: their rule is).
+    pub from_rule: Option<FromRule>,
 }
 
 /// Whether a ray or sweep reports its first hit or every hit.
@@ -52,15 +57,24 @@ pub enum ProbeKind {
     Closest,
     /// Every object a placed shape overlaps.
     Overlap,
+    /// Where a placed shape rests: its gap to the support below, or how deep it sinks in.
+    Rest,
+    /// Which of a set of spots see which.
+    Sightlines,
+    /// What share of a region a set of spots sees.
+    Coverage,
 }
 
 impl ProbeKind {
     /// Every kind, in the order the documentation lists them.
-    pub const ALL: [ProbeKind; 4] = [
+    pub const ALL: [ProbeKind; 7] = [
         ProbeKind::Ray,
         ProbeKind::Sweep,
         ProbeKind::Closest,
         ProbeKind::Overlap,
+        ProbeKind::Rest,
+        ProbeKind::Sightlines,
+        ProbeKind::Coverage,
     ];
 
     /// The kind's name as written in files.
@@ -70,6 +84,9 @@ impl ProbeKind {
             ProbeKind::Sweep => "sweep",
             ProbeKind::Closest => "closest",
             ProbeKind::Overlap => "overlap",
+            ProbeKind::Rest => "rest",
+            ProbeKind::Sightlines => "sightlines",
+            ProbeKind::Coverage => "coverage",
         }
     }
 
@@ -132,6 +149,69 @@ pub enum ProbeQuery {
         /// Its turn.
         rotation: Option<DQuat>,
     },
+    /// Where a placed shape rests on the level below it (along the level's down).
+    Rest {
+        /// The shape (not a point).
+        shape: ShapeSpec,
+        /// Where it is placed.
+        at: DVec3,
+        /// Its turn.
+        rotation: Option<DQuat>,
+        /// How far below to look for a support, metres (default [`REST_SEARCH`]).
+        search: Option<f64>,
+    },
+    /// Which spots see which: a sightline between every pair.
+    Sightlines {
+        /// The spots.
+        spots: Spots,
+    },
+    /// What share of a region's surfaces the spots see.
+    Coverage {
+        /// The spots seeing.
+        spots: Spots,
+        /// The region: surfaces inside this box, sampled on a grid.
+        region: Region,
+        /// The grid's spacing, metres.
+        spacing: f64,
+    },
+}
+
+/// How far below a rest probe looks for a support when the file does not say, metres. Ours.
+pub const REST_SEARCH: f64 = 2.0;
+
+/// A set of spots: named points, and the objects with some tags (each an eye height above its top).
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Spots {
+    /// Named points.
+    pub points: Vec<Spot>,
+    /// Objects with any of these tags are spots too.
+    pub tags: Vec<String>,
+    /// How far above the top of a tagged object its spot is, metres (default [`EYE_HEIGHT`]).
+    pub eye: Option<f64>,
+}
+
+/// The eye height above a tagged object when the file does not say: a standing person's eyes,
+/// common practice (from memory: about 1.6–1.7 m).
+pub const EYE_HEIGHT: f64 = 1.7;
+
+/// A named point.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Spot {
+    /// Its name, unique in its set.
+    pub name: String,
+    /// Where it is.
+    pub at: [f64; 3],
+}
+
+/// A box of level space.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Region {
+    /// Lowest corner.
+    pub min: [f64; 3],
+    /// Highest corner.
+    pub max: [f64; 3],
 }
 
 impl ProbeQuery {
@@ -142,6 +222,9 @@ impl ProbeQuery {
             ProbeQuery::Sweep { .. } => ProbeKind::Sweep,
             ProbeQuery::Closest { .. } => ProbeKind::Closest,
             ProbeQuery::Overlap { .. } => ProbeKind::Overlap,
+            ProbeQuery::Rest { .. } => ProbeKind::Rest,
+            ProbeQuery::Sightlines { .. } => ProbeKind::Sightlines,
+            ProbeQuery::Coverage { .. } => ProbeKind::Coverage,
         }
     }
 
@@ -150,7 +233,16 @@ impl ProbeQuery {
         match self {
             ProbeQuery::Ray { from, to, .. } => vec![*from, *to],
             ProbeQuery::Sweep { path, .. } => path.clone(),
-            ProbeQuery::Closest { at, .. } | ProbeQuery::Overlap { at, .. } => vec![*at],
+            ProbeQuery::Closest { at, .. }
+            | ProbeQuery::Overlap { at, .. }
+            | ProbeQuery::Rest { at, .. } => vec![*at],
+            ProbeQuery::Sightlines { spots } => spot_points(spots),
+            ProbeQuery::Coverage { spots, region, .. } => {
+                let mut points = spot_points(spots);
+                points.push(DVec3::from_array(region.min));
+                points.push(DVec3::from_array(region.max));
+                points
+            }
         }
     }
 
@@ -163,9 +255,11 @@ impl ProbeQuery {
                 _ => None,
             },
             ProbeQuery::Sweep { path, .. } => path.get_mut(k),
-            ProbeQuery::Closest { at, .. } | ProbeQuery::Overlap { at, .. } => {
-                (k == 0).then_some(at)
-            }
+            ProbeQuery::Closest { at, .. }
+            | ProbeQuery::Overlap { at, .. }
+            | ProbeQuery::Rest { at, .. } => (k == 0).then_some(at),
+            // Spots and region corners are edited as numbers, not dragged.
+            ProbeQuery::Sightlines { .. } | ProbeQuery::Coverage { .. } => None,
         }
     }
 
@@ -181,9 +275,20 @@ impl ProbeQuery {
     }
 }
 
+/// The named points of a set of spots.
+fn spot_points(spots: &Spots) -> Vec<DVec3> {
+    spots
+        .points
+        .iter()
+        .map(|s| DVec3::from_array(s.at))
+        .collect()
+}
+
 /// What a probe expects: `"clear"`, `"blocked"`, or a set of conditions that must all hold.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(untagged)]
+// Conditions are the common case; boxing them would cost an allocation per probe for nothing.
+#[allow(clippy::large_enum_variant)]
 pub enum Expect {
     /// `"clear"` or `"blocked"`.
     Word(ExpectWord),
@@ -223,6 +328,18 @@ pub struct Conditions {
     /// An overlap's deepest penetration is at most this.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub max_depth: Option<f64>,
+    /// Sightlines: these pairs of spots see each other.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub see: Option<Vec<[String; 2]>>,
+    /// Sightlines: these pairs of spots do not see each other.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub blind: Option<Vec<[String; 2]>>,
+    /// Sightlines: every spot sees at least this many others.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub min_seen: Option<usize>,
+    /// Coverage: the share of the region seen (0 to 1) lies in this range.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub seen: Option<Range>,
 }
 
 /// A closed range of metres; either end may be left open.

@@ -8,7 +8,9 @@ use glam::{DQuat, DVec3};
 use serde::Deserialize;
 use serde_json::value::RawValue;
 
-use super::model::{Conditions, Expect, ExpectWord, HitsMode, Probe, ProbeKind, ProbeQuery};
+use super::model::{
+    Conditions, Expect, ExpectWord, HitsMode, Probe, ProbeKind, ProbeQuery, Region, Spot, Spots,
+};
 use crate::error::InputError;
 use crate::input::{MAX_NAME_CHARS, check_name, number, one_line};
 use crate::level::ShapeSpec;
@@ -30,6 +32,12 @@ struct RawProbe<'a> {
     clearance: Option<bool>,
     at: Option<[f64; 3]>,
     max_distance: Option<f64>,
+    search: Option<f64>,
+    spots: Option<Vec<Spot>>,
+    spot_tags: Option<Vec<String>>,
+    eye: Option<f64>,
+    region: Option<Region>,
+    spacing: Option<f64>,
     ignore_tags: Option<Vec<String>>,
     only_tags: Option<Vec<String>>,
     ignore_objects: Option<Vec<String>>,
@@ -98,14 +106,17 @@ pub(super) fn parse_probe(path: &Path, text: &str, fragment: &str) -> Result<Pro
         filter,
         query,
         expect,
+        from_rule: None,
     })
 }
 
 fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
     let kind = ProbeKind::from_name(&raw.kind).ok_or_else(|| {
+        let known: Vec<&str> = ProbeKind::ALL.iter().map(|k| k.name()).collect();
         format!(
-            "unknown kind \"{}\" (expected ray, sweep, closest or overlap)",
-            raw.kind
+            "unknown kind \"{}\" (expected one of {})",
+            one_line(&raw.kind),
+            known.join(", ")
         )
     })?;
     let allowed: &[&str] = match kind {
@@ -113,6 +124,9 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
         ProbeKind::Sweep => &["shape", "rotation", "path", "hits", "duration", "clearance"],
         ProbeKind::Closest => &["shape", "at", "rotation", "max_distance"],
         ProbeKind::Overlap => &["shape", "at", "rotation"],
+        ProbeKind::Rest => &["shape", "at", "rotation", "search"],
+        ProbeKind::Sightlines => &["spots", "spot_tags", "eye"],
+        ProbeKind::Coverage => &["spots", "spot_tags", "eye", "region", "spacing"],
     };
     let present = [
         ("from", raw.from.is_some()),
@@ -125,6 +139,12 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
         ("clearance", raw.clearance.is_some()),
         ("at", raw.at.is_some()),
         ("max_distance", raw.max_distance.is_some()),
+        ("search", raw.search.is_some()),
+        ("spots", raw.spots.is_some()),
+        ("spot_tags", raw.spot_tags.is_some()),
+        ("eye", raw.eye.is_some()),
+        ("region", raw.region.is_some()),
+        ("spacing", raw.spacing.is_some()),
     ];
     if let Some((field, _)) = present.iter().find(|(f, p)| *p && !allowed.contains(f)) {
         return Err(format!(
@@ -220,7 +240,109 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
                 rotation,
             }
         }
+        ProbeKind::Rest => {
+            let shape = probe_shape(
+                raw.shape.as_ref().ok_or_else(|| need("shape"))?,
+                rotation,
+                false,
+            )?;
+            let at = finite_point("at", raw.at.ok_or_else(|| need("at"))?)?;
+            if let Some(d) = raw.search {
+                positive_metres("search", d)?;
+            }
+            ProbeQuery::Rest {
+                shape,
+                at,
+                rotation,
+                search: raw.search,
+            }
+        }
+        ProbeKind::Sightlines => ProbeQuery::Sightlines {
+            spots: parse_spots(raw)?,
+        },
+        ProbeKind::Coverage => {
+            let region = raw.region.ok_or_else(|| need("region"))?;
+            let (lo, hi) = (
+                finite_point("region.min", region.min)?,
+                finite_point("region.max", region.max)?,
+            );
+            if lo.cmpgt(hi).any() {
+                return Err("region.min must lie below region.max on every axis".into());
+            }
+            let spacing = raw.spacing.ok_or_else(|| need("spacing"))?;
+            positive_metres("spacing", spacing)?;
+            // The grid runs across the level's up axis: at most the two widest sides' cells.
+            let mut sides = (hi - lo).to_array();
+            sides.sort_by(f64::total_cmp);
+            let cells = (sides[2] / spacing + 1.0) * (sides[1] / spacing + 1.0);
+            if cells > MAX_COVERAGE_POINTS as f64 {
+                return Err(format!(
+                    "the region holds about {} grid points at this spacing; at most \
+                     {MAX_COVERAGE_POINTS} are sampled (use a larger spacing)",
+                    cells.round()
+                ));
+            }
+            ProbeQuery::Coverage {
+                spots: parse_spots(raw)?,
+                region,
+                spacing,
+            }
+        }
     })
+}
+
+/// The most grid points a coverage probe samples. Ours: a 2 km square at 1 m spacing is 4 million.
+pub const MAX_COVERAGE_POINTS: usize = 4_000_000;
+
+/// A coverage or sightlines probe's spots: named points (names unique) and tagged objects.
+fn parse_spots(raw: &RawProbe) -> Result<Spots, String> {
+    let points = raw.spots.clone().unwrap_or_default();
+    let tags = raw.spot_tags.clone().unwrap_or_default();
+    if points.is_empty() && tags.is_empty() {
+        return Err(format!(
+            "a {} probe needs \"spots\" or \"spot_tags\"",
+            raw.kind
+        ));
+    }
+    let mut names = std::collections::HashSet::new();
+    for (k, spot) in points.iter().enumerate() {
+        check_name("a spot's name", &spot.name)?;
+        if spot.name.is_empty() || !names.insert(spot.name.as_str()) {
+            return Err(format!(
+                "spots[{k}] needs a name of its own (\"{}\" is empty or used twice)",
+                one_line(&spot.name)
+            ));
+        }
+        finite_point(&format!("spots[{k}].at"), spot.at)?;
+    }
+    for tag in &tags {
+        check_name("a spot tag", tag)?;
+    }
+    if let Some(eye) = raw.eye
+        && !(eye.is_finite() && eye.abs() <= crate::level::MAX_SIZE)
+    {
+        return Err(format!(
+            "eye must be a number of metres, not {}",
+            number(eye)
+        ));
+    }
+    Ok(Spots {
+        points,
+        tags,
+        eye: raw.eye,
+    })
+}
+
+/// A positive number of metres within the size limit.
+fn positive_metres(field: &str, value: f64) -> Result<(), String> {
+    if value.is_finite() && value > 0.0 && value <= crate::level::MAX_COORDINATE {
+        Ok(())
+    } else {
+        Err(format!(
+            "{field} must be a positive number of metres, not {}",
+            number(value)
+        ))
+    }
 }
 
 fn probe_shape(
@@ -306,13 +428,28 @@ fn check_conditions(c: &Conditions, query: &ProbeQuery) -> Result<(), String> {
         }
     };
     if let Some(r) = c.distance {
-        if kind == ProbeKind::Overlap {
-            return Err(
-                "expect.distance does not apply to an overlap probe (use max_depth)".into(),
-            );
+        if matches!(
+            kind,
+            ProbeKind::Overlap | ProbeKind::Sightlines | ProbeKind::Coverage
+        ) {
+            return Err(format!(
+                "expect.distance does not apply to a {kind} probe{}",
+                if kind == ProbeKind::Overlap {
+                    " (use max_depth)"
+                } else {
+                    ""
+                }
+            ));
         }
         for v in [r.min, r.max].into_iter().flatten() {
-            metres("distance", v)?;
+            // A rest probe's gap is negative when the shape sinks in.
+            if kind == ProbeKind::Rest {
+                if !v.is_finite() {
+                    return Err("expect.distance must be finite numbers of metres".into());
+                }
+            } else {
+                metres("distance", v)?;
+            }
         }
         if let (Some(lo), Some(hi)) = (r.min, r.max)
             && lo > hi
@@ -335,6 +472,41 @@ fn check_conditions(c: &Conditions, query: &ProbeQuery) -> Result<(), String> {
             ));
         }
         metres("max_depth", v)?;
+    }
+    let pairs = c.see.iter().chain(&c.blind).flatten();
+    if (c.see.is_some() || c.blind.is_some() || c.min_seen.is_some())
+        && kind != ProbeKind::Sightlines
+    {
+        return Err(format!(
+            "expect.see, blind and min_seen apply to sightlines, not to a {kind} probe"
+        ));
+    }
+    if let ProbeQuery::Sightlines { spots } = query
+        && spots.tags.is_empty()
+        && let Some(pair) = pairs.clone().find(|pair| {
+            pair.iter()
+                .any(|n| !spots.points.iter().any(|s| s.name == *n))
+        })
+    {
+        return Err(format!(
+            "expect names a spot that is not in \"spots\": [\"{}\", \"{}\"]",
+            one_line(&pair[0]),
+            one_line(&pair[1])
+        ));
+    }
+    if let Some(r) = c.seen {
+        if kind != ProbeKind::Coverage {
+            return Err(format!(
+                "expect.seen applies to coverage, not to a {kind} probe"
+            ));
+        }
+        if [r.min, r.max]
+            .into_iter()
+            .flatten()
+            .any(|v| !(0.0..=1.0).contains(&v))
+        {
+            return Err("expect.seen is a share of the region, from 0 to 1".into());
+        }
     }
     Ok(())
 }

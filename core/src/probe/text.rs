@@ -12,6 +12,7 @@ use serde_json::value::RawValue;
 
 use super::model::{Probe, ProbeSet};
 use super::parse::parse_probe;
+use super::rules::{Rule, parse_rule};
 use crate::error::{InputError, check_header};
 use crate::input::{MAX_PROBES, read_input};
 
@@ -23,6 +24,8 @@ struct RawSet<'a> {
     level: String,
     #[serde(borrow)]
     probes: Vec<&'a RawValue>,
+    #[serde(default, borrow)]
+    rules: Vec<&'a RawValue>,
 }
 
 /// A checked probe-set file: every probe in it is valid and ids are unique.
@@ -35,6 +38,8 @@ pub struct ProbeText {
     spans: Vec<(usize, usize)>,
     /// The length of the longest id, in characters.
     longest_id: usize,
+    /// The rules, parsed.
+    rules: Vec<Rule>,
 }
 
 impl ProbeText {
@@ -48,7 +53,7 @@ impl ProbeText {
 
     /// Checks probe-set text; `path` is named in errors.
     pub fn parse(path: &Path, text: String) -> Result<ProbeText, InputError> {
-        let (level, spans) = {
+        let level = {
             let raw: RawSet =
                 serde_json::from_str(&text).map_err(|e| InputError::json(path, &e))?;
             check_header(path, &raw.plumbline, raw.version, "probes", "a probe set")?;
@@ -68,24 +73,49 @@ impl ProbeText {
                     (start, start + p.get().len())
                 })
                 .collect();
-            (raw.level, spans)
+            let rules = raw
+                .rules
+                .iter()
+                .map(|r| parse_rule(path, &text, r.get()))
+                .collect::<Result<Vec<Rule>, _>>()?;
+            let rule_spans: Vec<(usize, usize)> = raw
+                .rules
+                .iter()
+                .map(|r| {
+                    let start = r.get().as_ptr() as usize - base;
+                    (start, start + r.get().len())
+                })
+                .collect();
+            (raw.level, spans, rules, rule_spans)
         };
+        let (level, spans, rules, rule_spans) = level;
         let mut checked = ProbeText {
             path: path.to_path_buf(),
             text,
             level,
             spans,
             longest_id: 0,
+            rules,
         };
-        checked.longest_id = checked.check_every_probe()?;
+        checked.longest_id = checked.check_every_probe(&rule_spans)?;
         Ok(checked)
     }
 
-    /// Parses every probe once (each valid, ids unique), keeping nothing but the ids; returns the
-    /// length of the longest.
-    fn check_every_probe(&self) -> Result<usize, InputError> {
+    /// Parses every probe once (each valid, ids unique among probes and rules), keeping nothing but
+    /// the ids; returns the length of the longest.
+    fn check_every_probe(&self, rule_spans: &[(usize, usize)]) -> Result<usize, InputError> {
         let mut ids = HashSet::with_capacity(self.spans.len());
         let mut longest = 0;
+        for (rule, &(start, end)) in self.rules.iter().zip(rule_spans) {
+            if !ids.insert(rule.id.clone()) {
+                return Err(InputError::at_fragment(
+                    &self.path,
+                    &self.text,
+                    &self.text[start..end],
+                    format!("rule id \"{}\" is used twice", rule.id),
+                ));
+            }
+        }
         for k in 0..self.spans.len() {
             let probe = self.probe(k)?;
             longest = longest.max(probe.id.chars().count());
@@ -96,7 +126,7 @@ impl ProbeText {
                     &self.path,
                     &self.text,
                     &self.text[start..end],
-                    format!("probe id \"{id}\" is used twice"),
+                    format!("probe id \"{id}\" is used twice (by a probe or a rule)"),
                 ));
             }
         }
@@ -133,7 +163,13 @@ impl ProbeText {
         Ok(ProbeSet {
             level: self.level.clone(),
             probes: self.probes(0..self.len())?,
+            rules: self.rules.clone(),
         })
+    }
+
+    /// The rules.
+    pub fn rules(&self) -> &[Rule] {
+        &self.rules
     }
 
     /// The length of the longest probe id, in characters.
@@ -164,6 +200,7 @@ pub fn validate_probe(probe: &Probe) -> Result<(), InputError> {
     let set = ProbeSet {
         level: "level".into(),
         probes: vec![probe.clone()],
+        rules: Vec::new(),
     };
     ProbeText::parse(Path::new("probe"), super::probe_set_to_json(&set)).map(|_| ())
 }
@@ -187,6 +224,7 @@ mod tests {
                 hits: None,
             },
             expect: None,
+            from_rule: None,
         };
         assert_eq!(validate_probe(&probe), Ok(()));
         probe.id = "gate view".into();

@@ -4,15 +4,44 @@
 use glam::{DQuat, DVec3};
 use serde_json::{Map, Value, json};
 
-use super::model::{Probe, ProbeQuery, ProbeSet};
+use super::model::{Probe, ProbeQuery, ProbeSet, Spots};
 use crate::level::ShapeSpec;
 
 /// Serialises a probe set in the file format, stable and ready to save.
 pub fn probe_set_to_json(set: &ProbeSet) -> String {
-    let probes: Vec<Value> = set.probes.iter().map(probe_to_value).collect();
-    let value =
+    let probes: Vec<Value> = set
+        .probes
+        .iter()
+        .filter(|p| p.from_rule.is_none())
+        .map(probe_to_value)
+        .collect();
+    let mut value =
         json!({ "plumbline": "probes", "version": 1, "level": set.level, "probes": probes });
+    if !set.rules.is_empty() {
+        let rules: Vec<Value> = set.rules.iter().map(|r| r.written.clone()).collect();
+        value["rules"] = Value::Array(rules);
+    }
     crate::json_text::to_pretty(&value)
+}
+
+/// Rules as the probe-set file's `rules` array holds them, laid out for reading (what the window's
+/// rule editor shows).
+pub fn rules_to_json(rules: &[super::rules::Rule]) -> String {
+    let list: Vec<Value> = rules.iter().map(|r| r.written.clone()).collect();
+    crate::json_text::to_pretty(&Value::Array(list))
+}
+
+/// A set of spots as the file writes it: `spots`, `spot_tags`, `eye`.
+fn spots_fields(spots: &Spots, m: &mut Map<String, Value>) {
+    if !spots.points.is_empty() {
+        m.insert("spots".into(), json!(spots.points));
+    }
+    if !spots.tags.is_empty() {
+        m.insert("spot_tags".into(), json!(spots.tags));
+    }
+    if let Some(eye) = spots.eye {
+        m.insert("eye".into(), json!(eye));
+    }
 }
 
 fn probe_to_value(p: &Probe) -> Value {
@@ -80,6 +109,29 @@ fn probe_to_value(p: &Probe) -> Value {
             m.insert("shape".into(), shape(s));
             m.insert("at".into(), vec3(*at));
             quat(rotation, &mut m);
+        }
+        ProbeQuery::Rest {
+            shape: s,
+            at,
+            rotation,
+            search,
+        } => {
+            m.insert("shape".into(), shape(s));
+            m.insert("at".into(), vec3(*at));
+            quat(rotation, &mut m);
+            if let Some(d) = search {
+                m.insert("search".into(), json!(d));
+            }
+        }
+        ProbeQuery::Sightlines { spots } => spots_fields(spots, &mut m),
+        ProbeQuery::Coverage {
+            spots,
+            region,
+            spacing,
+        } => {
+            spots_fields(spots, &mut m);
+            m.insert("region".into(), json!(region));
+            m.insert("spacing".into(), json!(spacing));
         }
     }
     if !p.filter.ignore_tags.is_empty() {

@@ -99,7 +99,7 @@ pub(crate) struct MaterialGroup {
 pub(crate) struct MeshFacts {
     /// Every edge shared by exactly two triangles running opposite ways: the mesh has an inside.
     pub closed: bool,
-    /// Shared edges that two triangles run the same way (their windings disagree).
+    /// Edges that exactly two triangles run the same way, none back (their windings disagree).
     pub winding_faults: usize,
 }
 
@@ -341,11 +341,18 @@ fn surface_facts(triangles: &[[u32; 3]]) -> MeshFacts {
         }
     }
     edges.sort_unstable();
-    let winding_faults = edges.windows(2).filter(|w| w[0] == w[1]).count();
-    let closed = winding_faults == 0
+    let repeated = edges.windows(2).filter(|w| w[0] == w[1]).count();
+    let closed = repeated == 0
         && edges
             .iter()
             .all(|&e| edges.binary_search(&e.rotate_right(32)).is_ok());
+    // A winding fault is an edge two triangles run the same way with none running it back; an
+    // edge that four triangles share (two boxes stacked face to face) is a junction, not a fault.
+    let uses = |e: u64| edges.partition_point(|&x| x <= e) - edges.partition_point(|&x| x < e);
+    let winding_faults = edges
+        .windows(2)
+        .filter(|w| w[0] == w[1] && uses(w[0]) == 2 && uses(w[0].rotate_right(32)) == 0)
+        .count();
     MeshFacts {
         closed,
         winding_faults,

@@ -9,12 +9,15 @@
 //! objects go to the one met first in the BVH's fixed traversal order (first-hit rays, closest
 //! points) or to the lower object index (sweeps, overlaps, all-hit lists).
 
-mod body;
+pub(crate) mod body;
 mod clearance;
 mod closest;
+mod coverage;
 mod overlap;
 mod ray;
+mod rest;
 mod shapes;
+mod sightlines;
 mod sweep;
 mod watertight;
 mod world;
@@ -24,11 +27,14 @@ use glam::DVec3;
 pub use body::PART_TRIANGLES;
 pub use clearance::Clearance;
 pub use closest::{ClosestHit, ClosestProbe};
+pub use coverage::{SURFACE_LIFT, Sample};
 pub use overlap::{OverlapHit, TOUCH_TOLERANCE};
 pub use ray::RayHit;
+pub use rest::RestHit;
 pub use shapes::{
     ProbeShape, box_surface, placed_primitive_surface, primitive_shape, shape_surface,
 };
+pub use sightlines::{END_GAP, Sightline, SpotAt};
 pub use sweep::SweepHit;
 pub use watertight::ShearedRay;
 pub use world::{BuildCause, BuildError, Filter, MATERIAL_TAG, MaterialId, ObjectId, View, World};

@@ -4,7 +4,7 @@
 use std::collections::HashMap;
 use std::sync::Arc;
 
-use glam::DVec3;
+use glam::{DQuat, DVec3};
 use parry3d_f64::bounding_volume::Aabb;
 use parry3d_f64::math::Pose;
 use parry3d_f64::partitioning::{Bvh, BvhBuildStrategy};
@@ -12,7 +12,7 @@ use parry3d_f64::shape::TriMeshBuilderError;
 
 use super::body::{Body, MaterialGroup, mesh_bodies};
 use super::shapes::primitive_shape;
-use crate::level::{FacePlace, Geometry, Level, MeshOrigin, ShapeError};
+use crate::level::{FacePlace, Geometry, Level, MeshOrigin, Primitive, ShapeError, ShapeSpec};
 
 /// Index of an object in the [`World`] (the same order as the level's objects).
 pub type ObjectId = usize;
@@ -54,6 +54,8 @@ struct ObjectInfo {
     first_ordinal: u64,
     /// Shared edges of the mesh that two triangles run the same way.
     winding_faults: usize,
+    /// A primitive's shape and pose.
+    primitive: Option<(Primitive, DVec3, DQuat)>,
 }
 
 /// The queryable level: parry shapes, one BVH over objects (or their parts), names and tags.
@@ -64,6 +66,8 @@ pub struct World {
     materials: Vec<Arc<str>>,
     /// The tags of an object's material, where the material adds some.
     material_tags: HashMap<(ObjectId, MaterialId), Arc<[String]>>,
+    /// The box around each object's bodies.
+    object_boxes: Vec<Aabb>,
     pub(crate) bvh: Bvh,
     up: DVec3,
 }
@@ -88,6 +92,7 @@ impl World {
                 cause,
             };
             let tags: Arc<[String]> = Arc::from(item.tags);
+            let mut primitive_of = None;
             let (origin, closed, winding_faults, numbers) = match item.geometry {
                 Geometry::Mesh(mut mesh) => {
                     let origin = std::mem::take(&mut mesh.origin);
@@ -103,9 +108,10 @@ impl World {
                     translation,
                     rotation,
                 } => {
-                    let shape = primitive_shape(&shape).map_err(|e| fail(BuildCause::Shape(e)))?;
+                    let parry = primitive_shape(&shape).map_err(|e| fail(BuildCause::Shape(e)))?;
                     let pose = Pose::from_parts(translation, rotation);
-                    bodies.push(Body::primitive(object, shape, pose, tags.clone()));
+                    bodies.push(Body::primitive(object, parry, pose, tags.clone()));
+                    primitive_of = Some((shape, translation, rotation));
                     (None, false, 0, 1)
                 }
             };
@@ -116,6 +122,7 @@ impl World {
                 origin,
                 first_ordinal: ordinal,
                 winding_faults,
+                primitive: primitive_of,
             });
             ordinal += numbers;
         }
@@ -128,11 +135,17 @@ impl World {
                 (b.tags != objects[b.object].tags).then(|| ((b.object, m), b.tags.clone()))
             })
             .collect();
+        let mut object_boxes = vec![Aabb::new_invalid(); objects.len()];
+        for body in &bodies {
+            object_boxes[body.object].take_point(body.aabb.mins);
+            object_boxes[body.object].take_point(body.aabb.maxs);
+        }
         Ok(World {
             bodies,
             objects,
             materials: materials.names,
             material_tags,
+            object_boxes,
             bvh,
             up,
         })
@@ -224,6 +237,47 @@ impl World {
     /// The level's up axis.
     pub fn up(&self) -> DVec3 {
         self.up
+    }
+
+    /// The bounds of an object: the box around all its bodies.
+    pub fn object_bounds(&self, id: ObjectId) -> (DVec3, DVec3) {
+        let boxes = &self.object_boxes[id];
+        (boxes.mins, boxes.maxs)
+    }
+
+    /// An object's frame: a primitive's centre and turn; a mesh's bounds centre, unturned.
+    pub fn object_frame(&self, id: ObjectId) -> (DVec3, DQuat) {
+        match &self.objects[id].primitive {
+            Some((_, at, turn)) => (*at, *turn),
+            None => {
+                let (lo, hi) = self.object_bounds(id);
+                ((lo + hi) / 2.0, DQuat::IDENTITY)
+            }
+        }
+    }
+
+    /// An object's own solid shape around its frame's centre ([`World::object_frame`]): a
+    /// primitive's shape, or the convex hull of a mesh's vertices.
+    pub fn object_shape(&self, id: ObjectId) -> ShapeSpec {
+        if let Some((shape, _, _)) = &self.objects[id].primitive {
+            return shape.spec();
+        }
+        let (centre, _) = self.object_frame(id);
+        let points = self
+            .bodies
+            .iter()
+            .filter(|b| b.object == id)
+            .filter_map(|b| b.mesh())
+            .flat_map(|m| m.vertices().iter().map(move |v| (*v - centre).to_array()))
+            .collect();
+        ShapeSpec::Convex { points }
+    }
+
+    /// The objects that have any of these tags, in level order.
+    pub fn tagged(&self, tags: &[String]) -> Vec<ObjectId> {
+        (0..self.len())
+            .filter(|&id| self.tags(id).iter().any(|t| tags.contains(t)))
+            .collect()
     }
 
     /// The bounds of the whole level, or `None` when it is empty.
@@ -373,6 +427,26 @@ impl<'w> View<'w> {
     /// The world this view looks at.
     pub fn world(&self) -> &'w World {
         self.world
+    }
+
+    /// This view without some objects (a sightline between two spots on objects looks past them).
+    pub fn without(&self, objects: &[ObjectId]) -> View<'w> {
+        if objects.is_empty() {
+            return self.clone();
+        }
+        let allowed = self
+            .world
+            .bodies
+            .iter()
+            .enumerate()
+            .map(|(leaf, b)| {
+                self.allowed.as_ref().is_none_or(|a| a[leaf]) && !objects.contains(&b.object)
+            })
+            .collect();
+        View {
+            world: self.world,
+            allowed: Some(allowed),
+        }
     }
 
     /// The body behind a world BVH leaf, when the view queries it.

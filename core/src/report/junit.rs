@@ -72,7 +72,7 @@ impl JunitWriter {
 }
 
 /// Escapes text for XML attributes and content; drops characters XML 1.0 cannot hold.
-fn escape(text: &str) -> String {
+pub(super) fn escape(text: &str) -> String {
     let mut out = String::with_capacity(text.len());
     for c in text.chars() {
         match c {

@@ -110,6 +110,6 @@ fn probe_cell(id: &str, label: Option<&str>) -> String {
 }
 
 /// Text safe inside a table cell: pipes escaped, line breaks folded.
-fn cell(text: &str) -> String {
+pub(super) fn cell(text: &str) -> String {
     text.replace('|', "\\|").replace(['\n', '\r'], " ")
 }

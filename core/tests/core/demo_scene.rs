@@ -1,9 +1,11 @@
-//! The committed demo scene (scenes/): it regenerates to the same bytes, loads without warnings, and
-//! its probe set gives the reviewed baseline; the probe that fails on purpose says why.
+//! The committed demo scene (scenes/): it regenerates to the same bytes, loads without warnings, its
+//! probe set gives the reviewed baseline (the probes that fail on purpose say why), and lint finds
+//! exactly the faults planted in it.
 
 use std::path::Path;
 
-use plumbline_core::check::{ResultsFile, Verdict, probes_digest, run_probes};
+use plumbline_core::check::{ResultsFile, Verdict, expand_rules, probes_digest, run_probes};
+use plumbline_core::lint::{LintOptions, lint};
 use plumbline_core::demo::{files, write_demo_scene};
 use plumbline_core::input::PathPolicy;
 use plumbline_core::level::{LoadedLevel, level_digest, load_level};
@@ -79,16 +81,34 @@ fn the_probe_set_gives_the_reviewed_baseline() {
     let LoadedLevel { level, .. } =
         load_level(&scenes().join(files::LEVEL), PathPolicy::default()).unwrap();
     let world = World::new(&level).unwrap();
-    let results = run_probes(&world, &set.probes, Some(2), &|_| {}).unwrap();
-    let failing: Vec<_> = results
+    let mut probes = set.probes.clone();
+    probes.extend(expand_rules(&set.rules, &world));
+    let results = run_probes(&world, &probes, Some(2), &|_| {}).unwrap();
+    let failing: Vec<(&str, &str)> = results
         .iter()
         .filter(|r| r.verdict == Verdict::Fail)
+        .map(|r| (r.id.as_str(), r.reason.as_str()))
         .collect();
-    assert_eq!(failing.len(), 1);
-    assert_eq!(failing[0].id, "spawn-by-drums");
     assert_eq!(
-        failing[0].reason,
-        "Expected clear; overlaps drum-2 by 0.289 m (and 1 more)"
+        failing,
+        [
+            (
+                "spawn-by-drums",
+                "Expected clear; overlaps drum-2 by 0.289 m (and 1 more)"
+            ),
+            (
+                "spawns-clear/spawn-pad-hedge",
+                "Expected clear; overlaps yard/bush-05 by 1.017 m"
+            ),
+            (
+                "props-rest/crate-7",
+                "Expected a distance between -0.010 m and 0.010 m; rests on yard/terrain with a gap of 0.250 m"
+            ),
+            (
+                "lookouts-see-gate/lookout-catwalk",
+                "Expected clear; blocked by yard/warehouse at 1.250 m"
+            ),
+        ]
     );
     let file = ResultsFile::new(
         files::PROBES.into(),
@@ -99,4 +119,47 @@ fn the_probe_set_gives_the_reviewed_baseline() {
     );
     let golden = std::fs::read_to_string(scenes().join(files::BASELINE)).unwrap();
     assert_eq!(file.to_json(), golden);
+}
+
+#[test]
+fn lint_finds_exactly_the_planted_faults() {
+    let loaded = load_level(&scenes().join(files::LEVEL), PathPolicy::default()).unwrap();
+    let world = World::new(&loaded.level).unwrap();
+    let report = lint(
+        &loaded.level,
+        &world,
+        &loaded.lint,
+        &LintOptions::default(),
+        &|_| {},
+    );
+    let found: Vec<(&str, Vec<&str>)> = report
+        .findings
+        .iter()
+        .map(|f| (f.kind.word(), f.objects.iter().map(|o| &**o).collect()))
+        .collect();
+    assert_eq!(
+        found,
+        [
+            ("overlap", vec!["yard/crane", "container-02"]),
+            ("overlap", vec!["yard/crane", "container-03"]),
+            ("overlap", vec!["yard/crane", "container-04"]),
+            ("overlap", vec!["yard/bush-05", "spawn-pad-hedge"]),
+            ("narrow-gap", vec!["drum-1", "drum-2"]),
+            ("floats", vec!["crate-7"]),
+            ("open-edges", vec!["yard/stone-cairn"]),
+            ("duplicate-faces", vec!["yard/loading-plate"]),
+        ]
+    );
+    // The planted sizes, from the layout: the crane's legs reach 12 cm into the first row; the
+    // drums' centres are 0.806 m apart with radii 0.3; the crate was set 25 cm up; the cairn lost
+    // one triangle (three edges); the plate's top (two triangles) was written twice.
+    let measure = |k: usize| report.findings[k].measure.unwrap();
+    // (The crane comes from the .glb, whose positions are f32: a few micrometres at 32 m.)
+    assert!((measure(0) - 0.12).abs() < 1e-5);
+    assert!((measure(4) - (0.7f64.hypot(0.4) - 0.6)).abs() < 1e-6);
+    assert!((measure(5) - 0.25).abs() < 1e-9);
+    assert_eq!(report.findings[6].count, 3);
+    assert_eq!(report.findings[7].count, 2);
+    // Everything else the level file accepts, each with its reason.
+    assert!(report.allowed.iter().all(|(_, why)| !why.is_empty()));
 }

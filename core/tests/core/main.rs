@@ -7,6 +7,7 @@ mod demo_scene;
 mod expectations;
 mod fuzz_corpus;
 mod hostile_input;
+mod level_checks;
 mod loaders;
 mod messy_meshes;
 mod probe_files;

@@ -204,8 +204,14 @@ impl Viewport {
         }
         let size = DVec2::new(rect.width() as f64, rect.height() as f64);
         let mut events = ViewEvents::default();
+        // A rule's probes move with their objects, not by hand.
         let handles = match (authoring.tool, selection.single()) {
-            (Tool::Select, Some(i)) => document.probes.probes.get(i).map(|p| p.query.points()),
+            (Tool::Select, Some(i)) => document
+                .probes
+                .probes
+                .get(i)
+                .filter(|p| p.from_rule.is_none())
+                .map(|p| p.query.points()),
             _ => None,
         }
         .unwrap_or_default();

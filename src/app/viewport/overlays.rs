@@ -30,6 +30,15 @@ impl Viewport {
         let font = FontId::proportional(13.0);
         // Labels already placed; a label that would cover one moves down below it.
         let mut taken: Vec<Rect> = Vec::new();
+        // Every drawn marker: a label goes where it covers none, when there is such a place.
+        let markers: Vec<Pos2> = shown
+            .iter()
+            .take(MAX_DRAWN_PROBES)
+            .filter_map(|&i| {
+                let probe = document.probes.probes.get(i)?;
+                self.to_screen(rect, start_point(&probe.query, document.results.get(i)))
+            })
+            .collect();
         for &i in shown.iter().take(MAX_DRAWN_PROBES) {
             let (Some(probe), Some(result)) =
                 (document.probes.probes.get(i), document.results.get(i))
@@ -41,7 +50,7 @@ impl Viewport {
             if !selected && !changed && !matches!(result.verdict, Verdict::Fail | Verdict::Error) {
                 continue;
             }
-            let Some(at) = self.to_screen(rect, start_point(&probe.query)) else {
+            let Some(at) = self.to_screen(rect, start_point(&probe.query, Some(result))) else {
                 continue;
             };
             let text = if changed {
@@ -50,7 +59,6 @@ impl Viewport {
                 format!("{}  {}", verdict_word(result.verdict), probe.id)
             };
             let galley = painter.layout_no_wrap(text, font.clone(), egui::Color32::WHITE);
-            let mut pos = at + Vec2::new(26.0, -galley.size().y - 6.0);
             let frame_at = |pos: Pos2| {
                 Rect::from_min_size(
                     pos - Vec2::new(16.0, 0.0),
@@ -58,11 +66,42 @@ impl Viewport {
                 )
                 .expand2(Vec2::new(5.0, 2.0))
             };
+            let (w, h) = (galley.size().x, galley.size().y);
+            // Beside the marker first, then farther out (with a leader line) in a crowd.
+            let places: Vec<Vec2> = [26.0f32, 70.0, 130.0]
+                .into_iter()
+                .flat_map(|d| {
+                    [
+                        Vec2::new(d, -h - d * 0.3),
+                        Vec2::new(d, d * 0.3),
+                        Vec2::new(-w - d, -h - d * 0.3),
+                        Vec2::new(-w - d, d * 0.3),
+                    ]
+                })
+                .collect();
+            let free = |pos: Pos2| {
+                let frame = frame_at(pos);
+                rect.contains_rect(frame)
+                    && !taken.iter().any(|r| r.intersects(frame))
+                    && !markers.iter().any(|m| frame.expand(6.0).contains(*m))
+            };
+            let mut pos = places
+                .iter()
+                .map(|d| at + *d)
+                .find(|p| free(*p))
+                .unwrap_or(at + places[0]);
             while let Some(below) = taken.iter().find(|r| r.intersects(frame_at(pos))) {
                 pos.y = below.bottom() + 3.0;
             }
             let frame = frame_at(pos);
             taken.push(frame);
+            if !frame.expand(24.0).contains(at) {
+                let end = Pos2::new(
+                    at.x.clamp(frame.left(), frame.right()),
+                    at.y.clamp(frame.top(), frame.bottom()),
+                );
+                painter.line_segment([at, end], Stroke::new(1.0, verdict_color32(result.verdict)));
+            }
             painter.rect_filled(frame, 3.0, color32_alpha(BACKING, 225));
             painter.rect_stroke(
                 frame,
