@@ -107,10 +107,11 @@ pub struct Spill {
 }
 
 impl Spill {
-    /// A scratch file for the output `target`: `.<name>.part.<pid>.tmp` in its folder.
-    pub fn beside(target: &Path) -> io::Result<Spill> {
+    /// A scratch file for one `part` of the output `target`: `.<name>.<part>.<pid>.tmp` in its
+    /// folder (an output made of several parts has a scratch file for each).
+    pub fn beside(target: &Path, part: &str) -> io::Result<Spill> {
         let mut name = target.file_name().unwrap_or_default().to_os_string();
-        name.push(".part");
+        name.push(format!(".{part}"));
         let part = target.with_file_name(name);
         let folder = match part.parent() {
             Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
@@ -305,7 +306,7 @@ mod tests {
     fn a_spill_lands_after_what_is_written_first_and_leaves_nothing() {
         let dir = tempfile::tempdir().unwrap();
         let path = dir.path().join("run.junit.xml");
-        let mut body = Spill::beside(&path).unwrap();
+        let mut body = Spill::beside(&path, "part").unwrap();
         body.write_all(b"<case/>").unwrap();
         let mut file = AtomicFile::create(&path).unwrap();
         file.write_all(b"<suite>").unwrap();

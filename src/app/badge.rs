@@ -24,8 +24,24 @@ pub fn verdict_color32(verdict: Verdict) -> Color32 {
 
 /// Paints a verdict's marker shape centred on `centre`, `radius` points across half its width.
 pub fn paint_mark(painter: &egui::Painter, centre: Pos2, radius: f32, verdict: Verdict) {
-    let colour = verdict_color32(verdict);
-    match verdict_mark(verdict) {
+    paint_shape(
+        painter,
+        centre,
+        radius,
+        verdict_mark(verdict),
+        verdict_color32(verdict),
+    );
+}
+
+/// Paints a marker shape centred on `centre`, `radius` points across half its width.
+pub fn paint_shape(
+    painter: &egui::Painter,
+    centre: Pos2,
+    radius: f32,
+    mark: StateMark,
+    colour: Color32,
+) {
+    match mark {
         StateMark::Round => {
             painter.circle_filled(centre, radius, colour);
         }

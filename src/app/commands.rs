@@ -41,11 +41,13 @@ pub enum Command {
     ToggleFly,
     /// Open or close the rules window.
     Rules,
+    /// Open or close the level lint window.
+    Lint,
 }
 
 impl Command {
     /// Commands that have a shortcut, in the order shortcuts are tried.
-    pub const WITH_SHORTCUTS: [Command; 20] = [
+    pub const WITH_SHORTCUTS: [Command; 21] = [
         Command::Open,
         Command::SaveAs,
         Command::Save,
@@ -66,6 +68,7 @@ impl Command {
         Command::FrameProbe,
         Command::ToggleFly,
         Command::Rules,
+        Command::Lint,
     ];
 
     /// The menu item's words.
@@ -91,6 +94,7 @@ impl Command {
             Command::FrameProbe => "Frame probe",
             Command::ToggleFly => "Fly mode",
             Command::Rules => "Rules…",
+            Command::Lint => "Level lint…",
         }
     }
 
@@ -115,6 +119,7 @@ impl Command {
             Command::FrameProbe => plain(Key::F),
             Command::ToggleFly => plain(Key::G),
             Command::Rules => command(Key::R),
+            Command::Lint => command(Key::L),
         })
     }
 

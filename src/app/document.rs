@@ -11,7 +11,7 @@ use plumbline_core::check::{
 };
 use plumbline_core::error::{Diagnostic, Error};
 use plumbline_core::input::PathPolicy;
-use plumbline_core::level::{Geometry, Level};
+use plumbline_core::level::{Geometry, Level, LintSettings};
 use plumbline_core::probe::{Probe, ProbeSet, Rule, parse_probe_set, probe_set_to_json};
 use plumbline_core::query::World;
 use plumbline_core::session::{Edited, OpenOptions, Opened, open};
@@ -34,6 +34,8 @@ pub struct Document {
     pub level_digest: String,
     /// Load warnings.
     pub diagnostics: Vec<Diagnostic>,
+    /// The level file's `lint` section.
+    pub lint: LintSettings,
     /// Where paths named inside the files may lead (kept for reloads).
     pub paths: PathPolicy,
     stamps: Vec<(PathBuf, Option<SystemTime>)>,
@@ -62,6 +64,7 @@ impl Document {
             results,
             level_digest: level.digest,
             diagnostics: level.diagnostics,
+            lint: level.lint,
             paths,
             stamps,
             edits: 0,
@@ -240,6 +243,7 @@ impl Document {
         self.stamps = stamps(&level.files);
         self.level_digest = level.digest;
         self.diagnostics = level.diagnostics;
+        self.lint = level.lint;
         self.level = level.model.expect(KEPT);
         self.world = Arc::new(level.world);
         self.results = results;

@@ -45,6 +45,7 @@ impl Workbench {
             Command::FrameProbe => self.after_selection(true),
             Command::ToggleFly => self.viewport.fly = !self.viewport.fly,
             Command::Rules => self.toggle_rules(),
+            Command::Lint => self.toggle_lint(ctx),
         }
     }
 
@@ -59,6 +60,8 @@ impl Workbench {
         self.autosave();
         self.plots.poll();
         let shown = self.shown();
+        // Before the view: a finding picked now is framed and drawn in this frame.
+        self.lint_window(&ctx);
 
         egui::Panel::top("menus").show(ui, |ui| self.menu_bar(ui));
         egui::Panel::top("toolbar").show(ui, |ui| self.toolbar(ui));
@@ -130,6 +133,7 @@ impl Workbench {
                 selection: &self.selection,
                 authoring: &authoring,
                 changes: &self.changes,
+                finding: self.lint.finding(),
             };
             let events = self.viewport.ui(ui, &scene);
             self.view_events(events, &shown);

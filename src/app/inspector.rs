@@ -160,7 +160,13 @@ pub fn inspector_ui(
         ui.horizontal(|ui| command_buttons(ui, &mut action));
     }
     ui.separator();
-    egui::CollapsingHeader::new(format!("Hits ({})", result.hits.len()))
+    let heading = match &result.hits {
+        Hits::Rest(_) => "Support".to_string(),
+        Hits::Sightlines(pairs) => format!("Sightlines ({} pairs)", pairs.len()),
+        Hits::Coverage(_) => "Coverage".to_string(),
+        hits => format!("Hits ({})", hits.len()),
+    };
+    egui::CollapsingHeader::new(heading)
         .default_open(true)
         .show(ui, |ui| hits_table(ui, result, selection));
     if let Some(plot) = plot.filter(|p| p.probe == index) {
@@ -371,6 +377,30 @@ fn expect_words(expect: Option<&Expect>) -> String {
     }
     if let Some(m) = c.max_depth {
         words.push(format!("depth at most {}", metres(m)));
+    }
+    let pairs = |list: &Vec<[String; 2]>| {
+        list.iter()
+            .map(|[a, b]| format!("{a}–{b}"))
+            .collect::<Vec<_>>()
+            .join(", ")
+    };
+    if let Some(list) = &c.see {
+        words.push(format!("see: {}", pairs(list)));
+    }
+    if let Some(list) = &c.blind {
+        words.push(format!("do not see: {}", pairs(list)));
+    }
+    if let Some(n) = c.min_seen {
+        words.push(format!("each sees at least {n}"));
+    }
+    if let Some(range) = c.seen {
+        let percent = |v: f64| format!("{:.1}%", v * 100.0);
+        match (range.min, range.max) {
+            (Some(lo), Some(hi)) => words.push(format!("{} to {} seen", percent(lo), percent(hi))),
+            (Some(lo), None) => words.push(format!("at least {} seen", percent(lo))),
+            (None, Some(hi)) => words.push(format!("at most {} seen", percent(hi))),
+            (None, None) => {}
+        }
     }
     words.join("; ")
 }

@@ -22,6 +22,8 @@ pub struct WindowOptions {
     pub bench_frames: Option<usize>,
     /// The id of a probe to select at the start.
     pub select: Option<String>,
+    /// Open the level lint window at the start, its first finding picked.
+    pub lint: bool,
     /// Where paths named inside the files opened may lead.
     pub paths: plumbline_core::input::PathPolicy,
 }
@@ -71,6 +73,7 @@ pub fn launch(path: &std::path::Path, options: WindowOptions) -> Result<(), Stri
                 .ok_or_else(|| format!("{}: no probe with id \"{id}\"", path.display()))?,
         ),
     };
+    let lint = options.lint;
     let capture = Capture::new(&options);
     let outcome = capture.outcome();
     let size = options.size.unwrap_or([1440, 860]);
@@ -114,6 +117,10 @@ pub fn launch(path: &std::path::Path, options: WindowOptions) -> Result<(), Stri
             if selected.is_some() {
                 workbench.select_probe(selected);
                 workbench.scroll_list = true;
+            }
+            if lint {
+                workbench.lint.open = true;
+                workbench.lint.pick_first = true;
             }
             Ok(Box::new(WorkbenchApp { workbench, capture }))
         }),

@@ -5,7 +5,8 @@ use eframe::egui;
 use egui::RichText;
 
 use super::Selection;
-use super::badge::color32;
+use super::badge::{color32, paint_shape};
+use crate::view::palette::StateMark;
 use crate::view::palette::okabe_ito;
 use plumbline_core::check::{Hits, ProbeResult, metres};
 
@@ -55,17 +56,27 @@ pub fn answer_ui(ui: &mut egui::Ui, result: &ProbeResult, selection: &mut Select
                     ui.label(c.spots.join(", "));
                     ui.end_row();
                 });
-                ui.label(
-                    RichText::new("In the view: ● seen (bluish green), ■ not seen (vermillion).")
-                        .weak(),
-                );
+                ui.horizontal(|ui| {
+                    ui.label(RichText::new("In the view:").weak());
+                    swatch(ui, StateMark::Round, okabe_ito::BLUISH_GREEN);
+                    ui.label(RichText::new("seen").weak());
+                    swatch(ui, StateMark::Square, okabe_ito::VERMILLION);
+                    ui.label(RichText::new("not seen").weak());
+                });
             }
         }
         _ => {}
     }
 }
 
-/// Which spots see which, as a table: ● sees, ✕ blocked; a click marks that sightline.
+/// A small painted marker, as the view draws it.
+fn swatch(ui: &mut egui::Ui, mark: StateMark, colour: [u8; 3]) {
+    let (rect, _) = ui.allocate_exact_size(egui::vec2(12.0, 12.0), egui::Sense::hover());
+    paint_shape(ui.painter(), rect.center(), 4.5, mark, color32(colour));
+}
+
+/// Which spots see which, as a table: a round mark sees, a cross is blocked; a click marks that
+/// sightline.
 fn matrix(
     ui: &mut egui::Ui,
     pairs: &[plumbline_core::check::PairRecord],
@@ -98,20 +109,32 @@ fn matrix(
                         ui.label("·");
                         continue;
                     };
-                    let sees = pairs[k].sees;
-                    let (mark, colour) = if sees {
-                        ("●", okabe_ito::BLUISH_GREEN)
+                    let (mark, colour) = if pairs[k].sees {
+                        (StateMark::Round, okabe_ito::BLUISH_GREEN)
                     } else {
-                        ("✕", okabe_ito::VERMILLION)
+                        (StateMark::Cross, okabe_ito::VERMILLION)
                     };
                     let picked = selection.hit == Some(k);
-                    let text = RichText::new(mark).color(color32(colour));
                     let blocker = pairs[k]
                         .object
                         .as_deref()
-                        .map_or("clear".to_string(), |o| format!("blocked by {o}"));
-                    if ui
-                        .selectable_label(picked, text)
+                        .map_or("sees".to_string(), |o| format!("blocked by {o}"));
+                    let (rect, response) =
+                        ui.allocate_exact_size(egui::vec2(22.0, 18.0), egui::Sense::click());
+                    let visuals = ui.style().interact_selectable(&response, picked);
+                    if picked || response.hovered() {
+                        ui.painter().rect_filled(rect, 3.0, visuals.weak_bg_fill);
+                    }
+                    paint_shape(ui.painter(), rect.center(), 5.0, mark, color32(colour));
+                    response.widget_info(|| {
+                        egui::WidgetInfo::selected(
+                            egui::Role::Button,
+                            true,
+                            picked,
+                            format!("{a} – {b}: {blocker}"),
+                        )
+                    });
+                    if response
                         .on_hover_text(format!("{a} – {b}: {blocker}"))
                         .clicked()
                     {

@@ -82,7 +82,12 @@ impl Workbench {
                 }
             });
             ui.menu_button("View", |ui| {
-                for command in [Command::FrameLevel, Command::FrameProbe, Command::ToggleFly] {
+                for command in [
+                    Command::FrameLevel,
+                    Command::FrameProbe,
+                    Command::ToggleFly,
+                    Command::Lint,
+                ] {
                     if menu_item(ui, command, true) {
                         chosen = Some(command);
                     }

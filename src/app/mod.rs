@@ -3,8 +3,8 @@
 //!
 //! [`Workbench`] keeps the window's state; each panel and dialog is a small function or `impl
 //! Workbench` block in a file of its own that borrows it ([`menus`], [`toolbar`], [`probe_list`],
-//! [`inspector`], [`summary_bar`], [`dialogs`], [`rules_panel`], [`viewport`]), so tests drive them
-//! headlessly.
+//! [`inspector`], [`summary_bar`], [`dialogs`], [`rules_panel`], [`lint_panel`], [`viewport`]), so
+//! tests drive them headlessly.
 //! [`frame`] lays them out for one frame; [`editing`] is the one way probes change; [`launch`]
 //! starts the window.
 
@@ -22,6 +22,7 @@ pub mod inspector;
 pub mod jobs;
 mod launcher;
 pub mod level_answers;
+pub mod lint_panel;
 pub mod menus;
 pub mod plotting;
 pub mod probe_list;
@@ -91,6 +92,8 @@ pub struct Workbench {
     pub dialog: Option<Dialog>,
     /// The rules window, while it is open.
     pub rules_draft: Option<rules_panel::RulesDraft>,
+    /// The level lint window.
+    pub lint: lint_panel::LintPanel,
     message: Option<(String, Instant)>,
     last_autosave: Instant,
     autosaved: Option<u64>,
@@ -125,6 +128,7 @@ impl Workbench {
             recent: Vec::new(),
             dialog: None,
             rules_draft: None,
+            lint: lint_panel::LintPanel::default(),
             message: None,
             last_autosave: Instant::now(),
             autosaved: None,
@@ -160,9 +164,9 @@ impl Workbench {
         }
     }
 
-    /// True while background work (a clearance plot) is still running.
+    /// True while background work (a clearance plot, a lint run) is still running.
     pub fn is_busy(&self) -> bool {
-        self.plot_wanted || self.plots.is_busy()
+        self.plot_wanted || self.plots.is_busy() || self.lint.is_running()
     }
 
     /// Shows a status message in the summary bar.

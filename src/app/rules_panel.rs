@@ -45,7 +45,7 @@ impl Workbench {
         egui::Window::new("Rules")
             .open(&mut open)
             .default_width(560.0)
-            .default_pos(ctx.content_rect().center() - egui::vec2(280.0, 240.0))
+            .default_pos(ctx.content_rect().left_top() + egui::vec2(330.0, 80.0))
             .show(ctx, |ui| {
                 ui.label(
                     RichText::new(
@@ -57,21 +57,9 @@ impl Workbench {
                 ui.add_space(4.0);
                 list = self.rule_rows(ui);
                 ui.separator();
-                ui.label("The rules as they are saved:");
-                egui::ScrollArea::vertical()
-                    .max_height(300.0)
-                    .show(ui, |ui| {
-                        ui.add(
-                            egui::TextEdit::multiline(&mut draft.text)
-                                .code_editor()
-                                .desired_rows(12)
-                                .desired_width(f32::INFINITY),
-                        );
-                    });
-                if let Some(error) = &draft.error {
-                    ui.colored_label(verdict_color32(Verdict::Error), error);
-                }
+                // The buttons above the text, so that a long text never pushes them away.
                 ui.horizontal(|ui| {
+                    ui.label("The rules as they are saved:");
                     let current = rules_to_json(&self.document.probes.rules);
                     let edited = draft.text != current;
                     apply = ui.add_enabled(edited, egui::Button::new("Apply")).clicked();
@@ -85,6 +73,19 @@ impl Workbench {
                         };
                     }
                 });
+                if let Some(error) = &draft.error {
+                    ui.colored_label(verdict_color32(Verdict::Error), error);
+                }
+                egui::ScrollArea::vertical()
+                    .max_height(300.0)
+                    .show(ui, |ui| {
+                        ui.add(
+                            egui::TextEdit::multiline(&mut draft.text)
+                                .code_editor()
+                                .desired_rows(12)
+                                .desired_width(f32::INFINITY),
+                        );
+                    });
             });
         if apply {
             match self.checked_rules(&draft.text) {

@@ -1,4 +1,5 @@
-//! The window's command-line options: `--screenshot PATH`, `--size WxH`, `--bench-frames N`.
+//! The window's command-line options: `--screenshot PATH`, `--size WxH`, `--select PROBE`,
+//! `--lint`, `--bench-frames N`.
 
 use std::path::PathBuf;
 
@@ -17,6 +18,9 @@ pub struct WindowArgs {
     /// Select this probe (by id) at the start, framed in the view.
     #[arg(long, value_name = "PROBE")]
     pub select: Option<String>,
+    /// Open the level lint window at the start, its first finding picked and framed.
+    #[arg(long)]
+    pub lint: bool,
     /// Draw N frames of each kind (overlay change, camera motion, full redraw), print their times,
     /// then exit.
     #[arg(long, value_name = "N", value_parser = clap::value_parser!(u32).range(1..))]
@@ -34,6 +38,7 @@ impl WindowArgs {
             size: self.size,
             bench_frames: self.bench_frames.map(|n| n as usize),
             select: self.select.clone(),
+            lint: self.lint,
             paths: plumbline_core::input::PathPolicy {
                 anywhere: self.allow_outside_paths,
             },

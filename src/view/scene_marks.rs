@@ -10,6 +10,7 @@ use super::palette::{HANDLE, HOVER_OUTLINE, StateMark, okabe_ito};
 use super::probe_marks::{Emphasis, probe_marks};
 use plumbline_core::check::{Hits, ProbeResult};
 use plumbline_core::level::{Geometry, Level};
+use plumbline_core::lint::Finding;
 use plumbline_core::probe::Probe;
 use plumbline_core::query::placed_primitive_surface;
 
@@ -48,6 +49,9 @@ pub struct SceneMarks<'a> {
     pub preview: &'a [DVec3],
     /// The triangle under the pointer.
     pub hover_triangle: Option<[DVec3; 3]>,
+    /// The lint finding picked, drawn over everything: its objects highlighted, its edges and
+    /// its point.
+    pub finding: Option<&'a Finding>,
 }
 
 /// The marks of a frame, in drawing order.
@@ -63,9 +67,15 @@ pub fn scene_marks(scene: &SceneMarks) -> Vec<Mark> {
             hit: scene.hit,
         };
         probe_marks(probe, result, emphasis, &mut marks);
-        if emphasis.selected {
-            overlapped_objects(scene.level, result, &mut marks);
+        if emphasis.selected
+            && let Hits::Overlap(hits) = &result.hits
+        {
+            let names: Vec<&str> = hits.iter().map(|h| &*h.object).collect();
+            highlight_objects(scene.level, &names, &mut marks);
         }
+    }
+    if let Some(finding) = scene.finding {
+        finding_marks(scene.level, finding, &mut marks);
     }
     for h in scene.handles {
         marks.push(Mark::Point {
@@ -106,13 +116,33 @@ pub fn scene_marks(scene: &SceneMarks) -> Vec<Mark> {
     marks
 }
 
-/// Highlights the objects an overlap probe overlaps (see-through copies of their surfaces).
-fn overlapped_objects(level: &Level, result: &ProbeResult, marks: &mut Vec<Mark>) {
-    let Hits::Overlap(hits) = &result.hits else {
-        return;
-    };
-    for hit in hits {
-        let Some(object) = level.objects.iter().find(|o| *o.name == *hit.object) else {
+/// A lint finding: its objects highlighted, its edges in thick lines, and a large marker at its
+/// point.
+fn finding_marks(level: &Level, finding: &Finding, marks: &mut Vec<Mark>) {
+    let names: Vec<&str> = finding.objects.iter().map(|o| &**o).collect();
+    highlight_objects(level, &names, marks);
+    for [a, b] in &finding.edges {
+        marks.push(Mark::Line {
+            from: *a,
+            to: *b,
+            colour: okabe_ito::VERMILLION,
+            width: 4.0,
+            dashed: false,
+        });
+    }
+    marks.push(Mark::Point {
+        at: finding.point,
+        colour: okabe_ito::VERMILLION,
+        size: 16.0,
+        mark: StateMark::Diamond,
+    });
+}
+
+/// Highlights objects by name (see-through copies of their surfaces): what an overlap probe
+/// overlaps, what a lint finding is about.
+fn highlight_objects(level: &Level, names: &[&str], marks: &mut Vec<Mark>) {
+    for name in names {
+        let Some(object) = level.objects.iter().find(|o| o.name == *name) else {
             continue;
         };
         let (vertices, triangles) = match &object.geometry {
@@ -208,6 +238,7 @@ mod tests {
             handles: &[],
             preview: &[],
             hover_triangle: None,
+            finding: None,
         };
         let highlights = |marks: &[Mark]| {
             marks
@@ -225,5 +256,26 @@ mod tests {
             m,
             Mark::Point { colour, mark: StateMark::Square, .. } if *colour == HANDLE
         )));
+        // A lint finding about the drum highlights it too, with a marker at its point.
+        scene.selected = None;
+        scene.selected_all = &[];
+        let finding = plumbline_core::lint::Finding {
+            kind: plumbline_core::lint::FindingKind::Floats,
+            objects: vec!["drum".into()],
+            triangles: Vec::new(),
+            count: 1,
+            measure: Some(0.2),
+            point: DVec3::new(4.0, 0.0, 0.0),
+            edges: vec![[DVec3::ZERO, DVec3::X]],
+            message: "drum floats".into(),
+        };
+        scene.finding = Some(&finding);
+        let marks = scene_marks(&scene);
+        assert_eq!(highlights(&marks), 1, "the finding's object is highlighted");
+        assert!(
+            marks
+                .iter()
+                .any(|m| matches!(m, Mark::Point { at, .. } if *at == finding.point))
+        );
     }
 }

@@ -412,3 +412,36 @@ fn watch_reruns_on_a_level_edit() {
     let _ = child.wait();
     assert!(saw_change, "the edit was picked up and reported");
 }
+
+#[test]
+fn the_demo_with_rules_matrix_and_coverage_gives_the_same_bytes_for_any_jobs() {
+    let scenes = Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes");
+    let dir = tempfile::tempdir().unwrap();
+    let mut files = Vec::new();
+    for jobs in ["1", "2"] {
+        let out = dir.path().join(format!("jobs-{jobs}.results.json"));
+        let run = plumbline(
+            &scenes,
+            &[
+                "check",
+                "saltfen-quay.probes.json",
+                "--jobs",
+                jobs,
+                "--out",
+                out.to_str().unwrap(),
+            ],
+        );
+        assert_eq!(run.status.code(), Some(1), "{}", text(&run.stderr));
+        files.push(std::fs::read(out).unwrap());
+    }
+    assert_eq!(files[0], files[1]);
+    let results: serde_json::Value = serde_json::from_slice(&files[0]).unwrap();
+    let ids: Vec<&str> = results["results"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|r| r["id"].as_str().unwrap())
+        .collect();
+    assert!(ids.contains(&"props-rest/crate-7"));
+    assert!(ids.contains(&"lookout-matrix"));
+}

@@ -5,3 +5,4 @@ mod check;
 mod demo;
 mod hostile;
 mod info;
+mod lint;

@@ -2,6 +2,7 @@
 //! (egui_kittest), the whole window under Xvfb with real input, and its screenshots.
 
 mod authoring;
+mod level_checks;
 mod panels;
 mod real_input;
 mod render;

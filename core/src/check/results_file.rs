@@ -134,7 +134,7 @@ impl ResultsWriter {
     pub fn create(path: &Path, total: usize) -> io::Result<ResultsWriter> {
         Ok(ResultsWriter {
             path: path.to_path_buf(),
-            body: Spill::beside(path)?,
+            body: Spill::beside(path, "part")?,
             written: 0,
             total,
             entry: String::new(),

@@ -23,7 +23,7 @@ impl JunitWriter {
         Ok(JunitWriter {
             path: path.to_path_buf(),
             suite: suite.to_string(),
-            cases: Spill::beside(path)?,
+            cases: Spill::beside(path, "cases")?,
         })
     }
 

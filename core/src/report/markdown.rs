@@ -4,7 +4,7 @@ use std::io::{self, Write};
 use std::path::{Path, PathBuf};
 
 use crate::atomic::{AtomicFile, Spill};
-use crate::check::{Comparison, ProbeResult, Summary, Verdict};
+use crate::check::{Comparison, Hits, PairRecord, ProbeResult, Summary, Verdict};
 use crate::probe::Probe;
 
 /// Writes the Markdown summary probe by probe: failing rows go to a scratch file, and
@@ -14,20 +14,33 @@ pub struct MarkdownWriter {
     path: PathBuf,
     failing: Spill,
     any_failing: bool,
+    matrices: Spill,
+    any_matrix: bool,
 }
+
+/// Sightline matrices of at most this many spots are drawn as tables; larger ones list their
+/// blocked pairs. Ours: what fits a review comment.
+const MAX_TABLE_SPOTS: usize = 16;
 
 impl MarkdownWriter {
     /// Starts the summary at `path`.
     pub fn create(path: &Path) -> io::Result<MarkdownWriter> {
         Ok(MarkdownWriter {
             path: path.to_path_buf(),
-            failing: Spill::beside(path)?,
+            failing: Spill::beside(path, "failing")?,
             any_failing: false,
+            matrices: Spill::beside(path, "matrices")?,
+            any_matrix: false,
         })
     }
 
-    /// Adds the next result (a table row when it fails or errs).
+    /// Adds the next result (a table row when it fails or errs; a sightline matrix as a table).
     pub fn push(&mut self, probe: &Probe, r: &ProbeResult) -> io::Result<()> {
+        if let Hits::Sightlines(pairs) = &r.hits {
+            self.any_matrix = true;
+            let table = sightline_table(&r.id, probe.label.as_deref(), pairs);
+            self.matrices.write_all(table.as_bytes())?;
+        }
         if !matches!(r.verdict, Verdict::Fail | Verdict::Error) {
             return Ok(());
         }
@@ -66,6 +79,9 @@ impl MarkdownWriter {
         }
         if let Some(c) = changes {
             file.write_all(changes_text(c, labels).as_bytes())?;
+        }
+        if self.any_matrix {
+            self.matrices.copy_into(&mut file)?;
         }
         file.commit()
     }
@@ -112,4 +128,64 @@ fn probe_cell(id: &str, label: Option<&str>) -> String {
 /// Text safe inside a table cell: pipes escaped, line breaks folded.
 pub(super) fn cell(text: &str) -> String {
     text.replace('|', "\\|").replace(['\n', '\r'], " ")
+}
+
+/// A sightline matrix: a row and a column per spot, each cell "sees" or what blocks the pair (a
+/// list of blocked pairs for large matrices).
+fn sightline_table(id: &str, label: Option<&str>, pairs: &[PairRecord]) -> String {
+    let mut spots: Vec<&str> = Vec::new();
+    for p in pairs {
+        for name in [&*p.a, &*p.b] {
+            if !spots.contains(&name) {
+                spots.push(name);
+            }
+        }
+    }
+    let mut out = format!("\n#### Sightlines: {}\n\n", probe_cell(id, label));
+    if spots.len() > MAX_TABLE_SPOTS {
+        let blocked: Vec<&PairRecord> = pairs.iter().filter(|p| !p.sees).collect();
+        out.push_str(&format!(
+            "{} spots; {} of {} pairs blocked:\n\n| Pair | Blocked by |\n|---|---|\n",
+            spots.len(),
+            blocked.len(),
+            pairs.len()
+        ));
+        for p in blocked {
+            out.push_str(&format!(
+                "| {} – {} | {} |\n",
+                cell(&p.a),
+                cell(&p.b),
+                cell(p.object.as_deref().unwrap_or("?"))
+            ));
+        }
+        return out;
+    }
+    let cell_of = |a: &str, b: &str| -> String {
+        if a == b {
+            return "·".into();
+        }
+        match pairs
+            .iter()
+            .find(|p| (&*p.a, &*p.b) == (a, b) || (&*p.a, &*p.b) == (b, a))
+        {
+            Some(p) if p.sees => "sees".into(),
+            Some(p) => format!("✗ {}", cell(p.object.as_deref().unwrap_or("?"))),
+            None => String::new(),
+        }
+    };
+    out.push_str("| |");
+    for s in &spots {
+        out.push_str(&format!(" {} |", cell(s)));
+    }
+    out.push_str("\n|---|");
+    out.push_str(&"---|".repeat(spots.len()));
+    out.push('\n');
+    for a in &spots {
+        out.push_str(&format!("| **{}** |", cell(a)));
+        for b in &spots {
+            out.push_str(&format!(" {} |", cell_of(a, b)));
+        }
+        out.push('\n');
+    }
+    out
 }

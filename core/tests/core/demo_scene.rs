@@ -5,10 +5,10 @@
 use std::path::Path;
 
 use plumbline_core::check::{ResultsFile, Verdict, expand_rules, probes_digest, run_probes};
-use plumbline_core::lint::{LintOptions, lint};
 use plumbline_core::demo::{files, write_demo_scene};
 use plumbline_core::input::PathPolicy;
 use plumbline_core::level::{LoadedLevel, level_digest, load_level};
+use plumbline_core::lint::{LintOptions, lint};
 use plumbline_core::probe::load_probe_set;
 use plumbline_core::query::World;
 

@@ -435,3 +435,113 @@ fn the_shadow_of_a_wall_is_what_similar_triangles_say() {
         "every floor point and the wall's top row"
     );
 }
+
+#[test]
+fn boxes_set_on_a_floor_at_known_heights_rest_float_and_sink_by_exactly_that_much() {
+    // Analytic: a box of half height 0.3 centred 0.3 + g above a floor at y = 0 has a gap g (a
+    // negative g is sunk). The rule allows 2 cm of gap and 1 cm of sinking.
+    let mut builder = floor();
+    let gaps = [0.0, 0.01, 0.3, -0.02];
+    for (k, g) in gaps.iter().enumerate() {
+        builder = builder
+            .primitive(
+                &format!("box-{k}"),
+                Primitive::Box {
+                    half_extents: DVec3::splat(0.3),
+                },
+                DVec3::new(2.0 * k as f64, 0.3 + g, 0.0),
+                DQuat::IDENTITY,
+            )
+            .tagged(&["prop"]);
+    }
+    let world = builder.world();
+    let set = set(
+        "[]",
+        r#"[{"id": "rest", "objects": {"tags": ["prop"]}, "rests": {"max_gap": 0.02}}]"#,
+    );
+    let got = answers(&world, &set);
+    for ((_, verdict, hits, reason), g) in got.iter().zip(gaps) {
+        let (_, gap) = rest_gap(hits).unwrap();
+        assert!((gap - g).abs() < 1e-9, "gap {gap} for {g}");
+        let expected = if (-0.01..=0.02).contains(&g) {
+            Verdict::Pass
+        } else {
+            Verdict::Fail
+        };
+        assert_eq!(*verdict, expected, "{reason}");
+    }
+}
+
+#[test]
+fn a_box_over_a_slope_drops_until_its_lowest_corner_meets_the_plane() {
+    // Elementary geometry: over the plane n·X = 0 with n = (-sin θ, cos θ, 0), an unturned box of
+    // half extents (hx, hy, hz) centred at c first touches with the corner that minimises n·X, at
+    // signed distance n·c - hx sin θ - hy cos θ; dropping straight down covers that over cos θ.
+    let angle = 20f64.to_radians();
+    let n = DVec3::new(-angle.sin(), angle.cos(), 0.0);
+    let (hx, hy) = (0.4, 0.25);
+    let c = DVec3::new(0.7, 1.5, -0.2);
+    let world = LevelBuilder::new()
+        .primitive(
+            "slope",
+            Primitive::Box {
+                half_extents: DVec3::new(10.0, 0.5, 10.0),
+            },
+            -n * 0.5,
+            DQuat::from_rotation_z(angle),
+        )
+        .primitive(
+            "crate",
+            Primitive::Box {
+                half_extents: DVec3::new(hx, hy, 0.3),
+            },
+            c,
+            DQuat::IDENTITY,
+        )
+        .tagged(&["prop"])
+        .world();
+    let set = set(
+        "[]",
+        r#"[{"id": "rest", "objects": {"tags": ["prop"]}, "rests": {}}]"#,
+    );
+    let got = answers(&world, &set);
+    let (_, gap) = rest_gap(&got[0].2).unwrap();
+    let expected = (n.dot(c) - hx * angle.sin() - hy * angle.cos()) / angle.cos();
+    assert!(
+        (gap - expected).abs() < 1e-9,
+        "gap {gap}, expected {expected}"
+    );
+}
+
+#[test]
+fn rule_ids_stay_the_same_when_unrelated_objects_are_added() {
+    let spawn = |b: LevelBuilder, name: &str, x: f64| {
+        b.primitive(
+            name,
+            Primitive::Sphere { radius: 0.1 },
+            DVec3::new(x, 0.1, 0.0),
+            DQuat::IDENTITY,
+        )
+        .tagged(&["spawn"])
+    };
+    let rules = set(
+        "[]",
+        r#"[{"id": "clear", "objects": {"tags": ["spawn"]},
+             "clear": {"shape": {"type": "sphere", "radius": 0.2}, "at": {"anchor": "top", "offset": [0, 0.3, 0]}}}]"#,
+    );
+    let before = spawn(spawn(floor(), "s1", 0.0), "s2", 3.0).world();
+    let (wv, wt) = box_mesh(DVec3::new(9.0, 1.0, 9.0), DVec3::splat(1.0));
+    let after = spawn(spawn(floor().mesh("shed", wv, wt), "s1", 0.0), "s2", 3.0).world();
+    let ids = |w: &World| -> Vec<String> {
+        expand_rules(&rules.rules, w)
+            .into_iter()
+            .map(|p| p.id)
+            .collect()
+    };
+    assert_eq!(ids(&before), ["clear/s1", "clear/s2"]);
+    assert_eq!(ids(&after), ids(&before));
+    assert_eq!(
+        expand_rules(&rules.rules, &before),
+        expand_rules(&rules.rules, &after)
+    );
+}

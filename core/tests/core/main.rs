@@ -8,6 +8,7 @@ mod expectations;
 mod fuzz_corpus;
 mod hostile_input;
 mod level_checks;
+mod lint_checks;
 mod loaders;
 mod messy_meshes;
 mod probe_files;

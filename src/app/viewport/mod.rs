@@ -25,6 +25,7 @@ use crate::view::scene_marks::{SceneMarks, scene_marks};
 use overlays::paint_hover;
 use paint::FrameLog;
 use plumbline_core::check::Aspect;
+use plumbline_core::lint::Finding;
 
 /// At most this many probes are drawn at once (the list filter picks which).
 pub const MAX_DRAWN_PROBES: usize = 600;
@@ -61,6 +62,8 @@ pub struct Scene<'a> {
     pub authoring: &'a Authoring,
     /// What changed per probe id at the last level reload.
     pub changes: &'a HashMap<String, Vec<Aspect>>,
+    /// The lint finding picked in the lint window, drawn over everything.
+    pub finding: Option<&'a Finding>,
 }
 
 /// What the user did in the view this frame, for the workbench to act on.
@@ -118,6 +121,7 @@ struct MarksKey {
     preview: Vec<DVec3>,
     results_revision: u64,
     shown: Vec<usize>,
+    finding: Option<Finding>,
 }
 
 impl Viewport {
@@ -195,6 +199,7 @@ impl Viewport {
             selection,
             authoring,
             changes,
+            finding,
         } = *scene;
         let (rect, response) = ui.allocate_exact_size(ui.available_size(), Sense::click_and_drag());
         self.last_rect = rect;
@@ -269,7 +274,7 @@ impl Viewport {
 
         self.update_marks(
             document,
-            results_revision,
+            (results_revision, finding),
             shown,
             selection,
             &handles,
@@ -298,7 +303,7 @@ impl Viewport {
     fn update_marks(
         &mut self,
         document: &Document,
-        results_revision: u64,
+        (results_revision, finding): (u64, Option<&Finding>),
         shown: &[usize],
         selection: &Selection,
         handles: &[DVec3],
@@ -317,6 +322,7 @@ impl Viewport {
             preview,
             results_revision,
             shown: shown.iter().take(MAX_DRAWN_PROBES).copied().collect(),
+            finding: finding.cloned(),
         };
         if self.marks_key.as_ref() == Some(&key) {
             return;
@@ -333,6 +339,7 @@ impl Viewport {
             handles,
             preview: &key.preview,
             hover_triangle,
+            finding,
         });
         let sizing = Sizing {
             camera: self.camera,
