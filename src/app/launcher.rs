@@ -113,6 +113,7 @@ pub fn launch(path: &std::path::Path, options: WindowOptions) -> Result<(), Stri
             workbench.recent.insert(0, opened);
             if unattended {
                 workbench.dialog = None;
+                workbench.viewport.ignore_hover = true;
             }
             if selected.is_some() {
                 workbench.select_probe(selected);

@@ -110,6 +110,9 @@ pub struct Viewport {
     /// Draw as if the camera were moving (`Some(true)`) or resting (`Some(false)`) whatever it does
     /// (for the frame benchmark).
     pub force_moving: Option<bool>,
+    /// Take no notice of where the pointer rests (an unattended screenshot: the virtual display's
+    /// pointer sits mid-screen and would put a hover note in every picture).
+    pub ignore_hover: bool,
 }
 
 #[derive(Clone, PartialEq)]
@@ -141,6 +144,7 @@ impl Viewport {
             last_camera: camera,
             frame_log: None,
             force_moving: None,
+            ignore_hover: false,
             last_rect: Rect::NOTHING,
             dragging: None,
             drag_height: 0.0,
@@ -243,7 +247,9 @@ impl Viewport {
         }
         self.last_camera = self.camera;
 
-        let pointer = response.hover_pos().filter(|_| !response.dragged());
+        let pointer = response
+            .hover_pos()
+            .filter(|_| !response.dragged() && !self.ignore_hover);
         self.hover = pointer.and_then(|p| self.pick(document, rect, p));
         let lifted = |hover: &Hover| {
             authoring
