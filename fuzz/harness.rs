@@ -4,10 +4,11 @@
 
 use std::path::{Path, PathBuf};
 
-use plumbline_core::check::{answer_probe, parse_results};
+use plumbline_core::check::{answer_probe, expand_rules, parse_results};
 use plumbline_core::input::PathPolicy;
 use plumbline_core::level::{Geometry, Level, LevelObject, Primitive, load_level_from};
-use plumbline_core::probe::ProbeText;
+use plumbline_core::lint::{LintOptions, lint};
+use plumbline_core::probe::{ProbeQuery, ProbeText};
 use plumbline_core::query::World;
 
 /// Runs the target named `target` on `bytes`.
@@ -37,12 +38,24 @@ fn scratch(name: &str) -> PathBuf {
     folder.join(name)
 }
 
-/// Loads the bytes as a level and, when they load, builds its query world.
+/// Loads the bytes as a level and, when they load, builds its query world and lints it.
 fn level(bytes: &[u8], name: &str) {
-    if let Ok(loaded) = load_level_from(&scratch(name), bytes, PathPolicy::default()) {
-        let _ = World::from_level(loaded.level);
+    if let Ok(loaded) = load_level_from(&scratch(name), bytes, PathPolicy::default())
+        && let Ok(world) = World::new(&loaded.level)
+    {
+        let _ = lint(
+            &loaded.level,
+            &world,
+            &loaded.lint,
+            &LintOptions::default(),
+            &|_| {},
+        );
     }
 }
+
+/// Coverage grids larger than this are left out of the answer target: their work grows with the
+/// grid by design (up to the file format's limit), which a fuzzer would only time out on.
+const FUZZ_COVERAGE_COLUMNS: f64 = 20_000.0;
 
 /// Reads the bytes as a probe set, then as a results file.
 fn probe_set(bytes: &[u8]) {
@@ -52,8 +65,8 @@ fn probe_set(bytes: &[u8]) {
     }
 }
 
-/// Reads the bytes as a probe set and answers every probe (the first 64) on a small level of every
-/// kind of shape.
+/// Reads the bytes as a probe set and answers every probe (the first 64, its rules' included) on a
+/// small level of every kind of shape.
 fn answer(bytes: &[u8]) {
     let Ok(text) = std::str::from_utf8(bytes) else {
         return;
@@ -62,10 +75,21 @@ fn answer(bytes: &[u8]) {
         return;
     };
     let world = World::from_level(small_level()).expect("the small level builds");
-    if let Ok(probes) = set.probes(0..set.len().min(64)) {
-        for probe in &probes {
-            let _ = answer_probe(&world, probe);
+    let Ok(mut probes) = set.probes(0..set.len().min(64)) else {
+        return;
+    };
+    probes.extend(expand_rules(set.rules(), &world));
+    for probe in probes.iter().take(64) {
+        if let ProbeQuery::Coverage {
+            region, spacing, ..
+        } = &probe.query
+        {
+            let span = |k: usize| (region.max[k] - region.min[k]).abs() / spacing + 1.0;
+            if span(0) * span(2) > FUZZ_COVERAGE_COLUMNS {
+                continue;
+            }
         }
+        let _ = answer_probe(&world, probe);
     }
 }
 

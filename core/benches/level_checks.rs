@@ -107,7 +107,7 @@ fn bench(c: &mut Criterion) {
     let five = &spots[..5];
     group.throughput(Throughput::Elements(250_000));
     group.bench_function(BenchmarkId::new("coverage", "250k points, 5 spots"), |b| {
-        b.iter(|| view.coverage(five, min, max, 0.2).unwrap().len())
+        b.iter(|| view.coverage(five, (min, max), None, 0.2).unwrap().len())
     });
     group.finish();
 

@@ -11,7 +11,7 @@ use super::badge::{color32, paint_mark, verdict_color32};
 use super::document::Document;
 use crate::view::palette::{self, verdict_word};
 use plumbline_core::check::Aspect;
-use plumbline_core::check::Verdict;
+use plumbline_core::check::{Hits, Verdict};
 use plumbline_core::probe::ProbeKind;
 
 /// The verdicts offered by the verdict filter.
@@ -176,14 +176,14 @@ pub fn probe_list_ui(
     area.show_rows(ui, row_height, shown.len(), |ui, rows| {
         for &i in &shown[rows] {
             let probe = &document.probes.probes[i];
-            let verdict = document.results[i].verdict;
+            let result = &document.results[i];
             let selected = selection.contains(i);
             let changed = changes.get(&probe.id);
             let mut response = probe_row(
                 ui,
                 row_height - 2.0,
                 probe,
-                verdict,
+                result,
                 selected,
                 changed.is_some(),
             );
@@ -213,10 +213,11 @@ fn probe_row(
     ui: &mut egui::Ui,
     height: f32,
     probe: &plumbline_core::probe::Probe,
-    verdict: Verdict,
+    result: &plumbline_core::check::ProbeResult,
     selected: bool,
     changed: bool,
 ) -> egui::Response {
+    let verdict = result.verdict;
     let width = ui.available_width();
     let (rect, response) = ui.allocate_exact_size(egui::vec2(width, height), egui::Sense::click());
     let changed_word = if changed { " changed" } else { "" };
@@ -259,10 +260,21 @@ fn probe_row(
         egui::FontId::proportional(13.0),
         ui.visuals().strong_text_color(),
     );
-    let kind_words = match &probe.from_rule {
+    let mut kind_words = match &probe.from_rule {
         Some(_) => format!("{} by rule", probe.query.kind().name()),
         None => probe.query.kind().name().to_string(),
     };
+    // The whole-level answers in a word: how much is seen, how many pairs see each other.
+    match &result.hits {
+        Hits::Coverage(c) if !c.is_empty() => {
+            kind_words = format!("{kind_words} {:.1}%", c[0].share * 100.0)
+        }
+        Hits::Sightlines(pairs) => {
+            let seeing = pairs.iter().filter(|p| p.sees).count();
+            kind_words = format!("{kind_words} {seeing}/{}", pairs.len());
+        }
+        _ => {}
+    }
     let kind = painter.text(
         egui::pos2(id.right() + 8.0, top),
         egui::Align2::LEFT_TOP,

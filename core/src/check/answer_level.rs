@@ -73,10 +73,14 @@ pub(super) fn coverage(
 ) -> Result<Hits, QueryError> {
     let world = view.world();
     let list = spot_list(world, spots);
+    let outline: Option<Vec<DVec3>> = region
+        .outline
+        .as_ref()
+        .map(|o| o.iter().map(|p| DVec3::from_array(*p)).collect());
     let samples = view.coverage(
         &list,
-        DVec3::from_array(region.min),
-        DVec3::from_array(region.max),
+        (DVec3::from_array(region.min), DVec3::from_array(region.max)),
+        outline.as_deref(),
         spacing,
     )?;
     let seen = samples.iter().filter(|s| s.seen).count();

@@ -485,6 +485,7 @@ fn whole_level_probes() -> Vec<Probe> {
                     region: Region {
                         min: [-YARD_X + 4.0, -1.0, QUAY_Z],
                         max: [YARD_X - 4.0, 3.0, FENCE_Z - 0.5],
+                        outline: None,
                     },
                     spacing: 1.0,
                 },

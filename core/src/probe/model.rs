@@ -204,14 +204,18 @@ pub struct Spot {
     pub at: [f64; 3],
 }
 
-/// A box of level space.
-#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+/// A box of level space, optionally cut to an outline.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct Region {
     /// Lowest corner.
     pub min: [f64; 3],
     /// Highest corner.
     pub max: [f64; 3],
+    /// A polygon, seen along the level's up axis: only what lies inside it (by the even–odd rule)
+    /// and inside the box is sampled. Its points' height does not matter.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub outline: Option<Vec<[f64; 3]>>,
 }
 
 impl ProbeQuery {

@@ -261,13 +261,21 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
             spots: parse_spots(raw)?,
         },
         ProbeKind::Coverage => {
-            let region = raw.region.ok_or_else(|| need("region"))?;
+            let region = raw.region.clone().ok_or_else(|| need("region"))?;
             let (lo, hi) = (
                 finite_point("region.min", region.min)?,
                 finite_point("region.max", region.max)?,
             );
             if lo.cmpgt(hi).any() {
                 return Err("region.min must lie below region.max on every axis".into());
+            }
+            if let Some(outline) = &region.outline {
+                if outline.len() < 3 {
+                    return Err("region.outline needs at least three points".into());
+                }
+                for p in outline {
+                    finite_point("region.outline", *p)?;
+                }
             }
             let spacing = raw.spacing.ok_or_else(|| need("spacing"))?;
             positive_metres("spacing", spacing)?;

@@ -29,13 +29,14 @@ pub struct Sample {
 }
 
 impl View<'_> {
-    /// The surface points of the box `min`–`max` on a grid of `spacing` metres, each with whether a
+    /// The surface points of the box `min`–`max` on a grid of `spacing` metres (only the grid
+    /// points inside `outline`, seen along the up axis, when one is given), each with whether a
     /// spot sees it; in grid order (deterministic whatever the thread count).
     pub fn coverage(
         &self,
         spots: &[SpotAt],
-        min: DVec3,
-        max: DVec3,
+        (min, max): (DVec3, DVec3),
+        outline: Option<&[DVec3]>,
         spacing: f64,
     ) -> Result<Vec<Sample>, QueryError> {
         if !(spacing.is_finite() && spacing > 0.0 && min.is_finite() && max.is_finite()) {
@@ -56,6 +57,11 @@ impl View<'_> {
                 let mut top = min;
                 top[i] += (cell / nj) as f64 * spacing;
                 top[j] += (cell % nj) as f64 * spacing;
+                if let Some(outline) = outline
+                    && !inside(outline, (top[i], top[j]), (i, j))
+                {
+                    return Ok(Vec::new());
+                }
                 let mut bottom = top;
                 top[vertical] = max[vertical];
                 bottom[vertical] = min[vertical];
@@ -92,4 +98,20 @@ impl View<'_> {
             .map(|(_, h)| h.point + up * SURFACE_LIFT)
             .collect())
     }
+}
+
+/// True when `(u, v)` lies inside the polygon `outline` on the axes `(i, j)`: the crossing-number
+/// (even–odd) test (Haines, "Point in Polygon Strategies", Graphics Gems IV, 1994).
+fn inside(outline: &[DVec3], (u, v): (f64, f64), (i, j): (usize, usize)) -> bool {
+    let mut crossing = false;
+    for k in 0..outline.len() {
+        let (a, b) = (outline[k], outline[(k + 1) % outline.len()]);
+        if (a[j] > v) != (b[j] > v) {
+            let at = a[i] + (v - a[j]) / (b[j] - a[j]) * (b[i] - a[i]);
+            if u < at {
+                crossing = !crossing;
+            }
+        }
+    }
+    crossing
 }

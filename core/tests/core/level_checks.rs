@@ -545,3 +545,38 @@ fn rule_ids_stay_the_same_when_unrelated_objects_are_added() {
         expand_rules(&rules.rules, &after)
     );
 }
+
+#[test]
+fn an_outline_limits_coverage_to_the_grid_points_inside_it() {
+    // Brute force: count the grid points inside the triangle by barycentric signs (an independent
+    // test from the crossing-number one the product uses).
+    let world = floor().world();
+    let set = set(
+        r#"[{"id": "lot", "kind": "coverage", "spots": [{"name": "mast", "at": [0, 10, 0]}],
+             "region": {"min": [-6, -1, -6], "max": [6, 2, 6],
+                        "outline": [[-5.1, 0, -4.9], [5.3, 0, -5.2], [0.2, 0, 5.7]]},
+             "spacing": 0.5}]"#,
+        "[]",
+    );
+    let got = answers(&world, &set);
+    let Hits::Coverage(c) = &got[0].2 else {
+        panic!("coverage")
+    };
+    let (a, b, t) = ((-5.1, -4.9), (5.3, -5.2), (0.2, 5.7));
+    let side = |p: (f64, f64), q: (f64, f64), r: (f64, f64)| {
+        (q.0 - p.0) * (r.1 - p.1) - (q.1 - p.1) * (r.0 - p.0)
+    };
+    let mut expected = 0;
+    for i in 0..=24 {
+        for j in 0..=24 {
+            let p = (-6.0 + 0.5 * i as f64, -6.0 + 0.5 * j as f64);
+            let s = [side(a, b, p), side(b, t, p), side(t, a, p)];
+            if s.iter().all(|v| *v > 0.0) || s.iter().all(|v| *v < 0.0) {
+                expected += 1;
+            }
+        }
+    }
+    assert!(expected > 100);
+    assert_eq!(c[0].points, expected);
+    assert_eq!(c[0].seen, expected, "an open floor is all seen");
+}
