@@ -37,8 +37,8 @@ fn box_at(builder: LevelBuilder, name: &str, at: DVec3, half: f64) -> LevelBuild
 
 #[test]
 fn two_boxes_overlapping_by_a_known_depth_are_found_with_that_depth() {
-    // Ericson, Real-Time Collision Detection (2005), §4.2.1 (AABB overlap: separated on some axis
-    // or overlapping on all three) and §5.2.1 (the separating-axis test): for axis-aligned boxes the
+    // Ericson, Real-Time Collision Detection (2005), §4.2 (AABB overlap: separated on some axis or
+    // overlapping on all three) and §5.2.1 (the separating-axis test): for axis-aligned boxes the
     // penetration depth is the least overlap over the three axes. Unit boxes 0.85 m apart along x
     // overlap 0.15 m along x and 1 m along y and z: depth 0.15 m.
     let d = 0.15;
@@ -53,6 +53,30 @@ fn two_boxes_overlapping_by_a_known_depth_are_found_with_that_depth() {
     let overlaps = of_kind(&report, FindingKind::Overlap);
     assert_eq!(overlaps.len(), 1);
     assert_eq!(overlaps[0].objects.len(), 2);
+    assert!((overlaps[0].measure.unwrap() - d).abs() < 1e-9);
+
+    // Turned boxes (Ericson §4.4, oriented bounding boxes, separated by the same axis test): both
+    // turned 30° about y, the second moved 1 - d along their shared local x: still d deep.
+    let turn = DQuat::from_rotation_y(30f64.to_radians());
+    let turned = |b: LevelBuilder, name: &str, at: DVec3| {
+        b.primitive(
+            name,
+            Primitive::Box {
+                half_extents: DVec3::splat(0.5),
+            },
+            at,
+            turn,
+        )
+    };
+    let level = turned(
+        turned(LevelBuilder::new(), "a", DVec3::ZERO),
+        "b",
+        turn * DVec3::new(1.0 - d, 0.0, 0.0),
+    )
+    .level();
+    let report = run(&level, &LintSettings::default());
+    let overlaps = of_kind(&report, FindingKind::Overlap);
+    assert_eq!(overlaps.len(), 1);
     assert!((overlaps[0].measure.unwrap() - d).abs() < 1e-9);
 
     // The same as meshes: a unit cube and a narrower box reaching d into it. Its faces cross the
