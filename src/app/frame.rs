@@ -104,6 +104,7 @@ impl Workbench {
                             &mut self.editor,
                             self.plots.plot(),
                             &self.changes,
+                            self.highlight_tag.as_deref(),
                         );
                     });
                 match action {
@@ -116,6 +117,11 @@ impl Workbench {
                         self.replace_probes("bulk", &what, probes);
                         self.history.seal();
                     }
+                    Some(InspectorAction::Select(index)) => {
+                        self.select_probe(Some(index));
+                        self.scroll_list = true;
+                    }
+                    Some(InspectorAction::Highlight(tag)) => self.highlight_tag = tag,
                     None => {}
                 }
             });
@@ -134,6 +140,7 @@ impl Workbench {
                 authoring: &authoring,
                 changes: &self.changes,
                 finding: self.lint.finding(),
+                highlight_tag: self.highlight_tag.as_deref(),
             };
             let events = self.viewport.ui(ui, &scene);
             self.view_events(events, &shown);

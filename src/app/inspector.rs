@@ -88,6 +88,10 @@ pub enum InspectorAction {
     Run(Command),
     /// Replace the probes with these (a bulk edit of the selection), named `.0`.
     Bulk(String, Vec<Probe>),
+    /// Select this probe (from the overview).
+    Select(usize),
+    /// Highlight the objects with this tag in the view (or none).
+    Highlight(Option<String>),
 }
 
 /// Shows the inspector for the selection: one probe's answer and editor, or bulk edits for several.
@@ -98,18 +102,13 @@ pub fn inspector_ui(
     editor: &mut EditorState,
     plot: Option<&ClearancePlot>,
     changes: &HashMap<String, Vec<Aspect>>,
+    highlighted: Option<&str>,
 ) -> Option<InspectorAction> {
     if !selection.others.is_empty() {
         return bulk_ui(ui, document, selection);
     }
     let Some(index) = selection.probe else {
-        ui.add_space(8.0);
-        ui.label(RichText::new("No probe selected").strong());
-        ui.label("Pick one in the list, or click its marker in the view.");
-        ui.label(
-            "To add one, pick a tool above (Ray, Sweep, Closest, Overlap) and click in the view.",
-        );
-        return None;
+        return super::overview::overview_ui(ui, document, highlighted);
     };
     let (Some(probe), Some(result)) = (
         document.probes.probes.get(index),

@@ -24,6 +24,7 @@ mod launcher;
 pub mod level_answers;
 pub mod lint_panel;
 pub mod menus;
+pub mod overview;
 pub mod plotting;
 pub mod probe_list;
 pub mod reload;
@@ -94,6 +95,8 @@ pub struct Workbench {
     pub rules_draft: Option<rules_panel::RulesDraft>,
     /// The level lint window.
     pub lint: lint_panel::LintPanel,
+    /// The tag whose objects the view highlights (picked in the overview).
+    pub highlight_tag: Option<String>,
     message: Option<(String, Instant)>,
     last_autosave: Instant,
     autosaved: Option<u64>,
@@ -129,6 +132,7 @@ impl Workbench {
             dialog: None,
             rules_draft: None,
             lint: lint_panel::LintPanel::default(),
+            highlight_tag: None,
             message: None,
             last_autosave: Instant::now(),
             autosaved: None,

@@ -52,6 +52,8 @@ pub struct SceneMarks<'a> {
     /// The lint finding picked, drawn over everything: its objects highlighted, its edges and
     /// its point.
     pub finding: Option<&'a Finding>,
+    /// Objects with this tag are highlighted.
+    pub highlight_tag: Option<&'a str>,
 }
 
 /// The marks of a frame, in drawing order.
@@ -76,6 +78,16 @@ pub fn scene_marks(scene: &SceneMarks) -> Vec<Mark> {
     }
     if let Some(finding) = scene.finding {
         finding_marks(scene.level, finding, &mut marks);
+    }
+    if let Some(tag) = scene.highlight_tag {
+        let names: Vec<&str> = scene
+            .level
+            .objects
+            .iter()
+            .filter(|o| o.tags.iter().any(|t| t == tag))
+            .map(|o| o.name.as_str())
+            .collect();
+        highlight_objects(scene.level, &names, &mut marks);
     }
     for h in scene.handles {
         marks.push(Mark::Point {
@@ -239,6 +251,7 @@ mod tests {
             preview: &[],
             hover_triangle: None,
             finding: None,
+            highlight_tag: None,
         };
         let highlights = |marks: &[Mark]| {
             marks

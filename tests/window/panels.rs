@@ -40,7 +40,7 @@ fn probe_with_hits(workbench: &Workbench) -> (usize, String) {
 #[test]
 fn selecting_a_probe_in_the_list_shows_its_hits_in_the_inspector() {
     let mut harness = harness();
-    harness.get_by_label("No probe selected");
+    harness.get_by_label("Not as expected");
     let (index, id) = probe_with_hits(harness.state());
     harness
         .get_by_label_contains(&format!("pass  {id}"))
@@ -63,7 +63,30 @@ fn selecting_a_probe_in_the_list_shows_its_hits_in_the_inspector() {
         );
         harness.get_by_label(&metres(hit.distance));
     }
-    assert!(harness.query_by_label("No probe selected").is_none());
+    assert!(harness.query_by_label("Not as expected").is_none());
+}
+
+#[test]
+fn with_nothing_selected_the_overview_links_the_failures_and_highlights_a_tag() {
+    let mut harness = harness();
+    // The counts, as in the summary bar.
+    assert_eq!(harness.query_all_by_label("pass 53").count(), 2);
+    harness.get_by_label("spawns-clear/spawn-pad-hedge").click();
+    harness.run_steps(2);
+    let workbench = harness.state();
+    let picked = workbench.selection.probe.expect("the failure is selected");
+    assert_eq!(
+        workbench.document.probes.probes[picked].id,
+        "spawns-clear/spawn-pad-hedge"
+    );
+    harness.state_mut().select_probe(None);
+    harness.run_steps(2);
+    harness.get_by_label("lookout (5)").click();
+    harness.run_steps(2);
+    assert_eq!(harness.state().highlight_tag.as_deref(), Some("lookout"));
+    harness.get_by_label("lookout (5)").click();
+    harness.run_steps(2);
+    assert_eq!(harness.state().highlight_tag, None);
 }
 
 #[test]
@@ -128,8 +151,8 @@ fn the_kind_and_verdict_filters_narrow_the_list() {
     harness.run_steps(2);
     // The failing overlaps: the spawn by the drums and the spawn pad in the hedge.
     harness.get_by_label(&format!("2 of {total} probes"));
-    harness.get_by_label_contains("spawn-by-drums");
-    harness.get_by_label_contains("spawns-clear/spawn-pad-hedge");
+    harness.get_by_label_contains("FAIL  spawn-by-drums");
+    harness.get_by_label_contains("FAIL  spawns-clear/spawn-pad-hedge");
 }
 
 #[test]

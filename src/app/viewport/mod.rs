@@ -64,6 +64,8 @@ pub struct Scene<'a> {
     pub changes: &'a HashMap<String, Vec<Aspect>>,
     /// The lint finding picked in the lint window, drawn over everything.
     pub finding: Option<&'a Finding>,
+    /// The tag whose objects are highlighted.
+    pub highlight_tag: Option<&'a str>,
 }
 
 /// What the user did in the view this frame, for the workbench to act on.
@@ -125,6 +127,7 @@ struct MarksKey {
     results_revision: u64,
     shown: Vec<usize>,
     finding: Option<Finding>,
+    highlight_tag: Option<String>,
 }
 
 impl Viewport {
@@ -204,6 +207,7 @@ impl Viewport {
             authoring,
             changes,
             finding,
+            highlight_tag,
         } = *scene;
         let (rect, response) = ui.allocate_exact_size(ui.available_size(), Sense::click_and_drag());
         self.last_rect = rect;
@@ -280,7 +284,7 @@ impl Viewport {
 
         self.update_marks(
             document,
-            (results_revision, finding),
+            (results_revision, finding, highlight_tag),
             shown,
             selection,
             &handles,
@@ -309,7 +313,7 @@ impl Viewport {
     fn update_marks(
         &mut self,
         document: &Document,
-        (results_revision, finding): (u64, Option<&Finding>),
+        (results_revision, finding, highlight_tag): (u64, Option<&Finding>, Option<&str>),
         shown: &[usize],
         selection: &Selection,
         handles: &[DVec3],
@@ -329,6 +333,7 @@ impl Viewport {
             results_revision,
             shown: shown.iter().take(MAX_DRAWN_PROBES).copied().collect(),
             finding: finding.cloned(),
+            highlight_tag: highlight_tag.map(str::to_string),
         };
         if self.marks_key.as_ref() == Some(&key) {
             return;
@@ -346,6 +351,7 @@ impl Viewport {
             preview: &key.preview,
             hover_triangle,
             finding,
+            highlight_tag,
         });
         let sizing = Sizing {
             camera: self.camera,
