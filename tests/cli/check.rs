@@ -2,18 +2,11 @@
 //! reviewed golden file, reports, determinism across thread counts, and baselines.
 
 use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
+use std::process::Command;
+
+use super::support::plumbline;
 
 const FIXTURE: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/core/tests/fixtures/check");
-
-fn plumbline(dir: &Path, args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_plumbline"))
-        .current_dir(dir)
-        .args(args)
-        .env("NO_COLOR", "1")
-        .output()
-        .unwrap()
-}
 
 fn text(bytes: &[u8]) -> String {
     String::from_utf8(bytes.to_vec()).unwrap()

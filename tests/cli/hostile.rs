@@ -8,16 +8,9 @@ use std::time::{Duration, Instant};
 
 use proptest::prelude::*;
 
-const FIXTURE: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/core/tests/fixtures/check");
+use super::support::plumbline;
 
-fn plumbline(dir: &Path, args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_plumbline"))
-        .current_dir(dir)
-        .args(args)
-        .env("NO_COLOR", "1")
-        .output()
-        .unwrap()
-}
+const FIXTURE: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/core/tests/fixtures/check");
 
 /// The fixture's lane level and probes, copied into a fresh folder.
 fn lane() -> tempfile::TempDir {

@@ -2,18 +2,10 @@
 //! and what it refuses.
 
 use std::path::Path;
-use std::process::{Command, Output};
+
+use super::support::plumbline;
 
 const SCENES: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/scenes");
-
-fn plumbline(dir: &Path, args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_plumbline"))
-        .current_dir(dir)
-        .args(args)
-        .env("NO_COLOR", "1")
-        .output()
-        .unwrap()
-}
 
 /// A copy of the demo level (level file and meshes) in a scratch folder.
 fn demo_copy() -> tempfile::TempDir {

@@ -6,3 +6,4 @@ mod demo;
 mod hostile;
 mod info;
 mod lint;
+mod support;

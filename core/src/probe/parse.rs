@@ -69,20 +69,7 @@ pub(super) fn parse_probe(path: &Path, text: &str, fragment: &str) -> Result<Pro
     let raw: RawProbe = serde_json::from_str(fragment)
         .map_err(|e| InputError::json_in(path, text, fragment, &e))?;
     let here = |message: String| InputError::at_fragment(path, text, fragment, message);
-    if let Err(m) = check_name("the probe's id", &raw.id) {
-        return Err(here(m));
-    }
-    if raw.id.is_empty()
-        || !raw
-            .id
-            .chars()
-            .all(|c| c.is_ascii_alphanumeric() || matches!(c, '.' | '_' | '-'))
-    {
-        return Err(here(format!(
-            "probe id \"{}\" must be letters, digits, '.', '_' or '-'",
-            one_line(&raw.id)
-        )));
-    }
+    check_id("probe", &raw.id).map_err(here)?;
     let fail = |message: String| here(format!("probe \"{}\": {message}", raw.id));
     check_names(&raw).map_err(fail)?;
     let query = parse_query(&raw).map_err(fail)?;
@@ -154,6 +141,15 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
     }
     let need = |field: &str| format!("a {} probe needs \"{field}\"", raw.kind);
     let rotation = raw.rotation.map(unit_quaternion).transpose()?;
+    // The shape a sweep, closest, overlap or rest probe carries (a point only for closest).
+    let shape = |point_allowed: bool| {
+        probe_shape(
+            raw.shape.as_ref().ok_or_else(|| need("shape"))?,
+            rotation,
+            point_allowed,
+        )
+    };
+    let at = || finite_point("at", raw.at.ok_or_else(|| need("at"))?);
     Ok(match kind {
         ProbeKind::Ray => {
             let from = finite_point("from", raw.from.ok_or_else(|| need("from"))?)?;
@@ -168,11 +164,7 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
             }
         }
         ProbeKind::Sweep => {
-            let shape = probe_shape(
-                raw.shape.as_ref().ok_or_else(|| need("shape"))?,
-                rotation,
-                false,
-            )?;
+            let shape = shape(false)?;
             let path: Vec<DVec3> = raw
                 .path
                 .as_ref()
@@ -205,12 +197,8 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
             }
         }
         ProbeKind::Closest => {
-            let shape = probe_shape(
-                raw.shape.as_ref().ok_or_else(|| need("shape"))?,
-                rotation,
-                true,
-            )?;
-            let at = finite_point("at", raw.at.ok_or_else(|| need("at"))?)?;
+            let shape = shape(true)?;
+            let at = at()?;
             let max_distance = raw.max_distance.ok_or_else(|| need("max_distance"))?;
             if !(max_distance.is_finite()
                 && (0.0..=crate::level::MAX_COORDINATE).contains(&max_distance))
@@ -228,12 +216,8 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
             }
         }
         ProbeKind::Overlap => {
-            let shape = probe_shape(
-                raw.shape.as_ref().ok_or_else(|| need("shape"))?,
-                rotation,
-                false,
-            )?;
-            let at = finite_point("at", raw.at.ok_or_else(|| need("at"))?)?;
+            let shape = shape(false)?;
+            let at = at()?;
             ProbeQuery::Overlap {
                 shape,
                 at,
@@ -241,12 +225,8 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
             }
         }
         ProbeKind::Rest => {
-            let shape = probe_shape(
-                raw.shape.as_ref().ok_or_else(|| need("shape"))?,
-                rotation,
-                false,
-            )?;
-            let at = finite_point("at", raw.at.ok_or_else(|| need("at"))?)?;
+            let shape = shape(false)?;
+            let at = at()?;
             if let Some(d) = raw.search {
                 positive_metres("search", d)?;
             }
@@ -297,6 +277,22 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
             }
         }
     })
+}
+
+/// Checks an id of a probe or rule (`what`): a name of `[A-Za-z0-9._-]+`.
+pub(super) fn check_id(what: &str, id: &str) -> Result<(), String> {
+    check_name(&format!("the {what}'s id"), id)?;
+    if id.is_empty()
+        || !id
+            .chars()
+            .all(|c| c.is_ascii_alphanumeric() || matches!(c, '.' | '_' | '-'))
+    {
+        return Err(format!(
+            "{what} id \"{}\" must be letters, digits, '.', '_' or '-'",
+            one_line(id)
+        ));
+    }
+    Ok(())
 }
 
 /// The most grid points a coverage probe samples. Ours: a 2 km square at 1 m spacing is 4 million.

@@ -22,9 +22,9 @@ use serde_json::Value;
 use serde_json::value::RawValue;
 
 use super::model::{Expect, Probe, Range};
-use super::parse::parse_probe;
+use super::parse::{check_id, parse_probe};
 use crate::error::InputError;
-use crate::input::{check_name, one_line};
+use crate::input::check_name;
 use crate::level::{Selection, ShapeSpec};
 use crate::query::Filter;
 
@@ -154,18 +154,7 @@ pub(super) fn parse_rule(path: &Path, text: &str, fragment: &str) -> Result<Rule
     let raw: RawRule = serde_json::from_str(fragment)
         .map_err(|e| InputError::json_in(path, text, fragment, &e))?;
     let here = |message: String| InputError::at_fragment(path, text, fragment, message);
-    check_name("the rule's id", &raw.id).map_err(here)?;
-    if raw.id.is_empty()
-        || !raw
-            .id
-            .chars()
-            .all(|c| c.is_ascii_alphanumeric() || matches!(c, '.' | '_' | '-'))
-    {
-        return Err(here(format!(
-            "rule id \"{}\" must be letters, digits, '.', '_' or '-'",
-            one_line(&raw.id)
-        )));
-    }
+    check_id("rule", &raw.id).map_err(here)?;
     let fail = |message: String| here(format!("rule \"{}\": {message}", raw.id));
     if raw.objects.tags.is_empty() && raw.objects.pattern.is_none() {
         return Err(fail(

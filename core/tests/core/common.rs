@@ -64,6 +64,18 @@ impl LevelBuilder {
     }
 }
 
+/// `builder` with an unturned box primitive of half size `half` centred at `at`.
+pub fn box_at(builder: LevelBuilder, name: &str, at: DVec3, half: f64) -> LevelBuilder {
+    builder.primitive(
+        name,
+        Primitive::Box {
+            half_extents: DVec3::splat(half),
+        },
+        at,
+        DQuat::IDENTITY,
+    )
+}
+
 /// A closed box mesh (12 triangles, outward counter-clockwise) centred at `c` with half extents `h`.
 pub fn box_mesh(c: DVec3, h: DVec3) -> (Vec<DVec3>, Vec<[u32; 3]>) {
     let mut mb = MeshBuilder::new();

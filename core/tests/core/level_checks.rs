@@ -9,7 +9,7 @@ use plumbline_core::level::Primitive;
 use plumbline_core::probe::{ProbeSet, parse_probe_set};
 use plumbline_core::query::{SURFACE_LIFT, World};
 
-use super::common::{LevelBuilder, box_mesh};
+use super::common::{LevelBuilder, box_at, box_mesh};
 
 /// A probe set of `probes` and `rules` (JSON arrays as text) for a level called `level.json`.
 fn set(probes: &str, rules: &str) -> ProbeSet {
@@ -51,15 +51,7 @@ fn rest_gap(hits: &Hits) -> Option<(String, f64)> {
 fn a_box_above_a_floor_rests_with_its_exact_gap_and_a_sunk_sphere_by_its_depth() {
     // Analytic: a 0.6 m cube centred 0.5 m up has its bottom 0.2 m above the floor; a sphere of
     // radius 0.5 centred 0.4 m up reaches 0.1 m below it.
-    let world = floor()
-        .primitive(
-            "crate",
-            Primitive::Box {
-                half_extents: DVec3::splat(0.3),
-            },
-            DVec3::new(2.0, 0.5, 0.0),
-            DQuat::IDENTITY,
-        )
+    let world = box_at(floor(), "crate", DVec3::new(2.0, 0.5, 0.0), 0.3)
         .tagged(&["prop"])
         .primitive(
             "ball",
@@ -94,30 +86,21 @@ fn a_box_above_a_floor_rests_with_its_exact_gap_and_a_sunk_sphere_by_its_depth()
     );
 }
 
-#[test]
-fn a_sphere_over_a_slope_drops_to_the_moving_sphere_plane_contact() {
-    // Ericson, Real-Time Collision Detection (2005), §5.5.3 "Intersecting moving sphere against
-    // plane": a sphere of radius r moving by v meets the plane n·X = d at t = (r - (n·C - d)) / (-n·v).
-    // Here a slope of 25° rises along +x; the sphere moves straight down.
-    let angle = 25f64.to_radians();
+/// The gap a prop at `at` rests with over a slope of `degrees` rising along +x through the origin
+/// (the plane n·X = 0 with n = (-sin θ, cos θ, 0)), and the slope's normal.
+fn gap_over_slope(degrees: f64, prop: Primitive, at: DVec3) -> (f64, DVec3) {
+    let angle = degrees.to_radians();
     let n = DVec3::new(-angle.sin(), angle.cos(), 0.0);
-    let turn = DQuat::from_rotation_z(angle);
-    let slope_centre = DVec3::ZERO - n * 0.5;
     let world = LevelBuilder::new()
         .primitive(
             "slope",
             Primitive::Box {
                 half_extents: DVec3::new(10.0, 0.5, 10.0),
             },
-            slope_centre,
-            turn,
+            -n * 0.5,
+            DQuat::from_rotation_z(angle),
         )
-        .primitive(
-            "ball",
-            Primitive::Sphere { radius: 0.4 },
-            DVec3::new(1.5, 2.0, 0.3),
-            DQuat::IDENTITY,
-        )
+        .primitive("prop", prop, at, DQuat::IDENTITY)
         .tagged(&["prop"])
         .world();
     let set = set(
@@ -127,7 +110,16 @@ fn a_sphere_over_a_slope_drops_to_the_moving_sphere_plane_contact() {
     let got = answers(&world, &set);
     let (support, gap) = rest_gap(&got[0].2).unwrap();
     assert_eq!(support, "slope");
+    (gap, n)
+}
+
+#[test]
+fn a_sphere_over_a_slope_drops_to_the_moving_sphere_plane_contact() {
+    // Ericson, Real-Time Collision Detection (2005), §5.5.3 "Intersecting moving sphere against
+    // plane": a sphere of radius r moving by v meets the plane n·X = d at t = (r - (n·C - d)) / (-n·v).
+    // Here a slope of 25° rises along +x; the sphere moves straight down.
     let c = DVec3::new(1.5, 2.0, 0.3);
+    let (gap, n) = gap_over_slope(25.0, Primitive::Sphere { radius: 0.4 }, c);
     let expected = (n.dot(c) - 0.4) / n.dot(DVec3::Y);
     assert!(
         (gap - expected).abs() < 1e-9,
@@ -139,18 +131,14 @@ fn a_sphere_over_a_slope_drops_to_the_moving_sphere_plane_contact() {
 fn a_prop_with_nothing_below_and_a_wall_beside_it_has_no_support() {
     // A wall face beside the prop is not a support (it faces sideways): common practice.
     let (v, t) = box_mesh(DVec3::new(1.0, 2.0, 0.0), DVec3::new(0.5, 2.0, 2.0));
-    let world = LevelBuilder::new()
-        .mesh("wall", v, t)
-        .primitive(
-            "crate",
-            Primitive::Box {
-                half_extents: DVec3::splat(0.3),
-            },
-            DVec3::new(0.2, 1.0, 0.0),
-            DQuat::IDENTITY,
-        )
-        .tagged(&["prop"])
-        .world();
+    let world = box_at(
+        LevelBuilder::new().mesh("wall", v, t),
+        "crate",
+        DVec3::new(0.2, 1.0, 0.0),
+        0.3,
+    )
+    .tagged(&["prop"])
+    .world();
     let set = set(
         "[]",
         r#"[{"id": "rest", "objects": {"tags": ["prop"]}, "rests": {}}]"#,
@@ -207,15 +195,7 @@ fn rules_expand_to_one_probe_per_selected_object_in_level_order_the_same_every_t
 #[test]
 fn a_rule_that_selects_nothing_is_an_error_naming_the_selection() {
     // A tag renamed in the level must not let its rule pass silently.
-    let world = floor()
-        .primitive(
-            "crate",
-            Primitive::Box {
-                half_extents: DVec3::splat(0.3),
-            },
-            DVec3::new(2.0, 0.3, 0.0),
-            DQuat::IDENTITY,
-        )
+    let world = box_at(floor(), "crate", DVec3::new(2.0, 0.3, 0.0), 0.3)
         .tagged(&["props"])
         .world();
     let set = set(
@@ -443,16 +423,13 @@ fn boxes_set_on_a_floor_at_known_heights_rest_float_and_sink_by_exactly_that_muc
     let mut builder = floor();
     let gaps = [0.0, 0.01, 0.3, -0.02];
     for (k, g) in gaps.iter().enumerate() {
-        builder = builder
-            .primitive(
-                &format!("box-{k}"),
-                Primitive::Box {
-                    half_extents: DVec3::splat(0.3),
-                },
-                DVec3::new(2.0 * k as f64, 0.3 + g, 0.0),
-                DQuat::IDENTITY,
-            )
-            .tagged(&["prop"]);
+        builder = box_at(
+            builder,
+            &format!("box-{k}"),
+            DVec3::new(2.0 * k as f64, 0.3 + g, 0.0),
+            0.3,
+        )
+        .tagged(&["prop"]);
     }
     let world = builder.world();
     let set = set(
@@ -478,34 +455,15 @@ fn a_box_over_a_slope_drops_until_its_lowest_corner_meets_the_plane() {
     // half extents (hx, hy, hz) centred at c first touches with the corner that minimises n·X, at
     // signed distance n·c - hx sin θ - hy cos θ; dropping straight down covers that over cos θ.
     let angle = 20f64.to_radians();
-    let n = DVec3::new(-angle.sin(), angle.cos(), 0.0);
     let (hx, hy) = (0.4, 0.25);
     let c = DVec3::new(0.7, 1.5, -0.2);
-    let world = LevelBuilder::new()
-        .primitive(
-            "slope",
-            Primitive::Box {
-                half_extents: DVec3::new(10.0, 0.5, 10.0),
-            },
-            -n * 0.5,
-            DQuat::from_rotation_z(angle),
-        )
-        .primitive(
-            "crate",
-            Primitive::Box {
-                half_extents: DVec3::new(hx, hy, 0.3),
-            },
-            c,
-            DQuat::IDENTITY,
-        )
-        .tagged(&["prop"])
-        .world();
-    let set = set(
-        "[]",
-        r#"[{"id": "rest", "objects": {"tags": ["prop"]}, "rests": {}}]"#,
+    let (gap, n) = gap_over_slope(
+        20.0,
+        Primitive::Box {
+            half_extents: DVec3::new(hx, hy, 0.3),
+        },
+        c,
     );
-    let got = answers(&world, &set);
-    let (_, gap) = rest_gap(&got[0].2).unwrap();
     let expected = (n.dot(c) - hx * angle.sin() - hy * angle.cos()) / angle.cos();
     assert!(
         (gap - expected).abs() < 1e-9,

@@ -8,7 +8,7 @@ use plumbline_core::level::{
 use plumbline_core::lint::{Finding, FindingKind, LintOptions, LintReport, lint, smallest_angle};
 use plumbline_core::query::World;
 
-use super::common::{LevelBuilder, box_mesh};
+use super::common::{LevelBuilder, box_at, box_mesh};
 
 fn run(level: &Level, settings: &LintSettings) -> LintReport {
     let world = World::new(level).unwrap();
@@ -22,17 +22,6 @@ fn of_kind(report: &LintReport, kind: FindingKind) -> Vec<&Finding> {
 fn cube(name: &str, builder: LevelBuilder, c: DVec3, h: DVec3) -> LevelBuilder {
     let (v, t) = box_mesh(c, h);
     builder.mesh(name, v, t)
-}
-
-fn box_at(builder: LevelBuilder, name: &str, at: DVec3, half: f64) -> LevelBuilder {
-    builder.primitive(
-        name,
-        Primitive::Box {
-            half_extents: DVec3::splat(half),
-        },
-        at,
-        DQuat::IDENTITY,
-    )
 }
 
 #[test]
