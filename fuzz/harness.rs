@@ -6,7 +6,9 @@ use std::path::{Path, PathBuf};
 
 use plumbline_core::check::{answer_probe, expand_rules, parse_results};
 use plumbline_core::input::PathPolicy;
-use plumbline_core::level::{Geometry, Level, LevelObject, Primitive, load_level_from};
+use plumbline_core::level::{
+    Geometry, Level, LevelObject, LintSettings, Primitive, load_level_from,
+};
 use plumbline_core::lint::{LintOptions, lint};
 use plumbline_core::probe::{ProbeQuery, ProbeText};
 use plumbline_core::query::World;
@@ -14,8 +16,15 @@ use plumbline_core::query::World;
 /// Runs the target named `target` on `bytes`.
 pub fn run(target: &str, bytes: &[u8]) {
     match target {
-        "level_file" => level(bytes, "fuzz.level.json"),
-        "obj" => level(bytes, "fuzz.obj"),
+        "level_file" => {
+            if let Some((level, world, settings)) = level(bytes, "fuzz.level.json") {
+                // Level files carry lint settings and every kind of object: lint is fuzzed here.
+                let _ = lint(&level, &world, &settings, &LintOptions::default(), &|_| {});
+            }
+        }
+        "obj" => {
+            level(bytes, "fuzz.obj");
+        }
         "gltf" => {
             // A GLB container when the input starts like one, else glTF JSON.
             let name = if bytes.starts_with(b"glTF") {
@@ -23,7 +32,7 @@ pub fn run(target: &str, bytes: &[u8]) {
             } else {
                 "fuzz.gltf"
             };
-            level(bytes, name)
+            level(bytes, name);
         }
         "probe_set" => probe_set(bytes),
         "answer" => answer(bytes),
@@ -38,19 +47,11 @@ fn scratch(name: &str) -> PathBuf {
     folder.join(name)
 }
 
-/// Loads the bytes as a level and, when they load, builds its query world and lints it.
-fn level(bytes: &[u8], name: &str) {
-    if let Ok(loaded) = load_level_from(&scratch(name), bytes, PathPolicy::default())
-        && let Ok(world) = World::new(&loaded.level)
-    {
-        let _ = lint(
-            &loaded.level,
-            &world,
-            &loaded.lint,
-            &LintOptions::default(),
-            &|_| {},
-        );
-    }
+/// Loads the bytes as a level and, when they load, builds its query world.
+fn level(bytes: &[u8], name: &str) -> Option<(Level, World, LintSettings)> {
+    let loaded = load_level_from(&scratch(name), bytes, PathPolicy::default()).ok()?;
+    let world = World::new(&loaded.level).ok()?;
+    Some((loaded.level, world, loaded.lint))
 }
 
 /// Coverage grids larger than this are left out of the answer target: their work grows with the
