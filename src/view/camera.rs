@@ -6,6 +6,9 @@ use glam::{DMat4, DVec2, DVec3};
 /// Vertical field of view, radians (60°, common practice for level editors).
 pub const FIELD_OF_VIEW: f64 = std::f64::consts::FRAC_PI_3;
 
+/// How much room framing leaves around what it frames (a tenth of the half-view). Ours.
+pub const FRAME_MARGIN: f64 = 1.1;
+
 /// Steepest pitch, short of the pole so the view never flips (common practice).
 const MAX_PITCH: f64 = 1.54;
 
@@ -34,20 +37,33 @@ impl OrbitCamera {
             pitch: 0.55,
             up: up.normalize(),
         };
-        camera.frame(min, max, 0.8, 1.0);
+        camera.frame(min, max, FRAME_MARGIN, 1.0);
         camera
     }
 
-    /// Moves the target to the box centre and backs off until the box's bounding ball fits in a view
-    /// of the given aspect ratio (width / height), times `margin` (below 1 comes closer: the ball is
-    /// generous for flat levels).
+    /// Moves the target to the box centre and backs off just until every corner of the box is in a
+    /// view of the given aspect ratio (width / height), with `margin` to spare (1.1: a tenth of the
+    /// half-width free on the tightest side). A box is convex, so its corners inside means all of it.
     pub fn frame(&mut self, min: DVec3, max: DVec3, margin: f64, aspect: f64) {
-        let radius = ((max - min).length() * 0.5).max(0.05);
-        let half_tan = (FIELD_OF_VIEW * 0.5).tan();
-        // The narrower of the two fields of view decides.
-        let half_angle = half_tan.min(half_tan * aspect.max(0.1)).atan();
-        self.target = (min + max) * 0.5;
-        self.distance = radius / half_angle.sin() * margin;
+        let centre = (min + max) * 0.5;
+        let half_height = (FIELD_OF_VIEW * 0.5).tan() / margin.max(1e-3);
+        let half_width = half_height * aspect.max(0.1);
+        let (right, up, back) = (self.right(), self.screen_up(), self.backward());
+        // A corner at offset c from the centre is at depth d - c·back in front of an eye d away; it
+        // is in view while |c·right| ≤ depth · half_width and |c·up| ≤ depth · half_height.
+        let mut distance: f64 = 0.05;
+        for k in 0..8 {
+            let corner = DVec3::new(
+                if k & 1 == 0 { min.x } else { max.x },
+                if k & 2 == 0 { min.y } else { max.y },
+                if k & 4 == 0 { min.z } else { max.z },
+            ) - centre;
+            let depth_needed =
+                (corner.dot(right).abs() / half_width).max(corner.dot(up).abs() / half_height);
+            distance = distance.max(corner.dot(back) + depth_needed);
+        }
+        self.target = centre;
+        self.distance = distance;
     }
 
     /// Two horizontal unit axes that, with `up`, make a right-handed frame.
@@ -166,6 +182,45 @@ impl OrbitCamera {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn framing_keeps_every_corner_of_the_box_in_tall_wide_and_square_views() {
+        // A flat, wide level like the demo's (200 x 10 x 170 m) and a tall tower.
+        for (min, max) in [
+            (
+                DVec3::new(-100.0, -5.0, -70.0),
+                DVec3::new(100.0, 5.0, 100.0),
+            ),
+            (DVec3::new(-2.0, 0.0, -2.0), DVec3::new(2.0, 40.0, 2.0)),
+        ] {
+            for size in [
+                DVec2::new(600.0, 1000.0),
+                DVec2::new(1600.0, 700.0),
+                DVec2::new(800.0, 800.0),
+            ] {
+                let mut camera = OrbitCamera::framing(min, max, DVec3::Y);
+                camera.frame(min, max, FRAME_MARGIN, size.x / size.y);
+                let radius = (max - min).length();
+                let mut widest = 0.0f64;
+                for k in 0..8 {
+                    let corner = DVec3::new(
+                        if k & 1 == 0 { min.x } else { max.x },
+                        if k & 2 == 0 { min.y } else { max.y },
+                        if k & 4 == 0 { min.z } else { max.z },
+                    );
+                    let p = camera.project(corner, size, radius).expect("in front");
+                    assert!(
+                        p.x >= 0.0 && p.x <= size.x && p.y >= 0.0 && p.y <= size.y,
+                        "corner {corner} at {p} outside {size}"
+                    );
+                    let from_centre = ((p.x / size.x - 0.5).abs()).max((p.y / size.y - 0.5).abs());
+                    widest = widest.max(from_centre);
+                }
+                // Tight: some corner comes within the margin of an edge.
+                assert!(widest > 0.5 / FRAME_MARGIN - 0.01, "{widest} for {size}");
+            }
+        }
+    }
 
     #[test]
     fn pixel_ray_passes_through_the_projected_point() {

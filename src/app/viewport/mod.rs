@@ -17,7 +17,7 @@ use glam::{DVec2, DVec3};
 use super::Selection;
 use super::document::Document;
 use super::tools::{Authoring, Tool};
-use crate::view::camera::OrbitCamera;
+use crate::view::camera::{FRAME_MARGIN, OrbitCamera};
 use crate::view::level_drawing::LevelDrawing;
 use crate::view::marks::{MarkSurfaces, Sizing, mark_surfaces};
 use crate::view::renderer::FrameInput;
@@ -181,7 +181,7 @@ impl Viewport {
     pub fn frame_level(&mut self) {
         let aspect = self.aspect();
         self.camera
-            .frame(self.drawing.min, self.drawing.max, 0.8, aspect);
+            .frame(self.drawing.min, self.drawing.max, FRAME_MARGIN, aspect);
     }
 
     /// Frames a set of points (a probe and its answer), keeping the heading.
@@ -194,7 +194,7 @@ impl Viewport {
             .fold((*first, *first), |(lo, hi), p| (lo.min(*p), hi.max(*p)));
         let pad = DVec3::splat(1.5);
         let aspect = self.aspect();
-        self.camera.frame(lo - pad, hi + pad, 1.15, aspect);
+        self.camera.frame(lo - pad, hi + pad, FRAME_MARGIN, aspect);
     }
 
     /// Shows the viewport in `ui`.
