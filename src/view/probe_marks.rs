@@ -8,7 +8,7 @@
 use glam::{DQuat, DVec3};
 
 use super::marks::Mark;
-use super::palette::{HIT, NORMAL, SELECTED, verdict_colour, verdict_mark};
+use super::palette::{BACKING, HIT, NORMAL, SELECTED, verdict_colour, verdict_mark};
 use plumbline_core::check::{Hits, ProbeResult};
 use plumbline_core::level::ShapeSpec;
 use plumbline_core::probe::{Probe, ProbeQuery};
@@ -17,9 +17,11 @@ use plumbline_core::query::ProbeShape;
 /// Line width of probes, pixels.
 const WIDTH: f64 = 3.0;
 /// Line width of probes while another is selected, pixels.
-const MUTED_WIDTH: f64 = 1.5;
+const MUTED_WIDTH: f64 = 1.0;
 /// Line width of the selected probe, pixels.
 const SELECTED_WIDTH: f64 = 5.0;
+/// How much wider than a selected line its dark halo is, pixels.
+const HALO: f64 = 4.0;
 /// Size of a probe's verdict marker, pixels.
 const MARKER: f64 = 13.0;
 /// Size of a hit marker, pixels.
@@ -38,9 +40,44 @@ pub struct Emphasis {
     pub hit: Option<usize>,
 }
 
-/// Appends the marks of one probe and its answer.
+/// Appends the marks of one probe and its answer. The selected probe's lines get a dark halo under
+/// them, so they read against any level colour; while another probe is selected, this one's colour
+/// fades towards grey.
 pub fn probe_marks(probe: &Probe, result: &ProbeResult, emphasis: Emphasis, out: &mut Vec<Mark>) {
-    let colour = verdict_colour(result.verdict);
+    let first = out.len();
+    own_marks(probe, result, emphasis, out);
+    if emphasis.selected {
+        let halos: Vec<Mark> = out[first..]
+            .iter()
+            .filter_map(|m| match m {
+                Mark::Line {
+                    from, to, width, ..
+                } => Some(Mark::Line {
+                    from: *from,
+                    to: *to,
+                    colour: BACKING,
+                    width: width + HALO,
+                    dashed: false,
+                }),
+                _ => None,
+            })
+            .collect();
+        out.splice(first..first, halos);
+    }
+}
+
+/// A colour faded halfway to grey (probes stepping back while another is selected).
+fn faded([r, g, b]: [u8; 3]) -> [u8; 3] {
+    let grey = 110u16;
+    [r, g, b].map(|c| ((u16::from(c) + grey) / 2) as u8)
+}
+
+fn own_marks(probe: &Probe, result: &ProbeResult, emphasis: Emphasis, out: &mut Vec<Mark>) {
+    let colour = if emphasis.muted {
+        faded(verdict_colour(result.verdict))
+    } else {
+        verdict_colour(result.verdict)
+    };
     let width = if emphasis.selected {
         SELECTED_WIDTH
     } else if emphasis.muted {
@@ -382,10 +419,20 @@ fn hit_marks(point: DVec3, normal: DVec3, index: usize, emphasis: Emphasis, out:
         return;
     }
     let picked = emphasis.selected && emphasis.hit == Some(index);
+    // The selection's hits are larger than anyone else's; the picked one larger still.
+    let size = if picked {
+        HIT_SIZE * 1.8
+    } else if emphasis.selected {
+        HIT_SIZE * 1.4
+    } else if emphasis.muted {
+        HIT_SIZE * 0.7
+    } else {
+        HIT_SIZE
+    };
     out.push(Mark::Point {
         at: point,
         colour: if picked { SELECTED } else { HIT },
-        size: if picked { HIT_SIZE * 1.8 } else { HIT_SIZE },
+        size,
         mark: super::palette::StateMark::Round,
     });
     if emphasis.selected || (index == 0 && !emphasis.muted) {
@@ -421,5 +468,114 @@ impl ShapeGhost {
                 alpha,
             });
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use plumbline_core::check::{RayHitRecord, Verdict};
+    use plumbline_core::query::Filter;
+
+    fn ray_with_one_hit() -> (Probe, ProbeResult) {
+        let probe = Probe {
+            id: "gate-view".into(),
+            label: None,
+            filter: Filter::default(),
+            query: ProbeQuery::Ray {
+                from: DVec3::ZERO,
+                to: DVec3::new(10.0, 0.0, 0.0),
+                hits: None,
+            },
+            expect: None,
+            from_rule: None,
+        };
+        let result = ProbeResult {
+            id: "gate-view".into(),
+            kind: probe.query.kind(),
+            verdict: Verdict::Pass,
+            reason: String::new(),
+            hits: Hits::Ray(vec![RayHitRecord {
+                object: "gate".into(),
+                tags: Vec::<String>::new().into(),
+                distance: 4.0,
+                t: 0.4,
+                point: [4.0, 0.0, 0.0],
+                normal: [-1.0, 0.0, 0.0],
+                triangle: None,
+                source: None,
+                material: None,
+                back_face: false,
+            }]),
+            clearance: None,
+        };
+        (probe, result)
+    }
+
+    fn lines(marks: &[Mark]) -> Vec<(f64, [u8; 3])> {
+        marks
+            .iter()
+            .filter_map(|m| match m {
+                Mark::Line { width, colour, .. } => Some((*width, *colour)),
+                _ => None,
+            })
+            .collect()
+    }
+
+    fn hit_size(marks: &[Mark]) -> f64 {
+        marks
+            .iter()
+            .find_map(|m| match m {
+                Mark::Point { size, colour, .. } if *colour == HIT => Some(*size),
+                _ => None,
+            })
+            .expect("a hit marker")
+    }
+
+    fn marks_for(emphasis: Emphasis) -> Vec<Mark> {
+        let (probe, result) = ray_with_one_hit();
+        let mut marks = Vec::new();
+        probe_marks(&probe, &result, emphasis, &mut marks);
+        marks
+    }
+
+    #[test]
+    fn the_selected_probe_has_a_dark_halo_under_each_line_and_larger_hits() {
+        let plain = marks_for(Emphasis::default());
+        let selected = marks_for(Emphasis {
+            selected: true,
+            ..Emphasis::default()
+        });
+        let plain_lines = lines(&plain);
+        let selected_lines = lines(&selected);
+        assert_eq!(selected_lines.len(), 2 * plain_lines.len());
+        let (halos, own) = selected_lines.split_at(plain_lines.len());
+        for ((halo_width, halo_colour), (width, _)) in halos.iter().zip(own) {
+            assert_eq!(*halo_colour, BACKING, "halos come first, under the lines");
+            assert_eq!(*halo_width, width + HALO);
+        }
+        assert!(own.iter().any(|(w, _)| *w == SELECTED_WIDTH));
+        assert!(hit_size(&selected) > hit_size(&plain));
+    }
+
+    #[test]
+    fn probes_step_back_while_another_is_selected() {
+        let plain = marks_for(Emphasis::default());
+        let muted = marks_for(Emphasis {
+            muted: true,
+            ..Emphasis::default()
+        });
+        let colour = verdict_colour(Verdict::Pass);
+        // The solid part up to the hit has the full width; the dashed rest is thinner.
+        assert_eq!(lines(&plain)[0], (WIDTH, colour));
+        assert_eq!(lines(&muted)[0], (MUTED_WIDTH, faded(colour)));
+        assert!(lines(&muted).iter().all(|(_, c)| *c == faded(colour)));
+        assert!(lines(&muted).iter().all(|(_, c)| *c != BACKING));
+        assert!(hit_size(&muted) < hit_size(&plain));
+    }
+
+    #[test]
+    fn fading_moves_a_colour_halfway_to_grey() {
+        assert_eq!(faded([0, 110, 220]), [55, 110, 165]);
     }
 }
