@@ -5,7 +5,7 @@
 use eframe::egui;
 use egui::RichText;
 use egui_plot::{Legend, Line, MarkerShape, Plot, Points, VLine};
-use glam::{DQuat, DVec3};
+use glam::DQuat;
 
 use std::collections::HashMap;
 
@@ -306,10 +306,6 @@ fn spots_words(spots: &plumbline_core::probe::Spots) -> String {
 }
 
 /// A unit direction, compactly (two decimals are enough to read which way it points).
-fn direction(v: DVec3) -> String {
-    format!("{:.2}, {:.2}, {:.2}", v.x, v.y, v.z)
-}
-
 fn shape_words(shape: &ShapeSpec) -> String {
     match shape {
         ShapeSpec::Sphere { radius } => format!("sphere, radius {}", metres(*radius)),
@@ -404,10 +400,6 @@ fn expect_words(expect: Option<&Expect>) -> String {
     words.join("; ")
 }
 
-fn yes_no(b: bool) -> String {
-    if b { "yes" } else { "no" }.to_string()
-}
-
 /// The hits as a table; clicking a row marks that hit in the view.
 fn hits_table(ui: &mut egui::Ui, result: &ProbeResult, selection: &mut Selection) {
     if matches!(
@@ -421,97 +413,7 @@ fn hits_table(ui: &mut egui::Ui, result: &ProbeResult, selection: &mut Selection
         ui.label("No hits: the probe is clear.");
         return;
     }
-    let header = match &result.hits {
-        Hits::Ray(_) => ["#", "object", "distance", "normal", "t · triangle"],
-        Hits::Sweep(_) => ["#", "object", "distance", "normal", "time of impact"],
-        Hits::Closest(_) => ["#", "object", "distance", "normal", "overlapping"],
-        Hits::Overlap(_) => ["#", "object", "depth", "direction", "enclosed"],
-        Hits::Rest(_) | Hits::Sightlines(_) | Hits::Coverage(_) => return,
-    };
-    // Per hit: object, distance or depth, normal or direction, and the kind's own last column.
-    let named = |object: &str, material: &Option<std::sync::Arc<str>>| match material {
-        Some(m) => format!("{object} · {m}"),
-        None => object.to_string(),
-    };
-    let cells: Vec<(String, f64, [f64; 3], String)> = match &result.hits {
-        Hits::Ray(h) => h
-            .iter()
-            .map(|x| {
-                let triangle = x.triangle.map_or("—".into(), |t| t.to_string());
-                let back = if x.back_face { " back" } else { "" };
-                let last = format!("{:.4} · {triangle}{back}", x.t);
-                (named(&x.object, &x.material), x.distance, x.normal, last)
-            })
-            .collect(),
-        Hits::Sweep(h) => h
-            .iter()
-            .map(|x| {
-                // Seconds when the probe has a duration, else the fraction of the path.
-                let time = x
-                    .time
-                    .map_or(format!("t {:.4}", x.t), |s| format!("{s:.3} s"));
-                let inside = if x.started_inside {
-                    ", started inside"
-                } else {
-                    ""
-                };
-                (
-                    named(&x.object, &x.material),
-                    x.distance,
-                    x.normal,
-                    format!("{time}{inside}"),
-                )
-            })
-            .collect(),
-        Hits::Closest(h) => h
-            .iter()
-            .map(|x| {
-                let object = named(&x.object, &x.material);
-                (object, x.distance, x.normal, yes_no(x.overlapping))
-            })
-            .collect(),
-        Hits::Overlap(h) => h
-            .iter()
-            .map(|x| {
-                let object = named(&x.object, &x.material);
-                (object, x.depth, x.direction, yes_no(x.enclosed))
-            })
-            .collect(),
-        Hits::Rest(_) | Hits::Sightlines(_) | Hits::Coverage(_) => Vec::new(),
-    };
-    let rows: Vec<[String; 5]> = cells
-        .into_iter()
-        .enumerate()
-        .map(|(i, (object, measure, towards, last))| {
-            [
-                (i + 1).to_string(),
-                object,
-                metres(measure),
-                direction(towards.into()),
-                last,
-            ]
-        })
-        .collect();
-    egui::Grid::new("hits")
-        .num_columns(5)
-        .striped(true)
-        .min_col_width(24.0)
-        .show(ui, |ui| {
-            for h in header {
-                ui.label(RichText::new(h).strong());
-            }
-            ui.end_row();
-            for (i, row) in rows.iter().enumerate() {
-                let selected = selection.hit == Some(i);
-                if ui.selectable_label(selected, &row[0]).clicked() {
-                    selection.hit = if selected { None } else { Some(i) };
-                }
-                for cell in &row[1..] {
-                    ui.label(cell);
-                }
-                ui.end_row();
-            }
-        });
+    super::hit_table::hits_table(ui, &result.hits, selection);
 }
 
 fn clearance_plot(ui: &mut egui::Ui, plot: &ClearancePlot) {

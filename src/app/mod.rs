@@ -18,6 +18,7 @@ pub mod editor;
 pub mod files;
 pub mod frame;
 pub mod history;
+pub mod hit_table;
 pub mod inspector;
 pub mod jobs;
 mod launcher;

@@ -7,7 +7,7 @@ use egui_kittest::Harness;
 use egui_kittest::kittest::Queryable;
 use plumbline::app::Workbench;
 use plumbline::app::document::Document;
-use plumbline_core::check::{Hits, metres};
+use plumbline_core::check::Hits;
 use plumbline_core::demo::files;
 
 fn demo() -> Document {
@@ -61,7 +61,7 @@ fn selecting_a_probe_in_the_list_shows_its_hits_in_the_inspector() {
                 .collect::<Vec<_>>()
                 .is_empty()
         );
-        harness.get_by_label(&metres(hit.distance));
+        harness.get_by_label(&format!("{:.3}", hit.distance));
     }
     assert!(harness.query_by_label("Not as expected").is_none());
 }

@@ -92,6 +92,42 @@ pub struct SourceRecord {
     pub triangle: Option<u32>,
 }
 
+impl SourceRecord {
+    /// Where the triangle is, in words: "docks.obj line 12 (face 3, fan triangle 1)" or
+    /// "quay.glb mesh 2, primitive 0, triangle 17".
+    pub fn describe(&self) -> String {
+        let mut parts = Vec::new();
+        if let Some(file) = &self.file {
+            parts.push(file.clone());
+        }
+        let mut place = Vec::new();
+        if let Some(line) = self.line {
+            parts.push(format!("line {line}"));
+        }
+        if let Some(face) = self.face {
+            place.push(format!("face {face}"));
+        }
+        if let Some(fan) = self.fan {
+            place.push(format!("fan triangle {fan}"));
+        }
+        if !place.is_empty() {
+            parts.push(format!("({})", place.join(", ")));
+        }
+        let gltf: Vec<String> = [
+            ("mesh", self.mesh),
+            ("primitive", self.primitive),
+            ("triangle", self.triangle),
+        ]
+        .into_iter()
+        .filter_map(|(word, n)| n.map(|n| format!("{word} {n}")))
+        .collect();
+        if !gltf.is_empty() {
+            parts.push(gltf.join(", "));
+        }
+        parts.join(" ")
+    }
+}
+
 /// A sweep's first impact with one object.
 #[derive(Debug, Clone, PartialEq, Deserialize)]
 #[serde(deny_unknown_fields)]
