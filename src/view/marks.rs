@@ -23,6 +23,18 @@ pub enum Mark {
         /// Drawn as dashes (used for the part of a ray beyond its first hit).
         dashed: bool,
     },
+    /// A dark band under a line (the selected probe's), pushed back from the eye so the line
+    /// itself stays in front of it.
+    Halo {
+        /// Start.
+        from: DVec3,
+        /// End.
+        to: DVec3,
+        /// Colour.
+        colour: Rgb,
+        /// Width in pixels.
+        width: f64,
+    },
     /// A point marker whose shape tells the probe's state.
     Point {
         /// Where.
@@ -107,6 +119,27 @@ pub fn mark_surfaces(marks: &[Mark], sizing: &Sizing) -> MarkSurfaces {
                 } else {
                     tube(&mut out.solid, *from, *to, *colour, *width, sizing);
                 }
+            }
+            Mark::Halo {
+                from,
+                to,
+                colour,
+                width,
+            } => {
+                // Back by its own radius at each end: its front is then behind the line's centre,
+                // and the line (narrower, on the centre) covers it wherever both are drawn.
+                let back = |p: DVec3| {
+                    let away = (p - sizing.camera.eye()).normalize_or_zero();
+                    p + away * sizing.metres_per_pixel(p) * *width * 0.5
+                };
+                tube(
+                    &mut out.solid,
+                    back(*from),
+                    back(*to),
+                    *colour,
+                    *width,
+                    sizing,
+                );
             }
             Mark::Point {
                 at,

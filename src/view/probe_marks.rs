@@ -52,12 +52,11 @@ pub fn probe_marks(probe: &Probe, result: &ProbeResult, emphasis: Emphasis, out:
             .filter_map(|m| match m {
                 Mark::Line {
                     from, to, width, ..
-                } => Some(Mark::Line {
+                } => Some(Mark::Halo {
                     from: *from,
                     to: *to,
                     colour: BACKING,
                     width: width + HALO,
-                    dashed: false,
                 }),
                 _ => None,
             })
@@ -359,6 +358,18 @@ pub fn start_point(query: &ProbeQuery, result: Option<&ProbeResult>) -> DVec3 {
     }
 }
 
+/// Where each row of the probe's hit table is in the level, in the table's order (rays, sweeps,
+/// closest points and overlaps; the whole-level kinds have none).
+pub fn hit_points(hits: &Hits) -> Vec<DVec3> {
+    match hits {
+        Hits::Ray(h) => h.iter().map(|x| x.point.into()).collect(),
+        Hits::Sweep(h) => h.iter().map(|x| x.point.into()).collect(),
+        Hits::Closest(h) => h.iter().map(|x| x.point.into()).collect(),
+        Hits::Overlap(h) => h.iter().map(|x| x.point.into()).collect(),
+        Hits::Rest(_) | Hits::Sightlines(_) | Hits::Coverage(_) => Vec::new(),
+    }
+}
+
 /// Every point that should be in view when the probe is framed.
 pub fn probe_points(probe: &Probe, result: Option<&ProbeResult>) -> Vec<DVec3> {
     let mut points = probe.query.points();
@@ -546,12 +557,24 @@ mod tests {
             selected: true,
             ..Emphasis::default()
         });
-        let plain_lines = lines(&plain);
-        let selected_lines = lines(&selected);
-        assert_eq!(selected_lines.len(), 2 * plain_lines.len());
-        let (halos, own) = selected_lines.split_at(plain_lines.len());
-        for ((halo_width, halo_colour), (width, _)) in halos.iter().zip(own) {
-            assert_eq!(*halo_colour, BACKING, "halos come first, under the lines");
+        let own = lines(&selected);
+        assert_eq!(own.len(), lines(&plain).len());
+        let halos: Vec<(usize, f64, [u8; 3])> = selected
+            .iter()
+            .enumerate()
+            .filter_map(|(k, m)| match m {
+                Mark::Halo { width, colour, .. } => Some((k, *width, *colour)),
+                _ => None,
+            })
+            .collect();
+        assert_eq!(halos.len(), own.len(), "one halo per line");
+        let first_line = selected
+            .iter()
+            .position(|m| matches!(m, Mark::Line { .. }))
+            .unwrap();
+        for ((k, halo_width, halo_colour), (width, _)) in halos.iter().zip(&own) {
+            assert!(*k < first_line, "halos come first, under the lines");
+            assert_eq!(*halo_colour, BACKING);
             assert_eq!(*halo_width, width + HALO);
         }
         assert!(own.iter().any(|(w, _)| *w == SELECTED_WIDTH));
@@ -570,7 +593,7 @@ mod tests {
         assert_eq!(lines(&plain)[0], (WIDTH, colour));
         assert_eq!(lines(&muted)[0], (MUTED_WIDTH, faded(colour)));
         assert!(lines(&muted).iter().all(|(_, c)| *c == faded(colour)));
-        assert!(lines(&muted).iter().all(|(_, c)| *c != BACKING));
+        assert!(!muted.iter().any(|m| matches!(m, Mark::Halo { .. })));
         assert!(hit_size(&muted) < hit_size(&plain));
     }
 

@@ -257,39 +257,24 @@ impl Renderer {
         })
     }
 
-    /// Draws the marks over the copied level: solid, then see-through, then faintly where hidden.
+    /// Draws the marks over the copied level: first faintly where the level hides them (while the
+    /// depth buffer holds the level alone, so a mark never shows faintly through another mark),
+    /// then solid, then see-through.
     fn draw_marks(&self, target: &RenderTarget, viewport: Viewport, frame: &FrameInput) {
         let Some(marks) = &self.marks else {
             return;
         };
         let camera = three_d_camera(&frame.camera, &frame.level, viewport);
         let scissor = ScissorBox::from(viewport);
-        if let Some(solid) = &marks.solid {
-            target.render_partially_with_material(
-                scissor,
-                &mark_material(false),
-                &camera,
-                [solid],
-                &[],
-            );
-        }
-        if let Some(see_through) = &marks.see_through {
-            target.render_partially_with_material(
-                scissor,
-                &mark_material(true),
-                &camera,
-                [see_through],
-                &[],
-            );
-        }
-        if let Some(solid) = &marks.solid {
-            target.render_partially_with_material(
-                scissor,
-                &hidden_material(),
-                &camera,
-                [solid],
-                &[],
-            );
+        let passes = [
+            (&marks.solid, hidden_material()),
+            (&marks.solid, mark_material(false)),
+            (&marks.see_through, mark_material(true)),
+        ];
+        for (mesh, material) in passes {
+            if let Some(mesh) = mesh {
+                target.render_partially_with_material(scissor, &material, &camera, [mesh], &[]);
+            }
         }
     }
 

@@ -54,18 +54,28 @@ pub struct SceneMarks<'a> {
     pub finding: Option<&'a Finding>,
     /// Objects with this tag are highlighted.
     pub highlight_tag: Option<&'a str>,
+    /// While something is selected, the other probes fade and thin out (off: all at full strength).
+    pub dim_others: bool,
 }
 
 /// The marks of a frame, in drawing order.
 pub fn scene_marks(scene: &SceneMarks) -> Vec<Mark> {
     let mut marks = Vec::new();
-    for &i in scene.shown {
+    // The inspected probe last, so that it is drawn over the others where they meet.
+    let order = scene
+        .shown
+        .iter()
+        .filter(|&&i| scene.selected != Some(i))
+        .chain(scene.shown.iter().filter(|&&i| scene.selected == Some(i)));
+    for &i in order {
         let (Some(probe), Some(result)) = (scene.probes.get(i), scene.results.get(i)) else {
             continue;
         };
         let emphasis = Emphasis {
             selected: scene.selected == Some(i),
-            muted: !scene.selected_all.is_empty() && scene.selected_all.binary_search(&i).is_err(),
+            muted: scene.dim_others
+                && !scene.selected_all.is_empty()
+                && scene.selected_all.binary_search(&i).is_err(),
             hit: scene.hit,
         };
         probe_marks(probe, result, emphasis, &mut marks);
@@ -252,6 +262,7 @@ mod tests {
             hover_triangle: None,
             finding: None,
             highlight_tag: None,
+            dim_others: true,
         };
         let highlights = |marks: &[Mark]| {
             marks

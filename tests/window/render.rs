@@ -288,3 +288,140 @@ fn a_rays_hit_marker_lands_on_the_projected_hit_point() {
         "marker centre {found} vs projected hit {expected}"
     );
 }
+
+/// Three rays side by side over a floor, rendered with nothing selected and with the middle one
+/// selected. Measured across each ray at its middle: how many pixels it changes (its width on
+/// screen, halo included) and how vivid its most vivid pixel is (largest minus smallest channel).
+/// What is checked is the window's own rule for emphasis ("common practice" in viewers: the
+/// selection is the widest, most saturated line; the rest step back), not a published figure.
+#[test]
+fn the_selected_ray_is_the_widest_and_most_vivid_line_and_the_others_step_back() {
+    use plumbline::view::scene_marks::{SceneMarks, scene_marks};
+
+    let mut gl = headless();
+    let level = Level {
+        up: DVec3::Y,
+        objects: vec![LevelObject {
+            name: "floor".into(),
+            tags: vec!["ground".into()],
+            geometry: Geometry::Primitive {
+                shape: Primitive::Box {
+                    half_extents: DVec3::new(6.0, 0.1, 6.0),
+                },
+                translation: DVec3::new(0.0, -0.1, 0.0),
+                rotation: DQuat::IDENTITY,
+            },
+        }],
+    };
+    let world = World::new(&level).unwrap();
+    let lanes = [-1.5, 0.0, 1.5];
+    let probes: Vec<Probe> = lanes
+        .iter()
+        .enumerate()
+        .map(|(k, z)| Probe {
+            id: format!("lane-{k}"),
+            label: None,
+            filter: Filter::default(),
+            query: ProbeQuery::Ray {
+                from: DVec3::new(-4.0, 0.5, *z),
+                to: DVec3::new(4.0, 0.5, *z),
+                hits: None,
+            },
+            expect: None,
+            from_rule: None,
+        })
+        .collect();
+    let results: Vec<_> = probes.iter().map(|p| answer_probe(&world, p)).collect();
+    // From above and a little to one side, so the rays run across the picture.
+    let camera = OrbitCamera {
+        target: DVec3::ZERO,
+        distance: 9.0,
+        yaw: std::f64::consts::FRAC_PI_2,
+        pitch: 1.2,
+        up: DVec3::Y,
+    };
+    // Each picture's marks get a new revision, so the renderer uploads them afresh.
+    let mut revision = 0;
+    let mut render = |shown: &[usize], selected: Option<usize>| {
+        revision += 1;
+        let selected_all: Vec<usize> = selected.into_iter().collect();
+        let marks = scene_marks(&SceneMarks {
+            level: &level,
+            probes: &probes,
+            results: &results,
+            shown,
+            selected,
+            selected_all: &selected_all,
+            hit: None,
+            handles: &[],
+            preview: &[],
+            hover_triangle: None,
+            finding: None,
+            highlight_tag: None,
+            dim_others: true,
+        });
+        let mut drawing = LevelDrawing::new(&level);
+        drawing.grid = Surface::default();
+        let sizing = Sizing {
+            camera,
+            viewport_height: HEIGHT as f64,
+            origin: drawing.origin,
+        };
+        let input = FrameInput {
+            marks_revision: revision,
+            ..frame(drawing, camera, mark_surfaces(&marks, &sizing))
+        };
+        gl.renderer
+            .render_image(WIDTH, HEIGHT, &input)
+            .expect("an offscreen frame")
+    };
+    let bare = render(&[], None);
+    let before = render(&[0, 1, 2], None);
+    let after = render(&[0, 1, 2], Some(1));
+
+    let size = DVec2::new(WIDTH as f64, HEIGHT as f64);
+    let across = |image: &[u8], z: f64| -> (u32, u8) {
+        let middle = camera.project(DVec3::new(0.0, 0.5, z), size, 10.0).unwrap();
+        let along = camera.project(DVec3::new(1.0, 0.5, z), size, 10.0).unwrap() - middle;
+        let normal = DVec2::new(-along.y, along.x).normalize();
+        let (mut width, mut vivid) = (0, 0);
+        for step in -14..=14 {
+            let p = middle + normal * step as f64;
+            let (x, y) = (p.x as u32, p.y as u32);
+            let (drawn, floor) = (pixel(image, x, y), pixel(&bare, x, y));
+            let change: i32 = (0..3)
+                .map(|c| (i32::from(drawn[c]) - i32::from(floor[c])).abs())
+                .sum();
+            if change > 40 {
+                width += 1;
+                vivid = vivid.max(drawn.iter().max().unwrap() - drawn.iter().min().unwrap());
+            }
+        }
+        (width, vivid)
+    };
+    let (selected_width, selected_vivid) = across(&after, lanes[1]);
+    for k in [0, 2] {
+        let (width_before, vivid_before) = across(&before, lanes[k]);
+        let (width_after, vivid_after) = across(&after, lanes[k]);
+        assert!(width_before >= 2, "lane {k} is drawn ({width_before} px)");
+        assert!(
+            selected_width > width_before && selected_width > width_after,
+            "the selected ray is the widest: {selected_width} px vs lane {k}'s \
+             {width_before} px before and {width_after} px after"
+        );
+        assert!(
+            selected_vivid > vivid_after && selected_vivid >= vivid_before,
+            "the selected ray is the most vivid: {selected_vivid} vs lane {k}'s {vivid_after}"
+        );
+        assert!(
+            width_after < width_before && vivid_after < vivid_before,
+            "lane {k} steps back: {width_before}→{width_after} px, vividness \
+             {vivid_before}→{vivid_after}"
+        );
+    }
+    let (plain_width, _) = across(&before, lanes[1]);
+    assert!(
+        selected_width >= plain_width + 4,
+        "selection widens the ray by its halo"
+    );
+}
