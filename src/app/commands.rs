@@ -39,6 +39,10 @@ pub enum Command {
     FrameProbe,
     /// Fly mode on or off.
     ToggleFly,
+    /// Other probes fade while one is selected, or all stay at full strength.
+    ToggleDimming,
+    /// The legend of the view's marks shown or hidden.
+    ToggleLegend,
     /// Open or close the rules window.
     Rules,
     /// Open or close the level lint window.
@@ -47,7 +51,7 @@ pub enum Command {
 
 impl Command {
     /// Commands that have a shortcut, in the order shortcuts are tried.
-    pub const WITH_SHORTCUTS: [Command; 21] = [
+    pub const WITH_SHORTCUTS: [Command; 23] = [
         Command::Open,
         Command::SaveAs,
         Command::Save,
@@ -67,6 +71,8 @@ impl Command {
         Command::FrameLevel,
         Command::FrameProbe,
         Command::ToggleFly,
+        Command::ToggleDimming,
+        Command::ToggleLegend,
         Command::Rules,
         Command::Lint,
     ];
@@ -93,6 +99,8 @@ impl Command {
             Command::FrameLevel => "Frame level",
             Command::FrameProbe => "Frame probe",
             Command::ToggleFly => "Fly mode",
+            Command::ToggleDimming => "Fade other probes",
+            Command::ToggleLegend => "Legend",
             Command::Rules => "Rules…",
             Command::Lint => "Level lint…",
         }
@@ -118,6 +126,8 @@ impl Command {
             Command::FrameLevel => plain(Key::Home),
             Command::FrameProbe => plain(Key::F),
             Command::ToggleFly => plain(Key::G),
+            Command::ToggleDimming => plain(Key::M),
+            Command::ToggleLegend => plain(Key::K),
             Command::Rules => command(Key::R),
             Command::Lint => command(Key::L),
         })
@@ -142,15 +152,27 @@ impl Command {
 
 /// A menu item for a command: its name, its shortcut on the right, greyed out when not possible.
 pub fn menu_item(ui: &mut egui::Ui, command: Command, enabled: bool) -> bool {
-    let shortcut = command
-        .shortcut()
-        .map(|s| ui.ctx().format_shortcut(&s))
-        .unwrap_or_default();
+    let shortcut = shortcut_text(ui, command);
     ui.add_enabled(
         enabled,
         egui::Button::new(command.name()).shortcut_text(shortcut),
     )
     .clicked()
+}
+
+/// A menu item for a command that turns something on or off, ticked while it is on.
+pub fn toggle_item(ui: &mut egui::Ui, command: Command, on: bool) -> bool {
+    let shortcut = shortcut_text(ui, command);
+    ui.add(egui::Button::selectable(on, command.name()).shortcut_text(shortcut))
+        .clicked()
+}
+
+/// The command's shortcut as the platform writes it, or nothing.
+fn shortcut_text(ui: &egui::Ui, command: Command) -> String {
+    command
+        .shortcut()
+        .map(|s| ui.ctx().format_shortcut(&s))
+        .unwrap_or_default()
 }
 
 /// The tooltip of a command's button: its name and shortcut.

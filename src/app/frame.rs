@@ -44,6 +44,8 @@ impl Workbench {
             Command::FrameLevel => self.viewport.frame_level(),
             Command::FrameProbe => self.after_selection(true),
             Command::ToggleFly => self.viewport.fly = !self.viewport.fly,
+            Command::ToggleDimming => self.viewport.dim_others = !self.viewport.dim_others,
+            Command::ToggleLegend => self.viewport.legend = !self.viewport.legend,
             Command::Rules => self.toggle_rules(),
             Command::Lint => self.toggle_lint(ctx),
         }

@@ -24,6 +24,8 @@ pub struct WindowOptions {
     pub select: Option<String>,
     /// Open the level lint window at the start, its first finding picked.
     pub lint: bool,
+    /// Show the legend of the view's marks.
+    pub legend: bool,
     /// Where paths named inside the files opened may lead.
     pub paths: plumbline_core::input::PathPolicy,
 }
@@ -74,6 +76,7 @@ pub fn launch(path: &std::path::Path, options: WindowOptions) -> Result<(), Stri
         ),
     };
     let lint = options.lint;
+    let legend = options.legend;
     let capture = Capture::new(&options);
     let outcome = capture.outcome();
     let size = options.size.unwrap_or([1440, 860]);
@@ -119,6 +122,7 @@ pub fn launch(path: &std::path::Path, options: WindowOptions) -> Result<(), Stri
                 workbench.select_probe(selected);
                 workbench.scroll_list = true;
             }
+            workbench.viewport.legend = legend;
             if lint {
                 workbench.lint.open = true;
                 workbench.lint.pick_first = true;

@@ -3,7 +3,7 @@
 use eframe::egui;
 
 use super::Workbench;
-use super::commands::{Command, menu_item};
+use super::commands::{Command, menu_item, toggle_item};
 use super::tools::Tool;
 
 impl Workbench {
@@ -82,15 +82,24 @@ impl Workbench {
                 }
             });
             ui.menu_button("View", |ui| {
-                for command in [
-                    Command::FrameLevel,
-                    Command::FrameProbe,
-                    Command::ToggleFly,
-                    Command::Lint,
-                ] {
+                for command in [Command::FrameLevel, Command::FrameProbe] {
                     if menu_item(ui, command, true) {
                         chosen = Some(command);
                     }
+                }
+                ui.separator();
+                for (command, on) in [
+                    (Command::ToggleFly, self.viewport.fly),
+                    (Command::ToggleDimming, self.viewport.dim_others),
+                    (Command::ToggleLegend, self.viewport.legend),
+                ] {
+                    if toggle_item(ui, command, on) {
+                        chosen = Some(command);
+                    }
+                }
+                ui.separator();
+                if menu_item(ui, Command::Lint, true) {
+                    chosen = Some(Command::Lint);
                 }
             });
         });

@@ -111,6 +111,8 @@ impl Workbench {
                     "Fly mode (G): drag to look around, W/A/S/D to move, Q/E down and up.\n\
                  Otherwise drag orbits, right or middle drag pans, the wheel zooms.",
                 );
+            ui.toggle_value(&mut self.viewport.legend, "Legend")
+                .on_hover_text(tooltip(&ctx, Command::ToggleLegend));
         });
     }
 }

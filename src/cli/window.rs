@@ -1,5 +1,5 @@
 //! The window's command-line options: `--screenshot PATH`, `--size WxH`, `--select PROBE`,
-//! `--lint`, `--bench-frames N`.
+//! `--lint`, `--legend`, `--bench-frames N`.
 
 use std::path::PathBuf;
 
@@ -21,6 +21,9 @@ pub struct WindowArgs {
     /// Open the level lint window at the start, its first finding picked and framed.
     #[arg(long)]
     pub lint: bool,
+    /// Show the legend of the view's marks (as View > Legend does).
+    #[arg(long)]
+    pub legend: bool,
     /// Draw N frames of each kind (overlay change, camera motion, full redraw), print their times,
     /// then exit.
     #[arg(long, value_name = "N", value_parser = clap::value_parser!(u32).range(1..))]
@@ -39,6 +42,7 @@ impl WindowArgs {
             bench_frames: self.bench_frames.map(|n| n as usize),
             select: self.select.clone(),
             lint: self.lint,
+            legend: self.legend,
             paths: plumbline_core::input::PathPolicy {
                 anywhere: self.allow_outside_paths,
             },

@@ -4,6 +4,7 @@
 //! the labels, the axis marker and the hover note egui paints over the view.
 
 pub mod input;
+mod legend;
 pub mod overlays;
 pub mod paint;
 
@@ -112,6 +113,11 @@ pub struct Viewport {
     /// Draw as if the camera were moving (`Some(true)`) or resting (`Some(false)`) whatever it does
     /// (for the frame benchmark).
     pub force_moving: Option<bool>,
+    /// While a probe is selected, the others fade and thin out; off shows every probe at full
+    /// strength.
+    pub dim_others: bool,
+    /// The legend of the view's marks is shown.
+    pub legend: bool,
     /// Take no notice of where the pointer rests (an unattended screenshot: the virtual display's
     /// pointer sits mid-screen and would put a hover note in every picture).
     pub ignore_hover: bool,
@@ -128,6 +134,7 @@ struct MarksKey {
     shown: Vec<usize>,
     finding: Option<Finding>,
     highlight_tag: Option<String>,
+    dim_others: bool,
 }
 
 impl Viewport {
@@ -148,6 +155,8 @@ impl Viewport {
             frame_log: None,
             force_moving: None,
             ignore_hover: false,
+            dim_others: true,
+            legend: false,
             last_rect: Rect::NOTHING,
             dragging: None,
             drag_height: 0.0,
@@ -302,6 +311,10 @@ impl Viewport {
         ui.painter()
             .add(paint::level_and_marks(rect, frame, self.frame_log.clone()));
         self.paint_labels(ui, document, shown, selection, changes, rect);
+        self.paint_hit_numbers(ui, document, selection, rect);
+        if self.legend {
+            legend::paint_legend(ui, rect);
+        }
         self.paint_axes(ui, rect);
         if let Some(hover) = &self.hover {
             paint_hover(ui, rect, pointer, hover);
@@ -334,6 +347,7 @@ impl Viewport {
             shown: shown.iter().take(MAX_DRAWN_PROBES).copied().collect(),
             finding: finding.cloned(),
             highlight_tag: highlight_tag.map(str::to_string),
+            dim_others: self.dim_others,
         };
         if self.marks_key.as_ref() == Some(&key) {
             return;
@@ -352,6 +366,7 @@ impl Viewport {
             hover_triangle,
             finding,
             highlight_tag,
+            dim_others: self.dim_others,
         });
         let sizing = Sizing {
             camera: self.camera,

@@ -1,5 +1,6 @@
 //! What egui paints over the 3D view: labels beside failing, changed and selected probes (stepping
-//! aside so none covers another), the axis marker, and the note under the pointer.
+//! aside so none covers another; faint while another probe is selected), the selected probe's hit
+//! numbers, the axis marker, and the note under the pointer.
 
 use std::collections::HashMap;
 
@@ -11,9 +12,14 @@ use super::super::Selection;
 use super::super::badge::{color32, color32_alpha, paint_mark, verdict_color32};
 use super::super::document::Document;
 use super::{Hover, MAX_DRAWN_PROBES, Viewport};
-use crate::view::palette::{BACKING, okabe_ito, verdict_word};
-use crate::view::probe_marks::start_point;
+use crate::view::palette::{BACKING, HIT, SELECTED, okabe_ito, verdict_word};
+use crate::view::probe_marks::{hit_points, start_point};
 use plumbline_core::check::{Aspect, Verdict};
+
+/// How far up and right of its hit a hit's number sits, points.
+const HIT_NUMBER_OFFSET: f32 = 14.0;
+/// Radius of the disc behind a hit's number, points.
+const HIT_NUMBER_RADIUS: f32 = 8.5;
 
 impl Viewport {
     /// Names beside failing probes and the selected one, so the answer is readable at a glance.
@@ -28,6 +34,7 @@ impl Viewport {
     ) {
         let painter = ui.painter().with_clip_rect(rect);
         let font = FontId::proportional(13.0);
+        let dimmed = self.dim_others && selection.probe.is_some();
         // Labels already placed; a label that would cover one moves down below it.
         let mut taken: Vec<Rect> = Vec::new();
         // Every drawn marker: a label goes where it covers none, when there is such a place.
@@ -95,6 +102,10 @@ impl Viewport {
             }
             let frame = frame_at(pos);
             taken.push(frame);
+            // While another probe is selected, this label steps back with its probe.
+            let alpha = if dimmed && !selected { 0.45 } else { 1.0 };
+            let mut painter = painter.clone();
+            painter.multiply_opacity(alpha);
             if !frame.expand(24.0).contains(at) {
                 let end = Pos2::new(
                     at.x.clamp(frame.left(), frame.right()),
@@ -119,6 +130,44 @@ impl Viewport {
                 result.verdict,
             );
             painter.galley(pos, galley, egui::Color32::WHITE);
+        }
+    }
+
+    /// The selected probe's hits numbered as in the inspector's table, each number in a small dark
+    /// disc up and to the right of its hit.
+    pub(super) fn paint_hit_numbers(
+        &self,
+        ui: &egui::Ui,
+        document: &Document,
+        selection: &Selection,
+        rect: Rect,
+    ) {
+        let Some(result) = selection.probe.and_then(|i| document.results.get(i)) else {
+            return;
+        };
+        let painter = ui.painter().with_clip_rect(rect);
+        let mut placed = Vec::new();
+        for (i, point) in hit_points(&result.hits).into_iter().enumerate() {
+            let Some(at) = self.to_screen(rect, point) else {
+                continue;
+            };
+            let picked = selection.hit == Some(i);
+            // Hits close together on screen get their numbers stacked upwards, none covering another.
+            let mut centre = at + Vec2::new(HIT_NUMBER_OFFSET, -HIT_NUMBER_OFFSET);
+            while placed
+                .iter()
+                .any(|p: &Pos2| p.distance(centre) < 2.0 * HIT_NUMBER_RADIUS + 2.0)
+            {
+                centre.y -= 2.0 * HIT_NUMBER_RADIUS + 3.0;
+            }
+            placed.push(centre);
+            let colour = if picked {
+                color32(SELECTED)
+            } else {
+                color32(HIT)
+            };
+            painter.line_segment([at, centre], Stroke::new(1.0, colour));
+            paint_number(&painter, centre, i + 1, colour);
         }
     }
 
@@ -156,6 +205,28 @@ impl Viewport {
             );
         }
     }
+}
+
+/// A hit's number in a small dark disc ringed in `ring`.
+pub(super) fn paint_number(
+    painter: &egui::Painter,
+    centre: Pos2,
+    number: usize,
+    ring: egui::Color32,
+) {
+    painter.circle(
+        centre,
+        HIT_NUMBER_RADIUS,
+        color32_alpha(BACKING, 235),
+        Stroke::new(1.5, ring),
+    );
+    painter.text(
+        centre,
+        Align2::CENTER_CENTER,
+        number.to_string(),
+        FontId::proportional(12.0),
+        egui::Color32::WHITE,
+    );
 }
 
 pub(super) fn paint_hover(ui: &egui::Ui, rect: Rect, pointer: Option<Pos2>, hover: &Hover) {
