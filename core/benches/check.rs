@@ -113,7 +113,8 @@ fn bare_queries(world: &World, probes: &[Probe]) -> usize {
             }
             ProbeQuery::Rest { .. }
             | ProbeQuery::Sightlines { .. }
-            | ProbeQuery::Coverage { .. } => {
+            | ProbeQuery::Coverage { .. }
+            | ProbeQuery::Jump { .. } => {
                 unreachable!("the generated probes are single queries")
             }
         };

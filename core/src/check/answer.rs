@@ -2,12 +2,12 @@
 
 use glam::DQuat;
 
-use super::answer_level;
 use super::records::{
     ClearanceRecord, ClosestRecord, Hits, OverlapRecord, ProbeResult, RayHitRecord, SourceRecord,
     SweepHitRecord, Verdict,
 };
 use super::verdict::judge;
+use super::{answer_level, jump};
 use crate::json_text::{round9, round9_vec};
 use crate::level::{FacePlace, ShapeSpec};
 use crate::probe::{HitsMode, Probe, ProbeQuery};
@@ -31,7 +31,7 @@ pub fn answer_probe(world: &World, probe: &Probe) -> ProbeResult {
     }
     match answer(world, probe) {
         Ok((hits, clearance)) => {
-            let (verdict, reason) = judge(probe, &hits, clearance.as_ref());
+            let (verdict, reason) = judge(probe, &hits, clearance.as_ref(), world.up());
             ProbeResult {
                 id: probe.id.clone(),
                 kind,
@@ -186,6 +186,7 @@ fn answer(world: &World, probe: &Probe) -> Result<Answer, QueryError> {
             answer_level::coverage(&view, spots, region, *spacing)?,
             None,
         ),
+        ProbeQuery::Jump { .. } => (jump::answer(&view, &probe.query)?, None),
     })
 }
 

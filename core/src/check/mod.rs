@@ -7,6 +7,7 @@ mod answer;
 mod answer_level;
 mod compare;
 mod expectation;
+mod jump;
 mod level_records;
 mod level_verdict;
 mod records;
@@ -19,6 +20,7 @@ pub use answer::answer_probe;
 pub use answer_level::spot_list;
 pub use compare::{Aspect, Comparer, Comparison, DEFAULT_TOLERANCE, ProbeChange, changes, compare};
 pub use expectation::expectation_from;
+pub use jump::{JumpRecord, trajectory};
 pub use level_records::MAX_LISTED_POINTS;
 pub use records::{
     ClearanceRecord, ClosestRecord, CoverageRecord, Hits, OverlapRecord, PairRecord, ProbeResult,

@@ -4,6 +4,7 @@ use std::sync::Arc;
 
 use serde::{Deserialize, Serialize};
 
+pub use super::jump::JumpRecord;
 pub use super::level_records::{CoverageRecord, PairRecord, RestRecord};
 use crate::json_text::Json;
 use crate::probe::ProbeKind;
@@ -244,6 +245,8 @@ pub enum Hits {
     Sightlines(Vec<PairRecord>),
     /// One record of the region's coverage.
     Coverage(Vec<CoverageRecord>),
+    /// At most one landing.
+    Jump(Vec<JumpRecord>),
 }
 
 impl Hits {
@@ -257,6 +260,7 @@ impl Hits {
             Hits::Rest(h) => h.len(),
             Hits::Sightlines(h) => h.iter().filter(|p| !p.sees).count(),
             Hits::Coverage(h) => h.iter().map(|c| c.points - c.seen).sum(),
+            Hits::Jump(h) => h.len(),
         }
     }
 
@@ -283,6 +287,7 @@ impl Hits {
                 )
             }),
             Hits::Coverage(_) => None,
+            Hits::Jump(h) => h.first().map(|x| (&*x.object, &x.tags[..], x.distance)),
         }
     }
 
@@ -296,6 +301,7 @@ impl Hits {
             ProbeKind::Rest => Hits::Rest(Vec::new()),
             ProbeKind::Sightlines => Hits::Sightlines(Vec::new()),
             ProbeKind::Coverage => Hits::Coverage(Vec::new()),
+            ProbeKind::Jump => Hits::Jump(Vec::new()),
         }
     }
 }
@@ -511,6 +517,7 @@ mod layout {
                 Hits::Rest(h) => h.iter().map(RestRecord::to_json).collect(),
                 Hits::Sightlines(h) => h.iter().map(PairRecord::to_json).collect(),
                 Hits::Coverage(h) => h.iter().map(CoverageRecord::to_json).collect(),
+                Hits::Jump(h) => h.iter().map(JumpRecord::to_json).collect(),
             };
             let mut f = vec![
                 ("id", Json::Str(&self.id)),

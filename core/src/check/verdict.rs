@@ -1,22 +1,35 @@
 //! Judging an answer against a probe's expectation, with one sentence a designer can read.
 
+use glam::DVec3;
+
 use super::records::{ClearanceRecord, Hits, Verdict};
 use crate::probe::{Conditions, Probe};
 
 /// The verdict and the reason for it.
-pub fn judge(probe: &Probe, hits: &Hits, clearance: Option<&ClearanceRecord>) -> (Verdict, String) {
+/// `up` is the level's up axis (for regions cut to an outline).
+pub fn judge(
+    probe: &Probe,
+    hits: &Hits,
+    clearance: Option<&ClearanceRecord>,
+    up: DVec3,
+) -> (Verdict, String) {
     let answer = describe(hits, clearance);
     let Some(expect) = &probe.expect else {
         return (Verdict::Unchecked, capitalise(&answer));
     };
-    match first_unmet(&expect.conditions(), hits, clearance) {
+    match first_unmet(&expect.conditions(), hits, clearance, up) {
         None => (Verdict::Pass, format!("As expected: {answer}")),
         Some(wanted) => (Verdict::Fail, format!("Expected {wanted}; {answer}")),
     }
 }
 
 /// The first condition that does not hold, worded as what was expected.
-fn first_unmet(c: &Conditions, hits: &Hits, clearance: Option<&ClearanceRecord>) -> Option<String> {
+fn first_unmet(
+    c: &Conditions,
+    hits: &Hits,
+    clearance: Option<&ClearanceRecord>,
+    up: DVec3,
+) -> Option<String> {
     let first = hits.first();
     if let Some(blocked) = c.blocked
         && blocked == hits.is_empty()
@@ -63,6 +76,9 @@ fn first_unmet(c: &Conditions, hits: &Hits, clearance: Option<&ClearanceRecord>)
     {
         return Some(format!("a depth of at most {}", metres(max)));
     }
+    if let Hits::Jump(h) = hits {
+        return super::jump::first_unmet(c, h, up);
+    }
     super::level_verdict::first_unmet(c, hits)
 }
 
@@ -74,6 +90,7 @@ fn first_word(hits: &Hits) -> &'static str {
         Hits::Rest(_) => "the support to be",
         Hits::Sightlines(_) => "the first blocked sightline's blocker to be",
         Hits::Coverage(_) => "a blocker to be",
+        Hits::Jump(_) => "the landing to be on",
     }
 }
 
@@ -113,6 +130,7 @@ fn describe(hits: &Hits, clearance: Option<&ClearanceRecord>) -> String {
         Hits::Rest(_) | Hits::Sightlines(_) | Hits::Coverage(_) => {
             return super::level_verdict::describe(hits);
         }
+        Hits::Jump(h) => return super::jump::describe(h),
     };
     match (found, clearance) {
         (Some(text), _) => text,

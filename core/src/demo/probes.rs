@@ -7,7 +7,8 @@ use super::quay::layout::*;
 use super::quay::{bollards, crates, drums, ground_height};
 use crate::level::ShapeSpec;
 use crate::probe::{
-    Conditions, Expect, ExpectWord, HitsMode, Probe, ProbeQuery, ProbeSet, Range, Region, Spots,
+    Conditions, Expect, ExpectWord, HitsMode, Launch, Probe, ProbeQuery, ProbeSet, Range, Region,
+    Spots,
 };
 use crate::query::Filter;
 
@@ -355,6 +356,28 @@ pub fn probe_set(level: &str) -> ProbeSet {
                 v(40.7, standing(CATWALK_Y) + 0.01, 19.0),
             ]),
             clear(),
+        ),
+        // Across the 0.44 m gap from a stack of three containers down onto a stack of two.
+        probe(
+            "container-gap-jump",
+            "A character jumps the gap from the high container stack onto the lower one",
+            ProbeQuery::Jump {
+                shape: character(),
+                rotation: None,
+                from: v(-18.4, standing(3.0 * 2.59), -19.1),
+                launch: Launch::Target {
+                    to: v(-16.0, standing(2.0 * 2.59), -19.1),
+                    apex: 0.8,
+                },
+                gravity: None,
+                max_slope: None,
+                max_time: None,
+            },
+            when(Conditions {
+                first_object: Some("container-19".into()),
+                walkable: Some(true),
+                ..Conditions::default()
+            }),
         ),
         // Spawn points off the pads (the pads have a rule of their own).
         probe(

@@ -63,11 +63,13 @@ pub enum ProbeKind {
     Sightlines,
     /// What share of a region a set of spots sees.
     Coverage,
+    /// A shape thrown along a parabola under gravity: where it lands.
+    Jump,
 }
 
 impl ProbeKind {
     /// Every kind, in the order the documentation lists them.
-    pub const ALL: [ProbeKind; 7] = [
+    pub const ALL: [ProbeKind; 8] = [
         ProbeKind::Ray,
         ProbeKind::Sweep,
         ProbeKind::Closest,
@@ -75,6 +77,7 @@ impl ProbeKind {
         ProbeKind::Rest,
         ProbeKind::Sightlines,
         ProbeKind::Coverage,
+        ProbeKind::Jump,
     ];
 
     /// The kind's name as written in files.
@@ -87,6 +90,7 @@ impl ProbeKind {
             ProbeKind::Rest => "rest",
             ProbeKind::Sightlines => "sightlines",
             ProbeKind::Coverage => "coverage",
+            ProbeKind::Jump => "jump",
         }
     }
 
@@ -174,7 +178,49 @@ pub enum ProbeQuery {
         /// The grid's spacing, metres.
         spacing: f64,
     },
+    /// A shape thrown from a spot under gravity, to where it first touches the level.
+    Jump {
+        /// The thrown shape (not a point).
+        shape: ShapeSpec,
+        /// Its constant turn.
+        rotation: Option<DQuat>,
+        /// Where its centre starts.
+        from: DVec3,
+        /// How it is thrown.
+        launch: Launch,
+        /// Gravity, metres per second squared (default [`STANDARD_GRAVITY`]).
+        gravity: Option<f64>,
+        /// The steepest ground a character stands on, degrees (default [`MAX_WALKABLE_SLOPE`]).
+        max_slope: Option<f64>,
+        /// How long to follow it, seconds (default [`JUMP_TIME`]).
+        max_time: Option<f64>,
+    },
 }
+
+/// How a jump is thrown: a velocity, or a target to come down through after rising to an apex.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Launch {
+    /// The velocity at the launch, metres per second.
+    Velocity(DVec3),
+    /// Rise `apex` metres above the start, then come down through `to`.
+    Target {
+        /// A point the centre passes through on the way down.
+        to: DVec3,
+        /// The highest point's height above the start, metres.
+        apex: f64,
+    },
+}
+
+/// Standard gravity, m/s²: the conventional value fixed by the 3rd General Conference on Weights and
+/// Measures (CGPM, 1901), as in ISO 80000-3.
+pub const STANDARD_GRAVITY: f64 = 9.80665;
+
+/// The steepest slope a character stands on when a probe does not say, degrees: 45° is common
+/// practice in character controllers (from memory).
+pub const MAX_WALKABLE_SLOPE: f64 = 45.0;
+
+/// How long a jump is followed when the probe does not say, seconds. Ours: a fall of about 490 m.
+pub const JUMP_TIME: f64 = 10.0;
 
 /// How far below a rest probe looks for a support when the file does not say, metres. Ours.
 pub const REST_SEARCH: f64 = 2.0;
@@ -218,6 +264,22 @@ pub struct Region {
     pub outline: Option<Vec<[f64; 3]>>,
 }
 
+impl Region {
+    /// True when `p` lies in the box and, seen along `up`, inside the outline (when there is one).
+    pub fn contains(&self, p: DVec3, up: DVec3) -> bool {
+        let (lo, hi) = (DVec3::from_array(self.min), DVec3::from_array(self.max));
+        if p.cmplt(lo).any() || p.cmpgt(hi).any() {
+            return false;
+        }
+        let Some(outline) = &self.outline else {
+            return true;
+        };
+        let (_, i, j) = crate::query::level_axes(up);
+        let corners: Vec<DVec3> = outline.iter().map(|c| DVec3::from_array(*c)).collect();
+        crate::query::inside_outline(&corners, (p[i], p[j]), (i, j))
+    }
+}
+
 impl ProbeQuery {
     /// The probe's kind.
     pub fn kind(&self) -> ProbeKind {
@@ -229,6 +291,7 @@ impl ProbeQuery {
             ProbeQuery::Rest { .. } => ProbeKind::Rest,
             ProbeQuery::Sightlines { .. } => ProbeKind::Sightlines,
             ProbeQuery::Coverage { .. } => ProbeKind::Coverage,
+            ProbeQuery::Jump { .. } => ProbeKind::Jump,
         }
     }
 
@@ -247,6 +310,10 @@ impl ProbeQuery {
                 points.push(DVec3::from_array(region.max));
                 points
             }
+            ProbeQuery::Jump { from, launch, .. } => match launch {
+                Launch::Velocity(_) => vec![*from],
+                Launch::Target { to, .. } => vec![*from, *to],
+            },
         }
     }
 
@@ -262,6 +329,11 @@ impl ProbeQuery {
             ProbeQuery::Closest { at, .. }
             | ProbeQuery::Overlap { at, .. }
             | ProbeQuery::Rest { at, .. } => (k == 0).then_some(at),
+            ProbeQuery::Jump { from, launch, .. } => match (k, launch) {
+                (0, _) => Some(from),
+                (1, Launch::Target { to, .. }) => Some(to),
+                _ => None,
+            },
             // Spots and region corners are edited as numbers, not dragged.
             ProbeQuery::Sightlines { .. } | ProbeQuery::Coverage { .. } => None,
         }
@@ -344,6 +416,12 @@ pub struct Conditions {
     /// Coverage: the share of the region seen (0 to 1) lies in this range.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub seen: Option<Range>,
+    /// Jump: it lands on ground a character can stand on (true) or too steep to (false).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub walkable: Option<bool>,
+    /// Jump: the centre where it lands lies inside this region.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub lands_within: Option<Region>,
 }
 
 /// A closed range of metres; either end may be left open.

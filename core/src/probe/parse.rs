@@ -9,7 +9,8 @@ use serde::Deserialize;
 use serde_json::value::RawValue;
 
 use super::model::{
-    Conditions, Expect, ExpectWord, HitsMode, Probe, ProbeKind, ProbeQuery, Region, Spot, Spots,
+    Conditions, Expect, ExpectWord, HitsMode, Launch, Probe, ProbeKind, ProbeQuery, Region, Spot,
+    Spots,
 };
 use crate::error::InputError;
 use crate::input::{MAX_NAME_CHARS, check_name, number, one_line};
@@ -38,6 +39,11 @@ struct RawProbe<'a> {
     eye: Option<f64>,
     region: Option<Region>,
     spacing: Option<f64>,
+    velocity: Option<[f64; 3]>,
+    apex: Option<f64>,
+    gravity: Option<f64>,
+    max_slope: Option<f64>,
+    max_time: Option<f64>,
     ignore_tags: Option<Vec<String>>,
     only_tags: Option<Vec<String>>,
     ignore_objects: Option<Vec<String>>,
@@ -114,6 +120,17 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
         ProbeKind::Rest => &["shape", "at", "rotation", "search"],
         ProbeKind::Sightlines => &["spots", "spot_tags", "eye"],
         ProbeKind::Coverage => &["spots", "spot_tags", "eye", "region", "spacing"],
+        ProbeKind::Jump => &[
+            "shape",
+            "rotation",
+            "from",
+            "velocity",
+            "to",
+            "apex",
+            "gravity",
+            "max_slope",
+            "max_time",
+        ],
     };
     let present = [
         ("from", raw.from.is_some()),
@@ -132,6 +149,11 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
         ("eye", raw.eye.is_some()),
         ("region", raw.region.is_some()),
         ("spacing", raw.spacing.is_some()),
+        ("velocity", raw.velocity.is_some()),
+        ("apex", raw.apex.is_some()),
+        ("gravity", raw.gravity.is_some()),
+        ("max_slope", raw.max_slope.is_some()),
+        ("max_time", raw.max_time.is_some()),
     ];
     if let Some((field, _)) = present.iter().find(|(f, p)| *p && !allowed.contains(f)) {
         return Err(format!(
@@ -242,21 +264,7 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
         },
         ProbeKind::Coverage => {
             let region = raw.region.clone().ok_or_else(|| need("region"))?;
-            let (lo, hi) = (
-                finite_point("region.min", region.min)?,
-                finite_point("region.max", region.max)?,
-            );
-            if lo.cmpgt(hi).any() {
-                return Err("region.min must lie below region.max on every axis".into());
-            }
-            if let Some(outline) = &region.outline {
-                if outline.len() < 3 {
-                    return Err("region.outline needs at least three points".into());
-                }
-                for p in outline {
-                    finite_point("region.outline", *p)?;
-                }
-            }
+            let (lo, hi) = check_region("region", &region)?;
             let spacing = raw.spacing.ok_or_else(|| need("spacing"))?;
             positive_metres("spacing", spacing)?;
             // The grid runs across the level's up axis: at most the two widest sides' cells.
@@ -276,7 +284,87 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
                 spacing,
             }
         }
+        ProbeKind::Jump => ProbeQuery::Jump {
+            shape: shape(false)?,
+            rotation,
+            from: finite_point("from", raw.from.ok_or_else(|| need("from"))?)?,
+            launch: parse_launch(raw)?,
+            gravity: raw
+                .gravity
+                .map(|g| positive("gravity", g, "metres per second squared"))
+                .transpose()?,
+            max_slope: raw
+                .max_slope
+                .map(|a| {
+                    if a.is_finite() && (0.0..=90.0).contains(&a) {
+                        Ok(a)
+                    } else {
+                        Err(format!(
+                            "max_slope must be an angle from 0 to 90 degrees, not {}",
+                            number(a)
+                        ))
+                    }
+                })
+                .transpose()?,
+            max_time: raw
+                .max_time
+                .map(|t| positive("max_time", t, "seconds"))
+                .transpose()?,
+        },
     })
+}
+
+/// A jump's launch: `velocity`, or `to` with `apex` (one or the other).
+fn parse_launch(raw: &RawProbe) -> Result<Launch, String> {
+    match (raw.velocity, raw.to, raw.apex) {
+        (Some(v), None, None) => {
+            let v = finite_point("velocity", v)?;
+            Ok(Launch::Velocity(v))
+        }
+        (None, Some(to), Some(apex)) => Ok(Launch::Target {
+            to: finite_point("to", to)?,
+            apex: positive("apex", apex, "metres")?,
+        }),
+        (None, Some(_), None) => Err("a jump with \"to\" needs \"apex\" too".into()),
+        (None, None, Some(_)) => Err("a jump with \"apex\" needs \"to\" too".into()),
+        (None, None, None) => Err("a jump probe needs \"velocity\", or \"to\" and \"apex\"".into()),
+        (Some(_), _, _) => Err("a jump takes \"velocity\" or \"to\" and \"apex\", not both".into()),
+    }
+}
+
+/// A region's corners, checked: finite, the lower below the higher, an outline of three points or
+/// more. `field` names it in messages.
+fn check_region(field: &str, region: &Region) -> Result<(DVec3, DVec3), String> {
+    let (lo, hi) = (
+        finite_point(&format!("{field}.min"), region.min)?,
+        finite_point(&format!("{field}.max"), region.max)?,
+    );
+    if lo.cmpgt(hi).any() {
+        return Err(format!(
+            "{field}.min must lie below {field}.max on every axis"
+        ));
+    }
+    if let Some(outline) = &region.outline {
+        if outline.len() < 3 {
+            return Err(format!("{field}.outline needs at least three points"));
+        }
+        for p in outline {
+            finite_point(&format!("{field}.outline"), *p)?;
+        }
+    }
+    Ok((lo, hi))
+}
+
+/// A positive finite number of some unit, within the size limit.
+fn positive(field: &str, value: f64, unit: &str) -> Result<f64, String> {
+    if value.is_finite() && value > 0.0 && value <= crate::level::MAX_COORDINATE {
+        Ok(value)
+    } else {
+        Err(format!(
+            "{field} must be a positive number of {unit}, not {}",
+            number(value)
+        ))
+    }
 }
 
 /// Checks an id of a probe or rule (`what`): a name of `[A-Za-z0-9._-]+`.
@@ -339,14 +427,7 @@ fn parse_spots(raw: &RawProbe) -> Result<Spots, String> {
 
 /// A positive number of metres within the size limit.
 fn positive_metres(field: &str, value: f64) -> Result<(), String> {
-    if value.is_finite() && value > 0.0 && value <= crate::level::MAX_COORDINATE {
-        Ok(())
-    } else {
-        Err(format!(
-            "{field} must be a positive number of metres, not {}",
-            number(value)
-        ))
-    }
+    positive(field, value, "metres").map(|_| ())
 }
 
 fn probe_shape(
@@ -497,6 +578,14 @@ fn check_conditions(c: &Conditions, query: &ProbeQuery) -> Result<(), String> {
             one_line(&pair[0]),
             one_line(&pair[1])
         ));
+    }
+    if (c.walkable.is_some() || c.lands_within.is_some()) && kind != ProbeKind::Jump {
+        return Err(format!(
+            "expect.walkable and lands_within apply to jumps, not to a {kind} probe"
+        ));
+    }
+    if let Some(region) = &c.lands_within {
+        check_region("expect.lands_within", region)?;
     }
     if let Some(r) = c.seen {
         if kind != ProbeKind::Coverage {

@@ -4,7 +4,7 @@
 use glam::{DQuat, DVec3};
 use serde_json::{Map, Value, json};
 
-use super::model::{Probe, ProbeQuery, ProbeSet, Spots};
+use super::model::{Launch, Probe, ProbeQuery, ProbeSet, Spots};
 use crate::level::ShapeSpec;
 
 /// Serialises a probe set in the file format, stable and ready to save.
@@ -132,6 +132,37 @@ fn probe_to_value(p: &Probe) -> Value {
             spots_fields(spots, &mut m);
             m.insert("region".into(), json!(region));
             m.insert("spacing".into(), json!(spacing));
+        }
+        ProbeQuery::Jump {
+            shape: s,
+            rotation,
+            from,
+            launch,
+            gravity,
+            max_slope,
+            max_time,
+        } => {
+            m.insert("shape".into(), shape(s));
+            quat(rotation, &mut m);
+            m.insert("from".into(), vec3(*from));
+            match launch {
+                Launch::Velocity(v) => {
+                    m.insert("velocity".into(), vec3(*v));
+                }
+                Launch::Target { to, apex } => {
+                    m.insert("to".into(), vec3(*to));
+                    m.insert("apex".into(), json!(apex));
+                }
+            }
+            for (field, value) in [
+                ("gravity", gravity),
+                ("max_slope", max_slope),
+                ("max_time", max_time),
+            ] {
+                if let Some(v) = value {
+                    m.insert(field.into(), json!(v));
+                }
+            }
         }
     }
     if !p.filter.ignore_tags.is_empty() {

@@ -42,13 +42,7 @@ impl View<'_> {
         if !(spacing.is_finite() && spacing > 0.0 && min.is_finite() && max.is_finite()) {
             return Err(QueryError::PositionNotFinite);
         }
-        let up = self.world.up();
-        // The level axis closest to up is the vertical; the other two span the grid.
-        let axes = [DVec3::X, DVec3::Y, DVec3::Z];
-        let vertical = (0..3)
-            .max_by(|&i, &j| up.dot(axes[i]).abs().total_cmp(&up.dot(axes[j]).abs()))
-            .expect("three axes");
-        let (i, j) = ((vertical + 1) % 3, (vertical + 2) % 3);
+        let (vertical, i, j) = level_axes(self.world.up());
         let steps = |k: usize| ((max[k] - min[k]) / spacing).floor() as usize + 1;
         let (ni, nj) = (steps(i), steps(j));
         let columns: Vec<Vec<DVec3>> = (0..ni * nj)
@@ -100,9 +94,18 @@ impl View<'_> {
     }
 }
 
+/// The level axis closest to `up` (the vertical), then the two that span the level's ground.
+pub(crate) fn level_axes(up: DVec3) -> (usize, usize, usize) {
+    let axes = [DVec3::X, DVec3::Y, DVec3::Z];
+    let vertical = (0..3)
+        .max_by(|&i, &j| up.dot(axes[i]).abs().total_cmp(&up.dot(axes[j]).abs()))
+        .expect("three axes");
+    (vertical, (vertical + 1) % 3, (vertical + 2) % 3)
+}
+
 /// True when `(u, v)` lies inside the polygon `outline` on the axes `(i, j)`: the crossing-number
 /// (even–odd) test (Haines, "Point in Polygon Strategies", Graphics Gems IV, 1994).
-fn inside(outline: &[DVec3], (u, v): (f64, f64), (i, j): (usize, usize)) -> bool {
+pub(crate) fn inside(outline: &[DVec3], (u, v): (f64, f64), (i, j): (usize, usize)) -> bool {
     let mut crossing = false;
     for k in 0..outline.len() {
         let (a, b) = (outline[k], outline[(k + 1) % outline.len()]);

@@ -1,7 +1,7 @@
 //! The query core: a [`World`] of parry3d-f64 shapes with one BVH over objects, and one file per
 //! probe kind, each adding methods to [`View`] — rays ([`View::ray_first`], [`View::ray_all`]), sweeps
 //! ([`View::sweep_first`], [`View::sweep_all`], with [`View::sweep_clearance`]), closest points
-//! ([`View::closest`]) and overlaps ([`View::overlap`]).
+//! ([`View::closest`]), overlaps ([`View::overlap`]) and thrown shapes ([`View::jump`]).
 //!
 //! Architecture invariant: the core computes in f64 and never samples; every answer is either a
 //! closed-form or converged query of parry3d-f64 or our own exact test (watertight ray–triangle).
@@ -13,6 +13,7 @@ pub(crate) mod body;
 mod clearance;
 mod closest;
 mod coverage;
+mod jump;
 mod overlap;
 mod ray;
 mod rest;
@@ -28,6 +29,8 @@ pub use body::PART_TRIANGLES;
 pub use clearance::Clearance;
 pub use closest::{ClosestHit, ClosestProbe};
 pub use coverage::{SURFACE_LIFT, Sample};
+pub(crate) use coverage::{inside as inside_outline, level_axes};
+pub use jump::{CONTACT_TOLERANCE, JumpHit, LAUNCH_SKIN, Trajectory};
 pub use overlap::{OverlapHit, TOUCH_TOLERANCE};
 pub use ray::RayHit;
 pub use rest::RestHit;
@@ -63,6 +66,9 @@ pub enum QueryError {
     /// A path whose points all coincide.
     #[error("the path has no length")]
     PathHasNoLength,
+    /// A jump's target lies above the apex it is to rise to.
+    #[error("the jump's apex must be higher than its target (\"to\")")]
+    ApexBelowTarget,
     /// The probe's shape is unusable.
     #[error("{0}")]
     Shape(#[from] crate::level::ShapeError),

@@ -7,6 +7,7 @@ mod demo_scene;
 mod expectations;
 mod fuzz_corpus;
 mod hostile_input;
+mod jumps;
 mod level_checks;
 mod lint_checks;
 mod loaders;
