@@ -51,7 +51,7 @@ pub enum Command {
 
 impl Command {
     /// Commands that have a shortcut, in the order shortcuts are tried.
-    pub const WITH_SHORTCUTS: [Command; 23] = [
+    pub const WITH_SHORTCUTS: [Command; 24] = [
         Command::Open,
         Command::SaveAs,
         Command::Save,
@@ -67,6 +67,7 @@ impl Command {
         Command::Tool(Tool::Sweep),
         Command::Tool(Tool::Closest),
         Command::Tool(Tool::Overlap),
+        Command::Tool(Tool::Jump),
         Command::FinishPath,
         Command::FrameLevel,
         Command::FrameProbe,
@@ -95,6 +96,7 @@ impl Command {
             Command::Tool(Tool::Sweep) => "New sweep",
             Command::Tool(Tool::Closest) => "New closest point",
             Command::Tool(Tool::Overlap) => "New overlap",
+            Command::Tool(Tool::Jump) => "New jump",
             Command::FinishPath => "End the path",
             Command::FrameLevel => "Frame level",
             Command::FrameProbe => "Frame probe",

@@ -190,7 +190,7 @@ impl Workbench {
         let base = self.tool.name().to_lowercase();
         let id = document::unused_id(&self.document.probes.probes, &base);
         let probe_id = id.clone();
-        let Some(probe) = new_probe(self.tool, id, &self.placed) else {
+        let Some(probe) = new_probe(self.tool, id, &self.placed, self.document.world.up()) else {
             return;
         };
         self.placed.clear();

@@ -10,9 +10,11 @@ use glam::DVec3;
 use super::badge::color32;
 use crate::view::palette;
 
+use plumbline_core::check::trajectory;
 use plumbline_core::level::ShapeSpec;
 use plumbline_core::probe::{
-    Conditions, Expect, ExpectWord, HitsMode, Probe, ProbeQuery, Range, Spots,
+    Conditions, Expect, ExpectWord, HitsMode, JUMP_TIME, Launch, MAX_WALKABLE_SLOPE, Probe,
+    ProbeQuery, Range, STANDARD_GRAVITY, Spots,
 };
 
 /// An edit made in the inspector.
@@ -278,8 +280,91 @@ fn query_fields(ui: &mut egui::Ui, query: &mut ProbeQuery) -> Option<String> {
             }
             mark(number(ui, "spacing", spacing, " m", 0.05), "spacing");
         }
+        ProbeQuery::Jump {
+            shape,
+            from,
+            launch,
+            gravity,
+            max_slope,
+            max_time,
+            ..
+        } => {
+            mark(shape_editor(ui, shape, false), "shape");
+            mark(point(ui, "from", from), "from");
+            mark(launch_editor(ui, *from, launch), "launch");
+            let defaults = [
+                ("gravity", gravity, STANDARD_GRAVITY, " m/s²", 0.01),
+                ("steepest ground", max_slope, MAX_WALKABLE_SLOPE, "°", 0.0),
+                ("follow for", max_time, JUMP_TIME, " s", 0.01),
+            ];
+            for (name, value, default, unit, least) in defaults {
+                let mut v = value.unwrap_or(default);
+                if number(ui, name, &mut v, unit, least) {
+                    *value = Some(v);
+                    mark(true, name);
+                }
+            }
+            // A slope is at most a wall.
+            if let Some(slope) = max_slope {
+                *slope = slope.min(90.0);
+            }
+        }
     }
     field
+}
+
+/// How a jump is thrown: aimed at a point with an apex, or with a velocity; switching keeps the same
+/// arc where it can (taking the level's up as +Y for the conversion).
+fn launch_editor(ui: &mut egui::Ui, from: DVec3, launch: &mut Launch) -> bool {
+    let mut changed = false;
+    let label = ui.label("thrown");
+    let aimed = matches!(launch, Launch::Target { .. });
+    ui.horizontal(|ui| {
+        let to_target = ui
+            .selectable_label(aimed, "at a point")
+            .labelled_by(label.id);
+        let to_velocity = ui.selectable_label(!aimed, "with a velocity");
+        if to_target.clicked() && !aimed {
+            if let Launch::Velocity(v) = *launch {
+                // Where it comes back to its start height, rising as this velocity does.
+                let (across, climb) = (DVec3::new(v.x, 0.0, v.z), v.y.max(0.5));
+                let flight = 2.0 * climb / STANDARD_GRAVITY;
+                *launch = Launch::Target {
+                    to: from + across * flight,
+                    apex: climb * climb / (2.0 * STANDARD_GRAVITY),
+                };
+            }
+            changed = true;
+        }
+        if to_velocity.clicked() && aimed {
+            let velocity = trajectory(
+                &ProbeQuery::Jump {
+                    shape: ShapeSpec::Sphere { radius: 1.0 },
+                    rotation: None,
+                    from,
+                    launch: *launch,
+                    gravity: None,
+                    max_slope: None,
+                    max_time: None,
+                },
+                DVec3::Y,
+            )
+            .ok()
+            .flatten()
+            .map_or(DVec3::new(3.0, 4.0, 0.0), |arc| arc.velocity);
+            *launch = Launch::Velocity(velocity);
+            changed = true;
+        }
+    });
+    ui.end_row();
+    match launch {
+        Launch::Velocity(v) => changed |= point(ui, "velocity", v),
+        Launch::Target { to, apex } => {
+            changed |= point(ui, "to", to);
+            changed |= number(ui, "apex above start", apex, " m", 0.01);
+        }
+    }
+    changed
 }
 
 /// A set of spots: each named point, and how far above tagged objects their eyes are.

@@ -113,6 +113,26 @@ const WAY_OUT: Column = Column {
     tip: "The direction that separates the shape from the object soonest",
     kind: ColumnKind::Text,
 };
+const ACROSS: Column = Column {
+    head: "m",
+    tip: "Metres from the start to the landing, across the level (not up or down)",
+    kind: ColumnKind::Number,
+};
+const SECONDS_IN_AIR: Column = Column {
+    head: "s",
+    tip: "Seconds in the air before the landing",
+    kind: ColumnKind::Number,
+};
+const SLOPE: Column = Column {
+    head: "°",
+    tip: "The slope of the ground landed on, degrees from level",
+    kind: ColumnKind::Number,
+};
+const WALKABLE: Column = Column {
+    head: "stand",
+    tip: "A dot when a character can stand on that slope (at most the probe's steepest ground)",
+    kind: ColumnKind::Flag,
+};
 const ENCLOSED: Column = Column {
     head: "enclosed",
     tip: "A dot when the shape is wholly inside the object",
@@ -122,34 +142,19 @@ const ENCLOSED: Column = Column {
 /// The columns and rows of a probe's hits (rays, sweeps, closest points and overlaps; the
 /// whole-level kinds have tables of their own).
 pub fn hit_columns(hits: &Hits) -> (Vec<Column>, Vec<Vec<Cell>>) {
-    let rows = |cells: Vec<Vec<Cell>>| -> Vec<Vec<Cell>> {
-        cells
-            .into_iter()
-            .enumerate()
-            .map(|(i, row)| {
-                let mut full = vec![plain((i + 1).to_string())];
-                full.extend(row);
-                full
-            })
-            .collect()
-    };
     match hits {
         Hits::Ray(h) => (
             vec![NUMBER, OBJECT, DISTANCE, RAY_T, TRIANGLE, NORMAL, BACK_FACE],
-            rows(
-                h.iter()
-                    .map(|x| {
-                        vec![
-                            object(&x.object, &x.material),
-                            plain(format!("{:.3}", x.distance)),
-                            plain(format!("{:.4}", x.t)),
-                            triangle(x.triangle, x.source.as_ref()),
-                            direction(x.normal.into()),
-                            tick(x.back_face),
-                        ]
-                    })
-                    .collect(),
-            ),
+            numbered(h, |x| {
+                vec![
+                    object(&x.object, &x.material),
+                    plain(format!("{:.3}", x.distance)),
+                    plain(format!("{:.4}", x.t)),
+                    triangle(x.triangle, x.source.as_ref()),
+                    direction(x.normal.into()),
+                    tick(x.back_face),
+                ]
+            }),
         ),
         Hits::Sweep(h) => {
             let timed = h.iter().any(|x| x.time.is_some());
@@ -162,57 +167,69 @@ pub fn hit_columns(hits: &Hits) -> (Vec<Column>, Vec<Vec<Cell>>) {
                     NORMAL,
                     INSIDE,
                 ],
-                rows(
-                    h.iter()
-                        .map(|x| {
-                            let time = match x.time {
-                                Some(s) if timed => format!("{s:.3}"),
-                                _ => format!("{:.4}", x.t),
-                            };
-                            vec![
-                                object(&x.object, &x.material),
-                                plain(format!("{:.3}", x.distance)),
-                                plain(time),
-                                direction(x.normal.into()),
-                                tick(x.started_inside),
-                            ]
-                        })
-                        .collect(),
-                ),
+                numbered(h, |x| {
+                    let time = match x.time {
+                        Some(s) if timed => format!("{s:.3}"),
+                        _ => format!("{:.4}", x.t),
+                    };
+                    vec![
+                        object(&x.object, &x.material),
+                        plain(format!("{:.3}", x.distance)),
+                        plain(time),
+                        direction(x.normal.into()),
+                        tick(x.started_inside),
+                    ]
+                }),
             )
         }
         Hits::Closest(h) => (
             vec![NUMBER, OBJECT, DISTANCE, NORMAL, OVERLAPPING],
-            rows(
-                h.iter()
-                    .map(|x| {
-                        vec![
-                            object(&x.object, &x.material),
-                            plain(format!("{:.3}", x.distance)),
-                            direction(x.normal.into()),
-                            tick(x.overlapping),
-                        ]
-                    })
-                    .collect(),
-            ),
+            numbered(h, |x| {
+                vec![
+                    object(&x.object, &x.material),
+                    plain(format!("{:.3}", x.distance)),
+                    direction(x.normal.into()),
+                    tick(x.overlapping),
+                ]
+            }),
         ),
         Hits::Overlap(h) => (
             vec![NUMBER, OBJECT, DEPTH, WAY_OUT, ENCLOSED],
-            rows(
-                h.iter()
-                    .map(|x| {
-                        vec![
-                            object(&x.object, &x.material),
-                            plain(format!("{:.3}", x.depth)),
-                            direction(x.direction.into()),
-                            tick(x.enclosed),
-                        ]
-                    })
-                    .collect(),
-            ),
+            numbered(h, |x| {
+                vec![
+                    object(&x.object, &x.material),
+                    plain(format!("{:.3}", x.depth)),
+                    direction(x.direction.into()),
+                    tick(x.enclosed),
+                ]
+            }),
+        ),
+        Hits::Jump(h) => (
+            vec![NUMBER, OBJECT, ACROSS, SECONDS_IN_AIR, SLOPE, WALKABLE],
+            numbered(h, |x| {
+                vec![
+                    object(&x.object, &x.material),
+                    plain(format!("{:.3}", x.distance)),
+                    plain(format!("{:.3}", x.time)),
+                    plain(format!("{:.1}", x.slope)),
+                    tick(x.walkable),
+                ]
+            }),
         ),
         Hits::Rest(_) | Hits::Sightlines(_) | Hits::Coverage(_) => (Vec::new(), Vec::new()),
     }
+}
+
+/// The rows of `hits`, each numbered from 1 before its own cells.
+fn numbered<T>(hits: &[T], cells: impl Fn(&T) -> Vec<Cell>) -> Vec<Vec<Cell>> {
+    hits.iter()
+        .enumerate()
+        .map(|(i, hit)| {
+            let mut row = vec![plain((i + 1).to_string())];
+            row.extend(cells(hit));
+            row
+        })
+        .collect()
 }
 
 /// Draws the table; clicking a row's number picks that hit (and clicking it again lets go).

@@ -17,7 +17,7 @@ use super::editor::{Edit, EditorState, probe_editor};
 use crate::view::palette::{self, SELECTED, okabe_ito};
 use plumbline_core::check::{Aspect, Hits, ProbeResult, metres};
 use plumbline_core::level::ShapeSpec;
-use plumbline_core::probe::{Expect, Probe, ProbeQuery};
+use plumbline_core::probe::{Expect, Launch, Probe, ProbeQuery};
 use plumbline_core::query::{ProbeShape, World};
 
 /// Places along the path where the clearance plot measures the distance to the level.
@@ -163,6 +163,8 @@ pub fn inspector_ui(
         Hits::Rest(_) => "Support".to_string(),
         Hits::Sightlines(pairs) => format!("Sightlines ({} pairs)", pairs.len()),
         Hits::Coverage(_) => "Coverage".to_string(),
+        Hits::Jump(h) if h.is_empty() => "Landing (none)".to_string(),
+        Hits::Jump(_) => "Landing".to_string(),
         hits => format!("Hits ({})", hits.len()),
     };
     egui::CollapsingHeader::new(heading)
@@ -290,6 +292,14 @@ fn question_words(probe: &Probe) -> String {
             spots_words(spots),
             metres(*spacing)
         ),
+        ProbeQuery::Jump { shape, launch, .. } => match launch {
+            Launch::Velocity(v) => {
+                format!("jump of a {} at {:.2} m/s", shape_words(shape), v.length())
+            }
+            Launch::Target { apex, .. } => {
+                format!("jump of a {}, rising {}", shape_words(shape), metres(*apex))
+            }
+        },
     }
 }
 

@@ -194,8 +194,11 @@ impl Workbench {
             return;
         };
         if frame_it && let Some(probe) = self.document.probes.probes.get(index) {
-            self.viewport
-                .frame_points(&probe_points(probe, self.document.results.get(index)));
+            self.viewport.frame_points(&probe_points(
+                probe,
+                self.document.results.get(index),
+                self.document.world.up(),
+            ));
         }
     }
 }

@@ -21,13 +21,7 @@ impl Workbench {
                     "Unsaved changes (a recovery copy is kept every 10 s)"
                 });
             ui.separator();
-            for tool in [
-                Tool::Select,
-                Tool::Ray,
-                Tool::Sweep,
-                Tool::Closest,
-                Tool::Overlap,
-            ] {
+            for tool in std::iter::once(Tool::Select).chain(Tool::PLACING) {
                 let selected = self.tool == tool;
                 if ui
                     .selectable_label(selected, tool.name())

@@ -6,7 +6,7 @@ use glam::{DVec2, DVec3};
 
 use crate::view::camera::OrbitCamera;
 use plumbline_core::level::ShapeSpec;
-use plumbline_core::probe::{Probe, ProbeQuery};
+use plumbline_core::probe::{Launch, Probe, ProbeQuery};
 use plumbline_core::query::Filter;
 
 /// What a click in the view does.
@@ -23,11 +23,19 @@ pub enum Tool {
     Closest,
     /// One click: where the overlap probe's shape sits.
     Overlap,
+    /// Two clicks: where the character stands, then where it should come down.
+    Jump,
 }
 
 impl Tool {
     /// Every placing tool, in toolbar order.
-    pub const PLACING: [Tool; 4] = [Tool::Ray, Tool::Sweep, Tool::Closest, Tool::Overlap];
+    pub const PLACING: [Tool; 5] = [
+        Tool::Ray,
+        Tool::Sweep,
+        Tool::Closest,
+        Tool::Overlap,
+        Tool::Jump,
+    ];
 
     /// The button's words.
     pub fn name(self) -> &'static str {
@@ -37,6 +45,7 @@ impl Tool {
             Tool::Sweep => "Sweep",
             Tool::Closest => "Closest",
             Tool::Overlap => "Overlap",
+            Tool::Jump => "Jump",
         }
     }
 
@@ -48,6 +57,7 @@ impl Tool {
             Tool::Sweep => egui::Key::P,
             Tool::Closest => egui::Key::C,
             Tool::Overlap => egui::Key::O,
+            Tool::Jump => egui::Key::J,
         }
     }
 
@@ -61,6 +71,9 @@ impl Tool {
             }
             Tool::Closest => "New closest-point probe: click where it sits (C)",
             Tool::Overlap => "New overlap probe: click where the shape stands (O)",
+            Tool::Jump => {
+                "New jump: click where the character stands, then where it should come down (J)"
+            }
         }
     }
 
@@ -68,7 +81,7 @@ impl Tool {
     pub fn clicks(self) -> Option<usize> {
         match self {
             Tool::Select => Some(0),
-            Tool::Ray => Some(2),
+            Tool::Ray | Tool::Jump => Some(2),
             Tool::Sweep => None,
             Tool::Closest | Tool::Overlap => Some(1),
         }
@@ -80,7 +93,7 @@ impl Tool {
     pub fn default_lift(self) -> f64 {
         match self {
             Tool::Ray => 1.7,
-            Tool::Sweep | Tool::Overlap => 0.91,
+            Tool::Sweep | Tool::Overlap | Tool::Jump => 0.91,
             Tool::Select | Tool::Closest => 0.0,
         }
     }
@@ -156,10 +169,15 @@ impl DragMode {
     }
 }
 
+/// How high a new jump rises above the higher of its two ends, metres: about what a game character
+/// clears (common practice, from memory: 1 to 1.5 m).
+pub const JUMP_RISE: f64 = 1.2;
+
 /// A new probe from placed points, with defaults a designer then adjusts in the inspector: a
-/// character-sized capsule (radius 0.35 m, 1.8 m tall; common practice) for sweeps and overlaps, a
-/// point with 5 m reach for closest-point probes, no expectation.
-pub fn new_probe(tool: Tool, id: String, points: &[DVec3]) -> Option<Probe> {
+/// character-sized capsule (radius 0.35 m, 1.8 m tall; common practice) for sweeps, overlaps and
+/// jumps (rising [`JUMP_RISE`] above the higher end, along the level's `up`), a point with 5 m reach
+/// for closest-point probes, no expectation.
+pub fn new_probe(tool: Tool, id: String, points: &[DVec3], up: DVec3) -> Option<Probe> {
     let capsule = ShapeSpec::Capsule {
         radius: 0.35,
         half_height: 0.55,
@@ -188,6 +206,18 @@ pub fn new_probe(tool: Tool, id: String, points: &[DVec3]) -> Option<Probe> {
             shape: capsule,
             at: *at,
             rotation: None,
+        },
+        (Tool::Jump, [from, to, ..]) => ProbeQuery::Jump {
+            shape: capsule,
+            rotation: None,
+            from: *from,
+            launch: Launch::Target {
+                to: *to,
+                apex: (((*to - *from).dot(up).max(0.0) + JUMP_RISE) * 1000.0).round() / 1000.0,
+            },
+            gravity: None,
+            max_slope: None,
+            max_time: None,
         },
         _ => return None,
     };
@@ -282,27 +312,42 @@ mod tests {
     #[test]
     fn placed_points_make_probes_of_each_kind() {
         let p = [DVec3::ZERO, DVec3::X, DVec3::new(2.0, 0.0, 1.0)];
-        assert!(new_probe(Tool::Ray, "r".into(), &p[..1]).is_none());
+        assert!(new_probe(Tool::Ray, "r".into(), &p[..1], DVec3::Y).is_none());
         assert_eq!(
-            new_probe(Tool::Ray, "r".into(), &p).unwrap().query.kind(),
+            new_probe(Tool::Ray, "r".into(), &p, DVec3::Y)
+                .unwrap()
+                .query
+                .kind(),
             ProbeKind::Ray
         );
-        let sweep = new_probe(Tool::Sweep, "s".into(), &p).unwrap();
+        let sweep = new_probe(Tool::Sweep, "s".into(), &p, DVec3::Y).unwrap();
         assert_eq!(sweep.query.points(), p.to_vec());
         assert_eq!(
-            new_probe(Tool::Closest, "c".into(), &p[..1])
+            new_probe(Tool::Closest, "c".into(), &p[..1], DVec3::Y)
                 .unwrap()
                 .query
                 .kind(),
             ProbeKind::Closest
         );
         assert_eq!(
-            new_probe(Tool::Overlap, "o".into(), &p[..1])
+            new_probe(Tool::Overlap, "o".into(), &p[..1], DVec3::Y)
                 .unwrap()
                 .query
                 .kind(),
             ProbeKind::Overlap
         );
+        // A jump up onto a ledge 2 m higher rises the default 1.2 m above the ledge.
+        let ledge = [DVec3::ZERO, DVec3::new(3.0, 2.0, 0.0)];
+        let jump = new_probe(Tool::Jump, "j".into(), &ledge, DVec3::Y).unwrap();
+        assert_eq!(jump.query.points(), ledge.to_vec());
+        let ProbeQuery::Jump {
+            launch: Launch::Target { apex, .. },
+            ..
+        } = jump.query
+        else {
+            panic!("a jump aimed at the ledge")
+        };
+        assert_eq!(apex, 2.0 + JUMP_RISE);
     }
 
     #[test]

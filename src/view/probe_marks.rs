@@ -9,9 +9,9 @@ use glam::{DQuat, DVec3};
 
 use super::marks::Mark;
 use super::palette::{BACKING, HIT, NORMAL, SELECTED, verdict_colour, verdict_mark};
-use plumbline_core::check::{Hits, ProbeResult};
+use plumbline_core::check::{Hits, ProbeResult, trajectory};
 use plumbline_core::level::ShapeSpec;
-use plumbline_core::probe::{Probe, ProbeQuery};
+use plumbline_core::probe::{JUMP_TIME, Probe, ProbeQuery};
 use plumbline_core::query::ProbeShape;
 
 /// Line width of probes, pixels.
@@ -43,9 +43,16 @@ pub struct Emphasis {
 /// Appends the marks of one probe and its answer. The selected probe's lines get a dark halo under
 /// them, so they read against any level colour; while another probe is selected, this one's colour
 /// fades towards grey.
-pub fn probe_marks(probe: &Probe, result: &ProbeResult, emphasis: Emphasis, out: &mut Vec<Mark>) {
+/// `up` is the level's up axis (jumps fall against it).
+pub fn probe_marks(
+    probe: &Probe,
+    result: &ProbeResult,
+    emphasis: Emphasis,
+    up: DVec3,
+    out: &mut Vec<Mark>,
+) {
     let first = out.len();
-    own_marks(probe, result, emphasis, out);
+    own_marks(probe, result, emphasis, up, out);
     if emphasis.selected {
         let halos: Vec<Mark> = out[first..]
             .iter()
@@ -71,7 +78,13 @@ fn faded([r, g, b]: [u8; 3]) -> [u8; 3] {
     [r, g, b].map(|c| ((u16::from(c) + grey) / 2) as u8)
 }
 
-fn own_marks(probe: &Probe, result: &ProbeResult, emphasis: Emphasis, out: &mut Vec<Mark>) {
+fn own_marks(
+    probe: &Probe,
+    result: &ProbeResult,
+    emphasis: Emphasis,
+    up: DVec3,
+    out: &mut Vec<Mark>,
+) {
     let colour = if emphasis.muted {
         faded(verdict_colour(result.verdict))
     } else {
@@ -224,8 +237,52 @@ fn own_marks(probe: &Probe, result: &ProbeResult, emphasis: Emphasis, out: &mut 
                 coverage_marks(record, out);
             }
         }
+        (
+            ProbeQuery::Jump {
+                shape, rotation, ..
+            },
+            Hits::Jump(hits),
+        ) => {
+            let landing = hits.first();
+            let arc = arc_points(&probe.query, up, landing.map(|h| h.time));
+            let ghost = ShapeGhost::new(shape, *rotation);
+            if emphasis.selected {
+                ghost.place(arc[0], colour, 50, out);
+            }
+            match landing {
+                Some(hit) => {
+                    path_lines(&arc, None, colour, width, out);
+                    ghost.place(hit.position.into(), HIT, 110, out);
+                    hit_marks(hit.point.into(), hit.normal.into(), 0, emphasis, out);
+                }
+                // Lands nowhere: the arc dashed, as far as it is drawn.
+                None => path_lines(&arc, Some((0, arc[0])), colour, width, out),
+            }
+        }
         _ => {}
     }
+}
+
+/// How many straight pieces draw a jump's arc. The answer itself is continuous; only the drawing is
+/// made of pieces.
+const ARC_PIECES: usize = 48;
+
+/// How long a jump that lands nowhere is drawn for, seconds at most (a fall of about 44 m).
+const FALL_DRAWN: f64 = 3.0;
+
+/// Points along a jump's arc from the launch to `until` (seconds; the landing), or for
+/// [`FALL_DRAWN`] seconds (at most the probe's own time) when it lands nowhere.
+fn arc_points(query: &ProbeQuery, up: DVec3, until: Option<f64>) -> Vec<DVec3> {
+    let Ok(Some(arc)) = trajectory(query, up) else {
+        return query.points();
+    };
+    let span = until.unwrap_or_else(|| match query {
+        ProbeQuery::Jump { max_time, .. } => max_time.unwrap_or(JUMP_TIME).min(FALL_DRAWN),
+        _ => FALL_DRAWN,
+    });
+    (0..=ARC_PIECES)
+        .map(|k| arc.at(span * k as f64 / ARC_PIECES as f64))
+        .collect()
 }
 
 /// Every sightline of a selected matrix: clear ones thin in the probe's colour, blocked ones solid
@@ -342,6 +399,7 @@ pub fn start_point(query: &ProbeQuery, result: Option<&ProbeResult>) -> DVec3 {
         ProbeQuery::Closest { at, .. }
         | ProbeQuery::Overlap { at, .. }
         | ProbeQuery::Rest { at, .. } => *at,
+        ProbeQuery::Jump { from, .. } => *from,
         ProbeQuery::Sightlines { .. } | ProbeQuery::Coverage { .. } => {
             let answered = result.and_then(|r| match &r.hits {
                 Hits::Sightlines(pairs) => pairs.first().map(|p| DVec3::from(p.from)),
@@ -366,14 +424,18 @@ pub fn hit_points(hits: &Hits) -> Vec<DVec3> {
         Hits::Sweep(h) => h.iter().map(|x| x.point.into()).collect(),
         Hits::Closest(h) => h.iter().map(|x| x.point.into()).collect(),
         Hits::Overlap(h) => h.iter().map(|x| x.point.into()).collect(),
+        Hits::Jump(h) => h.iter().map(|x| x.point.into()).collect(),
         Hits::Rest(_) | Hits::Sightlines(_) | Hits::Coverage(_) => Vec::new(),
     }
 }
 
-/// Every point that should be in view when the probe is framed.
-pub fn probe_points(probe: &Probe, result: Option<&ProbeResult>) -> Vec<DVec3> {
+/// Every point that should be in view when the probe is framed (`up`: the level's up axis).
+pub fn probe_points(probe: &Probe, result: Option<&ProbeResult>, up: DVec3) -> Vec<DVec3> {
     let mut points = probe.query.points();
     match result.map(|r| &r.hits) {
+        Some(Hits::Jump(hits)) => {
+            points.extend(arc_points(&probe.query, up, hits.first().map(|h| h.time)))
+        }
         Some(Hits::Closest(hits)) => points.extend(hits.iter().map(|h| DVec3::from(h.point))),
         Some(Hits::Rest(hits)) => points.extend(hits.iter().map(|h| DVec3::from(h.point))),
         Some(Hits::Sightlines(pairs)) => points.extend(
@@ -546,7 +608,7 @@ mod tests {
     fn marks_for(emphasis: Emphasis) -> Vec<Mark> {
         let (probe, result) = ray_with_one_hit();
         let mut marks = Vec::new();
-        probe_marks(&probe, &result, emphasis, &mut marks);
+        probe_marks(&probe, &result, emphasis, DVec3::Y, &mut marks);
         marks
     }
 

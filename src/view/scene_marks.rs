@@ -78,7 +78,7 @@ pub fn scene_marks(scene: &SceneMarks) -> Vec<Mark> {
                 && scene.selected_all.binary_search(&i).is_err(),
             hit: scene.hit,
         };
-        probe_marks(probe, result, emphasis, &mut marks);
+        probe_marks(probe, result, emphasis, scene.level.up, &mut marks);
         if emphasis.selected
             && let Hits::Overlap(hits) = &result.hits
         {

@@ -405,3 +405,47 @@ fn renaming_is_one_undo_step_and_taken_ids_are_refused() {
     harness.run_steps(2);
     assert_eq!(probes_of(&harness)[0].id, original);
 }
+
+#[test]
+fn a_jump_placed_with_two_clicks_is_aimed_at_the_second_and_answered() {
+    use plumbline_core::check::Hits;
+    use plumbline_core::probe::{Launch, ProbeQuery};
+
+    let (_folder, path) = demo_copy();
+    let mut harness = harness(&path);
+    harness.key_press(Key::J);
+    harness.run_steps(2);
+    let view = harness.state().viewport.last_rect;
+    click_at(&mut harness, view.center());
+    click_at(&mut harness, view.center() + egui::vec2(60.0, 20.0));
+
+    let workbench = harness.state();
+    let index = workbench
+        .document
+        .probes
+        .probes
+        .iter()
+        .position(|p| p.id == "jump")
+        .expect("a new jump");
+    assert_eq!(workbench.selection.probe, Some(index));
+    let ProbeQuery::Jump {
+        from,
+        launch: Launch::Target { to, apex },
+        ..
+    } = workbench.document.probes.probes[index].query
+    else {
+        panic!("a jump aimed at the second click")
+    };
+    // Rising the default 1.2 m above the higher of its two ends (to the millimetre).
+    let up = workbench.document.world.up();
+    let expected = (to - from).dot(up).max(0.0) + plumbline::app::tools::JUMP_RISE;
+    assert!((apex - expected).abs() <= 5e-4, "{apex} vs {expected}");
+    let result = &workbench.document.results[index];
+    let Hits::Jump(landing) = &result.hits else {
+        panic!("a jump's answer")
+    };
+    // Both ends stand on the level, so the character comes down on something.
+    assert_eq!(landing.len(), 1, "{}", result.reason);
+    assert_ne!(result.verdict, Verdict::Error, "{}", result.reason);
+    harness.get_by_label("Landing");
+}

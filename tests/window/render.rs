@@ -254,7 +254,7 @@ fn a_rays_hit_marker_lands_on_the_projected_hit_point() {
         up: DVec3::Y,
     };
     let mut marks = Vec::new();
-    probe_marks(&probe, &result, Emphasis::default(), &mut marks);
+    probe_marks(&probe, &result, Emphasis::default(), DVec3::Y, &mut marks);
     let sizing = Sizing {
         camera,
         viewport_height: HEIGHT as f64,

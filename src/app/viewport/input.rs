@@ -170,7 +170,11 @@ impl Viewport {
         let project = |p: DVec3| self.to_screen(rect, p);
         let mut best: Option<(f32, usize)> = None;
         for &i in shown.iter().take(MAX_DRAWN_PROBES) {
-            let points = probe_points(&document.probes.probes[i], document.results.get(i));
+            let points = probe_points(
+                &document.probes.probes[i],
+                document.results.get(i),
+                document.world.up(),
+            );
             let screen: Vec<Pos2> = points.iter().filter_map(|p| project(*p)).collect();
             let mut nearest = screen
                 .iter()
