@@ -94,7 +94,25 @@ impl ProbeShape {
         let primitive = spec
             .primitive()?
             .ok_or(ShapeError::NotAProbeShape(spec.type_name()))?;
-        let shape = primitive_shape(&primitive)?;
+        let shape = match primitive {
+            // A box that moves is queried as the convex polyhedron of its corners: parry's
+            // box-against-triangle and box-against-box closest points approximate (they take a
+            // support point of the separating axis, which can lie far from the nearest one), while
+            // its general convex path (GJK) is exact.
+            Primitive::Box { half_extents: h } => {
+                let corners: Vec<DVec3> = (0..8)
+                    .map(|k| {
+                        DVec3::new(
+                            if k & 1 == 0 { -h.x } else { h.x },
+                            if k & 2 == 0 { -h.y } else { h.y },
+                            if k & 4 == 0 { -h.z } else { h.z },
+                        )
+                    })
+                    .collect();
+                SharedShape::convex_hull(&corners).ok_or(ShapeError::Hull)?
+            }
+            other => primitive_shape(&other)?,
+        };
         let local = shape.compute_local_aabb();
         let bounding_radius = local.mins.abs().max(local.maxs.abs()).length();
         Ok(ProbeShape {
@@ -102,6 +120,14 @@ impl ProbeShape {
             rotation: rotation.normalize(),
             bounding_radius,
         })
+    }
+
+    /// The same shape with another turn.
+    pub fn turned(&self, rotation: DQuat) -> ProbeShape {
+        ProbeShape {
+            rotation: rotation.normalize(),
+            ..self.clone()
+        }
     }
 
     /// The shape's surface with its turn applied, centred on the origin (for drawing).

@@ -544,3 +544,32 @@ fn capsule_meets_an_edge_exactly() {
         hit.normal
     );
 }
+
+#[test]
+fn a_turned_box_is_exactly_as_far_from_a_wall_as_its_nearest_corner() {
+    // Elementary geometry: a 4 × 0.2 × 0.2 m box turned by θ about the vertical has its nearest
+    // corner (2, ±0.1, −0.1) at z = −(2 sin θ + 0.1 cos θ); a wall whose face is the plane z = −1.5
+    // (10 m wide, so its own corners are far off) is 1.5 − (2 sin θ + 0.1 cos θ) away. A support
+    // point of the separating axis (a far corner of one of the wall's big triangles) once gave up to
+    // 0.6 m more.
+    let (v, t) = box_mesh(DVec3::new(0.0, 0.0, -2.25), DVec3::new(5.0, 1.0, 0.75));
+    let world = LevelBuilder::new().mesh("wall", v, t).world();
+    let spec = ShapeSpec::Box {
+        half_extents: [2.0, 0.1, 0.1],
+    };
+    for degrees in [0.0, 10.0, 30.0, 44.0] {
+        let theta = f64::to_radians(degrees);
+        let shape = ProbeShape::new(&spec, DQuat::from_rotation_y(theta)).unwrap();
+        let hit = world
+            .everything()
+            .closest(ClosestProbe::Shape(&shape), DVec3::ZERO, 8.0)
+            .unwrap()
+            .expect("the wall is within reach");
+        let expected = 1.5 - (2.0 * theta.sin() + 0.1 * theta.cos());
+        assert!(
+            (hit.distance - expected).abs() < 1e-9,
+            "{degrees}°: {} vs {expected}",
+            hit.distance
+        );
+    }
+}
