@@ -62,6 +62,7 @@ fn live(c: &mut Criterion) {
                     hits: None,
                     duration: None,
                     clearance: Some(true),
+                    turns: None,
                 },
             )
         })

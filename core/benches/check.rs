@@ -49,6 +49,7 @@ fn probes() -> Vec<Probe> {
                     hits: None,
                     duration: None,
                     clearance: None,
+                    turns: None,
                 }
             } else if pick < 0.8 {
                 ProbeQuery::Sweep {
@@ -58,6 +59,7 @@ fn probes() -> Vec<Probe> {
                     hits: None,
                     duration: None,
                     clearance: None,
+                    turns: None,
                 }
             } else if pick < 0.9 {
                 ProbeQuery::Closest {

@@ -11,7 +11,9 @@ use super::{answer_level, jump};
 use crate::json_text::{round9, round9_vec};
 use crate::level::{FacePlace, ShapeSpec};
 use crate::probe::{HitsMode, Probe, ProbeQuery};
-use crate::query::{ClosestProbe, MaterialId, ObjectId, ProbeShape, QueryError, View, World};
+use crate::query::{
+    ClosestProbe, MaterialId, ObjectId, ProbeShape, QueryError, TurningPath, View, World,
+};
 
 /// Answers one probe and judges it against its expectation.
 pub fn answer_probe(world: &World, probe: &Probe) -> ProbeResult {
@@ -90,13 +92,28 @@ fn answer(world: &World, probe: &Probe) -> Result<Answer, QueryError> {
             path,
             hits,
             duration,
+            turns,
             ..
         } => {
             let shape = probe_shape(shape, *rotation)?;
-            let found = if *hits == Some(HitsMode::All) {
-                view.sweep_all(&shape, path)?
-            } else {
-                view.sweep_first(&shape, path)?.into_iter().collect()
+            let all = *hits == Some(HitsMode::All);
+            let found = match turns {
+                Some(turns) => {
+                    let orientations = turns.orientations(world.up());
+                    let turning = TurningPath {
+                        points: path,
+                        turns: &orientations,
+                    };
+                    if all {
+                        view.sweep_turning_all(&shape, turning)?
+                    } else {
+                        view.sweep_turning_first(&shape, turning)?
+                            .into_iter()
+                            .collect()
+                    }
+                }
+                None if all => view.sweep_all(&shape, path)?,
+                None => view.sweep_first(&shape, path)?.into_iter().collect(),
             };
             let records = found
                 .iter()
@@ -108,6 +125,7 @@ fn answer(world: &World, probe: &Probe) -> Result<Answer, QueryError> {
                     segment: h.segment,
                     time: duration.map(|d| round9(h.t * d)),
                     position: round9_vec(h.position),
+                    rotation: turns.is_some().then(|| h.rotation.to_array().map(round9)),
                     point: round9_vec(h.point),
                     normal: round9_vec(h.normal),
                     started_inside: h.started_inside,

@@ -148,6 +148,9 @@ pub struct SweepHitRecord {
     pub time: Option<f64>,
     /// Shape centre at impact.
     pub position: [f64; 3],
+    /// The shape's turn at impact `[x, y, z, w]`, for sweeps that turn along their path.
+    #[serde(default)]
+    pub rotation: Option<[f64; 4]>,
     /// Contact point on the object.
     pub point: [f64; 3],
     /// Unit normal from the object towards the shape.
@@ -446,6 +449,12 @@ mod layout {
                 f.push(("time", Json::float(time)));
             }
             f.push(("position", Json::vec3(self.position)));
+            if let Some(q) = self.rotation {
+                f.push((
+                    "rotation",
+                    Json::Arr(q.iter().map(|c| Json::float(*c)).collect()),
+                ));
+            }
             f.push(("point", Json::vec3(self.point)));
             f.push(("normal", Json::vec3(self.normal)));
             if self.started_inside {

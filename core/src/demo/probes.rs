@@ -8,7 +8,7 @@ use super::quay::{bollards, crates, drums, ground_height};
 use crate::level::ShapeSpec;
 use crate::probe::{
     Conditions, Expect, ExpectWord, HitsMode, Launch, Probe, ProbeQuery, ProbeSet, Range, Region,
-    Spots,
+    Spots, Turns,
 };
 use crate::query::Filter;
 
@@ -68,6 +68,7 @@ fn walk(path: Vec<DVec3>) -> ProbeQuery {
         hits: None,
         duration: None,
         clearance: None,
+        turns: None,
     }
 }
 
@@ -220,6 +221,7 @@ pub fn probe_set(level: &str) -> ProbeSet {
                 hits: None,
                 duration: Some(12.0),
                 clearance: Some(true),
+                turns: None,
             },
             when(Conditions {
                 blocked: Some(false),
@@ -242,6 +244,7 @@ pub fn probe_set(level: &str) -> ProbeSet {
                 hits: None,
                 duration: Some(20.0),
                 clearance: None,
+                turns: None,
             },
             when(Conditions {
                 min_clearance: Some(0.5),
@@ -258,6 +261,7 @@ pub fn probe_set(level: &str) -> ProbeSet {
                 hits: Some(HitsMode::All),
                 duration: Some(8.0),
                 clearance: None,
+                turns: None,
             },
             None,
         ),
@@ -278,6 +282,7 @@ pub fn probe_set(level: &str) -> ProbeSet {
                     hits: None,
                     duration: None,
                     clearance: None,
+                    turns: None,
                 },
                 when(Conditions {
                     min_clearance: Some(0.3),
@@ -294,6 +299,27 @@ pub fn probe_set(level: &str) -> ProbeSet {
                 v(door_x, standing(0.0), wz0 - 7.0),
                 v(door_x, standing(0.0), wz0 + 7.0),
             ]),
+            clear(),
+        ),
+        // A 4.2 m beam is wider than the 4 m door across, so it is turned end-on in the yard first.
+        probe(
+            "beam-turned-through-vehicle-door",
+            "A 4.2 m beam carried across fits through the vehicle door once turned end-on",
+            ProbeQuery::Sweep {
+                shape: ShapeSpec::Box {
+                    half_extents: [2.1, 0.15, 0.15],
+                },
+                rotation: None,
+                path: vec![
+                    v(door_x, 1.2, wz0 - 9.0),
+                    v(door_x, 1.2, wz0 - 3.0),
+                    v(door_x, 1.2, wz0 + 7.0),
+                ],
+                hits: None,
+                duration: None,
+                clearance: None,
+                turns: Some(Turns::Yaw(vec![0.0, 90.0, 90.0])),
+            },
             clear(),
         ),
         probe(
@@ -328,6 +354,7 @@ pub fn probe_set(level: &str) -> ProbeSet {
                     hits: None,
                     duration: Some(4.0),
                     clearance: None,
+                    turns: None,
                 },
                 when(Conditions {
                     blocked: Some(false),

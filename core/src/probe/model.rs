@@ -132,6 +132,8 @@ pub enum ProbeQuery {
         duration: Option<f64>,
         /// Whether to report the least clearance over the path.
         clearance: Option<bool>,
+        /// How the shape turns along the path (instead of one constant turn).
+        turns: Option<Turns>,
     },
     /// The nearest object to a point or shape.
     Closest {
@@ -195,6 +197,42 @@ pub enum ProbeQuery {
         /// How long to follow it, seconds (default [`JUMP_TIME`]).
         max_time: Option<f64>,
     },
+}
+
+/// How a sweep's shape turns along its path: an orientation at each path point, reached from the
+/// previous one by spherical linear interpolation.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Turns {
+    /// Unit quaternions `[x, y, z, w]`, one per path point (`"turns"` in files).
+    Quaternions(Vec<DQuat>),
+    /// Degrees about the level's up axis, one per path point (`"yaw"` in files).
+    Yaw(Vec<f64>),
+}
+
+impl Turns {
+    /// The orientation at each path point, on a level whose up axis is `up`.
+    pub fn orientations(&self, up: DVec3) -> Vec<DQuat> {
+        match self {
+            Turns::Quaternions(q) => q.clone(),
+            Turns::Yaw(degrees) => degrees
+                .iter()
+                .map(|d| DQuat::from_axis_angle(up, d.to_radians()))
+                .collect(),
+        }
+    }
+
+    /// How many path points it gives an orientation for.
+    pub fn len(&self) -> usize {
+        match self {
+            Turns::Quaternions(q) => q.len(),
+            Turns::Yaw(d) => d.len(),
+        }
+    }
+
+    /// True when it gives none.
+    pub fn is_empty(&self) -> bool {
+        self.len() == 0
+    }
 }
 
 /// How a jump is thrown: a velocity, or a target to come down through after rising to an apex.

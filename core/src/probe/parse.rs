@@ -10,7 +10,7 @@ use serde_json::value::RawValue;
 
 use super::model::{
     Conditions, Expect, ExpectWord, HitsMode, Launch, Probe, ProbeKind, ProbeQuery, Region, Spot,
-    Spots,
+    Spots, Turns,
 };
 use crate::error::InputError;
 use crate::input::{MAX_NAME_CHARS, check_name, number, one_line};
@@ -40,6 +40,8 @@ struct RawProbe<'a> {
     region: Option<Region>,
     spacing: Option<f64>,
     velocity: Option<[f64; 3]>,
+    turns: Option<Vec<[f64; 4]>>,
+    yaw: Option<Vec<f64>>,
     apex: Option<f64>,
     gravity: Option<f64>,
     max_slope: Option<f64>,
@@ -114,7 +116,16 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
     })?;
     let allowed: &[&str] = match kind {
         ProbeKind::Ray => &["from", "to", "hits"],
-        ProbeKind::Sweep => &["shape", "rotation", "path", "hits", "duration", "clearance"],
+        ProbeKind::Sweep => &[
+            "shape",
+            "rotation",
+            "path",
+            "hits",
+            "duration",
+            "clearance",
+            "turns",
+            "yaw",
+        ],
         ProbeKind::Closest => &["shape", "at", "rotation", "max_distance"],
         ProbeKind::Overlap => &["shape", "at", "rotation"],
         ProbeKind::Rest => &["shape", "at", "rotation", "search"],
@@ -150,6 +161,8 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
         ("region", raw.region.is_some()),
         ("spacing", raw.spacing.is_some()),
         ("velocity", raw.velocity.is_some()),
+        ("turns", raw.turns.is_some()),
+        ("yaw", raw.yaw.is_some()),
         ("apex", raw.apex.is_some()),
         ("gravity", raw.gravity.is_some()),
         ("max_slope", raw.max_slope.is_some()),
@@ -198,8 +211,20 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
             if path.len() < 2 {
                 return Err("a sweep path needs at least two points".into());
             }
-            if path.windows(2).all(|w| w[0] == w[1]) {
+            let turns = parse_turns(raw, path.len())?;
+            // A turning shape may turn in place; otherwise the path must go somewhere.
+            let turns_somewhere = turns.as_ref().is_some_and(|t| match t {
+                Turns::Quaternions(q) => q.windows(2).any(|w| w[0].angle_between(w[1]) > 0.0),
+                Turns::Yaw(d) => d.windows(2).any(|w| w[0] != w[1]),
+            });
+            if path.windows(2).all(|w| w[0] == w[1]) && !turns_somewhere {
                 return Err("the sweep path has no length".into());
+            }
+            if turns.is_some() && raw.clearance == Some(true) {
+                return Err(
+                    "clearance is measured for sweeps that keep one turn, not with turns or yaw"
+                        .into(),
+                );
             }
             if let Some(d) = raw.duration
                 && !(d.is_finite() && d > 0.0)
@@ -216,6 +241,7 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
                 hits: raw.hits,
                 duration: raw.duration,
                 clearance: raw.clearance,
+                turns,
             }
         }
         ProbeKind::Closest => {
@@ -312,6 +338,42 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
                 .transpose()?,
         },
     })
+}
+
+/// A sweep's turns along its path: `turns` (quaternions) or `yaw` (degrees), one per path point, and
+/// never with a constant `rotation`.
+fn parse_turns(raw: &RawProbe, points: usize) -> Result<Option<Turns>, String> {
+    let turns = match (&raw.turns, &raw.yaw) {
+        (None, None) => return Ok(None),
+        (Some(_), Some(_)) => return Err("a sweep takes \"turns\" or \"yaw\", not both".into()),
+        (Some(q), None) => Turns::Quaternions(
+            q.iter()
+                .map(|q| {
+                    unit_quaternion(*q)
+                        .map_err(|_| "turns must be unit quaternions [x, y, z, w]".to_string())
+                })
+                .collect::<Result<_, _>>()?,
+        ),
+        (None, Some(d)) => {
+            if let Some(bad) = d.iter().find(|d| !(d.is_finite() && d.abs() <= 36_000.0)) {
+                return Err(format!(
+                    "yaw must be finite degrees (within ±36000), not {}",
+                    number(*bad)
+                ));
+            }
+            Turns::Yaw(d.clone())
+        }
+    };
+    if raw.rotation.is_some() {
+        return Err("a sweep with turns or yaw takes no \"rotation\"".into());
+    }
+    if turns.len() != points {
+        return Err(format!(
+            "turns or yaw give one orientation per path point ({points} points, {} given)",
+            turns.len()
+        ));
+    }
+    Ok(Some(turns))
 }
 
 /// A jump's launch: `velocity`, or `to` with `apex` (one or the other).
@@ -547,6 +609,12 @@ fn check_conditions(c: &Conditions, query: &ProbeQuery) -> Result<(), String> {
             return Err(format!(
                 "expect.min_clearance applies to sweeps, not to a {kind} probe"
             ));
+        }
+        if matches!(query, ProbeQuery::Sweep { turns: Some(_), .. }) {
+            return Err(
+                "expect.min_clearance applies to sweeps that keep one turn, not with turns or yaw"
+                    .into(),
+            );
         }
         metres("min_clearance", v)?;
     }

@@ -242,6 +242,7 @@ mod tests {
             hits: None,
             duration: None,
             clearance: None,
+            turns: None,
         };
         assert!(validate_probe(&probe).is_err(), "a path needs two points");
     }

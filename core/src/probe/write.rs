@@ -4,7 +4,7 @@
 use glam::{DQuat, DVec3};
 use serde_json::{Map, Value, json};
 
-use super::model::{Launch, Probe, ProbeQuery, ProbeSet, Spots};
+use super::model::{Launch, Probe, ProbeQuery, ProbeSet, Spots, Turns};
 use crate::level::ShapeSpec;
 
 /// Serialises a probe set in the file format, stable and ready to save.
@@ -73,6 +73,7 @@ fn probe_to_value(p: &Probe) -> Value {
             hits,
             duration,
             clearance,
+            turns,
         } => {
             m.insert("shape".into(), shape(s));
             quat(rotation, &mut m);
@@ -88,6 +89,18 @@ fn probe_to_value(p: &Probe) -> Value {
             }
             if let Some(c) = clearance {
                 m.insert("clearance".into(), json!(c));
+            }
+            match turns {
+                Some(Turns::Quaternions(q)) => {
+                    m.insert(
+                        "turns".into(),
+                        json!(q.iter().map(|q| q.to_array()).collect::<Vec<_>>()),
+                    );
+                }
+                Some(Turns::Yaw(d)) => {
+                    m.insert("yaw".into(), json!(d));
+                }
+                None => {}
             }
         }
         ProbeQuery::Closest {

@@ -20,6 +20,7 @@ mod rest;
 mod shapes;
 mod sightlines;
 mod sweep;
+mod turning;
 mod watertight;
 mod world;
 
@@ -39,6 +40,7 @@ pub use shapes::{
 };
 pub use sightlines::{END_GAP, Sightline, SpotAt};
 pub use sweep::SweepHit;
+pub use turning::TurningPath;
 pub use watertight::ShearedRay;
 pub use world::{BuildCause, BuildError, Filter, MATERIAL_TAG, MaterialId, ObjectId, View, World};
 
@@ -69,6 +71,11 @@ pub enum QueryError {
     /// A jump's target lies above the apex it is to rise to.
     #[error("the jump's apex must be higher than its target (\"to\")")]
     ApexBelowTarget,
+    /// A continuous search that took too many steps (a contact approached at a grazing angle).
+    #[error(
+        "the search for the first contact did not settle (a grazing contact); try a coarser path"
+    )]
+    NotConverged,
     /// The probe's shape is unusable.
     #[error("{0}")]
     Shape(#[from] crate::level::ShapeError),

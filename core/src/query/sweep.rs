@@ -1,7 +1,7 @@
 //! Sweep probes: a convex shape with a fixed turn moved along a polyline, answered continuously
 //! (exact time of impact per segment, never sampled).
 
-use glam::DVec3;
+use glam::{DQuat, DVec3};
 use parry3d_f64::bounding_volume::{Aabb, BoundingVolume};
 use parry3d_f64::math::Pose;
 use parry3d_f64::query::details::closest_points_segment_segment_with_locations_nD;
@@ -29,6 +29,8 @@ pub struct SweepHit {
     pub segment: usize,
     /// The shape's centre at impact.
     pub position: DVec3,
+    /// The shape's turn at impact (its fixed turn, unless the path turns it).
+    pub rotation: DQuat,
     /// The contact point on the object.
     pub point: DVec3,
     /// Unit normal from the object towards the shape.
@@ -210,6 +212,7 @@ impl View<'_> {
             t: geometry.fraction(distance),
             segment: impact.segment,
             position: a + dir * toi,
+            rotation: shape.rotation,
             point,
             normal,
             started_inside: impact.started_inside,

@@ -17,3 +17,4 @@ mod probe_robustness;
 mod query_properties;
 mod query_references;
 mod reference_library;
+mod turning;
