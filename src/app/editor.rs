@@ -14,7 +14,7 @@ use plumbline_core::check::trajectory;
 use plumbline_core::level::ShapeSpec;
 use plumbline_core::probe::{
     Conditions, Expect, ExpectWord, HitsMode, JUMP_TIME, Launch, MAX_WALKABLE_SLOPE, Probe,
-    ProbeQuery, Range, STANDARD_GRAVITY, Spots,
+    ProbeQuery, Range, STANDARD_GRAVITY, Spots, Turns,
 };
 
 /// An edit made in the inspector.
@@ -176,11 +176,18 @@ fn query_fields(ui: &mut egui::Ui, query: &mut ProbeQuery) -> Option<String> {
             hits,
             duration,
             clearance,
-            ..
+            turns,
+            rotation,
         } => {
             mark(shape_editor(ui, shape, false), "shape");
             for (i, p) in path.iter_mut().enumerate() {
                 mark(point(ui, &format!("point {i}"), p), &format!("point {i}"));
+                if let Some(Turns::Yaw(yaw)) = turns {
+                    mark(
+                        number(ui, &format!("yaw {i}"), &mut yaw[i], "°", -36_000.0),
+                        &format!("yaw {i}"),
+                    );
+                }
             }
             ui.label("");
             ui.horizontal(|ui| {
@@ -192,6 +199,11 @@ fn query_fields(ui: &mut egui::Ui, query: &mut ProbeQuery) -> Option<String> {
                     let n = path.len();
                     let step = (path[n - 1] - path[n - 2]).normalize_or(DVec3::X);
                     path.push(path[n - 1] + step);
+                    match turns {
+                        Some(Turns::Yaw(yaw)) => yaw.push(yaw[n - 1]),
+                        Some(Turns::Quaternions(q)) => q.push(q[n - 1]),
+                        None => {}
+                    }
                     mark(true, "path");
                 }
                 if ui
@@ -199,10 +211,19 @@ fn query_fields(ui: &mut egui::Ui, query: &mut ProbeQuery) -> Option<String> {
                     .clicked()
                 {
                     path.pop();
+                    match turns {
+                        Some(Turns::Yaw(yaw)) => yaw.truncate(path.len()),
+                        Some(Turns::Quaternions(q)) => q.truncate(path.len()),
+                        None => {}
+                    }
                     mark(true, "path");
                 }
             });
             ui.end_row();
+            mark(
+                turns_editor(ui, turns, rotation, clearance, path.len()),
+                "turns",
+            );
             mark(hits_mode(ui, hits), "hits");
             let label = ui.label("duration");
             ui.horizontal(|ui| {
@@ -227,7 +248,11 @@ fn query_fields(ui: &mut egui::Ui, query: &mut ProbeQuery) -> Option<String> {
             let label = ui.label("clearance");
             let mut wanted = clearance.unwrap_or(false);
             if ui
-                .checkbox(&mut wanted, "report the least clearance")
+                .add_enabled(
+                    turns.is_none(),
+                    egui::Checkbox::new(&mut wanted, "report the least clearance"),
+                )
+                .on_disabled_hover_text("Measured for shapes that keep one turn")
                 .labelled_by(label.id)
                 .changed()
             {
@@ -311,6 +336,41 @@ fn query_fields(ui: &mut egui::Ui, query: &mut ProbeQuery) -> Option<String> {
         }
     }
     field
+}
+
+/// Whether the shape turns along the path, as a yaw per path point about the level's up axis
+/// (switching it on starts every point at 0°, and drops the one constant turn and the clearance,
+/// which are for shapes that keep one turn); quaternion turns written in the file are shown, not
+/// edited.
+fn turns_editor(
+    ui: &mut egui::Ui,
+    turns: &mut Option<Turns>,
+    rotation: &mut Option<glam::DQuat>,
+    clearance: &mut Option<bool>,
+    points: usize,
+) -> bool {
+    let label = ui.label("turns");
+    let mut changed = false;
+    if let Some(Turns::Quaternions(_)) = turns {
+        ui.label("a quaternion per point, as the file gives them")
+            .labelled_by(label.id);
+    } else {
+        let mut turning = turns.is_some();
+        if ui
+            .checkbox(&mut turning, "a yaw per point (about up)")
+            .labelled_by(label.id)
+            .changed()
+        {
+            *turns = turning.then(|| Turns::Yaw(vec![0.0; points]));
+            if turning {
+                *rotation = None;
+                *clearance = None;
+            }
+            changed = true;
+        }
+    }
+    ui.end_row();
+    changed
 }
 
 /// How a jump is thrown: aimed at a point with an apex, or with a velocity; switching keeps the same

@@ -44,10 +44,12 @@ impl ClearancePlot {
         result: &ProbeResult,
         index: usize,
     ) -> Option<ClearancePlot> {
+        // Clearance is measured for shapes that keep one turn.
         let ProbeQuery::Sweep {
             shape,
             rotation,
             path,
+            turns: None,
             ..
         } = &probe.query
         else {
@@ -279,9 +281,12 @@ fn bulk_ui(
 fn question_words(probe: &Probe) -> String {
     match &probe.query {
         ProbeQuery::Ray { from, to, .. } => format!("ray, {}", metres(from.distance(*to))),
-        ProbeQuery::Sweep { shape, path, .. } => {
+        ProbeQuery::Sweep {
+            shape, path, turns, ..
+        } => {
             let length: f64 = path.windows(2).map(|w| w[0].distance(w[1])).sum();
-            format!("{} swept {}", shape_words(shape), metres(length))
+            let turning = if turns.is_some() { ", turning" } else { "" };
+            format!("{} swept {}{turning}", shape_words(shape), metres(length))
         }
         ProbeQuery::Closest { shape, .. } => format!("closest to a {}", shape_words(shape)),
         ProbeQuery::Overlap { shape, .. } => format!("overlap of a {}", shape_words(shape)),

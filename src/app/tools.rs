@@ -195,6 +195,7 @@ pub fn new_probe(tool: Tool, id: String, points: &[DVec3], up: DVec3) -> Option<
             hits: None,
             duration: None,
             clearance: Some(true),
+            turns: None,
         },
         (Tool::Closest, [at, ..]) => ProbeQuery::Closest {
             shape: ShapeSpec::Point,

@@ -121,20 +121,34 @@ fn own_marks(
                 shape,
                 rotation,
                 path,
+                turns,
                 ..
             },
             Hits::Sweep(hits),
         ) => {
             let first = hits.first().map(|h| (h.segment, DVec3::from(h.position)));
             path_lines(path, first, colour, width, out);
-            let ghost = ShapeGhost::new(shape, *rotation);
+            // A turning shape is drawn with its turn at each place; otherwise with its one turn.
+            let orientations = turns.as_ref().map(|t| t.orientations(up));
+            let turn_at = |k: usize| {
+                orientations
+                    .as_ref()
+                    .and_then(|o| o.get(k).copied())
+                    .or(*rotation)
+            };
             if emphasis.selected {
-                ghost.place(path[0], colour, 50, out);
-                ghost.place(path[path.len() - 1], colour, 50, out);
+                // At the ends, and at every point where a turning shape's turn is given.
+                let last = path.len() - 1;
+                for (k, at) in path.iter().enumerate() {
+                    if k == 0 || k == last || orientations.is_some() {
+                        ShapeGhost::new(shape, turn_at(k)).place(*at, colour, 50, out);
+                    }
+                }
             }
             for (i, hit) in hits.iter().enumerate() {
                 if i == 0 || emphasis.selected {
-                    ghost.place(hit.position.into(), HIT, 110, out);
+                    let turn = hit.rotation.map(DQuat::from_array).or(*rotation);
+                    ShapeGhost::new(shape, turn).place(hit.position.into(), HIT, 110, out);
                 }
                 hit_marks(hit.point.into(), hit.normal.into(), i, emphasis, out);
             }

@@ -449,3 +449,31 @@ fn a_jump_placed_with_two_clicks_is_aimed_at_the_second_and_answered() {
     assert_ne!(result.verdict, Verdict::Error, "{}", result.reason);
     harness.get_by_label("Landing");
 }
+
+#[test]
+fn a_turning_sweep_shows_a_yaw_per_point_and_switching_turns_off_answers_again() {
+    use plumbline_core::probe::ProbeQuery;
+
+    let (_folder, path) = demo_copy();
+    let mut harness = harness(&path);
+    let index = select_by_id(&mut harness, "beam-turned-through-vehicle-door");
+    harness.run_steps(2);
+    harness.get_by_label("Edit the question").click();
+    harness.run_steps(2);
+    for k in 0..3 {
+        harness.get_by_label(&format!("yaw {k}"));
+    }
+    assert_eq!(
+        harness.state().document.results[index].verdict,
+        Verdict::Pass
+    );
+    // Held across the whole way, the beam meets the door's jambs.
+    harness.get_by_label("turns").click();
+    harness.run_steps(3);
+    let workbench = harness.state();
+    assert!(matches!(
+        workbench.document.probes.probes[index].query,
+        ProbeQuery::Sweep { turns: None, .. }
+    ));
+    assert_eq!(workbench.document.results[index].verdict, Verdict::Fail);
+}
