@@ -116,7 +116,8 @@ fn bare_queries(world: &World, probes: &[Probe]) -> usize {
             ProbeQuery::Rest { .. }
             | ProbeQuery::Sightlines { .. }
             | ProbeQuery::Coverage { .. }
-            | ProbeQuery::Jump { .. } => {
+            | ProbeQuery::Jump { .. }
+            | ProbeQuery::Walk { .. } => {
                 unreachable!("the generated probes are single queries")
             }
         };

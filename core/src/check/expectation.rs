@@ -11,7 +11,8 @@ const SLACK: f64 = super::compare::DEFAULT_TOLERANCE;
 /// rests, the nearest object (the support) and its distance (gap) ± 1 cm; for sweeps that report
 /// clearance, the clearance rounded down to the centimetre; for sightlines, which pairs see each
 /// other and which do not; for coverage, at least the share seen now, rounded down to a tenth of a
-/// percent; for jumps, the object landed on and whether it is walkable. `None` when the probe could
+/// percent; for jumps, the object landed on and whether it is walkable; for walks, whether it
+/// reaches the end. `None` when the probe could
 /// not be answered.
 pub fn expectation_from(result: &ProbeResult) -> Option<Expect> {
     if result.verdict == Verdict::Error {
@@ -39,6 +40,10 @@ pub fn expectation_from(result: &ProbeResult) -> Option<Expect> {
         (Hits::Jump(h), Some((object, _))) => Expect::Conditions(Conditions {
             first_object: Some(object),
             walkable: h.first().map(|x| x.walkable),
+            ..Conditions::default()
+        }),
+        (Hits::Walk(h), _) => Expect::Conditions(Conditions {
+            reaches: h.first().map(|w| w.reached),
             ..Conditions::default()
         }),
         (Hits::Sightlines(pairs), _) => {

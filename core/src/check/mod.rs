@@ -15,6 +15,7 @@ mod results_file;
 mod rules;
 mod run;
 mod verdict;
+mod walk;
 
 pub use answer::answer_probe;
 pub use answer_level::spot_list;
@@ -33,3 +34,4 @@ pub use results_file::{
 pub use rules::expand_rules;
 pub use run::{Runner, run_probes};
 pub use verdict::metres;
+pub use walk::WalkRecord;

@@ -6,6 +6,7 @@ use serde::{Deserialize, Serialize};
 
 pub use super::jump::JumpRecord;
 pub use super::level_records::{CoverageRecord, PairRecord, RestRecord};
+pub use super::walk::WalkRecord;
 use crate::json_text::Json;
 use crate::probe::ProbeKind;
 
@@ -250,6 +251,8 @@ pub enum Hits {
     Coverage(Vec<CoverageRecord>),
     /// At most one landing.
     Jump(Vec<JumpRecord>),
+    /// One record of where the walk went.
+    Walk(Vec<WalkRecord>),
 }
 
 impl Hits {
@@ -264,6 +267,7 @@ impl Hits {
             Hits::Sightlines(h) => h.iter().filter(|p| !p.sees).count(),
             Hits::Coverage(h) => h.iter().map(|c| c.points - c.seen).sum(),
             Hits::Jump(h) => h.len(),
+            Hits::Walk(h) => h.iter().filter(|w| !w.reached).count(),
         }
     }
 
@@ -291,6 +295,13 @@ impl Hits {
             }),
             Hits::Coverage(_) => None,
             Hits::Jump(h) => h.first().map(|x| (&*x.object, &x.tags[..], x.distance)),
+            Hits::Walk(h) => h.first().filter(|w| !w.reached).map(|w| {
+                (
+                    w.object.as_deref().unwrap_or(""),
+                    w.tags.as_deref().unwrap_or(&[]),
+                    w.length,
+                )
+            }),
         }
     }
 
@@ -305,6 +316,7 @@ impl Hits {
             ProbeKind::Sightlines => Hits::Sightlines(Vec::new()),
             ProbeKind::Coverage => Hits::Coverage(Vec::new()),
             ProbeKind::Jump => Hits::Jump(Vec::new()),
+            ProbeKind::Walk => Hits::Walk(Vec::new()),
         }
     }
 }
@@ -527,6 +539,7 @@ mod layout {
                 Hits::Sightlines(h) => h.iter().map(PairRecord::to_json).collect(),
                 Hits::Coverage(h) => h.iter().map(CoverageRecord::to_json).collect(),
                 Hits::Jump(h) => h.iter().map(JumpRecord::to_json).collect(),
+                Hits::Walk(h) => h.iter().map(WalkRecord::to_json).collect(),
             };
             let mut f = vec![
                 ("id", Json::Str(&self.id)),

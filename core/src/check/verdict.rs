@@ -79,6 +79,9 @@ fn first_unmet(
     if let Hits::Jump(h) = hits {
         return super::jump::first_unmet(c, h, up);
     }
+    if let Hits::Walk(h) = hits {
+        return super::walk::first_unmet(c, h);
+    }
     super::level_verdict::first_unmet(c, hits)
 }
 
@@ -91,6 +94,7 @@ fn first_word(hits: &Hits) -> &'static str {
         Hits::Sightlines(_) => "the first blocked sightline's blocker to be",
         Hits::Coverage(_) => "a blocker to be",
         Hits::Jump(_) => "the landing to be on",
+        Hits::Walk(_) => "the walk to be stopped by",
     }
 }
 
@@ -131,6 +135,7 @@ fn describe(hits: &Hits, clearance: Option<&ClearanceRecord>) -> String {
             return super::level_verdict::describe(hits);
         }
         Hits::Jump(h) => return super::jump::describe(h),
+        Hits::Walk(h) => return super::walk::describe(h),
     };
     match (found, clearance) {
         (Some(text), _) => text,

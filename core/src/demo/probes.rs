@@ -384,6 +384,39 @@ pub fn probe_set(level: &str) -> ProbeSet {
             ]),
             clear(),
         ),
+        // Walked as a character moves: up the twenty 0.2 m steps and along the catwalk.
+        probe(
+            "character-walks-to-catwalk",
+            "A character walks up the stairs and along the catwalk",
+            ProbeQuery::Walk {
+                shape: character(),
+                path: vec![
+                    v(40.7, standing(0.0), -2.0),
+                    v(40.7, standing(CATWALK_Y), 15.0),
+                ],
+                max_step: None,
+                max_slope: None,
+            },
+            when(Conditions {
+                reaches: Some(true),
+                ..Conditions::default()
+            }),
+        ),
+        // Crate 1 is 0.6 m tall: no character steps onto it.
+        probe(
+            "crate-1-too-high-to-step-on",
+            "A character cannot step up onto crate 1",
+            ProbeQuery::Walk {
+                shape: character(),
+                path: vec![v(4.0, standing(0.0), -13.0), v(4.0, standing(0.0), -7.0)],
+                max_step: None,
+                max_slope: None,
+            },
+            when(Conditions {
+                reaches: Some(false),
+                ..Conditions::default()
+            }),
+        ),
         // Across the 0.44 m gap from a stack of three containers down onto a stack of two.
         probe(
             "container-gap-jump",

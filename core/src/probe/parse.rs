@@ -45,6 +45,7 @@ struct RawProbe<'a> {
     apex: Option<f64>,
     gravity: Option<f64>,
     max_slope: Option<f64>,
+    max_step: Option<f64>,
     max_time: Option<f64>,
     ignore_tags: Option<Vec<String>>,
     only_tags: Option<Vec<String>>,
@@ -131,6 +132,7 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
         ProbeKind::Rest => &["shape", "at", "rotation", "search"],
         ProbeKind::Sightlines => &["spots", "spot_tags", "eye"],
         ProbeKind::Coverage => &["spots", "spot_tags", "eye", "region", "spacing"],
+        ProbeKind::Walk => &["shape", "path", "max_step", "max_slope"],
         ProbeKind::Jump => &[
             "shape",
             "rotation",
@@ -166,6 +168,7 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
         ("apex", raw.apex.is_some()),
         ("gravity", raw.gravity.is_some()),
         ("max_slope", raw.max_slope.is_some()),
+        ("max_step", raw.max_step.is_some()),
         ("max_time", raw.max_time.is_some()),
     ];
     if let Some((field, _)) = present.iter().find(|(f, p)| *p && !allowed.contains(f)) {
@@ -310,6 +313,15 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
                 spacing,
             }
         }
+        ProbeKind::Walk => ProbeQuery::Walk {
+            shape: shape(false)?,
+            path: waypoints(raw, &need)?,
+            max_step: raw
+                .max_step
+                .map(|h| positive("max_step", h, "metres"))
+                .transpose()?,
+            max_slope: raw.max_slope.map(slope_limit).transpose()?,
+        },
         ProbeKind::Jump => ProbeQuery::Jump {
             shape: shape(false)?,
             rotation,
@@ -319,19 +331,7 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
                 .gravity
                 .map(|g| positive("gravity", g, "metres per second squared"))
                 .transpose()?,
-            max_slope: raw
-                .max_slope
-                .map(|a| {
-                    if a.is_finite() && (0.0..=90.0).contains(&a) {
-                        Ok(a)
-                    } else {
-                        Err(format!(
-                            "max_slope must be an angle from 0 to 90 degrees, not {}",
-                            number(a)
-                        ))
-                    }
-                })
-                .transpose()?,
+            max_slope: raw.max_slope.map(slope_limit).transpose()?,
             max_time: raw
                 .max_time
                 .map(|t| positive("max_time", t, "seconds"))
@@ -374,6 +374,37 @@ fn parse_turns(raw: &RawProbe, points: usize) -> Result<Option<Turns>, String> {
         ));
     }
     Ok(Some(turns))
+}
+
+/// The steepest walkable ground: an angle from 0 to 90 degrees.
+fn slope_limit(degrees: f64) -> Result<f64, String> {
+    if degrees.is_finite() && (0.0..=90.0).contains(&degrees) {
+        Ok(degrees)
+    } else {
+        Err(format!(
+            "max_slope must be an angle from 0 to 90 degrees, not {}",
+            number(degrees)
+        ))
+    }
+}
+
+/// A walk's waypoints: two or more finite points, not all one.
+fn waypoints(raw: &RawProbe, need: &dyn Fn(&str) -> String) -> Result<Vec<DVec3>, String> {
+    let path: Vec<DVec3> = raw
+        .path
+        .as_ref()
+        .ok_or_else(|| need("path"))?
+        .iter()
+        .enumerate()
+        .map(|(k, p)| finite_point(&format!("path[{k}]"), *p))
+        .collect::<Result<_, _>>()?;
+    if path.len() < 2 {
+        return Err("a walk needs at least two waypoints".into());
+    }
+    if path.windows(2).all(|w| w[0] == w[1]) {
+        return Err("the walk's waypoints are all one point".into());
+    }
+    Ok(path)
 }
 
 /// A jump's launch: `velocity`, or `to` with `apex` (one or the other).
@@ -651,6 +682,14 @@ fn check_conditions(c: &Conditions, query: &ProbeQuery) -> Result<(), String> {
         return Err(format!(
             "expect.walkable and lands_within apply to jumps, not to a {kind} probe"
         ));
+    }
+    if (c.reaches.is_some() || c.max_detour.is_some()) && kind != ProbeKind::Walk {
+        return Err(format!(
+            "expect.reaches and max_detour apply to walks, not to a {kind} probe"
+        ));
+    }
+    if let Some(d) = c.max_detour {
+        metres("max_detour", d)?;
     }
     if let Some(region) = &c.lands_within {
         check_region("expect.lands_within", region)?;

@@ -146,6 +146,23 @@ fn probe_to_value(p: &Probe) -> Value {
             m.insert("region".into(), json!(region));
             m.insert("spacing".into(), json!(spacing));
         }
+        ProbeQuery::Walk {
+            shape: s,
+            path,
+            max_step,
+            max_slope,
+        } => {
+            m.insert("shape".into(), shape(s));
+            m.insert(
+                "path".into(),
+                json!(path.iter().map(|p| p.to_array()).collect::<Vec<_>>()),
+            );
+            for (field, value) in [("max_step", max_step), ("max_slope", max_slope)] {
+                if let Some(v) = value {
+                    m.insert(field.into(), json!(v));
+                }
+            }
+        }
         ProbeQuery::Jump {
             shape: s,
             rotation,

@@ -21,6 +21,7 @@ mod shapes;
 mod sightlines;
 mod sweep;
 mod turning;
+mod walk;
 mod watertight;
 mod world;
 
@@ -41,6 +42,7 @@ pub use shapes::{
 pub use sightlines::{END_GAP, Sightline, SpotAt};
 pub use sweep::SweepHit;
 pub use turning::TurningPath;
+pub use walk::{Gait, SKIN, Stop, Walked};
 pub use watertight::ShearedRay;
 pub use world::{BuildCause, BuildError, Filter, MATERIAL_TAG, MaterialId, ObjectId, View, World};
 

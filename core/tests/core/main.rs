@@ -18,3 +18,4 @@ mod query_properties;
 mod query_references;
 mod reference_library;
 mod turning;
+mod walks;

@@ -1,0 +1,257 @@
+//! Walk probes against elementary geometry: stairs climbed or refused by riser height, ramps by
+//! slope, a wall slid along, a ledge fallen from, a wall that stops the walk.
+
+use glam::{DQuat, DVec3};
+use plumbline_core::level::{Primitive, ShapeSpec};
+use plumbline_core::query::{Gait, ProbeShape, SKIN, Stop, Walked, World};
+
+use super::common::LevelBuilder;
+
+/// A character: capsule of radius 0.35 m, 1.8 m tall (common practice).
+fn character() -> ProbeShape {
+    ProbeShape::new(
+        &ShapeSpec::Capsule {
+            radius: 0.35,
+            half_height: 0.55,
+        },
+        DQuat::IDENTITY,
+    )
+    .unwrap()
+}
+
+/// The centre of a character standing on ground at height `y`.
+const STAND: f64 = 0.9 + SKIN;
+
+const GAIT: Gait = Gait {
+    max_step: 0.35,
+    max_slope: 45.0,
+};
+
+fn block(builder: LevelBuilder, name: &str, lo: DVec3, hi: DVec3) -> LevelBuilder {
+    builder.primitive(
+        name,
+        Primitive::Box {
+            half_extents: (hi - lo) / 2.0,
+        },
+        (lo + hi) / 2.0,
+        DQuat::IDENTITY,
+    )
+}
+
+fn floor() -> LevelBuilder {
+    block(
+        LevelBuilder::new(),
+        "floor",
+        DVec3::new(-20.0, -1.0, -20.0),
+        DVec3::new(20.0, 0.0, 20.0),
+    )
+}
+
+fn walk(world: &World, route: &[DVec3], gait: Gait) -> Walked {
+    world
+        .everything()
+        .walk(&character(), route, gait)
+        .expect("a walk")
+}
+
+/// Eight steps of `riser` up, 0.35 m deep, from x = 1, then a landing.
+fn stairs(riser: f64) -> World {
+    let mut builder = floor();
+    for k in 0..8 {
+        let x = 1.0 + k as f64 * 0.35;
+        builder = block(
+            builder,
+            &format!("step-{k}"),
+            DVec3::new(x, 0.0, -1.0),
+            DVec3::new(x + 0.35, (k + 1) as f64 * riser, 1.0),
+        );
+    }
+    let top = 8.0 * riser;
+    block(
+        builder,
+        "landing",
+        DVec3::new(3.8, 0.0, -1.0),
+        DVec3::new(8.0, top, 1.0),
+    )
+    .world()
+}
+
+#[test]
+fn stairs_of_0_30_m_risers_are_climbed_and_of_0_40_m_refused_with_a_0_35_m_step() {
+    let world = stairs(0.30);
+    let route = [
+        DVec3::new(-2.0, STAND, 0.0),
+        DVec3::new(6.0, 2.4 + STAND, 0.0),
+    ];
+    let up = walk(&world, &route, GAIT);
+    assert_eq!(up.stop, None, "{up:?}");
+    assert_eq!(up.reached, 1);
+    assert!((up.highest_step - 0.30).abs() < 0.02, "{}", up.highest_step);
+    let end = up.path.last().unwrap();
+    assert!((end.y - (2.4 + STAND)).abs() < 1e-6, "{end}");
+
+    let world = stairs(0.40);
+    let route = [
+        DVec3::new(-2.0, STAND, 0.0),
+        DVec3::new(6.0, 3.2 + STAND, 0.0),
+    ];
+    let refused = walk(&world, &route, GAIT);
+    match refused.stop {
+        Some(Stop::StepTooHigh(_, rise)) => assert!((rise - 0.40).abs() < 1e-6, "{rise}"),
+        other => panic!("a step too high, not {other:?}"),
+    }
+    assert_eq!(refused.reached, 0);
+}
+
+/// A ramp rising at `degrees` from x = 1 to a height of 3 m, then a landing.
+fn ramp(degrees: f64) -> World {
+    let theta = degrees.to_radians();
+    let run = 3.0 / theta.tan();
+    let slab = DQuat::from_rotation_z(theta);
+    let length = (run * run + 9.0).sqrt();
+    // A slab 0.2 m thick whose top face runs from (1, 0) to (1 + run, 3).
+    let normal = slab * DVec3::Y;
+    let centre = DVec3::new(1.0 + run / 2.0, 1.5, 0.0) - normal * 0.1;
+    let builder = floor().primitive(
+        "ramp",
+        Primitive::Box {
+            half_extents: DVec3::new(length / 2.0 + 0.3, 0.1, 1.5),
+        },
+        centre,
+        slab,
+    );
+    block(
+        builder,
+        "landing",
+        DVec3::new(1.0 + run, 0.0, -1.5),
+        DVec3::new(1.0 + run + 4.0, 3.0, 1.5),
+    )
+    .world()
+}
+
+#[test]
+fn a_40_degree_ramp_is_climbed_and_a_50_degree_one_refused_with_a_45_degree_limit() {
+    for (degrees, climbs) in [(40.0, true), (50.0, false)] {
+        let world = ramp(degrees);
+        let run = 3.0 / f64::to_radians(degrees).tan();
+        let route = [
+            DVec3::new(-1.0, STAND, 0.0),
+            DVec3::new(1.0 + run + 2.0, 3.0 + STAND, 0.0),
+        ];
+        let walked = walk(&world, &route, GAIT);
+        if climbs {
+            assert_eq!(walked.stop, None, "{degrees}°: {walked:?}");
+            assert!((walked.steepest_slope - degrees).abs() < 1e-6);
+        } else {
+            match walked.stop {
+                Some(Stop::TooSteep(_, slope)) => assert!((slope - degrees).abs() < 1e-6),
+                other => panic!("{degrees}°: too steep, not {other:?}"),
+            }
+        }
+    }
+}
+
+#[test]
+fn walking_into_a_wall_at_45_degrees_slides_along_it() {
+    // Collide-and-slide keeps the part of the move along the wall (common practice, from memory):
+    // headed at 45° into the wall x = 3, the character ends against it (a skin away) and well along
+    // it, where a stop at the first touch would leave it near z = 2.6.
+    let world = block(
+        floor(),
+        "wall",
+        DVec3::new(3.0, 0.0, -10.0),
+        DVec3::new(3.5, 3.0, 10.0),
+    )
+    .world();
+    let route = [DVec3::new(0.0, STAND, 0.0), DVec3::new(8.0, STAND, 8.0)];
+    let walked = walk(&world, &route, GAIT);
+    let end = *walked.path.last().unwrap();
+    assert!((end.x - (3.0 - 0.35 - SKIN)).abs() < 1e-6, "{end}");
+    assert!(end.z > 6.0, "slid along the wall: {end}");
+    assert!(matches!(
+        walked.stop,
+        Some(Stop::Blocked(_)) | Some(Stop::NoHeadway)
+    ));
+}
+
+#[test]
+fn off_a_ledge_it_falls_to_the_floor_and_walks_on() {
+    let world = block(
+        floor(),
+        "platform",
+        DVec3::new(-3.0, 0.0, -2.0),
+        DVec3::new(1.0, 2.0, 2.0),
+    )
+    .world();
+    let route = [
+        DVec3::new(-1.0, 2.0 + STAND, 0.0),
+        DVec3::new(5.0, STAND, 0.0),
+    ];
+    let walked = walk(&world, &route, GAIT);
+    assert_eq!(walked.stop, None, "{walked:?}");
+    assert!(
+        (walked.longest_fall - 2.0).abs() < 0.05,
+        "{}",
+        walked.longest_fall
+    );
+    assert!((walked.path.last().unwrap().y - STAND).abs() < 1e-6);
+}
+
+#[test]
+fn a_wall_across_the_route_stops_the_walk_and_is_named() {
+    let world = block(
+        floor(),
+        "wall",
+        DVec3::new(3.0, 0.0, -10.0),
+        DVec3::new(3.5, 3.0, 10.0),
+    )
+    .world();
+    let route = [DVec3::new(0.0, STAND, 0.0), DVec3::new(8.0, STAND, 0.0)];
+    let walked = walk(&world, &route, GAIT);
+    match walked.stop {
+        Some(Stop::Blocked(object)) => assert_eq!(world.name(object), "wall"),
+        other => panic!("blocked by the wall, not {other:?}"),
+    }
+    assert!((walked.path.last().unwrap().x - (3.0 - 0.35 - SKIN)).abs() < 1e-6);
+}
+
+#[test]
+fn a_walk_probe_says_where_it_stopped_and_why_and_its_record_reads_back() {
+    use plumbline_core::check::{Hits, ResultsFile, Verdict, answer_probe, parse_results};
+    use plumbline_core::probe::parse_probe_set;
+    let world = stairs(0.40);
+    let text = format!(
+        r#"{{"plumbline": "probes", "version": 1, "level": "level.json", "probes": [
+            {{"id": "up", "kind": "walk",
+              "shape": {{"type": "capsule", "radius": 0.35, "half_height": 0.55}},
+              "path": [[-2, {STAND}, 0], [6, {}, 0]], "expect": {{"reaches": true}}}}]}}"#,
+        3.2 + STAND
+    );
+    let set = parse_probe_set(std::path::Path::new("t.probes.json"), &text).unwrap();
+    let result = answer_probe(&world, &set.probes[0]);
+    assert_eq!(result.verdict, Verdict::Fail);
+    assert!(
+        result
+            .reason
+            .starts_with("Expected it to reach the end; stops after")
+            && result.reason.ends_with(
+                "0 of 1 waypoints reached: a step of 0.400 m onto step-0 is over the 0.350 m limit"
+            ),
+        "{}",
+        result.reason
+    );
+    let Hits::Walk(records) = &result.hits else {
+        panic!("a walk's answer")
+    };
+    assert_eq!(records[0].object.as_deref(), Some("step-0"));
+    // Written and read back, the record is the same.
+    let file = ResultsFile::new(
+        "t.probes.json".into(),
+        "level.json".into(),
+        String::new(),
+        String::new(),
+        vec![result.clone()],
+    );
+    let back = parse_results(std::path::Path::new("r.json"), &file.to_json()).unwrap();
+    assert_eq!(back.results[0].hits, result.hits);
+}
