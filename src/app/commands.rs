@@ -51,7 +51,7 @@ pub enum Command {
 
 impl Command {
     /// Commands that have a shortcut, in the order shortcuts are tried.
-    pub const WITH_SHORTCUTS: [Command; 24] = [
+    pub const WITH_SHORTCUTS: [Command; 25] = [
         Command::Open,
         Command::SaveAs,
         Command::Save,
@@ -68,6 +68,7 @@ impl Command {
         Command::Tool(Tool::Closest),
         Command::Tool(Tool::Overlap),
         Command::Tool(Tool::Jump),
+        Command::Tool(Tool::Walk),
         Command::FinishPath,
         Command::FrameLevel,
         Command::FrameProbe,
@@ -97,6 +98,7 @@ impl Command {
             Command::Tool(Tool::Closest) => "New closest point",
             Command::Tool(Tool::Overlap) => "New overlap",
             Command::Tool(Tool::Jump) => "New jump",
+            Command::Tool(Tool::Walk) => "New walk",
             Command::FinishPath => "End the path",
             Command::FrameLevel => "Frame level",
             Command::FrameProbe => "Frame probe",

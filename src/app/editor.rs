@@ -13,8 +13,8 @@ use crate::view::palette;
 use plumbline_core::check::trajectory;
 use plumbline_core::level::ShapeSpec;
 use plumbline_core::probe::{
-    Conditions, Expect, ExpectWord, HitsMode, JUMP_TIME, Launch, MAX_WALKABLE_SLOPE, Probe,
-    ProbeQuery, Range, STANDARD_GRAVITY, Spots, Turns,
+    Conditions, Expect, ExpectWord, HitsMode, JUMP_TIME, Launch, MAX_STEP, MAX_WALKABLE_SLOPE,
+    Probe, ProbeQuery, Range, STANDARD_GRAVITY, Spots, Turns,
 };
 
 /// An edit made in the inspector.
@@ -189,28 +189,17 @@ fn query_fields(ui: &mut egui::Ui, query: &mut ProbeQuery) -> Option<String> {
                     );
                 }
             }
-            ui.label("");
-            ui.horizontal(|ui| {
-                if ui
-                    .button("Add point")
-                    .on_hover_text("A new last point, 1 m further on")
-                    .clicked()
-                {
+            match points_buttons(ui, path) {
+                Some(PathChange::Added) => {
                     let n = path.len();
-                    let step = (path[n - 1] - path[n - 2]).normalize_or(DVec3::X);
-                    path.push(path[n - 1] + step);
                     match turns {
-                        Some(Turns::Yaw(yaw)) => yaw.push(yaw[n - 1]),
-                        Some(Turns::Quaternions(q)) => q.push(q[n - 1]),
+                        Some(Turns::Yaw(yaw)) => yaw.push(yaw[n - 2]),
+                        Some(Turns::Quaternions(q)) => q.push(q[n - 2]),
                         None => {}
                     }
                     mark(true, "path");
                 }
-                if ui
-                    .add_enabled(path.len() > 2, egui::Button::new("Remove last point"))
-                    .clicked()
-                {
-                    path.pop();
+                Some(PathChange::Removed) => {
                     match turns {
                         Some(Turns::Yaw(yaw)) => yaw.truncate(path.len()),
                         Some(Turns::Quaternions(q)) => q.truncate(path.len()),
@@ -218,8 +207,8 @@ fn query_fields(ui: &mut egui::Ui, query: &mut ProbeQuery) -> Option<String> {
                     }
                     mark(true, "path");
                 }
-            });
-            ui.end_row();
+                None => {}
+            }
             mark(
                 turns_editor(ui, turns, rotation, clearance, path.len()),
                 "turns",
@@ -305,6 +294,31 @@ fn query_fields(ui: &mut egui::Ui, query: &mut ProbeQuery) -> Option<String> {
             }
             mark(number(ui, "spacing", spacing, " m", 0.05), "spacing");
         }
+        ProbeQuery::Walk {
+            shape,
+            path,
+            max_step,
+            max_slope,
+        } => {
+            mark(shape_editor(ui, shape, false), "shape");
+            for (i, p) in path.iter_mut().enumerate() {
+                mark(
+                    point(ui, &format!("waypoint {i}"), p),
+                    &format!("waypoint {i}"),
+                );
+            }
+            mark(points_buttons(ui, path).is_some(), "path");
+            let mut step = max_step.unwrap_or(MAX_STEP);
+            if number(ui, "highest step", &mut step, " m", 0.01) {
+                *max_step = Some(step);
+                mark(true, "highest step");
+            }
+            let mut slope = max_slope.unwrap_or(MAX_WALKABLE_SLOPE);
+            if number(ui, "steepest ground", &mut slope, "°", 0.0) {
+                *max_slope = Some(slope.min(90.0));
+                mark(true, "steepest ground");
+            }
+        }
         ProbeQuery::Jump {
             shape,
             from,
@@ -336,6 +350,40 @@ fn query_fields(ui: &mut egui::Ui, query: &mut ProbeQuery) -> Option<String> {
         }
     }
     field
+}
+
+/// A change to a list of path points made with [`points_buttons`].
+enum PathChange {
+    Added,
+    Removed,
+}
+
+/// Buttons that add a last point (1 m on from the last, in the last segment's direction) or remove
+/// the last one (while more than two are left).
+fn points_buttons(ui: &mut egui::Ui, path: &mut Vec<DVec3>) -> Option<PathChange> {
+    let mut change = None;
+    ui.label("");
+    ui.horizontal(|ui| {
+        if ui
+            .button("Add point")
+            .on_hover_text("A new last point, 1 m further on")
+            .clicked()
+        {
+            let n = path.len();
+            let step = (path[n - 1] - path[n - 2]).normalize_or(DVec3::X);
+            path.push(path[n - 1] + step);
+            change = Some(PathChange::Added);
+        }
+        if ui
+            .add_enabled(path.len() > 2, egui::Button::new("Remove last point"))
+            .clicked()
+        {
+            path.pop();
+            change = Some(PathChange::Removed);
+        }
+    });
+    ui.end_row();
+    change
 }
 
 /// Whether the shape turns along the path, as a yaw per path point about the level's up axis

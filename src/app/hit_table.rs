@@ -133,6 +133,36 @@ const WALKABLE: Column = Column {
     tip: "A dot when a character can stand on that slope (at most the probe's steepest ground)",
     kind: ColumnKind::Flag,
 };
+const STOPPED_BY: Column = Column {
+    head: "stopped by",
+    tip: "The object that stopped the walk, if one did (the reason is above)",
+    kind: ColumnKind::Text,
+};
+const WALKED: Column = Column {
+    head: "m",
+    tip: "Metres walked along the way taken",
+    kind: ColumnKind::Number,
+};
+const STEP: Column = Column {
+    head: "step",
+    tip: "The most the ground rose from one step to the next, metres",
+    kind: ColumnKind::Number,
+};
+const SLOPE_MET: Column = Column {
+    head: "°",
+    tip: "The steepest ground stood on, degrees",
+    kind: ColumnKind::Number,
+};
+const FALL: Column = Column {
+    head: "fall",
+    tip: "The longest fall, metres",
+    kind: ColumnKind::Number,
+};
+const REACHED: Column = Column {
+    head: "end",
+    tip: "A dot when the character reached the last waypoint",
+    kind: ColumnKind::Flag,
+};
 const ENCLOSED: Column = Column {
     head: "enclosed",
     tip: "A dot when the shape is wholly inside the object",
@@ -213,6 +243,22 @@ pub fn hit_columns(hits: &Hits) -> (Vec<Column>, Vec<Vec<Cell>>) {
                     plain(format!("{:.3}", x.time)),
                     plain(format!("{:.1}", x.slope)),
                     tick(x.walkable),
+                ]
+            }),
+        ),
+        Hits::Walk(h) => (
+            vec![NUMBER, STOPPED_BY, WALKED, STEP, SLOPE_MET, FALL, REACHED],
+            numbered(h, |x| {
+                vec![
+                    match &x.object {
+                        Some(name) => object(name, &None),
+                        None => plain("—".into()),
+                    },
+                    plain(format!("{:.3}", x.length)),
+                    plain(format!("{:.3}", x.highest_step)),
+                    plain(format!("{:.1}", x.steepest_slope)),
+                    plain(format!("{:.3}", x.longest_fall)),
+                    tick(x.reached),
                 ]
             }),
         ),

@@ -167,6 +167,7 @@ pub fn inspector_ui(
         Hits::Coverage(_) => "Coverage".to_string(),
         Hits::Jump(h) if h.is_empty() => "Landing (none)".to_string(),
         Hits::Jump(_) => "Landing".to_string(),
+        Hits::Walk(_) => "Walk".to_string(),
         hits => format!("Hits ({})", hits.len()),
     };
     egui::CollapsingHeader::new(heading)
@@ -297,6 +298,15 @@ fn question_words(probe: &Probe) -> String {
             spots_words(spots),
             metres(*spacing)
         ),
+        ProbeQuery::Walk { shape, path, .. } => {
+            let length: f64 = path.windows(2).map(|w| w[0].distance(w[1])).sum();
+            format!(
+                "walk of a {} over {} waypoints, route {}",
+                shape_words(shape),
+                path.len(),
+                metres(length)
+            )
+        }
         ProbeQuery::Jump { shape, launch, .. } => match launch {
             Launch::Velocity(v) => {
                 format!("jump of a {} at {:.2} m/s", shape_words(shape), v.length())
@@ -424,7 +434,8 @@ fn hits_table(ui: &mut egui::Ui, result: &ProbeResult, selection: &mut Selection
         super::level_answers::answer_ui(ui, result, selection);
         return;
     }
-    if result.hits.is_empty() {
+    // A walk always has its record: how far it went, and how.
+    if result.hits.is_empty() && !matches!(result.hits, Hits::Walk(_)) {
         ui.label("No hits: the probe is clear.");
         return;
     }

@@ -73,7 +73,7 @@ impl Workbench {
                         chosen = Some(Command::Tool(tool));
                     }
                 }
-                if menu_item(ui, Command::FinishPath, self.tool == Tool::Sweep) {
+                if menu_item(ui, Command::FinishPath, self.tool.clicks().is_none()) {
                     chosen = Some(Command::FinishPath);
                 }
                 ui.separator();

@@ -82,7 +82,7 @@ impl Workbench {
                     .response
                     .labelled_by(label.id);
             }
-            if self.tool == Tool::Sweep && !self.placed.is_empty() {
+            if self.tool.clicks().is_none() && !self.placed.is_empty() {
                 ui.label(format!("{} points", self.placed.len()));
                 if ui
                     .add_enabled(self.placed.len() >= 2, egui::Button::new("End path"))

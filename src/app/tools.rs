@@ -25,16 +25,19 @@ pub enum Tool {
     Overlap,
     /// Two clicks: where the character stands, then where it should come down.
     Jump,
+    /// Clicks add waypoints; Enter or a double click ends the route.
+    Walk,
 }
 
 impl Tool {
     /// Every placing tool, in toolbar order.
-    pub const PLACING: [Tool; 5] = [
+    pub const PLACING: [Tool; 6] = [
         Tool::Ray,
         Tool::Sweep,
         Tool::Closest,
         Tool::Overlap,
         Tool::Jump,
+        Tool::Walk,
     ];
 
     /// The button's words.
@@ -46,6 +49,7 @@ impl Tool {
             Tool::Closest => "Closest",
             Tool::Overlap => "Overlap",
             Tool::Jump => "Jump",
+            Tool::Walk => "Walk",
         }
     }
 
@@ -58,6 +62,7 @@ impl Tool {
             Tool::Closest => egui::Key::C,
             Tool::Overlap => egui::Key::O,
             Tool::Jump => egui::Key::J,
+            Tool::Walk => egui::Key::W,
         }
     }
 
@@ -74,6 +79,9 @@ impl Tool {
             Tool::Jump => {
                 "New jump: click where the character stands, then where it should come down (J)"
             }
+            Tool::Walk => {
+                "New walk: click each waypoint on the ground; Enter or a double click ends it (W)"
+            }
         }
     }
 
@@ -82,7 +90,7 @@ impl Tool {
         match self {
             Tool::Select => Some(0),
             Tool::Ray | Tool::Jump => Some(2),
-            Tool::Sweep => None,
+            Tool::Sweep | Tool::Walk => None,
             Tool::Closest | Tool::Overlap => Some(1),
         }
     }
@@ -93,7 +101,7 @@ impl Tool {
     pub fn default_lift(self) -> f64 {
         match self {
             Tool::Ray => 1.7,
-            Tool::Sweep | Tool::Overlap | Tool::Jump => 0.91,
+            Tool::Sweep | Tool::Overlap | Tool::Jump | Tool::Walk => 0.91,
             Tool::Select | Tool::Closest => 0.0,
         }
     }
@@ -207,6 +215,12 @@ pub fn new_probe(tool: Tool, id: String, points: &[DVec3], up: DVec3) -> Option<
             shape: capsule,
             at: *at,
             rotation: None,
+        },
+        (Tool::Walk, path) if path.len() >= 2 => ProbeQuery::Walk {
+            shape: capsule,
+            path: path.to_vec(),
+            max_step: None,
+            max_slope: None,
         },
         (Tool::Jump, [from, to, ..]) => ProbeQuery::Jump {
             shape: capsule,

@@ -251,6 +251,23 @@ fn own_marks(
                 coverage_marks(record, out);
             }
         }
+        (ProbeQuery::Walk { shape, path, .. }, Hits::Walk(walks)) => {
+            // The route as drawn, thin and dashed; the way taken, solid; the character where it
+            // stopped (or, when selected, where it got to).
+            path_lines(path, Some((0, path[0])), colour, width * 0.5, out);
+            for walk in walks {
+                let taken: Vec<DVec3> = walk.path.iter().map(|p| DVec3::from(*p)).collect();
+                if taken.len() >= 2 {
+                    path_lines(&taken, None, colour, width, out);
+                }
+                if let Some(end) = walk.end()
+                    && (!walk.reached || emphasis.selected)
+                {
+                    let tint = if walk.reached { colour } else { HIT };
+                    ShapeGhost::new(shape, None).place(end, tint, 110, out);
+                }
+            }
+        }
         (
             ProbeQuery::Jump {
                 shape, rotation, ..
@@ -414,6 +431,7 @@ pub fn start_point(query: &ProbeQuery, result: Option<&ProbeResult>) -> DVec3 {
         | ProbeQuery::Overlap { at, .. }
         | ProbeQuery::Rest { at, .. } => *at,
         ProbeQuery::Jump { from, .. } => *from,
+        ProbeQuery::Walk { path, .. } => path[0],
         ProbeQuery::Sightlines { .. } | ProbeQuery::Coverage { .. } => {
             let answered = result.and_then(|r| match &r.hits {
                 Hits::Sightlines(pairs) => pairs.first().map(|p| DVec3::from(p.from)),
@@ -439,6 +457,11 @@ pub fn hit_points(hits: &Hits) -> Vec<DVec3> {
         Hits::Closest(h) => h.iter().map(|x| x.point.into()).collect(),
         Hits::Overlap(h) => h.iter().map(|x| x.point.into()).collect(),
         Hits::Jump(h) => h.iter().map(|x| x.point.into()).collect(),
+        Hits::Walk(h) => h
+            .iter()
+            .filter(|w| !w.reached)
+            .filter_map(|w| w.end())
+            .collect(),
         Hits::Rest(_) | Hits::Sightlines(_) | Hits::Coverage(_) => Vec::new(),
     }
 }
@@ -447,6 +470,11 @@ pub fn hit_points(hits: &Hits) -> Vec<DVec3> {
 pub fn probe_points(probe: &Probe, result: Option<&ProbeResult>, up: DVec3) -> Vec<DVec3> {
     let mut points = probe.query.points();
     match result.map(|r| &r.hits) {
+        Some(Hits::Walk(walks)) => points.extend(
+            walks
+                .iter()
+                .flat_map(|w| w.path.iter().map(|p| DVec3::from(*p))),
+        ),
         Some(Hits::Jump(hits)) => {
             points.extend(arc_points(&probe.query, up, hits.first().map(|h| h.time)))
         }

@@ -477,3 +477,39 @@ fn a_turning_sweep_shows_a_yaw_per_point_and_switching_turns_off_answers_again()
     ));
     assert_eq!(workbench.document.results[index].verdict, Verdict::Fail);
 }
+
+#[test]
+fn a_walk_placed_with_clicks_and_enter_is_walked_and_its_record_shown() {
+    use plumbline_core::check::Hits;
+    use plumbline_core::probe::ProbeQuery;
+
+    let (_folder, path) = demo_copy();
+    let mut harness = harness(&path);
+    harness.key_press(Key::W);
+    harness.run_steps(2);
+    let view = harness.state().viewport.last_rect;
+    click_at(&mut harness, view.center());
+    click_at(&mut harness, view.center() + egui::vec2(40.0, 10.0));
+    harness.key_press(Key::Enter);
+    harness.run_steps(2);
+
+    let workbench = harness.state();
+    let index = workbench
+        .document
+        .probes
+        .probes
+        .iter()
+        .position(|p| p.id == "walk")
+        .expect("a new walk");
+    assert!(matches!(
+        &workbench.document.probes.probes[index].query,
+        ProbeQuery::Walk { path, .. } if path.len() == 2
+    ));
+    let result = &workbench.document.results[index];
+    let Hits::Walk(records) = &result.hits else {
+        panic!("a walk's answer")
+    };
+    assert_eq!(records.len(), 1, "{}", result.reason);
+    assert!(records[0].path.len() >= 2, "it took at least a step");
+    harness.get_by_label("stopped by");
+}
