@@ -42,7 +42,7 @@ pub use shapes::{
 pub use sightlines::{END_GAP, Sightline, SpotAt};
 pub use sweep::SweepHit;
 pub use turning::TurningPath;
-pub use walk::{Gait, SKIN, Stop, Walked};
+pub use walk::{Gait, MAX_WALK_STEPS, SKIN, Stop, Walked};
 pub use watertight::ShearedRay;
 pub use world::{BuildCause, BuildError, Filter, MATERIAL_TAG, MaterialId, ObjectId, View, World};
 
@@ -73,6 +73,9 @@ pub enum QueryError {
     /// A jump's target lies above the apex it is to rise to.
     #[error("the jump's apex must be higher than its target (\"to\")")]
     ApexBelowTarget,
+    /// A walk whose route needs more steps than are taken.
+    #[error("the route is too long to walk: more than {0} steps")]
+    RouteTooLong(usize),
     /// A continuous search that took too many steps (a contact approached at a grazing angle).
     #[error(
         "the search for the first contact did not settle (a grazing contact); try a coarser path"

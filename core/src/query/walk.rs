@@ -67,6 +67,10 @@ const FALL_REACH: f64 = 200.0;
 /// The shortest step tried before a step too high or too steep stops the walk, metres. Ours.
 const SHORTEST_STRIDE: f64 = 0.04;
 
+/// The most steps one walk takes (a 35 km route at the demo character's stride); a longer route is
+/// refused rather than walked for minutes. Ours.
+pub const MAX_WALK_STEPS: usize = 100_000;
+
 /// Collide-and-slide passes per step (each a sweep). Common practice: three or four.
 const SLIDES: usize = 4;
 
@@ -104,6 +108,13 @@ impl View<'_> {
             walked.stop = Some(Stop::NoGroundAtStart);
             return Ok(walked);
         };
+        let planned: f64 = route
+            .windows(2)
+            .map(|w| horizontal(w[1] - w[0], up).length())
+            .sum();
+        if planned / stride > MAX_WALK_STEPS as f64 {
+            return Err(QueryError::RouteTooLong(MAX_WALK_STEPS));
+        }
         let mut at = start;
         let mut ground_at = ground.point;
         walked.path.push(at);

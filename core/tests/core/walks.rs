@@ -255,3 +255,15 @@ fn a_walk_probe_says_where_it_stopped_and_why_and_its_record_reads_back() {
     let back = parse_results(std::path::Path::new("r.json"), &file.to_json()).unwrap();
     assert_eq!(back.results[0].hits, result.hits);
 }
+
+#[test]
+fn a_route_too_long_to_walk_is_refused_at_once() {
+    use plumbline_core::query::QueryError;
+    let world = floor().world();
+    let route = [DVec3::new(0.0, STAND, 0.0), DVec3::new(9.0e4, STAND, 0.0)];
+    let error = world
+        .everything()
+        .walk(&character(), &route, GAIT)
+        .expect_err("too long");
+    assert!(matches!(error, QueryError::RouteTooLong(_)), "{error}");
+}
