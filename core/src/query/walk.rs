@@ -90,10 +90,9 @@ impl View<'_> {
         }
         let up = self.world.up();
         let height = shape.extent_along(up) + shape.extent_along(-up);
-        // A step is at most half the shape's width across, so each step sets it down on what is
-        // under it (a stair's tread) rather than across it.
-        let stride = shape
-            .extent_along(horizontal(DVec3::X, up).normalize_or(DVec3::Z))
+        // A step is at most the shape's width across (shorter where a step would rise too high or
+        // onto too steep ground: see below), so nothing it could stand on is stepped over.
+        let stride = (2.0 * shape.extent_along(horizontal(DVec3::X, up).normalize_or(DVec3::Z)))
             .clamp(0.05, 1.0);
         let mut walked = Walked {
             path: Vec::new(),
