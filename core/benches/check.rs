@@ -117,7 +117,8 @@ fn bare_queries(world: &World, probes: &[Probe]) -> usize {
             | ProbeQuery::Sightlines { .. }
             | ProbeQuery::Coverage { .. }
             | ProbeQuery::Jump { .. }
-            | ProbeQuery::Walk { .. } => {
+            | ProbeQuery::Walk { .. }
+            | ProbeQuery::Reach { .. } => {
                 unreachable!("the generated probes are single queries")
             }
         };

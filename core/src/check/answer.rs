@@ -7,7 +7,7 @@ use super::records::{
     SweepHitRecord, Verdict,
 };
 use super::verdict::judge;
-use super::{answer_level, jump, walk};
+use super::{answer_level, jump, reach, walk};
 use crate::json_text::{round9, round9_vec};
 use crate::level::{FacePlace, ShapeSpec};
 use crate::probe::{HitsMode, Probe, ProbeQuery};
@@ -206,6 +206,7 @@ fn answer(world: &World, probe: &Probe) -> Result<Answer, QueryError> {
         ),
         ProbeQuery::Jump { .. } => (jump::answer(&view, &probe.query)?, None),
         ProbeQuery::Walk { .. } => (walk::answer(&view, &probe.query)?, None),
+        ProbeQuery::Reach { .. } => (reach::answer(&view, &probe.query)?, None),
     })
 }
 

@@ -42,6 +42,22 @@ pub fn expectation_from(result: &ProbeResult) -> Option<Expect> {
             walkable: h.first().map(|x| x.walkable),
             ..Conditions::default()
         }),
+        (Hits::Reach(h), _) => {
+            let list = |reached: bool| {
+                let names: Vec<String> = h
+                    .iter()
+                    .flat_map(|r| &r.targets)
+                    .filter(|t| t.reachable == reached)
+                    .map(|t| t.name.to_string())
+                    .collect();
+                (!names.is_empty()).then_some(names)
+            };
+            Expect::Conditions(Conditions {
+                reachable: list(true),
+                unreachable: list(false),
+                ..Conditions::default()
+            })
+        }
         (Hits::Walk(h), _) => Expect::Conditions(Conditions {
             reaches: h.first().map(|w| w.reached),
             ..Conditions::default()

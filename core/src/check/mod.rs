@@ -10,6 +10,7 @@ mod expectation;
 mod jump;
 mod level_records;
 mod level_verdict;
+mod reach;
 mod records;
 mod results_file;
 mod rules;
@@ -23,6 +24,7 @@ pub use compare::{Aspect, Comparer, Comparison, DEFAULT_TOLERANCE, ProbeChange, 
 pub use expectation::expectation_from;
 pub use jump::{JumpRecord, trajectory};
 pub use level_records::MAX_LISTED_POINTS;
+pub use reach::{ReachRecord, TargetRecord};
 pub use records::{
     ClearanceRecord, ClosestRecord, CoverageRecord, Hits, OverlapRecord, PairRecord, ProbeResult,
     RayHitRecord, RestRecord, SourceRecord, Summary, SweepHitRecord, Verdict,

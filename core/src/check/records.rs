@@ -6,6 +6,7 @@ use serde::{Deserialize, Serialize};
 
 pub use super::jump::JumpRecord;
 pub use super::level_records::{CoverageRecord, PairRecord, RestRecord};
+pub use super::reach::ReachRecord;
 pub use super::walk::WalkRecord;
 use crate::json_text::Json;
 use crate::probe::ProbeKind;
@@ -253,6 +254,8 @@ pub enum Hits {
     Jump(Vec<JumpRecord>),
     /// One record of where the walk went.
     Walk(Vec<WalkRecord>),
+    /// One record of what the character reaches.
+    Reach(Vec<ReachRecord>),
 }
 
 impl Hits {
@@ -268,6 +271,7 @@ impl Hits {
             Hits::Coverage(h) => h.iter().map(|c| c.points - c.seen).sum(),
             Hits::Jump(h) => h.len(),
             Hits::Walk(h) => h.iter().filter(|w| !w.reached).count(),
+            Hits::Reach(h) => h.iter().map(|r| r.unreached_targets().count()).sum(),
         }
     }
 
@@ -295,6 +299,11 @@ impl Hits {
             }),
             Hits::Coverage(_) => None,
             Hits::Jump(h) => h.first().map(|x| (&*x.object, &x.tags[..], x.distance)),
+            Hits::Reach(h) => h
+                .iter()
+                .flat_map(|r| r.unreached_targets())
+                .next()
+                .map(|t| (&*t.name, &[][..], t.gap.unwrap_or(f64::INFINITY))),
             Hits::Walk(h) => h.first().filter(|w| !w.reached).map(|w| {
                 (
                     w.object.as_deref().unwrap_or(""),
@@ -317,6 +326,7 @@ impl Hits {
             ProbeKind::Coverage => Hits::Coverage(Vec::new()),
             ProbeKind::Jump => Hits::Jump(Vec::new()),
             ProbeKind::Walk => Hits::Walk(Vec::new()),
+            ProbeKind::Reach => Hits::Reach(Vec::new()),
         }
     }
 }
@@ -540,6 +550,7 @@ mod layout {
                 Hits::Coverage(h) => h.iter().map(CoverageRecord::to_json).collect(),
                 Hits::Jump(h) => h.iter().map(JumpRecord::to_json).collect(),
                 Hits::Walk(h) => h.iter().map(WalkRecord::to_json).collect(),
+                Hits::Reach(h) => h.iter().map(ReachRecord::to_json).collect(),
             };
             let mut f = vec![
                 ("id", Json::Str(&self.id)),

@@ -263,5 +263,6 @@ fn parse_hits(kind: ProbeKind, hits: Vec<Value>) -> Result<Hits, String> {
         ProbeKind::Coverage => Hits::Coverage(serde_json::from_value(value).map_err(err)?),
         ProbeKind::Jump => Hits::Jump(serde_json::from_value(value).map_err(err)?),
         ProbeKind::Walk => Hits::Walk(serde_json::from_value(value).map_err(err)?),
+        ProbeKind::Reach => Hits::Reach(serde_json::from_value(value).map_err(err)?),
     })
 }

@@ -82,6 +82,9 @@ fn first_unmet(
     if let Hits::Walk(h) = hits {
         return super::walk::first_unmet(c, h);
     }
+    if let Hits::Reach(h) = hits {
+        return super::reach::first_unmet(c, h);
+    }
     super::level_verdict::first_unmet(c, hits)
 }
 
@@ -95,6 +98,7 @@ fn first_word(hits: &Hits) -> &'static str {
         Hits::Coverage(_) => "a blocker to be",
         Hits::Jump(_) => "the landing to be on",
         Hits::Walk(_) => "the walk to be stopped by",
+        Hits::Reach(_) => "the first target not reached to be",
     }
 }
 
@@ -136,6 +140,7 @@ fn describe(hits: &Hits, clearance: Option<&ClearanceRecord>) -> String {
         }
         Hits::Jump(h) => return super::jump::describe(h),
         Hits::Walk(h) => return super::walk::describe(h),
+        Hits::Reach(h) => return super::reach::describe(h),
     };
     match (found, clearance) {
         (Some(text), _) => text,

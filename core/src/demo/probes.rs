@@ -8,7 +8,7 @@ use super::quay::{bollards, crates, drums, ground_height};
 use crate::level::ShapeSpec;
 use crate::probe::{
     Conditions, Expect, ExpectWord, HitsMode, Launch, Probe, ProbeQuery, ProbeSet, Range, Region,
-    Spots, Turns,
+    Spot, Spots, Turns,
 };
 use crate::query::Filter;
 
@@ -581,6 +581,34 @@ fn whole_level_probes() -> Vec<Probe> {
                 }),
             ),
             &["glass"],
+        ),
+        // One pickup was left on top of a stack of three containers, where no one walks.
+        probe(
+            "pickups-reachable",
+            "Every pickup can be walked to from a spawn pad (fails on purpose: one was left on \
+             top of the containers)",
+            ProbeQuery::Reach {
+                shape: character(),
+                spots: Spots {
+                    points: Vec::new(),
+                    tags: vec!["spawn".into()],
+                    eye: Some(0.91),
+                },
+                region: Region {
+                    min: [-50.0, -1.0, -36.0],
+                    max: [46.0, 12.0, 34.0],
+                    outline: None,
+                },
+                spacing: 1.0,
+                targets: vec![Spot {
+                    name: "pickup-on-containers".into(),
+                    at: [-21.0, 3.0 * 2.59 + 0.3, -19.1],
+                }],
+                target_tags: vec!["pickup".into()],
+                max_step: None,
+                max_slope: None,
+            },
+            clear(),
         ),
     ]
 }

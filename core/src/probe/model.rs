@@ -67,11 +67,13 @@ pub enum ProbeKind {
     Jump,
     /// A character led over the ground along waypoints: whether it gets there.
     Walk,
+    /// Which of a region's ground a character walks to from its start spots, and which targets.
+    Reach,
 }
 
 impl ProbeKind {
     /// Every kind, in the order the documentation lists them.
-    pub const ALL: [ProbeKind; 9] = [
+    pub const ALL: [ProbeKind; 10] = [
         ProbeKind::Ray,
         ProbeKind::Sweep,
         ProbeKind::Closest,
@@ -81,6 +83,7 @@ impl ProbeKind {
         ProbeKind::Coverage,
         ProbeKind::Jump,
         ProbeKind::Walk,
+        ProbeKind::Reach,
     ];
 
     /// The kind's name as written in files.
@@ -95,6 +98,7 @@ impl ProbeKind {
             ProbeKind::Coverage => "coverage",
             ProbeKind::Jump => "jump",
             ProbeKind::Walk => "walk",
+            ProbeKind::Reach => "reach",
         }
     }
 
@@ -212,7 +216,30 @@ pub enum ProbeQuery {
         /// The steepest ground it stands on, degrees (default [`MAX_WALKABLE_SLOPE`]).
         max_slope: Option<f64>,
     },
+    /// Which of a region's walkable ground a character reaches from its start spots.
+    Reach {
+        /// The character's shape (not a point).
+        shape: ShapeSpec,
+        /// Where its centre starts (named points; tagged objects, `eye` above their tops).
+        spots: Spots,
+        /// The region whose ground is mapped (a box; no outline).
+        region: Region,
+        /// The grid's spacing, metres.
+        spacing: f64,
+        /// Places to get to: named points, and objects with these tags (their centres).
+        targets: Vec<Spot>,
+        /// Objects with any of these tags are targets too.
+        target_tags: Vec<String>,
+        /// The highest step it takes, metres (default [`MAX_STEP`]).
+        max_step: Option<f64>,
+        /// The steepest ground it stands on, degrees (default [`MAX_WALKABLE_SLOPE`]).
+        max_slope: Option<f64>,
+    },
 }
+
+/// How near a reached cell's ground must be to a target for the target to count as reached,
+/// metres: about an arm's reach (common practice, from memory).
+pub const TARGET_REACH: f64 = 1.0;
 
 /// The highest step a character takes when the probe does not say, metres: common practice in
 /// character controllers (from memory: 0.3 to 0.45 m).
@@ -350,6 +377,7 @@ impl ProbeQuery {
             ProbeQuery::Coverage { .. } => ProbeKind::Coverage,
             ProbeQuery::Jump { .. } => ProbeKind::Jump,
             ProbeQuery::Walk { .. } => ProbeKind::Walk,
+            ProbeQuery::Reach { .. } => ProbeKind::Reach,
         }
     }
 
@@ -372,6 +400,18 @@ impl ProbeQuery {
                 Launch::Velocity(_) => vec![*from],
                 Launch::Target { to, .. } => vec![*from, *to],
             },
+            ProbeQuery::Reach {
+                spots,
+                region,
+                targets,
+                ..
+            } => {
+                let mut points = spot_points(spots);
+                points.extend(targets.iter().map(|t| DVec3::from_array(t.at)));
+                points.push(DVec3::from_array(region.min));
+                points.push(DVec3::from_array(region.max));
+                points
+            }
         }
     }
 
@@ -393,7 +433,9 @@ impl ProbeQuery {
                 _ => None,
             },
             // Spots and region corners are edited as numbers, not dragged.
-            ProbeQuery::Sightlines { .. } | ProbeQuery::Coverage { .. } => None,
+            ProbeQuery::Sightlines { .. }
+            | ProbeQuery::Coverage { .. }
+            | ProbeQuery::Reach { .. } => None,
         }
     }
 
@@ -486,6 +528,12 @@ pub struct Conditions {
     /// Walk: the way it takes is at most this many metres longer than the route.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub max_detour: Option<f64>,
+    /// Reach: these targets are reached.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub reachable: Option<Vec<String>>,
+    /// Reach: these targets are not reached.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub unreachable: Option<Vec<String>>,
 }
 
 /// A closed range of metres; either end may be left open.

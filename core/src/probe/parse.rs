@@ -46,6 +46,8 @@ struct RawProbe<'a> {
     gravity: Option<f64>,
     max_slope: Option<f64>,
     max_step: Option<f64>,
+    targets: Option<Vec<Spot>>,
+    target_tags: Option<Vec<String>>,
     max_time: Option<f64>,
     ignore_tags: Option<Vec<String>>,
     only_tags: Option<Vec<String>>,
@@ -133,6 +135,18 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
         ProbeKind::Sightlines => &["spots", "spot_tags", "eye"],
         ProbeKind::Coverage => &["spots", "spot_tags", "eye", "region", "spacing"],
         ProbeKind::Walk => &["shape", "path", "max_step", "max_slope"],
+        ProbeKind::Reach => &[
+            "shape",
+            "spots",
+            "spot_tags",
+            "eye",
+            "region",
+            "spacing",
+            "targets",
+            "target_tags",
+            "max_step",
+            "max_slope",
+        ],
         ProbeKind::Jump => &[
             "shape",
             "rotation",
@@ -169,6 +183,8 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
         ("gravity", raw.gravity.is_some()),
         ("max_slope", raw.max_slope.is_some()),
         ("max_step", raw.max_step.is_some()),
+        ("targets", raw.targets.is_some()),
+        ("target_tags", raw.target_tags.is_some()),
         ("max_time", raw.max_time.is_some()),
     ];
     if let Some((field, _)) = present.iter().find(|(f, p)| *p && !allowed.contains(f)) {
@@ -311,6 +327,54 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
                 spots: parse_spots(raw)?,
                 region,
                 spacing,
+            }
+        }
+        ProbeKind::Reach => {
+            let region = raw.region.clone().ok_or_else(|| need("region"))?;
+            let (lo, hi) = check_region("region", &region)?;
+            if region.outline.is_some() {
+                return Err("region.outline applies to coverage, not to a reach map".into());
+            }
+            let spacing = raw.spacing.ok_or_else(|| need("spacing"))?;
+            positive_metres("spacing", spacing)?;
+            let mut sides = (hi - lo).to_array();
+            sides.sort_by(f64::total_cmp);
+            let cells = (sides[2] / spacing + 1.0) * (sides[1] / spacing + 1.0);
+            if cells > MAX_REACH_CELLS as f64 {
+                return Err(format!(
+                    "the region holds about {} grid points at this spacing; a reach map takes at \
+                     most {MAX_REACH_CELLS} (use a larger spacing)",
+                    cells.round()
+                ));
+            }
+            let targets = raw.targets.clone().unwrap_or_default();
+            let mut names = std::collections::HashSet::new();
+            for (k, t) in targets.iter().enumerate() {
+                check_name("a target's name", &t.name)?;
+                if t.name.is_empty() || !names.insert(t.name.as_str()) {
+                    return Err(format!(
+                        "targets[{k}] needs a name of its own (\"{}\" is empty or used twice)",
+                        one_line(&t.name)
+                    ));
+                }
+                finite_point(&format!("targets[{k}].at"), t.at)?;
+            }
+            let target_tags = raw.target_tags.clone().unwrap_or_default();
+            for tag in &target_tags {
+                check_name("a target tag", tag)?;
+            }
+            ProbeQuery::Reach {
+                shape: shape(false)?,
+                spots: parse_spots(raw)?,
+                region,
+                spacing,
+                targets,
+                target_tags,
+                max_step: raw
+                    .max_step
+                    .map(|h| positive("max_step", h, "metres"))
+                    .transpose()?,
+                max_slope: raw.max_slope.map(slope_limit).transpose()?,
             }
         }
         ProbeKind::Walk => ProbeQuery::Walk {
@@ -475,6 +539,10 @@ pub(super) fn check_id(what: &str, id: &str) -> Result<(), String> {
     }
     Ok(())
 }
+
+/// The most grid points a reach map takes. Ours: each is linked to its neighbours by walks, so a
+/// map costs far more per point than coverage; 250,000 is a 500 m square at 1 m.
+pub const MAX_REACH_CELLS: usize = 250_000;
 
 /// The most grid points a coverage probe samples. Ours: a 2 km square at 1 m spacing is 4 million.
 pub const MAX_COVERAGE_POINTS: usize = 4_000_000;
@@ -686,6 +754,29 @@ fn check_conditions(c: &Conditions, query: &ProbeQuery) -> Result<(), String> {
     if (c.reaches.is_some() || c.max_detour.is_some()) && kind != ProbeKind::Walk {
         return Err(format!(
             "expect.reaches and max_detour apply to walks, not to a {kind} probe"
+        ));
+    }
+    if (c.reachable.is_some() || c.unreachable.is_some()) && kind != ProbeKind::Reach {
+        return Err(format!(
+            "expect.reachable and unreachable apply to reach maps, not to a {kind} probe"
+        ));
+    }
+    if let ProbeQuery::Reach {
+        targets,
+        target_tags,
+        ..
+    } = query
+        && target_tags.is_empty()
+        && let Some(name) = c
+            .reachable
+            .iter()
+            .chain(&c.unreachable)
+            .flatten()
+            .find(|n| !targets.iter().any(|t| &t.name == *n))
+    {
+        return Err(format!(
+            "expect names a target that is not in \"targets\": \"{}\"",
+            one_line(name)
         ));
     }
     if let Some(d) = c.max_detour {

@@ -146,6 +146,32 @@ fn probe_to_value(p: &Probe) -> Value {
             m.insert("region".into(), json!(region));
             m.insert("spacing".into(), json!(spacing));
         }
+        ProbeQuery::Reach {
+            shape: s,
+            spots,
+            region,
+            spacing,
+            targets,
+            target_tags,
+            max_step,
+            max_slope,
+        } => {
+            m.insert("shape".into(), shape(s));
+            spots_fields(spots, &mut m);
+            m.insert("region".into(), json!(region));
+            m.insert("spacing".into(), json!(spacing));
+            if !targets.is_empty() {
+                m.insert("targets".into(), json!(targets));
+            }
+            if !target_tags.is_empty() {
+                m.insert("target_tags".into(), json!(target_tags));
+            }
+            for (field, value) in [("max_step", max_step), ("max_slope", max_slope)] {
+                if let Some(v) = value {
+                    m.insert(field.into(), json!(v));
+                }
+            }
+        }
         ProbeQuery::Walk {
             shape: s,
             path,

@@ -16,6 +16,7 @@ mod coverage;
 mod jump;
 mod overlap;
 mod ray;
+mod reach;
 mod rest;
 mod shapes;
 mod sightlines;
@@ -35,6 +36,7 @@ pub(crate) use coverage::{inside as inside_outline, level_axes};
 pub use jump::{CONTACT_TOLERANCE, JumpHit, LAUNCH_SKIN, Trajectory};
 pub use overlap::{OverlapHit, TOUCH_TOLERANCE};
 pub use ray::RayHit;
+pub use reach::{Cell, Reach};
 pub use rest::RestHit;
 pub use shapes::{
     ProbeShape, box_surface, placed_primitive_surface, primitive_shape, shape_surface,

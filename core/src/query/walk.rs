@@ -246,7 +246,7 @@ impl View<'_> {
 
     /// The shape's centre resting on the ground below `at` (a skin above it) within `reach`, and the
     /// contact.
-    fn ground_below(
+    pub(crate) fn ground_below(
         &self,
         shape: &ProbeShape,
         at: DVec3,

@@ -97,6 +97,11 @@ fn the_probe_set_gives_the_reviewed_baseline() {
                 "Expected clear; overlaps drum-2 by 0.289 m (and 1 more)"
             ),
             (
+                "pickups-reachable",
+                "Expected clear; reaches 6271 of 7237 walkable cells (6271 m² of 7237 m²); 7 of 8 \
+                 targets; pickup-on-containers is 8.434 m from the nearest reached ground"
+            ),
+            (
                 "spawns-clear/spawn-pad-hedge",
                 "Expected clear; overlaps yard/bush-05 by 1.017 m"
             ),

@@ -109,13 +109,15 @@ fn ramp(degrees: f64) -> World {
     let run = 3.0 / theta.tan();
     let slab = DQuat::from_rotation_z(theta);
     let length = (run * run + 9.0).sqrt();
-    // A slab 0.2 m thick whose top face runs from (1, 0) to (1 + run, 3).
+    // A slab 0.2 m thick whose top face runs from (1, 0) to (1 + run, 3), going on 0.3 m into the
+    // floor at its foot and ending at the landing's edge.
     let normal = slab * DVec3::Y;
-    let centre = DVec3::new(1.0 + run / 2.0, 1.5, 0.0) - normal * 0.1;
+    let along = slab * DVec3::X;
+    let centre = DVec3::new(1.0 + run / 2.0, 1.5, 0.0) - normal * 0.1 - along * 0.15;
     let builder = floor().primitive(
         "ramp",
         Primitive::Box {
-            half_extents: DVec3::new(length / 2.0 + 0.3, 0.1, 1.5),
+            half_extents: DVec3::new(length / 2.0 + 0.15, 0.1, 1.5),
         },
         centre,
         slab,
@@ -266,4 +268,127 @@ fn a_route_too_long_to_walk_is_refused_at_once() {
         .walk(&character(), &route, GAIT)
         .expect_err("too long");
     assert!(matches!(error, QueryError::RouteTooLong(_)), "{error}");
+}
+
+// ---------------------------------------------------------------- reach maps
+
+fn reach(
+    world: &World,
+    starts: &[DVec3],
+    (min, max): (DVec3, DVec3),
+) -> plumbline_core::query::Reach {
+    world
+        .everything()
+        .reach(&character(), starts, (min, max), 0.5, GAIT)
+        .expect("a reach map")
+}
+
+/// Whether the cell under `at` (a point on the ground) is reached.
+fn reached_at(map: &plumbline_core::query::Reach, at: DVec3) -> bool {
+    let k = map
+        .cell_at(at + DVec3::Y * STAND, DVec3::Y, 0.5, 1.8)
+        .unwrap_or_else(|| panic!("walkable ground at {at}"));
+    map.reached[k]
+}
+
+/// Two rooms 4 m square side by side (x from 0 to 4 and 4.2 to 8.2), walls 2.5 m high; the wall
+/// between them has a 1.2 m doorway when `open`.
+fn rooms(open: bool) -> World {
+    let mut b = floor();
+    let wall = |b: LevelBuilder, name: &str, lo: [f64; 3], hi: [f64; 3]| {
+        block(b, name, DVec3::from(lo), DVec3::from(hi))
+    };
+    b = wall(b, "south", [-0.2, 0.0, -0.2], [8.4, 2.5, 0.0]);
+    b = wall(b, "north", [-0.2, 0.0, 4.0], [8.4, 2.5, 4.2]);
+    b = wall(b, "west", [-0.2, 0.0, 0.0], [0.0, 2.5, 4.0]);
+    b = wall(b, "east", [8.2, 0.0, 0.0], [8.4, 2.5, 4.0]);
+    if open {
+        b = wall(b, "middle-a", [4.0, 0.0, 0.0], [4.2, 2.5, 1.4]);
+        b = wall(b, "middle-b", [4.0, 0.0, 2.6], [4.2, 2.5, 4.0]);
+    } else {
+        b = wall(b, "middle", [4.0, 0.0, 0.0], [4.2, 2.5, 4.0]);
+    }
+    b.world()
+}
+
+#[test]
+fn a_closed_door_leaves_the_other_room_unreached_and_an_open_one_does_not() {
+    // Elementary: with the wall between the rooms whole, no walk crosses it.
+    let region = (DVec3::new(0.0, -0.5, 0.0), DVec3::new(8.2, 3.0, 4.0));
+    let start = [DVec3::new(2.0, STAND, 2.0)];
+    let far = DVec3::new(6.2, 0.0, 2.0);
+    assert!(!reached_at(&reach(&rooms(false), &start, region), far));
+    let open = reach(&rooms(true), &start, region);
+    assert!(reached_at(&open, far));
+    // Every cell of floor is reached (the tops of the walls are cells of their own, not reached).
+    assert!(
+        open.cells
+            .iter()
+            .zip(&open.reached)
+            .all(|(c, r)| c.ground.y > 0.1 || *r)
+    );
+}
+
+#[test]
+fn a_30_degree_ramp_joins_two_floors_and_a_50_degree_one_does_not() {
+    for (degrees, joins) in [(30.0, true), (50.0, false)] {
+        let world = ramp(degrees);
+        let run = 3.0 / f64::to_radians(degrees).tan();
+        let region = (
+            DVec3::new(-2.0, -0.5, -1.0),
+            DVec3::new(1.0 + run + 4.0, 4.0, 1.0),
+        );
+        let map = reach(&world, &[DVec3::new(-1.5, STAND, 0.0)], region);
+        let top = DVec3::new(1.0 + run + 2.0, 3.0, 0.0);
+        assert_eq!(reached_at(&map, top), joins, "{degrees}°");
+    }
+}
+
+#[test]
+fn a_catwalk_above_the_ground_is_a_layer_of_its_own() {
+    // A 2 m wide catwalk 4 m up with no way onto it: the ground under it is reached, it is not,
+    // though both lie in the same grid columns.
+    let world = block(
+        floor(),
+        "catwalk",
+        DVec3::new(-1.0, 3.9, -4.0),
+        DVec3::new(1.0, 4.0, 4.0),
+    )
+    .world();
+    let region = (DVec3::new(-3.0, -0.5, -3.0), DVec3::new(3.0, 5.0, 3.0));
+    let map = reach(&world, &[DVec3::new(-2.5, STAND, 0.0)], region);
+    assert!(reached_at(&map, DVec3::new(0.0, 0.0, 0.0)));
+    assert!(!reached_at(&map, DVec3::new(0.0, 4.0, 0.0)));
+}
+
+#[test]
+fn a_reach_probe_names_the_targets_it_cannot_get_to_and_how_far_off_they_are() {
+    use plumbline_core::check::{Hits, Verdict, answer_probe};
+    use plumbline_core::probe::parse_probe_set;
+    let world = rooms(false);
+    let probe = |expect: &str| {
+        let text = format!(
+            r#"{{"plumbline": "probes", "version": 1, "level": "level.json", "probes": [
+                {{"id": "map", "kind": "reach",
+                  "shape": {{"type": "capsule", "radius": 0.35, "half_height": 0.55}},
+                  "spots": [{{"name": "spawn", "at": [2, {STAND}, 2]}}],
+                  "region": {{"min": [0, -0.5, 0], "max": [8.2, 3, 4]}}, "spacing": 0.5,
+                  "targets": [{{"name": "near", "at": [3, 0.3, 3]}},
+                              {{"name": "far", "at": [6.2, 0.3, 2]}}],
+                  "expect": {expect}}}]}}"#
+        );
+        let set = parse_probe_set(std::path::Path::new("t.probes.json"), &text).unwrap();
+        answer_probe(&world, &set.probes[0])
+    };
+    let named = probe(r#"{"reachable": ["near"], "unreachable": ["far"]}"#);
+    assert_eq!(named.verdict, Verdict::Pass, "{}", named.reason);
+    let all = probe(r#""clear""#);
+    assert_eq!(all.verdict, Verdict::Fail);
+    // The nearest reached ground to "far" is in the first room, beyond the wall.
+    assert!(all.reason.contains("far is "), "{}", all.reason);
+    let Hits::Reach(records) = &all.hits else {
+        panic!("a reach answer")
+    };
+    let far = &records[0].targets[1];
+    assert!(!far.reachable && far.gap.unwrap() > 0.5, "{far:?}");
 }
