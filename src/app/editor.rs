@@ -14,7 +14,7 @@ use plumbline_core::check::trajectory;
 use plumbline_core::level::ShapeSpec;
 use plumbline_core::probe::{
     Conditions, Expect, ExpectWord, HitsMode, JUMP_TIME, Launch, MAX_STEP, MAX_WALKABLE_SLOPE,
-    Probe, ProbeQuery, Range, STANDARD_GRAVITY, Spots, Turns,
+    Probe, ProbeQuery, Range, Region, STANDARD_GRAVITY, Spots, Turns,
 };
 
 /// An edit made in the inspector.
@@ -282,17 +282,40 @@ fn query_fields(ui: &mut egui::Ui, query: &mut ProbeQuery) -> Option<String> {
             spacing,
         } => {
             spots_editor(ui, spots, &mut mark);
-            let mut lo = DVec3::from_array(region.min);
-            let mut hi = DVec3::from_array(region.max);
-            if point(ui, "region from", &mut lo) {
-                region.min = lo.to_array();
-                mark(true, "region");
-            }
-            if point(ui, "region to", &mut hi) {
-                region.max = hi.to_array();
-                mark(true, "region");
-            }
+            mark(region_editor(ui, region), "region");
             mark(number(ui, "spacing", spacing, " m", 0.05), "spacing");
+        }
+        ProbeQuery::Reach {
+            shape,
+            spots,
+            region,
+            spacing,
+            targets,
+            max_step,
+            max_slope,
+            ..
+        } => {
+            mark(shape_editor(ui, shape, false), "shape");
+            spots_editor(ui, spots, &mut mark);
+            mark(region_editor(ui, region), "region");
+            mark(number(ui, "spacing", spacing, " m", 0.1), "spacing");
+            for (k, target) in targets.iter_mut().enumerate() {
+                let mut at = DVec3::from_array(target.at);
+                if point(ui, &target.name.clone(), &mut at) {
+                    target.at = at.to_array();
+                    mark(true, &format!("target {k}"));
+                }
+            }
+            let mut step = max_step.unwrap_or(MAX_STEP);
+            if number(ui, "highest step", &mut step, " m", 0.01) {
+                *max_step = Some(step);
+                mark(true, "highest step");
+            }
+            let mut slope = max_slope.unwrap_or(MAX_WALKABLE_SLOPE);
+            if number(ui, "steepest ground", &mut slope, "°", 0.0) {
+                *max_slope = Some(slope.min(90.0));
+                mark(true, "steepest ground");
+            }
         }
         ProbeQuery::Walk {
             shape,
@@ -350,6 +373,22 @@ fn query_fields(ui: &mut egui::Ui, query: &mut ProbeQuery) -> Option<String> {
         }
     }
     field
+}
+
+/// A region's two corners, each three numbers.
+fn region_editor(ui: &mut egui::Ui, region: &mut Region) -> bool {
+    let mut changed = false;
+    let mut lo = DVec3::from_array(region.min);
+    let mut hi = DVec3::from_array(region.max);
+    if point(ui, "region from", &mut lo) {
+        region.min = lo.to_array();
+        changed = true;
+    }
+    if point(ui, "region to", &mut hi) {
+        region.max = hi.to_array();
+        changed = true;
+    }
+    changed
 }
 
 /// A change to a list of path points made with [`points_buttons`].

@@ -262,7 +262,9 @@ pub fn hit_columns(hits: &Hits) -> (Vec<Column>, Vec<Vec<Cell>>) {
                 ]
             }),
         ),
-        Hits::Rest(_) | Hits::Sightlines(_) | Hits::Coverage(_) => (Vec::new(), Vec::new()),
+        Hits::Rest(_) | Hits::Sightlines(_) | Hits::Coverage(_) | Hits::Reach(_) => {
+            (Vec::new(), Vec::new())
+        }
     }
 }
 

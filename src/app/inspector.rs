@@ -168,6 +168,7 @@ pub fn inspector_ui(
         Hits::Jump(h) if h.is_empty() => "Landing (none)".to_string(),
         Hits::Jump(_) => "Landing".to_string(),
         Hits::Walk(_) => "Walk".to_string(),
+        Hits::Reach(_) => "Reach".to_string(),
         hits => format!("Hits ({})", hits.len()),
     };
     egui::CollapsingHeader::new(heading)
@@ -296,6 +297,11 @@ fn question_words(probe: &Probe) -> String {
         ProbeQuery::Coverage { spots, spacing, .. } => format!(
             "coverage from {}, every {}",
             spots_words(spots),
+            metres(*spacing)
+        ),
+        ProbeQuery::Reach { shape, spacing, .. } => format!(
+            "reach of a {}, every {}",
+            shape_words(shape),
             metres(*spacing)
         ),
         ProbeQuery::Walk { shape, path, .. } => {
@@ -429,7 +435,7 @@ fn expect_words(expect: Option<&Expect>) -> String {
 fn hits_table(ui: &mut egui::Ui, result: &ProbeResult, selection: &mut Selection) {
     if matches!(
         result.hits,
-        Hits::Rest(_) | Hits::Sightlines(_) | Hits::Coverage(_)
+        Hits::Rest(_) | Hits::Sightlines(_) | Hits::Coverage(_) | Hits::Reach(_)
     ) {
         super::level_answers::answer_ui(ui, result, selection);
         return;

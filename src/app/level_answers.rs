@@ -1,13 +1,14 @@
 //! The inspector's view of the whole-level kinds' answers: a rest's support and gap, the sightline
-//! matrix (click a cell: that sightline is marked in the view), and a coverage's share and areas.
+//! matrix (click a cell: that sightline is marked in the view), a coverage's share and areas, and a
+//! reach map's areas and targets.
 
 use eframe::egui;
 use egui::RichText;
 
 use super::Selection;
 use super::badge::{color32, paint_shape};
-use crate::view::palette::StateMark;
 use crate::view::palette::okabe_ito;
+use crate::view::palette::{STEEP, StateMark};
 use plumbline_core::check::{Hits, ProbeResult, metres};
 
 /// The answer of a rest, sightlines or coverage probe.
@@ -65,8 +66,66 @@ pub fn answer_ui(ui: &mut egui::Ui, result: &ProbeResult, selection: &mut Select
                 });
             }
         }
+        Hits::Reach(records) => {
+            for r in records {
+                reach_ui(ui, r);
+            }
+        }
         _ => {}
     }
+}
+
+/// A reach map: how much ground is reached, and each target with its gap.
+fn reach_ui(ui: &mut egui::Ui, r: &plumbline_core::check::ReachRecord) {
+    egui::Grid::new("reach").num_columns(2).show(ui, |ui| {
+        ui.label("reached");
+        ui.label(
+            RichText::new(format!("{:.0} m²", r.area_reached))
+                .strong()
+                .color(color32(okabe_ito::BLUISH_GREEN)),
+        );
+        ui.end_row();
+        ui.label("walkable, not reached");
+        ui.label(format!("{:.0} m²", r.area_unreached));
+        ui.end_row();
+        ui.label("cells");
+        ui.label(format!("{} of {} reached", r.reached, r.cells));
+        ui.end_row();
+    });
+    if !r.targets.is_empty() {
+        egui::Grid::new("targets")
+            .num_columns(3)
+            .striped(true)
+            .show(ui, |ui| {
+                for head in ["target", "reached", "gap"] {
+                    ui.label(RichText::new(head).strong());
+                }
+                ui.end_row();
+                for t in &r.targets {
+                    ui.label(&*t.name);
+                    let (mark, colour, word) = if t.reachable {
+                        (StateMark::Round, okabe_ito::BLUISH_GREEN, "yes")
+                    } else {
+                        (StateMark::Square, okabe_ito::VERMILLION, "no")
+                    };
+                    ui.horizontal(|ui| {
+                        swatch(ui, mark, colour);
+                        ui.label(word);
+                    });
+                    ui.label(t.gap.filter(|_| !t.reachable).map_or(String::new(), metres));
+                    ui.end_row();
+                }
+            });
+    }
+    ui.horizontal(|ui| {
+        ui.label(RichText::new("In the view:").weak());
+        swatch(ui, StateMark::Round, okabe_ito::BLUISH_GREEN);
+        ui.label(RichText::new("reached").weak());
+        swatch(ui, StateMark::Square, okabe_ito::VERMILLION);
+        ui.label(RichText::new("not reached").weak());
+        swatch(ui, StateMark::Cross, STEEP);
+        ui.label(RichText::new("too steep").weak());
+    });
 }
 
 /// A small painted marker, as the view draws it.

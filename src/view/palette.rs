@@ -80,6 +80,8 @@ pub const SELECTED: Rgb = okabe_ito::ORANGE;
 pub const CHANGED: Rgb = okabe_ito::YELLOW;
 /// Messages about something that went wrong (a failed save, an invalid field).
 pub const WARNING: Rgb = okabe_ito::ORANGE;
+/// Ground too steep to stand on, in a reach map: a quiet grey, apart from the verdict colours.
+pub const STEEP: Rgb = [150, 150, 150];
 /// Handles of the selected probe and points being placed: near white, apart from every state colour.
 pub const HANDLE: Rgb = [245, 245, 245];
 /// The outline of the triangle under the pointer.

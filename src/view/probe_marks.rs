@@ -251,6 +251,19 @@ fn own_marks(
                 coverage_marks(record, out);
             }
         }
+        // A reach map covers the view: drawn in full only while selected.
+        (ProbeQuery::Reach { region, .. }, Hits::Reach(records)) if emphasis.selected => {
+            box_outline(
+                region.min.into(),
+                region.max.into(),
+                colour,
+                width * 0.6,
+                out,
+            );
+            for record in records {
+                reach_marks(record, out);
+            }
+        }
         (ProbeQuery::Walk { shape, path, .. }, Hits::Walk(walks)) => {
             // The route as drawn, thin and dashed; the way taken, solid; the character where it
             // stopped (or, when selected, where it got to).
@@ -397,6 +410,58 @@ fn coverage_marks(record: &plumbline_core::check::CoverageRecord, out: &mut Vec<
     }
 }
 
+/// A reach map's ground: reached cells as small round bluish-green dots, walkable cells not reached
+/// as vermillion squares, ground too steep as grey crosses; targets as diamonds (bluish green when
+/// reached; vermillion, with a dashed line to the nearest reached ground, when not).
+fn reach_marks(record: &plumbline_core::check::ReachRecord, out: &mut Vec<Mark>) {
+    use super::palette::{STEEP, StateMark, okabe_ito};
+    let dots = [
+        (
+            &record.reached_points,
+            okabe_ito::BLUISH_GREEN,
+            StateMark::Round,
+        ),
+        (
+            &record.unreached_points,
+            okabe_ito::VERMILLION,
+            StateMark::Square,
+        ),
+        (&record.steep_points, STEEP, StateMark::Cross),
+    ];
+    for (points, colour, mark) in dots {
+        for p in points {
+            out.push(Mark::Point {
+                at: (*p).into(),
+                colour,
+                size: 4.0,
+                mark,
+            });
+        }
+    }
+    for t in &record.targets {
+        let colour = if t.reachable {
+            okabe_ito::BLUISH_GREEN
+        } else {
+            okabe_ito::VERMILLION
+        };
+        out.push(Mark::Point {
+            at: t.at.into(),
+            colour,
+            size: MARKER,
+            mark: StateMark::Diamond,
+        });
+        if let (false, Some(nearest)) = (t.reachable, t.nearest) {
+            out.push(Mark::Line {
+                from: t.at.into(),
+                to: nearest.into(),
+                colour,
+                width: 2.0,
+                dashed: true,
+            });
+        }
+    }
+}
+
 /// The twelve edges of the box `lo`–`hi`.
 fn box_outline(lo: DVec3, hi: DVec3, colour: [u8; 3], width: f64, out: &mut Vec<Mark>) {
     let corner = |k: usize| {
@@ -432,7 +497,7 @@ pub fn start_point(query: &ProbeQuery, result: Option<&ProbeResult>) -> DVec3 {
         | ProbeQuery::Rest { at, .. } => *at,
         ProbeQuery::Jump { from, .. } => *from,
         ProbeQuery::Walk { path, .. } => path[0],
-        ProbeQuery::Sightlines { .. } | ProbeQuery::Coverage { .. } => {
+        ProbeQuery::Sightlines { .. } | ProbeQuery::Coverage { .. } | ProbeQuery::Reach { .. } => {
             let answered = result.and_then(|r| match &r.hits {
                 Hits::Sightlines(pairs) => pairs.first().map(|p| DVec3::from(p.from)),
                 Hits::Coverage(records) => records
@@ -462,7 +527,7 @@ pub fn hit_points(hits: &Hits) -> Vec<DVec3> {
             .filter(|w| !w.reached)
             .filter_map(|w| w.end())
             .collect(),
-        Hits::Rest(_) | Hits::Sightlines(_) | Hits::Coverage(_) => Vec::new(),
+        Hits::Rest(_) | Hits::Sightlines(_) | Hits::Coverage(_) | Hits::Reach(_) => Vec::new(),
     }
 }
 
