@@ -96,7 +96,7 @@ pub fn overview_ui(
     ui.label(
         RichText::new(
             "Pick a probe in the list or click its marker in the view. To add one, pick a tool \
-             above (Ray, Sweep, Closest, Overlap) and click in the view.",
+             above (Ray, Sweep, Closest, Overlap, Jump, Walk) and click in the view.",
         )
         .weak(),
     );
