@@ -392,3 +392,19 @@ fn a_reach_probe_names_the_targets_it_cannot_get_to_and_how_far_off_they_are() {
     let far = &records[0].targets[1];
     assert!(!far.reachable && far.gap.unwrap() > 0.5, "{far:?}");
 }
+
+#[test]
+fn a_reach_map_is_the_same_on_one_thread_and_on_two() {
+    // Results are byte-identical for any --jobs (DEVELOPERS.md, check invariants).
+    let world = rooms(true);
+    let region = (DVec3::new(0.0, -0.5, 0.0), DVec3::new(8.2, 3.0, 4.0));
+    let start = [DVec3::new(2.0, STAND, 2.0)];
+    let on = |threads: usize| {
+        rayon::ThreadPoolBuilder::new()
+            .num_threads(threads)
+            .build()
+            .unwrap()
+            .install(|| reach(&world, &start, region))
+    };
+    assert_eq!(on(1), on(2));
+}
