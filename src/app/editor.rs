@@ -306,16 +306,7 @@ fn query_fields(ui: &mut egui::Ui, query: &mut ProbeQuery) -> Option<String> {
                     mark(true, &format!("target {k}"));
                 }
             }
-            let mut step = max_step.unwrap_or(MAX_STEP);
-            if number(ui, "highest step", &mut step, " m", 0.01) {
-                *max_step = Some(step);
-                mark(true, "highest step");
-            }
-            let mut slope = max_slope.unwrap_or(MAX_WALKABLE_SLOPE);
-            if number(ui, "steepest ground", &mut slope, "°", 0.0) {
-                *max_slope = Some(slope.min(90.0));
-                mark(true, "steepest ground");
-            }
+            mark(gait_editor(ui, max_step, max_slope), "gait");
         }
         ProbeQuery::Walk {
             shape,
@@ -331,16 +322,7 @@ fn query_fields(ui: &mut egui::Ui, query: &mut ProbeQuery) -> Option<String> {
                 );
             }
             mark(points_buttons(ui, path).is_some(), "path");
-            let mut step = max_step.unwrap_or(MAX_STEP);
-            if number(ui, "highest step", &mut step, " m", 0.01) {
-                *max_step = Some(step);
-                mark(true, "highest step");
-            }
-            let mut slope = max_slope.unwrap_or(MAX_WALKABLE_SLOPE);
-            if number(ui, "steepest ground", &mut slope, "°", 0.0) {
-                *max_slope = Some(slope.min(90.0));
-                mark(true, "steepest ground");
-            }
+            mark(gait_editor(ui, max_step, max_slope), "gait");
         }
         ProbeQuery::Jump {
             shape,
@@ -373,6 +355,22 @@ fn query_fields(ui: &mut egui::Ui, query: &mut ProbeQuery) -> Option<String> {
         }
     }
     field
+}
+
+/// A character's gait: the highest step and the steepest ground (at most a wall).
+fn gait_editor(ui: &mut egui::Ui, max_step: &mut Option<f64>, max_slope: &mut Option<f64>) -> bool {
+    let mut changed = false;
+    let mut step = max_step.unwrap_or(MAX_STEP);
+    if number(ui, "highest step", &mut step, " m", 0.01) {
+        *max_step = Some(step);
+        changed = true;
+    }
+    let mut slope = max_slope.unwrap_or(MAX_WALKABLE_SLOPE);
+    if number(ui, "steepest ground", &mut slope, "°", 0.0) {
+        *max_slope = Some(slope.min(90.0));
+        changed = true;
+    }
+    changed
 }
 
 /// A region's two corners, each three numbers.

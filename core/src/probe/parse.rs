@@ -348,17 +348,7 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
                 ));
             }
             let targets = raw.targets.clone().unwrap_or_default();
-            let mut names = std::collections::HashSet::new();
-            for (k, t) in targets.iter().enumerate() {
-                check_name("a target's name", &t.name)?;
-                if t.name.is_empty() || !names.insert(t.name.as_str()) {
-                    return Err(format!(
-                        "targets[{k}] needs a name of its own (\"{}\" is empty or used twice)",
-                        one_line(&t.name)
-                    ));
-                }
-                finite_point(&format!("targets[{k}].at"), t.at)?;
-            }
+            check_named_points("targets", "a target's name", &targets)?;
             let target_tags = raw.target_tags.clone().unwrap_or_default();
             for tag in &target_tags {
                 check_name("a target tag", tag)?;
@@ -557,17 +547,7 @@ fn parse_spots(raw: &RawProbe) -> Result<Spots, String> {
             raw.kind
         ));
     }
-    let mut names = std::collections::HashSet::new();
-    for (k, spot) in points.iter().enumerate() {
-        check_name("a spot's name", &spot.name)?;
-        if spot.name.is_empty() || !names.insert(spot.name.as_str()) {
-            return Err(format!(
-                "spots[{k}] needs a name of its own (\"{}\" is empty or used twice)",
-                one_line(&spot.name)
-            ));
-        }
-        finite_point(&format!("spots[{k}].at"), spot.at)?;
-    }
+    check_named_points("spots", "a spot's name", &points)?;
     for tag in &tags {
         check_name("a spot tag", tag)?;
     }
@@ -584,6 +564,23 @@ fn parse_spots(raw: &RawProbe) -> Result<Spots, String> {
         tags,
         eye: raw.eye,
     })
+}
+
+/// Named points (spots, targets) in the list `field`: each name within limits and its own, each
+/// point finite.
+fn check_named_points(field: &str, what: &str, points: &[Spot]) -> Result<(), String> {
+    let mut names = std::collections::HashSet::new();
+    for (k, spot) in points.iter().enumerate() {
+        check_name(what, &spot.name)?;
+        if spot.name.is_empty() || !names.insert(spot.name.as_str()) {
+            return Err(format!(
+                "{field}[{k}] needs a name of its own (\"{}\" is empty or used twice)",
+                one_line(&spot.name)
+            ));
+        }
+        finite_point(&format!("{field}[{k}].at"), spot.at)?;
+    }
+    Ok(())
 }
 
 /// A positive number of metres within the size limit.
