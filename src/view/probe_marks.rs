@@ -380,26 +380,37 @@ fn sightline_marks(
     }
 }
 
+/// Small sample-point markers (coverage, reach maps), one per point.
+fn dots(
+    points: &[[f64; 3]],
+    colour: [u8; 3],
+    mark: super::palette::StateMark,
+    out: &mut Vec<Mark>,
+) {
+    out.extend(points.iter().map(|p| Mark::Point {
+        at: (*p).into(),
+        colour,
+        size: 4.0,
+        mark,
+    }));
+}
+
 /// A coverage probe's sample points: seen ones as small round bluish-green dots, unseen ones as
 /// vermillion squares (shape and colour both tell them apart), and its spots.
 fn coverage_marks(record: &plumbline_core::check::CoverageRecord, out: &mut Vec<Mark>) {
-    let size = 4.0;
-    for p in &record.seen_points {
-        out.push(Mark::Point {
-            at: (*p).into(),
-            colour: super::palette::okabe_ito::BLUISH_GREEN,
-            size,
-            mark: super::palette::StateMark::Round,
-        });
-    }
-    for p in &record.unseen_points {
-        out.push(Mark::Point {
-            at: (*p).into(),
-            colour: super::palette::okabe_ito::VERMILLION,
-            size,
-            mark: super::palette::StateMark::Square,
-        });
-    }
+    use super::palette::{StateMark, okabe_ito};
+    dots(
+        &record.seen_points,
+        okabe_ito::BLUISH_GREEN,
+        StateMark::Round,
+        out,
+    );
+    dots(
+        &record.unseen_points,
+        okabe_ito::VERMILLION,
+        StateMark::Square,
+        out,
+    );
     for p in &record.spot_points {
         out.push(Mark::Point {
             at: (*p).into(),
@@ -415,29 +426,19 @@ fn coverage_marks(record: &plumbline_core::check::CoverageRecord, out: &mut Vec<
 /// reached; vermillion, with a dashed line to the nearest reached ground, when not).
 fn reach_marks(record: &plumbline_core::check::ReachRecord, out: &mut Vec<Mark>) {
     use super::palette::{STEEP, StateMark, okabe_ito};
-    let dots = [
-        (
-            &record.reached_points,
-            okabe_ito::BLUISH_GREEN,
-            StateMark::Round,
-        ),
-        (
-            &record.unreached_points,
-            okabe_ito::VERMILLION,
-            StateMark::Square,
-        ),
-        (&record.steep_points, STEEP, StateMark::Cross),
-    ];
-    for (points, colour, mark) in dots {
-        for p in points {
-            out.push(Mark::Point {
-                at: (*p).into(),
-                colour,
-                size: 4.0,
-                mark,
-            });
-        }
-    }
+    dots(
+        &record.reached_points,
+        okabe_ito::BLUISH_GREEN,
+        StateMark::Round,
+        out,
+    );
+    dots(
+        &record.unreached_points,
+        okabe_ito::VERMILLION,
+        StateMark::Square,
+        out,
+    );
+    dots(&record.steep_points, STEEP, StateMark::Cross, out);
     for t in &record.targets {
         let colour = if t.reachable {
             okabe_ito::BLUISH_GREEN

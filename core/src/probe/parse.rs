@@ -219,17 +219,7 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
         }
         ProbeKind::Sweep => {
             let shape = shape(false)?;
-            let path: Vec<DVec3> = raw
-                .path
-                .as_ref()
-                .ok_or_else(|| need("path"))?
-                .iter()
-                .enumerate()
-                .map(|(k, p)| finite_point(&format!("path[{k}]"), *p))
-                .collect::<Result<_, _>>()?;
-            if path.len() < 2 {
-                return Err("a sweep path needs at least two points".into());
-            }
+            let path = path_points(raw, &need)?;
             let turns = parse_turns(raw, path.len())?;
             // A turning shape may turn in place; otherwise the path must go somewhere.
             let turns_somewhere = turns.as_ref().is_some_and(|t| match t {
@@ -442,8 +432,8 @@ fn slope_limit(degrees: f64) -> Result<f64, String> {
     }
 }
 
-/// A walk's waypoints: two or more finite points, not all one.
-fn waypoints(raw: &RawProbe, need: &dyn Fn(&str) -> String) -> Result<Vec<DVec3>, String> {
+/// A sweep's or walk's `path`: two or more finite points.
+fn path_points(raw: &RawProbe, need: &dyn Fn(&str) -> String) -> Result<Vec<DVec3>, String> {
     let path: Vec<DVec3> = raw
         .path
         .as_ref()
@@ -453,8 +443,14 @@ fn waypoints(raw: &RawProbe, need: &dyn Fn(&str) -> String) -> Result<Vec<DVec3>
         .map(|(k, p)| finite_point(&format!("path[{k}]"), *p))
         .collect::<Result<_, _>>()?;
     if path.len() < 2 {
-        return Err("a walk needs at least two waypoints".into());
+        return Err(format!("a {} path needs at least two points", raw.kind));
     }
+    Ok(path)
+}
+
+/// A walk's waypoints: a path whose points are not all one.
+fn waypoints(raw: &RawProbe, need: &dyn Fn(&str) -> String) -> Result<Vec<DVec3>, String> {
+    let path = path_points(raw, need)?;
     if path.windows(2).all(|w| w[0] == w[1]) {
         return Err("the walk's waypoints are all one point".into());
     }
