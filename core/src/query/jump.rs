@@ -81,7 +81,7 @@ pub const CONTACT_TOLERANCE: f64 = 1e-6;
 pub const LAUNCH_SKIN: f64 = 1e-3;
 
 /// The most advancement steps one jump takes; a contact approached at a grazing angle needs the most.
-/// Past it, the contact is reported where the steps stopped (within the step's distance). Ours.
+/// Past it, the jump is an error (the search did not settle). Ours.
 const MAX_STEPS: usize = 20_000;
 
 impl View<'_> {
@@ -150,11 +150,9 @@ impl View<'_> {
             };
             t += step(arc, t, reach);
         }
-        let at = arc.at(t);
-        Ok(self
-            .without(&left)
-            .closest(probe, at, horizon)?
-            .map(|hit| contact(hit, t, at, false)))
+        // Still short of a contact after every step (grazing all the way): say so rather than
+        // report a landing that is not one.
+        Err(QueryError::NotConverged)
     }
 }
 
