@@ -7,12 +7,13 @@ use std::time::SystemTime;
 
 use plumbline_core::atomic::{write_atomic, write_with_backup};
 use plumbline_core::check::{
-    Aspect, DEFAULT_TOLERANCE, ProbeResult, Summary, answer_probe, changes, expand_rules,
+    Aspect, DEFAULT_TOLERANCE, Hits, ProbeResult, Summary, Verdict, answer_probe, changes,
+    expand_rules,
 };
 use plumbline_core::error::{Diagnostic, Error};
 use plumbline_core::input::PathPolicy;
 use plumbline_core::level::{Geometry, Level, LintSettings};
-use plumbline_core::probe::{Probe, ProbeSet, Rule, parse_probe_set, probe_set_to_json};
+use plumbline_core::probe::{Probe, ProbeKind, ProbeSet, Rule, parse_probe_set, probe_set_to_json};
 use plumbline_core::query::World;
 use plumbline_core::session::{Edited, OpenOptions, Opened, open};
 
@@ -42,6 +43,29 @@ pub struct Document {
     /// Edits made since opening; compared with `saved_edits` to tell unsaved changes.
     edits: u64,
     saved_edits: u64,
+    /// Probes (by id) whose answers are owed: edited kinds that answer in the background.
+    owed: Vec<String>,
+    /// Probes (by id) whose background answer the user cancelled.
+    cancelled: Vec<String>,
+}
+
+/// True for the kinds whose answers take long enough (a reach map: seconds) that an edit in the
+/// window answers them in the background, with progress and a way to cancel.
+pub fn answers_in_background(kind: ProbeKind) -> bool {
+    kind == ProbeKind::Reach
+}
+
+/// What a probe shows while its answer is owed.
+fn owed_result(probe: &Probe) -> ProbeResult {
+    let kind = probe.query.kind();
+    ProbeResult {
+        id: probe.id.clone(),
+        kind,
+        verdict: Verdict::Unchecked,
+        reason: "Being answered in the background…".to_string(),
+        hits: Hits::empty(kind),
+        clearance: None,
+    }
 }
 
 impl Document {
@@ -69,6 +93,8 @@ impl Document {
             stamps,
             edits: 0,
             saved_edits: 0,
+            owed: Vec::new(),
+            cancelled: Vec::new(),
         })
     }
 
@@ -86,16 +112,93 @@ impl Document {
             .zip(&self.results)
             .map(|(p, r)| (p.id.as_str(), (p, r)))
             .collect();
-        let results = probes
+        let kept: Vec<Option<ProbeResult>> = probes
             .iter()
             .map(|probe| match old.get(probe.id.as_str()) {
-                Some((was, result)) if *was == probe => (*result).clone(),
-                _ => answer_probe(&self.world, probe),
+                Some((was, result)) if *was == probe => Some((*result).clone()),
+                _ => None,
             })
             .collect();
-        self.results = results;
+        drop(old);
+        self.results = probes
+            .iter()
+            .zip(kept)
+            .map(|(probe, kept)| kept.unwrap_or_else(|| self.answer_or_owe(probe)))
+            .collect();
         self.probes.probes = probes;
         self.edits += 1;
+    }
+
+    /// The answer of `probe`, or (for a kind answered in the background) a note that it is owed.
+    fn answer_or_owe(&mut self, probe: &Probe) -> ProbeResult {
+        self.cancelled.retain(|id| *id != probe.id);
+        if !answers_in_background(probe.query.kind()) {
+            return answer_probe(&self.world, probe);
+        }
+        if !self.owed.contains(&probe.id) {
+            self.owed.push(probe.id.clone());
+        }
+        owed_result(probe)
+    }
+
+    /// The first probe whose answer is owed, with the world to answer it on.
+    pub fn next_owed(&mut self) -> Option<(Probe, Arc<World>)> {
+        let probes = &self.probes.probes;
+        self.owed.retain(|id| probes.iter().any(|p| p.id == *id));
+        let id = self.owed.first()?;
+        let probe = probes.iter().find(|p| p.id == *id)?;
+        Some((probe.clone(), self.world.clone()))
+    }
+
+    /// True while the answer of exactly this probe, on this world, is owed.
+    pub fn owes(&self, probe: &Probe, world: &Arc<World>) -> bool {
+        Arc::ptr_eq(world, &self.world)
+            && self.owed.contains(&probe.id)
+            && self.probes.probes.iter().any(|p| p == probe)
+    }
+
+    /// Takes in an answer made in the background for `probe` on `world`, when it is still owed
+    /// (`cancelled` when the user stopped it: the probe then shows why, and can be answered again).
+    /// Returns whether it was taken.
+    pub fn take_answer(
+        &mut self,
+        probe: &Probe,
+        world: &Arc<World>,
+        result: ProbeResult,
+        cancelled: bool,
+    ) -> bool {
+        if !self.owes(probe, world) {
+            return false;
+        }
+        let Some(index) = self.probes.probes.iter().position(|p| p == probe) else {
+            return false;
+        };
+        self.owed.retain(|id| *id != probe.id);
+        if cancelled {
+            self.cancelled.push(probe.id.clone());
+        }
+        self.results[index] = result;
+        true
+    }
+
+    /// True when the background answer of probe `index` was cancelled.
+    pub fn was_cancelled(&self, index: usize) -> bool {
+        self.probes
+            .probes
+            .get(index)
+            .is_some_and(|p| self.cancelled.contains(&p.id))
+    }
+
+    /// Owes the answer of probe `index` again (after a cancel).
+    pub fn answer_again(&mut self, index: usize) {
+        if let Some(probe) = self.probes.probes.get(index).cloned() {
+            self.results[index] = self.answer_or_owe(&probe);
+        }
+    }
+
+    /// True while some probe's answer is owed.
+    pub fn is_owing(&self) -> bool {
+        !self.owed.is_empty()
     }
 
     /// The probe set as the user wrote it: the written probes and the rules (what undo keeps).
@@ -123,7 +226,7 @@ impl Document {
 
     /// Replaces probe `index` and answers it, and counts an edit.
     pub fn replace_probe(&mut self, index: usize, probe: Probe) {
-        self.results[index] = answer_probe(&self.world, &probe);
+        self.results[index] = self.answer_or_owe(&probe);
         self.probes.probes[index] = probe;
         self.edits += 1;
     }
@@ -217,8 +320,13 @@ impl Document {
         // The rules' probes as they are on the new level, after the written probes as edited now.
         let mut now = written_probes(&self.probes.probes);
         now.extend(expand_rules(&self.probes.rules, &level.world));
+        // Answers owed on the old level are owed anew if still needed; a probe whose answer was
+        // owed before or is owed now is not told as changed.
+        let unanswered = std::mem::take(&mut self.owed);
+        self.cancelled.clear();
+        self.world = Arc::new(level.world);
         if probes.probes != now {
-            results = now.iter().map(|p| answer_probe(&level.world, p)).collect();
+            results = now.iter().map(|p| self.answer_or_owe(p)).collect();
         }
         // Changes are told for probes there before and after (a rule's probe for a new object is
         // new, not changed).
@@ -233,6 +341,9 @@ impl Document {
             .iter()
             .zip(&results)
             .enumerate()
+            .filter(|(_, (probe, _))| {
+                !unanswered.contains(&probe.id) && !self.owed.contains(&probe.id)
+            })
             .filter_map(|(i, (probe, new))| {
                 let old = before.get(probe.id.as_str())?;
                 let aspects = changes(old, new, DEFAULT_TOLERANCE);
@@ -245,7 +356,6 @@ impl Document {
         self.diagnostics = level.diagnostics;
         self.lint = level.lint;
         self.level = level.model.expect(KEPT);
-        self.world = Arc::new(level.world);
         self.results = results;
         changed
     }

@@ -61,6 +61,7 @@ impl Workbench {
         self.shortcuts(&ctx);
         self.autosave();
         self.plots.poll();
+        self.poll_answers(&ctx);
         let shown = self.shown();
         // Before the view: a finding picked now is framed and drawn in this frame.
         self.lint_window(&ctx);
@@ -124,6 +125,10 @@ impl Workbench {
                         self.scroll_list = true;
                     }
                     Some(InspectorAction::Highlight(tag)) => self.highlight_tag = tag,
+                    Some(InspectorAction::AnswerAgain(index)) => {
+                        self.document.answer_again(index);
+                        self.results_revision += 1;
+                    }
                     None => {}
                 }
             });
@@ -155,6 +160,8 @@ impl Workbench {
             self.plots
                 .request(&self.document, self.selection.probe, &ctx);
         }
+        // Answers owed by this frame's edits start now.
+        self.poll_answers(&ctx);
         // A gesture ends when nothing is being dragged or typed into.
         if ctx.dragged_id().is_none() && ctx.memory(|m| m.focused().is_none()) {
             self.history.seal();

@@ -94,6 +94,8 @@ pub enum InspectorAction {
     Select(usize),
     /// Highlight the objects with this tag in the view (or none).
     Highlight(Option<String>),
+    /// Answer this probe again (its background answer was cancelled).
+    AnswerAgain(usize),
 }
 
 /// Shows the inspector for the selection: one probe's answer and editor, or bulk edits for several.
@@ -125,6 +127,9 @@ pub fn inspector_ui(
     }
     badge(ui, result.verdict, "");
     ui.label(&result.reason);
+    if document.was_cancelled(index) && ui.button("Answer again").clicked() {
+        action = Some(InspectorAction::AnswerAgain(index));
+    }
     if let Some(aspects) = changes.get(&probe.id) {
         let words: Vec<String> = aspects.iter().map(|a| a.to_string()).collect();
         ui.label(

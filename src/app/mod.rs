@@ -8,6 +8,7 @@
 //! [`frame`] lays them out for one frame; [`editing`] is the one way probes change; [`launch`]
 //! starts the window.
 
+pub mod answering;
 pub mod badge;
 pub mod capture;
 pub mod commands;
@@ -81,6 +82,7 @@ pub struct Workbench {
     shown_cache: Option<((ListFilter, u64), Vec<usize>)>,
     plots: plotting::PlotWorker,
     plot_wanted: bool,
+    answers: answering::BackgroundAnswers,
     results_revision: u64,
     scroll_list: bool,
     last_disk_check: Instant,
@@ -123,6 +125,7 @@ impl Workbench {
             shown_cache: None,
             plots: plotting::PlotWorker::default(),
             plot_wanted: false,
+            answers: answering::BackgroundAnswers::default(),
             results_revision: 1,
             scroll_list: false,
             last_disk_check: Instant::now(),
@@ -169,9 +172,22 @@ impl Workbench {
         }
     }
 
-    /// True while background work (a clearance plot, a lint run) is still running.
+    /// True while background work (a clearance plot, a lint run, a reach map) is still running.
     pub fn is_busy(&self) -> bool {
-        self.plot_wanted || self.plots.is_busy() || self.lint.is_running()
+        self.plot_wanted
+            || self.plots.is_busy()
+            || self.lint.is_running()
+            || self.answers.is_running()
+            || self.document.is_owing()
+    }
+
+    /// Takes in answers made in the background and starts the next one owed.
+    fn poll_answers(&mut self, ctx: &eframe::egui::Context) {
+        if self.answers.poll(&mut self.document, ctx) {
+            self.results_revision += 1;
+            self.plot_wanted = true;
+            ctx.request_repaint();
+        }
     }
 
     /// Shows a status message in the summary bar.

@@ -59,6 +59,22 @@ impl Workbench {
                 ui.label("Answers match the level on disk")
                     .on_hover_text(format!("level digest {}", self.document.level_digest));
             }
+            if let Some((id, done)) = self.answers.progress() {
+                ui.separator();
+                ui.label(format!("Answering {id}"));
+                ui.add(
+                    egui::ProgressBar::new(done)
+                        .desired_width(120.0)
+                        .show_percentage(),
+                );
+                if ui
+                    .button("Cancel")
+                    .on_hover_text("Stop this answer; the probe can be answered again later")
+                    .clicked()
+                {
+                    self.answers.cancel();
+                }
+            }
             let diagnostics = &self.document.diagnostics;
             if !diagnostics.is_empty() {
                 ui.separator();

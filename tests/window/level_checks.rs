@@ -137,3 +137,71 @@ fn the_lint_window_lists_the_findings_and_picks_one() {
     let finding = harness.state().lint.finding().expect("a finding is picked");
     assert_eq!(&*finding.objects[0], "crate-7");
 }
+
+/// Runs frames until the background work is done (a hang guard, not a speed check: the demo's
+/// reach map takes about two seconds).
+fn settle(harness: &mut Harness<'static, Workbench>) {
+    for _ in 0..3000 {
+        harness.step();
+        if !harness.state().is_busy() {
+            return;
+        }
+        std::thread::sleep(std::time::Duration::from_millis(20));
+    }
+    panic!("the background work never ended");
+}
+
+/// The demo's reach map with a coarser grid, as an edit in the inspector would make it.
+fn coarser_reach(harness: &mut Harness<'static, Workbench>) -> usize {
+    let index = index_of(harness.state(), "pickups-reachable");
+    let mut probe = harness.state().document.probes.probes[index].clone();
+    let plumbline_core::probe::ProbeQuery::Reach { spacing, .. } = &mut probe.query else {
+        panic!("the demo's reach probe")
+    };
+    *spacing = 0.6;
+    harness.state_mut().select_probe(Some(index));
+    harness.state_mut().edit_probe(index, "spacing", probe);
+    index
+}
+
+#[test]
+fn an_edited_reach_map_is_answered_in_the_background_with_progress() {
+    use plumbline_core::check::{Hits, Verdict};
+    let mut harness = harness();
+    let index = coarser_reach(&mut harness);
+    // The edit returns at once: the answer is owed, and the summary bar shows it being made.
+    let owed = &harness.state().document.results[index];
+    assert_eq!(owed.verdict, Verdict::Unchecked);
+    assert!(owed.reason.contains("background"), "{}", owed.reason);
+    harness.step();
+    harness.get_by_label("Answering pickups-reachable");
+    settle(&mut harness);
+    let result = &harness.state().document.results[index];
+    let Hits::Reach(records) = &result.hits else {
+        panic!("a reach answer")
+    };
+    assert!(records[0].reached > 0);
+    // The demo's one pickup no character gets to is still out of reach on the coarser grid.
+    assert_eq!(result.verdict, Verdict::Fail, "{}", result.reason);
+}
+
+#[test]
+fn a_reach_map_cancelled_says_so_and_can_be_answered_again() {
+    use plumbline_core::check::Verdict;
+    let mut harness = harness();
+    let index = coarser_reach(&mut harness);
+    harness.step();
+    harness.get_by_label("Cancel").click();
+    settle(&mut harness);
+    let result = &harness.state().document.results[index];
+    assert_eq!(result.verdict, Verdict::Error);
+    assert!(result.reason.contains("cancelled"), "{}", result.reason);
+    harness.run_steps(2);
+    harness.get_by_label("Answer again").click();
+    harness.step();
+    settle(&mut harness);
+    assert_eq!(
+        harness.state().document.results[index].verdict,
+        Verdict::Fail
+    );
+}

@@ -12,11 +12,17 @@ use crate::json_text::{round9, round9_vec};
 use crate::level::{FacePlace, ShapeSpec};
 use crate::probe::{HitsMode, Probe, ProbeQuery};
 use crate::query::{
-    ClosestProbe, MaterialId, ObjectId, ProbeShape, QueryError, TurningPath, View, World,
+    ClosestProbe, MaterialId, ObjectId, ProbeShape, Progress, QueryError, TurningPath, View, World,
 };
 
 /// Answers one probe and judges it against its expectation.
 pub fn answer_probe(world: &World, probe: &Probe) -> ProbeResult {
+    answer_probe_watched(world, probe, &Progress::default())
+}
+
+/// [`answer_probe`] for a long answer watched from elsewhere: a reach map counts its steps in
+/// `progress` and stops when it is cancelled (the probe's result is then an error that says so).
+pub fn answer_probe_watched(world: &World, probe: &Probe, progress: &Progress) -> ProbeResult {
     let kind = probe.query.kind();
     if let Some(rule) = probe.from_rule.as_ref().filter(|r| r.object.is_none()) {
         return ProbeResult {
@@ -31,7 +37,7 @@ pub fn answer_probe(world: &World, probe: &Probe) -> ProbeResult {
             clearance: None,
         };
     }
-    match answer(world, probe) {
+    match answer(world, probe, progress) {
         Ok((hits, clearance)) => {
             let (verdict, reason) = judge(probe, &hits, clearance.as_ref(), world.up());
             ProbeResult {
@@ -56,7 +62,7 @@ pub fn answer_probe(world: &World, probe: &Probe) -> ProbeResult {
 
 type Answer = (Hits, Option<ClearanceRecord>);
 
-fn answer(world: &World, probe: &Probe) -> Result<Answer, QueryError> {
+fn answer(world: &World, probe: &Probe, progress: &Progress) -> Result<Answer, QueryError> {
     let view = world.view(&probe.filter);
     let tags = |id, material| world.hit_tags(id, material);
     let name = |id| world.shared_name(id);
@@ -206,7 +212,7 @@ fn answer(world: &World, probe: &Probe) -> Result<Answer, QueryError> {
         ),
         ProbeQuery::Jump { .. } => (jump::answer(&view, &probe.query)?, None),
         ProbeQuery::Walk { .. } => (walk::answer(&view, &probe.query)?, None),
-        ProbeQuery::Reach { .. } => (reach::answer(&view, &probe.query)?, None),
+        ProbeQuery::Reach { .. } => (reach::answer(&view, &probe.query, progress)?, None),
     })
 }
 

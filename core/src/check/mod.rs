@@ -18,7 +18,7 @@ mod run;
 mod verdict;
 mod walk;
 
-pub use answer::answer_probe;
+pub use answer::{answer_probe, answer_probe_watched};
 pub use answer_level::spot_list;
 pub use compare::{Aspect, Comparer, Comparison, DEFAULT_TOLERANCE, ProbeChange, changes, compare};
 pub use expectation::expectation_from;

@@ -13,7 +13,7 @@ use super::records::Hits;
 use super::verdict::metres;
 use crate::json_text::{Json, round9, round9_vec};
 use crate::probe::{Conditions, MAX_STEP, MAX_WALKABLE_SLOPE, ProbeQuery, TARGET_REACH};
-use crate::query::{Gait, ProbeShape, QueryError, View};
+use crate::query::{Gait, ProbeShape, Progress, QueryError, View};
 
 /// Half a unit square's diagonal.
 const HALF_DIAGONAL: f64 = std::f64::consts::FRAC_1_SQRT_2;
@@ -100,7 +100,11 @@ impl ReachRecord {
 }
 
 /// Answers a reach map.
-pub(super) fn answer(view: &View, query: &ProbeQuery) -> Result<Hits, QueryError> {
+pub(super) fn answer(
+    view: &View,
+    query: &ProbeQuery,
+    progress: &Progress,
+) -> Result<Hits, QueryError> {
     let ProbeQuery::Reach {
         shape,
         spots,
@@ -122,7 +126,7 @@ pub(super) fn answer(view: &View, query: &ProbeQuery) -> Result<Hits, QueryError
     };
     let starts: Vec<DVec3> = spot_list(world, spots).iter().map(|s| s.at).collect();
     let bounds = (DVec3::from_array(region.min), DVec3::from_array(region.max));
-    let map = view.reach(&shape, &starts, bounds, *spacing, gait)?;
+    let map = view.reach(&shape, &starts, bounds, *spacing, gait, progress)?;
     let mut aims: Vec<(Arc<str>, DVec3)> = targets
         .iter()
         .map(|t| (Arc::from(t.name.as_str()), DVec3::from_array(t.at)))

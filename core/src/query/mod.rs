@@ -15,6 +15,7 @@ mod closest;
 mod coverage;
 mod jump;
 mod overlap;
+mod progress;
 mod ray;
 mod reach;
 mod rest;
@@ -35,6 +36,7 @@ pub use coverage::{SURFACE_LIFT, Sample};
 pub(crate) use coverage::{inside as inside_outline, level_axes};
 pub use jump::{CONTACT_TOLERANCE, JumpHit, LAUNCH_SKIN, Trajectory};
 pub use overlap::{OverlapHit, TOUCH_TOLERANCE};
+pub use progress::Progress;
 pub use ray::RayHit;
 pub use reach::{Cell, Reach};
 pub use rest::RestHit;
@@ -83,6 +85,9 @@ pub enum QueryError {
         "the search for the first contact did not settle (a grazing contact); try a coarser path"
     )]
     NotConverged,
+    /// The watcher of a long answer asked it to stop ([`Progress::cancel`]).
+    #[error("cancelled before the answer was done")]
+    Cancelled,
     /// The probe's shape is unusable.
     #[error("{0}")]
     Shape(#[from] crate::level::ShapeError),

@@ -16,6 +16,7 @@ use rayon::prelude::*;
 
 use super::QueryError;
 use super::coverage::level_axes;
+use super::progress::Progress;
 use super::shapes::ProbeShape;
 use super::walk::{Gait, SKIN};
 use super::world::View;
@@ -96,7 +97,8 @@ impl View<'_> {
     }
 
     /// The walkable ground of the box `min`–`max` on a grid of `spacing`, and which of it the
-    /// character (`shape`, with `gait`) walks to from `starts` (where its centre stands).
+    /// character (`shape`, with `gait`) walks to from `starts` (where its centre stands). Each grid
+    /// column and each cell's links count a step of `progress`, which can also stop the work.
     pub fn reach(
         &self,
         shape: &ProbeShape,
@@ -104,6 +106,7 @@ impl View<'_> {
         (min, max): (DVec3, DVec3),
         spacing: f64,
         gait: Gait,
+        progress: &Progress,
     ) -> Result<Reach, QueryError> {
         if !(spacing.is_finite() && spacing > 0.0 && min.is_finite() && max.is_finite()) {
             return Err(QueryError::PositionNotFinite);
@@ -114,6 +117,8 @@ impl View<'_> {
         // are built on grids, and a segment down a grid line runs along walls and stair risers).
         let steps = |k: usize| (((max[k] - min[k]) / spacing).floor() as usize).max(1);
         let (ni, nj) = (steps(i), steps(j));
+        // About as many cells as columns, until the columns are searched.
+        progress.plan(2 * ni * nj);
         let below = shape.extent_along(-up) + SKIN;
         let height = below + shape.extent_along(up);
         let cos_limit = gait.max_slope.to_radians().cos();
@@ -125,6 +130,7 @@ impl View<'_> {
         let columns: Vec<Column> = (0..ni * nj)
             .into_par_iter()
             .map(|cell| -> Result<Column, QueryError> {
+                progress.step()?;
                 let mut top = min;
                 top[i] += ((cell / nj) as f64 + 0.5) * spacing + OFF_GRID;
                 top[j] += ((cell % nj) as f64 + 0.5) * spacing + OFF_GRID;
@@ -179,11 +185,13 @@ impl View<'_> {
                 }
             }
         }
+        progress.plan(ni * nj + cells.len());
         // Links to the cells of the four next columns that a walk gets to.
         let rise = gait.max_step + spacing * gait.max_slope.to_radians().tan().min(1e3);
         let links: Vec<Vec<usize>> = cells
             .par_iter()
             .map(|cell| -> Result<Vec<usize>, QueryError> {
+                progress.step()?;
                 let (ci, cj) = cell.column;
                 let mut to = Vec::new();
                 let next = [(1, 0), (-1, 0), (0, 1), (0, -1)];

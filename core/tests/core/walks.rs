@@ -3,7 +3,7 @@
 
 use glam::{DQuat, DVec3};
 use plumbline_core::level::{Primitive, ShapeSpec};
-use plumbline_core::query::{Gait, ProbeShape, SKIN, Stop, Walked, World};
+use plumbline_core::query::{Gait, ProbeShape, Progress, QueryError, SKIN, Stop, Walked, World};
 
 use super::common::LevelBuilder;
 
@@ -279,7 +279,14 @@ fn reach(
 ) -> plumbline_core::query::Reach {
     world
         .everything()
-        .reach(&character(), starts, (min, max), 0.5, GAIT)
+        .reach(
+            &character(),
+            starts,
+            (min, max),
+            0.5,
+            GAIT,
+            &Progress::default(),
+        )
         .expect("a reach map")
 }
 
@@ -407,4 +414,26 @@ fn a_reach_map_is_the_same_on_one_thread_and_on_two() {
             .install(|| reach(&world, &start, region))
     };
     assert_eq!(on(1), on(2));
+}
+
+#[test]
+fn a_reach_map_counts_its_progress_to_the_end_and_stops_when_cancelled() {
+    let world = rooms(true);
+    let region = (DVec3::new(0.0, -0.5, 0.0), DVec3::new(8.2, 3.0, 4.0));
+    let start = [DVec3::new(2.0, STAND, 2.0)];
+    let progress = Progress::default();
+    assert_eq!(progress.fraction(), 0.0);
+    world
+        .everything()
+        .reach(&character(), &start, region, 0.5, GAIT, &progress)
+        .expect("a reach map");
+    assert_eq!(progress.fraction(), 1.0);
+    // Cancelled (as the window's Cancel button does, from another thread): no map, an error.
+    let cancelled = Progress::default();
+    cancelled.cancel();
+    let error = world
+        .everything()
+        .reach(&character(), &start, region, 0.5, GAIT, &cancelled)
+        .expect_err("cancelled");
+    assert!(matches!(error, QueryError::Cancelled), "{error}");
 }
