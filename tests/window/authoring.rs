@@ -303,11 +303,13 @@ fn a_level_edited_on_disk_is_reloaded_and_what_changed_is_shown_until_dismissed(
     harness.run_steps(2);
 
     let changes = harness.state().changes.clone();
-    assert_eq!(changes.len(), 5, "{changes:?}");
+    assert_eq!(changes.len(), 6, "{changes:?}");
     assert!(changes.contains_key("gate-sees-warehouse-door"));
     // A rule's probe changes like any other: the lifted crate no longer rests.
     assert!(changes.contains_key("props-rest/crate-2"));
-    harness.get_by_label("Level reloaded: 5 probe(s) changed");
+    // The moved container takes ground from the reach map.
+    assert!(changes.contains_key("pickups-reachable"));
+    harness.get_by_label("Level reloaded: 6 probe(s) changed");
     harness.get_by_label_contains("gate-sees-warehouse-door changed");
 
     harness.get_by_label("Dismiss").click();

@@ -1,9 +1,11 @@
 //! What changed between two runs of a probe set: verdicts, blocked/clear, first object, distances
-//! that moved by more than a tolerance, sightlines gained or lost, and coverage that moved.
+//! that moved by more than a tolerance, sightlines gained or lost, coverage that moved, and the
+//! ground and targets a reach map reaches.
 
 use std::collections::HashMap;
 use std::fmt;
 
+use super::reach::ReachRecord;
 use super::records::{Hits, PairRecord, ProbeResult, Verdict};
 use super::results_file::ResultsFile;
 use super::verdict::metres;
@@ -41,6 +43,15 @@ pub enum Aspect {
     },
     /// The share of a region the spots see moved (0 to 1).
     Coverage(f64, f64),
+    /// The ground a reach map reaches changed, square metres.
+    Reached(f64, f64),
+    /// Targets of a reach map that stopped being reached (`lost`) or started to be (`gained`).
+    Targets {
+        /// Targets no longer reached.
+        lost: Vec<String>,
+        /// Targets now reached.
+        gained: Vec<String>,
+    },
 }
 
 impl fmt::Display for Aspect {
@@ -70,17 +81,11 @@ impl fmt::Display for Aspect {
                     list.iter()
                         .map(|(a, b)| format!("{a}-{b}"))
                         .collect::<Vec<_>>()
-                        .join(", ")
                 };
-                let mut parts = Vec::new();
-                if !lost.is_empty() {
-                    parts.push(format!("sightlines lost: {}", pairs(lost)));
-                }
-                if !gained.is_empty() {
-                    parts.push(format!("sightlines gained: {}", pairs(gained)));
-                }
-                write!(f, "{}", parts.join("; "))
+                lost_and_gained(f, "sightlines", &pairs(lost), &pairs(gained))
             }
+            Aspect::Targets { lost, gained } => lost_and_gained(f, "targets", lost, gained),
+            Aspect::Reached(a, b) => write!(f, "reached {a:.0} m² -> {b:.0} m² ({:+.0} m²)", b - a),
             Aspect::Coverage(a, b) => write!(
                 f,
                 "coverage {:.1}% -> {:.1}% ({:+.1} points)",
@@ -90,6 +95,23 @@ impl fmt::Display for Aspect {
             ),
         }
     }
+}
+
+/// "`what` lost: …; `what` gained: …", each part only when it lists something.
+fn lost_and_gained(
+    f: &mut fmt::Formatter<'_>,
+    what: &str,
+    lost: &[String],
+    gained: &[String],
+) -> fmt::Result {
+    let mut parts = Vec::new();
+    if !lost.is_empty() {
+        parts.push(format!("{what} lost: {}", lost.join(", ")));
+    }
+    if !gained.is_empty() {
+        parts.push(format!("{what} gained: {}", gained.join(", ")));
+    }
+    write!(f, "{}", parts.join("; "))
 }
 
 /// A probe whose answer changed.
@@ -220,6 +242,18 @@ pub fn changes(old: &ProbeResult, new: &ProbeResult, tolerance: f64) -> Vec<Aspe
             }
             return aspects;
         }
+        (Hits::Reach(a), Hits::Reach(b)) => {
+            if let (Some(a), Some(b)) = (a.first(), b.first()) {
+                if a.reached != b.reached {
+                    aspects.push(Aspect::Reached(a.area_reached, b.area_reached));
+                }
+                let (lost, gained) = target_changes(a, b);
+                if !lost.is_empty() || !gained.is_empty() {
+                    aspects.push(Aspect::Targets { lost, gained });
+                }
+            }
+            return aspects;
+        }
         _ => {}
     }
     let (was, is) = (!old.hits.is_empty(), !new.hits.is_empty());
@@ -242,6 +276,25 @@ pub fn changes(old: &ProbeResult, new: &ProbeResult, tolerance: f64) -> Vec<Aspe
         aspects.push(Aspect::Clearance(a.distance, b.distance));
     }
     aspects
+}
+
+/// The targets that stopped and started being reached, in the new run's order (targets in only one
+/// run are not compared).
+fn target_changes(old: &ReachRecord, new: &ReachRecord) -> (Vec<String>, Vec<String>) {
+    let before: HashMap<&str, bool> = old
+        .targets
+        .iter()
+        .map(|t| (&*t.name, t.reachable))
+        .collect();
+    let (mut lost, mut gained) = (Vec::new(), Vec::new());
+    for target in &new.targets {
+        match before.get(&*target.name) {
+            Some(true) if !target.reachable => lost.push(target.name.to_string()),
+            Some(false) if target.reachable => gained.push(target.name.to_string()),
+            _ => {}
+        }
+    }
+    (lost, gained)
 }
 
 /// The pairs of spots that stopped and started seeing each other, in the new run's order (pairs in

@@ -417,6 +417,21 @@ pub fn probe_set(level: &str) -> ProbeSet {
                 ..Conditions::default()
             }),
         ),
+        // The spoil bank's south face rises at 55°: over the 45° a character walks up.
+        probe(
+            "character-up-the-spoil-bank",
+            "A character cannot walk straight up the spoil bank's steep face",
+            ProbeQuery::Walk {
+                shape: character(),
+                path: vec![v(-20.0, standing(0.0), 23.0), v(-20.0, standing(2.4), 28.2)],
+                max_step: None,
+                max_slope: None,
+            },
+            when(Conditions {
+                reaches: Some(false),
+                ..Conditions::default()
+            }),
+        ),
         // Across the 0.44 m gap from a stack of three containers down onto a stack of two.
         probe(
             "container-gap-jump",

@@ -64,6 +64,13 @@ pub mod layout {
     pub const BOULDER: glam::DVec3 = glam::DVec3::new(50.0, 1.0, 30.0);
     /// Embankment the culvert passes through: x range, z range, height.
     pub const EMBANKMENT: [f64; 5] = [-51.0, -49.0, -30.0, 0.0, 3.0];
+    /// The spoil bank north of the office's yard: x range, and its profile across z (points (z, y)):
+    /// a 55° face to the south (too steep to walk up), a flat top, a 25° back to the north.
+    pub const SPOIL_BANK: (f64, f64, [(f64, f64); 4]) = (
+        -24.0,
+        -16.0,
+        [(26.0, 0.0), (27.68, 2.4), (28.68, 2.4), (33.83, 0.0)],
+    );
     /// Centre of the stone cairn by the office (a rock that lost a face).
     pub const CAIRN: glam::DVec3 = glam::DVec3::new(-45.0, 0.3, 8.0);
     /// The steel loading plate on the yard: min and max corners.
@@ -158,6 +165,9 @@ pub fn mesh_objects(detail: Detail) -> Vec<MeshObject> {
     add("culvert", vec!["vent"], culvert());
     add("embankment", vec!["ground"], embankment());
     add("north-fence", vec!["fence"], fence());
+    let mut bank = MeshBuilder::new();
+    bank.ridge(SPOIL_BANK.0, SPOIL_BANK.1, &SPOIL_BANK.2);
+    add("spoil-bank", vec!["ground"], bank);
     let scatter = scatter();
     for (k, ((x, z), size)) in scatter.trees.iter().zip(&scatter.canopy_sizes).enumerate() {
         let (x, z) = (*x, *z);

@@ -90,6 +90,41 @@ impl MeshBuilder {
         self
     }
 
+    /// A closed solid of a convex `profile` (points (z, y), in order around it) carried along x from
+    /// `x0` to `x1`: a bank or a ridge. Every face is wound to face away from the solid's middle.
+    pub fn ridge(&mut self, x0: f64, x1: f64, profile: &[(f64, f64)]) -> &mut Self {
+        let base = self.mesh.vertices.len() as u32;
+        let n = profile.len() as u32;
+        for x in [x0, x1] {
+            for &(z, y) in profile {
+                self.push_vertex(DVec3::new(x, y, z));
+            }
+        }
+        let middle = self.mesh.vertices[base as usize..]
+            .iter()
+            .fold(DVec3::ZERO, |sum, v| sum + *v)
+            / (2 * n) as f64;
+        let mut faces = Vec::new();
+        for k in 0..n {
+            let next = (k + 1) % n;
+            faces.push([k, next, n + next]);
+            faces.push([k, n + next, n + k]);
+        }
+        for k in 1..n - 1 {
+            faces.push([0, k, k + 1]);
+            faces.push([n, n + k, n + k + 1]);
+        }
+        for face in faces {
+            let [a, b, c] = face.map(|i| self.mesh.vertices[(base + i) as usize]);
+            let outward = (b - a).cross(c - a).dot(a - middle) > 0.0;
+            let [i, j, k] = face.map(|i| base + i);
+            self.mesh
+                .triangles
+                .push(if outward { [i, j, k] } else { [i, k, j] });
+        }
+        self
+    }
+
     /// A rounded blob (an icosphere subdivided `levels` times) scaled per axis: canopies and bushes.
     pub fn blob(&mut self, centre: DVec3, radii: DVec3, levels: u32) -> &mut Self {
         let (unit, triangles) = icosphere(levels);

@@ -368,28 +368,31 @@ fn a_catwalk_above_the_ground_is_a_layer_of_its_own() {
     assert!(!reached_at(&map, DVec3::new(0.0, 4.0, 0.0)));
 }
 
+/// The reach probe of the two rooms: from a spawn in the first, targets "near" (first room) and
+/// "far" (second room).
+fn rooms_reach(world: &World, expect: &str) -> plumbline_core::check::ProbeResult {
+    use plumbline_core::probe::parse_probe_set;
+    let text = format!(
+        r#"{{"plumbline": "probes", "version": 1, "level": "level.json", "probes": [
+            {{"id": "map", "kind": "reach",
+              "shape": {{"type": "capsule", "radius": 0.35, "half_height": 0.55}},
+              "spots": [{{"name": "spawn", "at": [2, {STAND}, 2]}}],
+              "region": {{"min": [0, -0.5, 0], "max": [8.2, 3, 4]}}, "spacing": 0.5,
+              "targets": [{{"name": "near", "at": [3, 0.3, 3]}},
+                          {{"name": "far", "at": [6.2, 0.3, 2]}}],
+              "expect": {expect}}}]}}"#
+    );
+    let set = parse_probe_set(std::path::Path::new("t.probes.json"), &text).unwrap();
+    plumbline_core::check::answer_probe(world, &set.probes[0])
+}
+
 #[test]
 fn a_reach_probe_names_the_targets_it_cannot_get_to_and_how_far_off_they_are() {
-    use plumbline_core::check::{Hits, Verdict, answer_probe};
-    use plumbline_core::probe::parse_probe_set;
+    use plumbline_core::check::{Hits, Verdict};
     let world = rooms(false);
-    let probe = |expect: &str| {
-        let text = format!(
-            r#"{{"plumbline": "probes", "version": 1, "level": "level.json", "probes": [
-                {{"id": "map", "kind": "reach",
-                  "shape": {{"type": "capsule", "radius": 0.35, "half_height": 0.55}},
-                  "spots": [{{"name": "spawn", "at": [2, {STAND}, 2]}}],
-                  "region": {{"min": [0, -0.5, 0], "max": [8.2, 3, 4]}}, "spacing": 0.5,
-                  "targets": [{{"name": "near", "at": [3, 0.3, 3]}},
-                              {{"name": "far", "at": [6.2, 0.3, 2]}}],
-                  "expect": {expect}}}]}}"#
-        );
-        let set = parse_probe_set(std::path::Path::new("t.probes.json"), &text).unwrap();
-        answer_probe(&world, &set.probes[0])
-    };
-    let named = probe(r#"{"reachable": ["near"], "unreachable": ["far"]}"#);
+    let named = rooms_reach(&world, r#"{"reachable": ["near"], "unreachable": ["far"]}"#);
     assert_eq!(named.verdict, Verdict::Pass, "{}", named.reason);
-    let all = probe(r#""clear""#);
+    let all = rooms_reach(&world, r#""clear""#);
     assert_eq!(all.verdict, Verdict::Fail);
     // The nearest reached ground to "far" is in the first room, beyond the wall.
     assert!(all.reason.contains("far is "), "{}", all.reason);
@@ -398,6 +401,36 @@ fn a_reach_probe_names_the_targets_it_cannot_get_to_and_how_far_off_they_are() {
     };
     let far = &records[0].targets[1];
     assert!(!far.reachable && far.gap.unwrap() > 0.5, "{far:?}");
+}
+
+#[test]
+fn a_door_closed_between_runs_shows_as_ground_and_a_target_lost() {
+    use plumbline_core::check::{Aspect, DEFAULT_TOLERANCE, changes};
+    let open = rooms_reach(&rooms(true), r#""clear""#);
+    let closed = rooms_reach(&rooms(false), r#""clear""#);
+    let aspects = changes(&open, &closed, DEFAULT_TOLERANCE);
+    // Closing the door loses the second room's floor where a capsule of radius 0.35 m stands, less
+    // than a radius from no wall: (4 − 2 × 0.35)² ≈ 10.9 m², plus the doorway (elementary geometry;
+    // the grid's 0.5 m cells count it to within a row of cells).
+    let lost_area = aspects.iter().find_map(|a| match a {
+        Aspect::Reached(a, b) => Some(a - b),
+        _ => None,
+    });
+    assert!(
+        lost_area.is_some_and(|m2| (9.0..=14.0).contains(&m2)),
+        "{aspects:?}"
+    );
+    assert!(aspects.contains(&Aspect::Targets {
+        lost: vec!["far".into()],
+        gained: vec![],
+    }));
+    let words: Vec<String> = aspects.iter().map(|a| a.to_string()).collect();
+    assert!(
+        words.contains(&"targets lost: far".to_string()),
+        "{words:?}"
+    );
+    // Nothing changed, nothing told.
+    assert!(changes(&open, &open, DEFAULT_TOLERANCE).is_empty());
 }
 
 #[test]
