@@ -65,6 +65,7 @@ fn owed_result(probe: &Probe) -> ProbeResult {
         reason: "Being answered in the background…".to_string(),
         hits: Hits::empty(kind),
         clearance: None,
+        volumes: Vec::new(),
     }
 }
 

@@ -689,6 +689,7 @@ mod tests {
                 back_face: false,
             }]),
             clearance: None,
+            volumes: Vec::new(),
         };
         (probe, result)
     }

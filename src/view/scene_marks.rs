@@ -240,6 +240,7 @@ mod tests {
                 material: None,
             }]),
             clearance: None,
+            volumes: Vec::new(),
         };
         (level, probe, result)
     }

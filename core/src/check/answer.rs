@@ -7,7 +7,7 @@ use super::records::{
     SweepHitRecord, Verdict,
 };
 use super::verdict::judge;
-use super::{answer_level, jump, reach, walk};
+use super::{answer_level, jump, reach, volumes, walk};
 use crate::json_text::{round9, round9_vec};
 use crate::level::{FacePlace, ShapeSpec};
 use crate::probe::{HitsMode, Probe, ProbeQuery};
@@ -35,11 +35,20 @@ pub fn answer_probe_watched(world: &World, probe: &Probe, progress: &Progress) -
                 rule.selection
             ),
             clearance: None,
+            volumes: Vec::new(),
         };
     }
-    match answer(world, probe, progress) {
-        Ok((hits, clearance)) => {
-            let (verdict, reason) = judge(probe, &hits, clearance.as_ref(), world.up());
+    let answered = answer(world, probe, progress).and_then(|(hits, clearance)| {
+        let volumes = if world.has_volumes() {
+            volumes::records(&world.view(&probe.filter), probe, &hits)?
+        } else {
+            Vec::new()
+        };
+        Ok((hits, clearance, volumes))
+    });
+    match answered {
+        Ok((hits, clearance, volumes)) => {
+            let (verdict, reason) = judge(probe, &hits, clearance.as_ref(), &volumes, world.up());
             ProbeResult {
                 id: probe.id.clone(),
                 kind,
@@ -47,6 +56,7 @@ pub fn answer_probe_watched(world: &World, probe: &Probe, progress: &Progress) -
                 reason,
                 hits,
                 clearance,
+                volumes,
             }
         }
         Err(error) => ProbeResult {
@@ -56,6 +66,7 @@ pub fn answer_probe_watched(world: &World, probe: &Probe, progress: &Progress) -
             verdict: Verdict::Error,
             reason: format!("could not be answered: {error}"),
             clearance: None,
+            volumes: Vec::new(),
         },
     }
 }
@@ -270,6 +281,10 @@ fn source_record(world: &World, object: ObjectId, number: u32) -> Option<SourceR
     }
 }
 
-fn probe_shape(shape: &ShapeSpec, rotation: Option<DQuat>) -> Result<ProbeShape, QueryError> {
+/// The probe shape of a spec with an optional turn.
+pub(super) fn probe_shape(
+    shape: &ShapeSpec,
+    rotation: Option<DQuat>,
+) -> Result<ProbeShape, QueryError> {
     Ok(ProbeShape::new(shape, rotation.unwrap_or(DQuat::IDENTITY))?)
 }

@@ -1,6 +1,6 @@
 //! What changed between two runs of a probe set: verdicts, blocked/clear, first object, distances
 //! that moved by more than a tolerance, sightlines gained or lost, coverage that moved, and the
-//! ground and targets a reach map reaches.
+//! ground and targets a reach map reaches, and the volumes a probe enters.
 
 use std::collections::HashMap;
 use std::fmt;
@@ -45,6 +45,13 @@ pub enum Aspect {
     Coverage(f64, f64),
     /// The ground a reach map reaches changed, square metres.
     Reached(f64, f64),
+    /// Volumes the probe is now in at some point of its way (`entered`) or no longer (`left`).
+    Volumes {
+        /// Volumes now met.
+        entered: Vec<String>,
+        /// Volumes no longer met.
+        left: Vec<String>,
+    },
     /// Targets of a reach map that stopped being reached (`lost`) or started to be (`gained`).
     Targets {
         /// Targets no longer reached.
@@ -85,6 +92,16 @@ impl fmt::Display for Aspect {
                 lost_and_gained(f, "sightlines", &pairs(lost), &pairs(gained))
             }
             Aspect::Targets { lost, gained } => lost_and_gained(f, "targets", lost, gained),
+            Aspect::Volumes { entered, left } => {
+                let mut parts = Vec::new();
+                if !entered.is_empty() {
+                    parts.push(format!("now enters {}", entered.join(", ")));
+                }
+                if !left.is_empty() {
+                    parts.push(format!("no longer enters {}", left.join(", ")));
+                }
+                write!(f, "{}", parts.join("; "))
+            }
             Aspect::Reached(a, b) => write!(f, "reached {a:.0} m² -> {b:.0} m² ({:+.0} m²)", b - a),
             Aspect::Coverage(a, b) => write!(
                 f,
@@ -224,6 +241,20 @@ pub fn changes(old: &ProbeResult, new: &ProbeResult, tolerance: f64) -> Vec<Aspe
     let mut aspects = Vec::new();
     if old.verdict != new.verdict {
         aspects.push(Aspect::Verdict(old.verdict, new.verdict));
+    }
+    let (was_in, now_in) = (old.volumes_met(), new.volumes_met());
+    let entered: Vec<String> = now_in
+        .iter()
+        .filter(|v| !was_in.contains(v))
+        .cloned()
+        .collect();
+    let left: Vec<String> = was_in
+        .iter()
+        .filter(|v| !now_in.contains(v))
+        .cloned()
+        .collect();
+    if !entered.is_empty() || !left.is_empty() {
+        aspects.push(Aspect::Volumes { entered, left });
     }
     match (&old.hits, &new.hits) {
         (Hits::Sightlines(a), Hits::Sightlines(b)) => {

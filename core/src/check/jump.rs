@@ -3,13 +3,13 @@
 
 use std::sync::Arc;
 
-use glam::{DQuat, DVec3};
+use glam::DVec3;
 use serde::Deserialize;
 
+use super::answer::probe_shape;
 use super::records::{Hits, tags_json};
 use super::verdict::{metres, named};
 use crate::json_text::{Json, round9, round9_vec};
-use crate::level::ShapeSpec;
 use crate::probe::{
     Conditions, JUMP_TIME, Launch, MAX_WALKABLE_SLOPE, ProbeQuery, STANDARD_GRAVITY,
 };
@@ -151,10 +151,6 @@ pub(super) fn answer(view: &View, query: &ProbeQuery) -> Result<Hits, QueryError
         started_inside: hit.started_inside,
         material: hit.material.map(|m| world.shared_material(m)),
     }]))
-}
-
-fn probe_shape(shape: &ShapeSpec, rotation: Option<DQuat>) -> Result<ProbeShape, QueryError> {
-    Ok(ProbeShape::new(shape, rotation.unwrap_or(DQuat::IDENTITY))?)
 }
 
 /// How far the shape reaches from its centre in any direction.

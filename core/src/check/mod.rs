@@ -16,6 +16,7 @@ mod results_file;
 mod rules;
 mod run;
 mod verdict;
+mod volumes;
 mod walk;
 
 pub use answer::{answer_probe, answer_probe_watched};
@@ -36,4 +37,5 @@ pub use results_file::{
 pub use rules::expand_rules;
 pub use run::{Runner, run_probes};
 pub use verdict::metres;
+pub use volumes::{VolumeCrossing, VolumeRecord};
 pub use walk::WalkRecord;

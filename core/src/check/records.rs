@@ -7,6 +7,7 @@ use serde::{Deserialize, Serialize};
 pub use super::jump::JumpRecord;
 pub use super::level_records::{CoverageRecord, PairRecord, RestRecord};
 pub use super::reach::ReachRecord;
+pub use super::volumes::VolumeRecord;
 pub use super::walk::WalkRecord;
 use crate::json_text::Json;
 use crate::probe::ProbeKind;
@@ -346,6 +347,18 @@ pub struct ProbeResult {
     pub hits: Hits,
     /// A sweep's least clearance, when asked for.
     pub clearance: Option<ClearanceRecord>,
+    /// Where it is in, enters and leaves the level's volumes, in order along its way.
+    pub volumes: Vec<VolumeRecord>,
+}
+
+impl ProbeResult {
+    /// The names of the volumes the probe is in at some point of its way, in order of first meeting.
+    pub fn volumes_met(&self) -> Vec<String> {
+        super::volumes::met(&self.volumes)
+            .iter()
+            .map(|v| v.volume.to_string())
+            .collect()
+    }
 }
 
 /// Counts by verdict.
@@ -561,6 +574,10 @@ mod layout {
             ];
             if let Some(c) = &self.clearance {
                 f.push(("clearance", c.to_json()));
+            }
+            if !self.volumes.is_empty() {
+                let volumes = self.volumes.iter().map(VolumeRecord::to_json).collect();
+                f.push(("volumes", Json::Arr(volumes)));
             }
             Json::Obj(f)
         }

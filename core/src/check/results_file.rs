@@ -9,7 +9,7 @@ use serde_json::Value;
 use serde_json::value::RawValue;
 use sha2::{Digest, Sha256};
 
-use super::records::{ClearanceRecord, Hits, ProbeResult, Summary, Verdict};
+use super::records::{ClearanceRecord, Hits, ProbeResult, Summary, Verdict, VolumeRecord};
 use crate::atomic::{AtomicFile, Spill};
 use crate::error::{InputError, check_header};
 use crate::probe::{ProbeKind, ProbeSet, probe_set_to_json};
@@ -202,6 +202,8 @@ struct RawResult {
     reason: String,
     hits: Vec<Value>,
     clearance: Option<ClearanceRecord>,
+    #[serde(default)]
+    volumes: Vec<VolumeRecord>,
 }
 
 /// Reads a results file written by this program.
@@ -236,6 +238,7 @@ pub fn parse_results(path: &Path, text: &str) -> Result<ResultsFile, InputError>
             reason: r.reason,
             hits,
             clearance: r.clearance,
+            volumes: r.volumes,
         });
     }
     Ok(ResultsFile {

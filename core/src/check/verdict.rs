@@ -2,7 +2,7 @@
 
 use glam::DVec3;
 
-use super::records::{ClearanceRecord, Hits, Verdict};
+use super::records::{ClearanceRecord, Hits, Verdict, VolumeRecord};
 use crate::probe::{Conditions, Probe};
 
 /// The verdict and the reason for it.
@@ -11,13 +11,20 @@ pub fn judge(
     probe: &Probe,
     hits: &Hits,
     clearance: Option<&ClearanceRecord>,
+    volumes: &[VolumeRecord],
     up: DVec3,
 ) -> (Verdict, String) {
-    let answer = describe(hits, clearance);
+    let mut answer = describe(hits, clearance);
+    if let Some(met) = super::volumes::describe(volumes) {
+        answer = format!("{answer}; {met}");
+    }
     let Some(expect) = &probe.expect else {
         return (Verdict::Unchecked, capitalise(&answer));
     };
-    match first_unmet(&expect.conditions(), hits, clearance, up) {
+    let conditions = expect.conditions();
+    let unmet = first_unmet(&conditions, hits, clearance, up)
+        .or_else(|| super::volumes::first_unmet(&conditions, volumes));
+    match unmet {
         None => (Verdict::Pass, format!("As expected: {answer}")),
         Some(wanted) => (Verdict::Fail, format!("Expected {wanted}; {answer}")),
     }

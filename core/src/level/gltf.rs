@@ -803,11 +803,12 @@ fn expand_triangles(mode: u32, indices: &[u64], out: &mut Vec<[u64; 3]>) {
     }
 }
 
-/// Tags from the node's `extras.tags` (an array of strings); anything else in extras is ignored.
+/// Tags from the node's `extras.tags` (an array of strings), and the volume tag when
+/// `extras.volume` is `true`; anything else in extras is ignored.
 fn node_tags(node: &NodeDef) -> Vec<String> {
-    let mut tags: Vec<String> = node
-        .extras
-        .as_ref()
+    let extras = node.extras.as_ref();
+    let volume = extras.and_then(|e| e.get("volume")) == Some(&serde_json::Value::Bool(true));
+    let mut tags: Vec<String> = extras
         .and_then(|e| e.get("tags"))
         .and_then(|t| t.as_array())
         .map(|a| {
@@ -818,6 +819,9 @@ fn node_tags(node: &NodeDef) -> Vec<String> {
                 .collect()
         })
         .unwrap_or_default();
+    if volume {
+        tags.push(super::VOLUME_TAG.to_string());
+    }
     tags.sort();
     tags.dedup();
     tags

@@ -51,6 +51,20 @@ struct ObjectSpec {
     scale: Option<Scale>,
     mesh: Option<String>,
     shape: Option<ShapeSpec>,
+    /// The object is a volume (see [`super::VOLUME_TAG`]).
+    #[serde(default)]
+    volume: bool,
+}
+
+impl ObjectSpec {
+    /// The object's own tags, with the volume tag when it is marked as one.
+    fn own_tags(&self) -> Vec<String> {
+        let mut tags = self.tags.clone();
+        if self.volume {
+            tags.push(super::VOLUME_TAG.to_string());
+        }
+        tags
+    }
 }
 
 #[derive(Deserialize)]
@@ -134,7 +148,7 @@ pub fn load_level_file(
                     }
                     objects.push(LevelObject {
                         name,
-                        tags: merged_tags(&spec.tags, &object.tags),
+                        tags: merged_tags(&spec.own_tags(), &object.tags),
                         geometry: Geometry::Mesh(built.mesh),
                     });
                 }
@@ -156,7 +170,7 @@ pub fn load_level_file(
                 }
                 objects.push(LevelObject {
                     name: spec.name.clone(),
-                    tags: merged_tags(&spec.tags, &[]),
+                    tags: merged_tags(&spec.own_tags(), &[]),
                     geometry,
                 });
             }

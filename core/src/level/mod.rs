@@ -38,6 +38,12 @@ use crate::input::{PathPolicy, read_input};
 /// few digits below the millimetre, and parry's iterative queries can fail outright. Ours.
 pub const MAX_COORDINATE: f64 = 1e7;
 
+/// The tag that makes an object a volume: a region that blocks nothing (rays, sweeps, walks and
+/// overlaps pass through it) and that probes report entering, leaving and being inside. A level file
+/// object gives it with `"volume": true` (or as a tag, or by a tag rule), a glTF node with
+/// `"extras": {"volume": true}` (or in its `extras.tags`).
+pub const VOLUME_TAG: &str = "volume";
+
 /// The largest size (radius, half extent, height), in metres, a shape may have: 1,000 km. Ours.
 pub const MAX_SIZE: f64 = 1e6;
 

@@ -534,6 +534,15 @@ pub struct Conditions {
     /// Reach: these targets are not reached.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub unreachable: Option<Vec<String>>,
+    /// Volumes (by name or tag) the probe is in at some point of its way.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub enters: Option<Vec<String>>,
+    /// Volumes (by name or tag) the probe is never in.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub never_enters: Option<Vec<String>>,
+    /// Volumes (by name or tag) the probe is in at the end of its way.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ends_inside: Option<Vec<String>>,
 }
 
 /// A closed range of metres; either end may be left open.

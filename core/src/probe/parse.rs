@@ -775,6 +775,37 @@ fn check_conditions(c: &Conditions, query: &ProbeQuery) -> Result<(), String> {
     if let Some(d) = c.max_detour {
         metres("max_detour", d)?;
     }
+    let volumes = [&c.enters, &c.never_enters, &c.ends_inside];
+    if volumes.iter().any(|v| v.is_some()) {
+        let moves = matches!(
+            query,
+            ProbeQuery::Ray { .. }
+                | ProbeQuery::Sweep { turns: None, .. }
+                | ProbeQuery::Walk { .. }
+                | ProbeQuery::Jump { .. }
+                | ProbeQuery::Closest { .. }
+                | ProbeQuery::Overlap { .. }
+        );
+        if !moves {
+            return Err(format!(
+                "expect.enters, never_enters and ends_inside apply to rays, sweeps (without turns), \
+                 walks, jumps, closest points and overlaps, not to {}",
+                match query {
+                    ProbeQuery::Sweep { .. } => "a sweep that turns".to_string(),
+                    _ => format!("a {kind} probe"),
+                }
+            ));
+        }
+        if let Some(name) = volumes
+            .iter()
+            .copied()
+            .flatten()
+            .flatten()
+            .find(|n| n.is_empty())
+        {
+            return Err(format!("expect names an empty volume \"{name}\""));
+        }
+    }
     if let Some(region) = &c.lands_within {
         check_region("expect.lands_within", region)?;
     }

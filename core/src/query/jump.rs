@@ -148,7 +148,7 @@ impl View<'_> {
             } else {
                 distance.min(LAUNCH_SKIN)
             };
-            t += step(arc, t, reach);
+            t += arc_step(arc, t, reach);
         }
         // Still short of a contact after every step (grazing all the way): say so rather than
         // report a landing that is not one.
@@ -159,7 +159,7 @@ impl View<'_> {
 /// The longest time step over which no point of the shape moves farther than `reach`: the path
 /// travelled in a time `s` is at most `|v| s + g s² / 2` (speed now plus what gravity adds), solved
 /// for `s` in the form that stays exact when the speed is zero (at the top of a straight-up jump).
-fn step(arc: &Trajectory, t: f64, reach: f64) -> f64 {
+pub(crate) fn arc_step(arc: &Trajectory, t: f64, reach: f64) -> f64 {
     let speed = arc.velocity_at(t).length();
     let g = arc.gravity.length();
     2.0 * reach / (speed + (speed * speed + 2.0 * g * reach).sqrt())

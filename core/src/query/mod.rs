@@ -23,6 +23,7 @@ mod shapes;
 mod sightlines;
 mod sweep;
 mod turning;
+mod volumes;
 mod walk;
 mod watertight;
 mod world;
@@ -46,6 +47,7 @@ pub use shapes::{
 pub use sightlines::{END_GAP, Sightline, SpotAt};
 pub use sweep::SweepHit;
 pub use turning::TurningPath;
+pub use volumes::{Crossing, Mover, VolumeEvent};
 pub use walk::{Gait, MAX_WALK_STEPS, SKIN, Stop, Walked};
 pub use watertight::ShearedRay;
 pub use world::{BuildCause, BuildError, Filter, MATERIAL_TAG, MaterialId, ObjectId, View, World};

@@ -29,6 +29,29 @@ pub fn primitive_shape(primitive: &Primitive) -> Result<SharedShape, ShapeError>
     })
 }
 
+/// The parry shape of a primitive that is queried as a solid against other convex shapes (a moving
+/// probe shape, a volume). A box is the convex polyhedron of its corners: parry's box-against-
+/// triangle and box-against-box closest points approximate (they take a support point of the
+/// separating axis, which can lie far from the nearest one), while its general convex path (GJK) is
+/// exact.
+pub fn solid_shape(primitive: &Primitive) -> Result<SharedShape, ShapeError> {
+    match primitive {
+        Primitive::Box { half_extents: h } => {
+            let corners: Vec<DVec3> = (0..8)
+                .map(|k| {
+                    DVec3::new(
+                        if k & 1 == 0 { -h.x } else { h.x },
+                        if k & 2 == 0 { -h.y } else { h.y },
+                        if k & 4 == 0 { -h.z } else { h.z },
+                    )
+                })
+                .collect();
+            SharedShape::convex_hull(&corners).ok_or(ShapeError::Hull)
+        }
+        other => primitive_shape(other),
+    }
+}
+
 /// A triangulated surface of a primitive's parry shape in its own frame, for drawing: vertices and
 /// triangles with outward winding.
 pub fn shape_surface(shape: &SharedShape) -> (Vec<DVec3>, Vec<[u32; 3]>) {
@@ -94,25 +117,7 @@ impl ProbeShape {
         let primitive = spec
             .primitive()?
             .ok_or(ShapeError::NotAProbeShape(spec.type_name()))?;
-        let shape = match primitive {
-            // A box that moves is queried as the convex polyhedron of its corners: parry's
-            // box-against-triangle and box-against-box closest points approximate (they take a
-            // support point of the separating axis, which can lie far from the nearest one), while
-            // its general convex path (GJK) is exact.
-            Primitive::Box { half_extents: h } => {
-                let corners: Vec<DVec3> = (0..8)
-                    .map(|k| {
-                        DVec3::new(
-                            if k & 1 == 0 { -h.x } else { h.x },
-                            if k & 2 == 0 { -h.y } else { h.y },
-                            if k & 4 == 0 { -h.z } else { h.z },
-                        )
-                    })
-                    .collect();
-                SharedShape::convex_hull(&corners).ok_or(ShapeError::Hull)?
-            }
-            other => primitive_shape(&other)?,
-        };
+        let shape = solid_shape(&primitive)?;
         let local = shape.compute_local_aabb();
         let bounding_radius = local.mins.abs().max(local.maxs.abs()).length();
         Ok(ProbeShape {

@@ -10,9 +10,13 @@ use parry3d_f64::math::Pose;
 use parry3d_f64::partitioning::{Bvh, BvhBuildStrategy};
 use parry3d_f64::shape::TriMeshBuilderError;
 
+use parry3d_f64::shape::SharedShape;
+
 use super::body::{Body, MaterialGroup, mesh_bodies};
-use super::shapes::primitive_shape;
-use crate::level::{FacePlace, Geometry, Level, MeshOrigin, Primitive, ShapeError, ShapeSpec};
+use super::shapes::{primitive_shape, solid_shape};
+use crate::level::{
+    FacePlace, Geometry, Level, MeshOrigin, Primitive, ShapeError, ShapeSpec, VOLUME_TAG,
+};
 
 /// Index of an object in the [`World`] (the same order as the level's objects).
 pub type ObjectId = usize;
@@ -58,10 +62,25 @@ struct ObjectInfo {
     primitive: Option<(Primitive, DVec3, DQuat)>,
 }
 
+/// A volume of the level (an object tagged [`VOLUME_TAG`]): a convex region that blocks nothing —
+/// a primitive, or the convex hull of a mesh's vertices.
+pub(crate) struct Volume {
+    /// The object it is.
+    pub object: ObjectId,
+    /// Its convex shape.
+    pub shape: SharedShape,
+    /// Where it is.
+    pub pose: Pose,
+    /// The box around it.
+    pub aabb: Aabb,
+}
+
 /// The queryable level: parry shapes, one BVH over objects (or their parts), names and tags.
 pub struct World {
-    /// Leaves of `bvh`: primitives, and meshes by material and part.
+    /// Leaves of `bvh`: primitives, and meshes by material and part (volumes are not among them).
     pub(crate) bodies: Vec<Body>,
+    /// The volumes, in level order.
+    pub(crate) volumes: Vec<Volume>,
     objects: Vec<ObjectInfo>,
     materials: Vec<Arc<str>>,
     /// The tags of an object's material, where the material adds some.
@@ -83,6 +102,7 @@ impl World {
     pub fn from_level(level: Level) -> Result<World, BuildError> {
         let up = level.up;
         let mut bodies = Vec::with_capacity(level.objects.len());
+        let mut volumes = Vec::new();
         let mut objects = Vec::with_capacity(level.objects.len());
         let mut materials = Materials::default();
         let mut ordinal = 0u64;
@@ -93,6 +113,47 @@ impl World {
             };
             let tags: Arc<[String]> = Arc::from(item.tags);
             let mut primitive_of = None;
+            if tags.iter().any(|t| t == VOLUME_TAG) {
+                let (shape, pose) = match &item.geometry {
+                    Geometry::Mesh(mesh) => (
+                        SharedShape::convex_hull(&mesh.vertices)
+                            .ok_or(fail(BuildCause::Shape(ShapeError::Hull)))?,
+                        Pose::IDENTITY,
+                    ),
+                    Geometry::Primitive {
+                        shape,
+                        translation,
+                        rotation,
+                    } => {
+                        primitive_of = Some((shape.clone(), *translation, *rotation));
+                        (
+                            solid_shape(shape).map_err(|e| fail(BuildCause::Shape(e)))?,
+                            Pose::from_parts(*translation, *rotation),
+                        )
+                    }
+                };
+                let numbers = match &item.geometry {
+                    Geometry::Mesh(mesh) => mesh.triangles.len().max(1) as u64,
+                    Geometry::Primitive { .. } => 1,
+                };
+                volumes.push(Volume {
+                    object,
+                    aabb: shape.compute_aabb(&pose),
+                    shape,
+                    pose,
+                });
+                objects.push(ObjectInfo {
+                    name: Arc::from(item.name),
+                    tags,
+                    closed: true,
+                    origin: None,
+                    first_ordinal: ordinal,
+                    winding_faults: 0,
+                    primitive: primitive_of,
+                });
+                ordinal += numbers;
+                continue;
+            }
             let (origin, closed, winding_faults, numbers) = match item.geometry {
                 Geometry::Mesh(mut mesh) => {
                     let origin = std::mem::take(&mut mesh.origin);
@@ -140,8 +201,12 @@ impl World {
             object_boxes[body.object].take_point(body.aabb.mins);
             object_boxes[body.object].take_point(body.aabb.maxs);
         }
+        for volume in &volumes {
+            object_boxes[volume.object] = volume.aabb;
+        }
         Ok(World {
             bodies,
+            volumes,
             objects,
             materials: materials.names,
             material_tags,
@@ -263,6 +328,17 @@ impl World {
             return shape.spec();
         }
         let (centre, _) = self.object_frame(id);
+        if let Some(hull) = self
+            .volumes
+            .iter()
+            .find(|v| v.object == id)
+            .and_then(|v| v.shape.as_convex_polyhedron())
+        {
+            let points = hull.points().iter().map(|v| (*v - centre).to_array());
+            return ShapeSpec::Convex {
+                points: points.collect(),
+            };
+        }
         let points = self
             .bodies
             .iter()
@@ -271,6 +347,16 @@ impl World {
             .flat_map(|m| m.vertices().iter().map(move |v| (*v - centre).to_array()))
             .collect();
         ShapeSpec::Convex { points }
+    }
+
+    /// True when the level has volumes.
+    pub fn has_volumes(&self) -> bool {
+        !self.volumes.is_empty()
+    }
+
+    /// True when the object is a volume (it blocks nothing; probes report entering it).
+    pub fn is_volume(&self, id: ObjectId) -> bool {
+        self.volumes.iter().any(|v| v.object == id)
     }
 
     /// The objects that have any of these tags, in level order.
@@ -293,6 +379,7 @@ impl World {
         View {
             world: self,
             allowed: None,
+            volumes_allowed: None,
         }
     }
 
@@ -312,9 +399,15 @@ impl World {
                 )
             })
             .collect();
+        let volumes_allowed = self
+            .volumes
+            .iter()
+            .map(|v| filter.allows(self.name(v.object), self.tags(v.object), None))
+            .collect();
         View {
             world: self,
             allowed: Some(allowed),
+            volumes_allowed: Some(volumes_allowed),
         }
     }
 }
@@ -421,6 +514,8 @@ impl Filter {
 pub struct View<'w> {
     pub(crate) world: &'w World,
     allowed: Option<Vec<bool>>,
+    /// Which volumes the view reports, by index into the world's volumes.
+    volumes_allowed: Option<Vec<bool>>,
 }
 
 impl<'w> View<'w> {
@@ -446,7 +541,19 @@ impl<'w> View<'w> {
         View {
             world: self.world,
             allowed: Some(allowed),
+            volumes_allowed: self.volumes_allowed.clone(),
         }
+    }
+
+    /// The volumes the view reports, in level order.
+    pub(crate) fn volumes(&self) -> impl Iterator<Item = &'w Volume> + '_ {
+        let world = self.world;
+        world
+            .volumes
+            .iter()
+            .enumerate()
+            .filter(|(k, _)| self.volumes_allowed.as_ref().is_none_or(|a| a[*k]))
+            .map(|(_, v)| v)
     }
 
     /// The body behind a world BVH leaf, when the view queries it.

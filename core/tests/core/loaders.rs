@@ -186,6 +186,27 @@ fn gltf_extras_tags_reach_objects() {
 }
 
 #[test]
+fn volumes_are_marked_by_gltf_extras_and_by_the_level_files_field() {
+    let dir = tempfile::tempdir().unwrap();
+    let json = gltf_json(None, "").replace(
+        r#"{"name": "roof", "mesh": 2}"#,
+        r#"{"name": "roof", "mesh": 2, "extras": {"volume": true, "tags": ["water"]}}"#,
+    );
+    let path = write(dir.path(), "t.glb", &glb(&json, &buffer()));
+    let LoadedLevel { level, .. } = load_level(&path, PathPolicy::default()).unwrap();
+    assert_eq!(level.objects[2].tags, ["volume", "water"]);
+    let text = r#"{"plumbline": "level", "version": 1, "objects": [
+        {"name": "zone", "volume": true, "shape": {"type": "box", "half_extents": [1, 1, 1]}},
+        {"name": "crate", "shape": {"type": "box", "half_extents": [1, 1, 1]}}]}"#;
+    let path = write(dir.path(), "t.level.json", text.as_bytes());
+    let LoadedLevel { level, .. } = load_level(&path, PathPolicy::default()).unwrap();
+    assert_eq!(level.objects[0].tags, ["volume"]);
+    assert!(level.objects[1].tags.is_empty());
+    let world = World::new(&level).unwrap();
+    assert!(world.is_volume(0) && !world.is_volume(1));
+}
+
+#[test]
 fn obj_groups_negative_indices_and_polygons() {
     let dir = tempfile::tempdir().unwrap();
     let text = "# a crate and a ramp\nv 0 0 0\nv 1 0 0\nv 1 1 0\nv 0 1 0\no crate\nf 1 2 3 4\ng ramp\nv 0 0 1\nv 1 0 1\nv 1 1 1\nf -3/1 -2/2/2 -1//3\nl 1 2\ng crate\nf 1 3 4\n";

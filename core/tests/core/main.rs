@@ -18,4 +18,5 @@ mod query_properties;
 mod query_references;
 mod reference_library;
 mod turning;
+mod volumes;
 mod walks;

@@ -1,0 +1,231 @@
+//! Volumes along the way: when a moving probe enters and leaves each volume of the level (kill zones,
+//! camera-exclusion zones, checkpoints, water), and which volumes a placed shape is in.
+//!
+//! Volumes are convex (a primitive, or a mesh's convex hull) and so is every probe shape, so along a
+//! straight segment the times a shape overlaps a volume form one interval (the segment meets the
+//! convex Minkowski difference of the two in one piece). Its ends are exact: the entry is the time of
+//! impact of the shape cast forward from the segment's start, the exit that of the shape cast back
+//! from the segment's end (a ray: the ray cast both ways). A path is taken a segment at a time. Along
+//! a jump's parabola the intervals are found by conservative advancement, as jumps find their
+//! contacts: outside, the shape moves no farther than its distance to the volume; inside, no farther
+//! than its penetration depth (the least move that separates the two), so no entry or exit between
+//! steps is missed (Mirtich, B., "Impulse-based Dynamic Simulation of Rigid Body Systems", PhD
+//! thesis, University of California, Berkeley, 1996, ch. 2; from memory). Touching counts as inside:
+//! a path that grazes a volume enters and leaves it at the same place.
+
+use glam::DVec3;
+use parry3d_f64::query::{
+    Ray, ShapeCastOptions, cast_shapes, contact, distance, intersection_test,
+};
+
+use super::QueryError;
+use super::jump::{CONTACT_TOLERANCE, Trajectory, arc_step};
+use super::shapes::ProbeShape;
+use super::world::{ObjectId, View, Volume};
+
+/// Most advancement steps along one arc before giving up (a shape grazing a volume's face).
+const MAX_ARC_STEPS: usize = 100_000;
+
+/// How a probe meets a volume.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord)]
+pub enum Crossing {
+    /// In it at the start (a placed shape: in it).
+    Inside,
+    /// Goes in.
+    Enter,
+    /// Comes out.
+    Exit,
+}
+
+/// One meeting of a probe with a volume.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct VolumeEvent {
+    /// The volume.
+    pub volume: ObjectId,
+    /// In, entering or leaving.
+    pub crossing: Crossing,
+    /// Where along the way: metres along a path (or ray), seconds along a jump.
+    pub at: f64,
+    /// The shape's centre (a ray's point) then.
+    pub point: DVec3,
+}
+
+/// What is tested against a volume: a point (rays, points) or a shape.
+#[derive(Clone, Copy)]
+pub enum Mover<'a> {
+    /// A point.
+    Point,
+    /// A convex shape.
+    Shape(&'a ProbeShape),
+}
+
+impl Mover<'_> {
+    /// True when the mover placed at `at` touches or overlaps the volume.
+    fn touches(self, volume: &Volume, at: DVec3) -> bool {
+        match self {
+            Mover::Point => volume.shape.contains_point(&volume.pose, at),
+            Mover::Shape(s) => {
+                intersection_test(&volume.pose, &*volume.shape, &s.pose_at(at), &*s.shape)
+                    .is_ok_and(|i| i.intersecting)
+            }
+        }
+    }
+
+    /// The fraction of the way from `from` to `to` at which the mover first touches the volume.
+    fn first_touch(self, volume: &Volume, from: DVec3, to: DVec3) -> Option<f64> {
+        match self {
+            Mover::Point => {
+                volume
+                    .shape
+                    .cast_ray(&volume.pose, &Ray::new(from, to - from), 1.0, true)
+            }
+            Mover::Shape(s) => {
+                let options = ShapeCastOptions {
+                    max_time_of_impact: 1.0,
+                    target_distance: 0.0,
+                    stop_at_penetration: true,
+                    compute_impact_geometry_on_penetration: false,
+                };
+                cast_shapes(
+                    &volume.pose,
+                    DVec3::ZERO,
+                    &*volume.shape,
+                    &s.pose_at(from),
+                    to - from,
+                    &*s.shape,
+                    options,
+                )
+                .ok()
+                .flatten()
+                .map(|cast| cast.time_of_impact)
+            }
+        }
+    }
+}
+
+impl View<'_> {
+    /// The volumes the mover placed at `at` is in (touching counts), in level order.
+    pub fn volumes_at(&self, mover: Mover, at: DVec3) -> Result<Vec<ObjectId>, QueryError> {
+        if !at.is_finite() {
+            return Err(QueryError::PositionNotFinite);
+        }
+        Ok(self
+            .volumes()
+            .filter(|v| mover.touches(v, at))
+            .map(|v| v.object)
+            .collect())
+    }
+
+    /// Every volume the mover is in at the start of `path` and every entry and exit along it, in
+    /// order of metres along the path (at one place: in, then out, then in; then by volume).
+    pub fn volume_events(
+        &self,
+        mover: Mover,
+        path: &[DVec3],
+    ) -> Result<Vec<VolumeEvent>, QueryError> {
+        if let Some(k) = path.iter().position(|p| !p.is_finite()) {
+            return Err(QueryError::PathPointNotFinite(k));
+        }
+        let Some(&start) = path.first() else {
+            return Ok(Vec::new());
+        };
+        let mut events = Vec::new();
+        for volume in self.volumes() {
+            let mut inside = mover.touches(volume, start);
+            if inside {
+                events.push(event(volume, Crossing::Inside, 0.0, start));
+            }
+            let mut along = 0.0;
+            for pair in path.windows(2) {
+                let (a, b) = (pair[0], pair[1]);
+                let length = a.distance(b);
+                if length == 0.0 {
+                    continue;
+                }
+                let at = |f: f64| (along + f * length, a.lerp(b, f));
+                let inside_at_b = mover.touches(volume, b);
+                if !inside && let Some(f) = mover.first_touch(volume, a, b) {
+                    let (m, p) = at(f);
+                    events.push(event(volume, Crossing::Enter, m, p));
+                    inside = true;
+                }
+                if inside && !inside_at_b {
+                    let f = 1.0 - mover.first_touch(volume, b, a).unwrap_or(1.0);
+                    let (m, p) = at(f);
+                    events.push(event(volume, Crossing::Exit, m, p));
+                }
+                inside = inside_at_b;
+                along += length;
+            }
+        }
+        sort_events(&mut events);
+        Ok(events)
+    }
+
+    /// Every volume the shape is in at launch and every entry and exit along `arc` up to `end`
+    /// seconds, in order of time.
+    pub fn volume_events_on_arc(
+        &self,
+        shape: &ProbeShape,
+        arc: &Trajectory,
+        end: f64,
+    ) -> Result<Vec<VolumeEvent>, QueryError> {
+        let mut events = Vec::new();
+        for volume in self.volumes() {
+            let pose = |t: f64| shape.pose_at(arc.at(t));
+            let mut inside = Mover::Shape(shape).touches(volume, arc.from);
+            if inside {
+                events.push(event(volume, Crossing::Inside, 0.0, arc.from));
+            }
+            // Signed distance: apart (> 0) or penetrating (< 0, minus the depth).
+            let signed = |t: f64| {
+                let here = pose(t);
+                match contact(&volume.pose, &*volume.shape, &here, &*shape.shape, 0.0) {
+                    Ok(Some(c)) => c.dist.min(0.0),
+                    _ => distance(&volume.pose, &*volume.shape, &here, &*shape.shape)
+                        .map_or(0.0, |d| d.distance),
+                }
+            };
+            // In within the tolerance: entered at the first time within it, left after the last.
+            let (mut t, mut last_in, mut steps) = (0.0, 0.0, 0);
+            while t < end {
+                steps += 1;
+                if steps > MAX_ARC_STEPS {
+                    return Err(QueryError::NotConverged);
+                }
+                let s = signed(t);
+                let close = s <= CONTACT_TOLERANCE;
+                if close && !inside {
+                    events.push(event(volume, Crossing::Enter, t, arc.at(t)));
+                } else if !close && inside {
+                    events.push(event(volume, Crossing::Exit, last_in, arc.at(last_in)));
+                }
+                inside = close;
+                if close {
+                    last_in = t;
+                }
+                // Apart, it moves no farther than the gap; in, no farther than the depth.
+                t += arc_step(arc, t, s.abs().max(CONTACT_TOLERANCE));
+            }
+        }
+        sort_events(&mut events);
+        Ok(events)
+    }
+}
+
+fn event(volume: &Volume, crossing: Crossing, at: f64, point: DVec3) -> VolumeEvent {
+    VolumeEvent {
+        volume: volume.object,
+        crossing,
+        at,
+        point,
+    }
+}
+
+fn sort_events(events: &mut [VolumeEvent]) {
+    events.sort_by(|a, b| {
+        a.at.total_cmp(&b.at)
+            .then(a.crossing.cmp(&b.crossing))
+            .then(a.volume.cmp(&b.volume))
+    });
+}
