@@ -10,12 +10,12 @@ use glam::DQuat;
 use std::collections::HashMap;
 
 use super::Selection;
-use super::badge::{badge, color32, verdict_counts};
+use super::badge::{badge, color32, paint_shape, verdict_counts};
 use super::commands::{Command, tooltip};
 use super::document::Document;
 use super::editor::{Edit, EditorState, probe_editor};
-use crate::view::palette::{self, SELECTED, okabe_ito};
-use plumbline_core::check::{Aspect, Hits, ProbeResult, metres};
+use crate::view::palette::{self, SELECTED, StateMark, okabe_ito};
+use plumbline_core::check::{Aspect, Hits, ProbeResult, VolumeCrossing, VolumeRecord, metres};
 use plumbline_core::level::ShapeSpec;
 use plumbline_core::probe::{Expect, Launch, Probe, ProbeQuery};
 use plumbline_core::query::{ProbeShape, World};
@@ -179,6 +179,11 @@ pub fn inspector_ui(
     egui::CollapsingHeader::new(heading)
         .default_open(true)
         .show(ui, |ui| hits_table(ui, result, selection));
+    if !result.volumes.is_empty() {
+        egui::CollapsingHeader::new(format!("Volumes ({})", result.volumes.len()))
+            .default_open(true)
+            .show(ui, |ui| volumes_table(ui, &result.volumes));
+    }
     if let Some(plot) = plot.filter(|p| p.probe == index) {
         egui::CollapsingHeader::new("Clearance along the path")
             .default_open(true)
@@ -198,6 +203,49 @@ pub fn inspector_ui(
             }
         });
     action
+}
+
+/// Where the probe is in, enters and leaves volumes, in order along its way; the markers as the view
+/// draws them.
+fn volumes_table(ui: &mut egui::Ui, events: &[VolumeRecord]) {
+    egui::Grid::new("volumes")
+        .num_columns(3)
+        .striped(true)
+        .show(ui, |ui| {
+            for head in ["volume", "", "where"] {
+                ui.label(RichText::new(head).strong());
+            }
+            ui.end_row();
+            for e in events {
+                ui.label(&*e.volume)
+                    .on_hover_text(format!("tags: {}", e.tags.join(", ")));
+                let (mark, word) = match e.event {
+                    VolumeCrossing::Inside => (StateMark::Round, "in"),
+                    VolumeCrossing::Enter => (StateMark::Diamond, "enters"),
+                    VolumeCrossing::Exit => (StateMark::Square, "leaves"),
+                };
+                ui.horizontal(|ui| {
+                    let (rect, _) =
+                        ui.allocate_exact_size(egui::vec2(12.0, 12.0), egui::Sense::hover());
+                    paint_shape(
+                        ui.painter(),
+                        rect.center(),
+                        4.5,
+                        mark,
+                        color32(palette::VOLUME),
+                    );
+                    ui.label(word);
+                });
+                let place = match (e.distance, e.time) {
+                    (Some(d), Some(t)) => format!("{} · {t:.2} s", metres(d)),
+                    (Some(d), None) => metres(d),
+                    (None, Some(t)) => format!("{t:.3} s"),
+                    (None, None) => String::new(),
+                };
+                ui.label(place);
+                ui.end_row();
+            }
+        });
 }
 
 /// Buttons for the commands that act on the selection.
@@ -431,6 +479,16 @@ fn expect_words(expect: Option<&Expect>) -> String {
             (Some(lo), None) => words.push(format!("at least {} seen", percent(lo))),
             (None, Some(hi)) => words.push(format!("at most {} seen", percent(hi))),
             (None, None) => {}
+        }
+    }
+    let volumes = [
+        ("enters", &c.enters),
+        ("never enters", &c.never_enters),
+        ("ends inside", &c.ends_inside),
+    ];
+    for (how, list) in volumes {
+        if let Some(list) = list {
+            words.push(format!("{how} {}", list.join(", ")));
         }
     }
     words.join("; ")

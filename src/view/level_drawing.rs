@@ -7,7 +7,7 @@ use glam::DVec3;
 
 use super::palette::{Rgb, material_tone, tag_tone};
 use super::surface::{Surface, face_normal, shaded, sun_light};
-use plumbline_core::level::{Geometry, Level};
+use plumbline_core::level::{Geometry, Level, VOLUME_TAG};
 use plumbline_core::query::placed_primitive_surface;
 
 /// Levels with more triangles than this get a proxy for frames while the camera moves.
@@ -87,9 +87,14 @@ fn sun_direction(up: DVec3) -> DVec3 {
 
 /// Every triangle of the level in world coordinates, with its tone: its material's where the file
 /// names materials (the parts users named, e.g. floors and roofs, read apart), else its object's.
+/// Volumes are left out: they are drawn see-through with the marks.
 fn world_triangles(level: &Level) -> Vec<([DVec3; 3], Rgb)> {
     let mut out = Vec::with_capacity(level.triangle_count());
-    for object in &level.objects {
+    for object in level
+        .objects
+        .iter()
+        .filter(|o| !o.tags.iter().any(|t| t == VOLUME_TAG))
+    {
         let tone = tag_tone(&object.tags);
         match &object.geometry {
             Geometry::Mesh(mesh) => out.extend(mesh.triangles.iter().enumerate().map(|(k, t)| {

@@ -80,6 +80,10 @@ pub const SELECTED: Rgb = okabe_ito::ORANGE;
 pub const CHANGED: Rgb = okabe_ito::YELLOW;
 /// Messages about something that went wrong (a failed save, an invalid field).
 pub const WARNING: Rgb = okabe_ito::ORANGE;
+/// Volumes (regions that block nothing), drawn see-through, and where probes enter and leave them.
+pub const VOLUME: Rgb = okabe_ito::BLUE;
+/// How opaque volumes are drawn, 0–255: enough to see them, little enough to see through.
+pub const VOLUME_ALPHA: u8 = 56;
 /// Ground too steep to stand on, in a reach map: a quiet grey, apart from the verdict colours.
 pub const STEEP: Rgb = [150, 150, 150];
 /// Handles of the selected probe and points being placed: near white, apart from every state colour.

@@ -6,10 +6,10 @@
 use glam::DVec3;
 
 use super::marks::Mark;
-use super::palette::{HANDLE, HOVER_OUTLINE, StateMark, okabe_ito};
+use super::palette::{HANDLE, HOVER_OUTLINE, StateMark, VOLUME, VOLUME_ALPHA, okabe_ito};
 use super::probe_marks::{Emphasis, probe_marks};
-use plumbline_core::check::{Hits, ProbeResult};
-use plumbline_core::level::{Geometry, Level};
+use plumbline_core::check::{Hits, ProbeResult, VolumeCrossing};
+use plumbline_core::level::{Geometry, Level, LevelObject, VOLUME_TAG};
 use plumbline_core::lint::Finding;
 use plumbline_core::probe::Probe;
 use plumbline_core::query::placed_primitive_surface;
@@ -26,6 +26,8 @@ const HIGHLIGHT_PUSH: f64 = 0.02;
 const HANDLE_SIZE: f64 = 11.0;
 /// Size of a placed point, pixels.
 const PLACED_SIZE: f64 = 9.0;
+/// Size of the markers where the selected probe enters and leaves volumes, pixels.
+const EVENT_SIZE: f64 = 12.0;
 
 /// What the view shows this frame.
 pub struct SceneMarks<'a> {
@@ -61,6 +63,7 @@ pub struct SceneMarks<'a> {
 /// The marks of a frame, in drawing order.
 pub fn scene_marks(scene: &SceneMarks) -> Vec<Mark> {
     let mut marks = Vec::new();
+    volume_marks(scene.level, &mut marks);
     // The inspected probe last, so that it is drawn over the others where they meet.
     let order = scene
         .shown
@@ -79,11 +82,12 @@ pub fn scene_marks(scene: &SceneMarks) -> Vec<Mark> {
             hit: scene.hit,
         };
         probe_marks(probe, result, emphasis, scene.level.up, &mut marks);
-        if emphasis.selected
-            && let Hits::Overlap(hits) = &result.hits
-        {
-            let names: Vec<&str> = hits.iter().map(|h| &*h.object).collect();
-            highlight_objects(scene.level, &names, &mut marks);
+        if emphasis.selected {
+            if let Hits::Overlap(hits) = &result.hits {
+                let names: Vec<&str> = hits.iter().map(|h| &*h.object).collect();
+                highlight_objects(scene.level, &names, &mut marks);
+            }
+            volume_event_marks(result, &mut marks);
         }
     }
     if let Some(finding) = scene.finding {
@@ -138,6 +142,41 @@ pub fn scene_marks(scene: &SceneMarks) -> Vec<Mark> {
     marks
 }
 
+/// Every volume of the level, see-through (they block nothing, so the level is seen through them).
+fn volume_marks(level: &Level, marks: &mut Vec<Mark>) {
+    for object in level
+        .objects
+        .iter()
+        .filter(|o| o.tags.iter().any(|t| t == VOLUME_TAG))
+    {
+        if let Some((vertices, triangles)) = object_surface(object) {
+            marks.push(Mark::Ghost {
+                vertices,
+                triangles,
+                colour: VOLUME,
+                alpha: VOLUME_ALPHA,
+            });
+        }
+    }
+}
+
+/// Where the selected probe is in, enters and leaves volumes: a round marker where it is in one at
+/// the start, a diamond where it enters, a square where it leaves.
+fn volume_event_marks(result: &ProbeResult, marks: &mut Vec<Mark>) {
+    for event in &result.volumes {
+        marks.push(Mark::Point {
+            at: DVec3::from_array(event.point),
+            colour: VOLUME,
+            size: EVENT_SIZE,
+            mark: match event.event {
+                VolumeCrossing::Inside => StateMark::Round,
+                VolumeCrossing::Enter => StateMark::Diamond,
+                VolumeCrossing::Exit => StateMark::Square,
+            },
+        });
+    }
+}
+
 /// A lint finding: its objects highlighted, its edges in thick lines, and a large marker at its
 /// point.
 fn finding_marks(level: &Level, finding: &Finding, marks: &mut Vec<Mark>) {
@@ -167,16 +206,8 @@ fn highlight_objects(level: &Level, names: &[&str], marks: &mut Vec<Mark>) {
         let Some(object) = level.objects.iter().find(|o| o.name == *name) else {
             continue;
         };
-        let (vertices, triangles) = match &object.geometry {
-            Geometry::Mesh(mesh) if mesh.triangles.len() <= HIGHLIGHT_TRIANGLES => {
-                (mesh.vertices.clone(), mesh.triangles.clone())
-            }
-            Geometry::Mesh(_) => continue,
-            Geometry::Primitive {
-                shape,
-                translation,
-                rotation,
-            } => placed_primitive_surface(shape, *translation, *rotation),
+        let Some((vertices, triangles)) = object_surface(object) else {
+            continue;
         };
         let centre = vertices.iter().copied().sum::<DVec3>() / vertices.len().max(1) as f64;
         let vertices = vertices
@@ -189,6 +220,21 @@ fn highlight_objects(level: &Level, names: &[&str], marks: &mut Vec<Mark>) {
             colour: okabe_ito::ORANGE,
             alpha: 130,
         });
+    }
+}
+
+/// An object's surface in level coordinates, unless it is a mesh too big to copy into marks.
+fn object_surface(object: &LevelObject) -> Option<(Vec<DVec3>, Vec<[u32; 3]>)> {
+    match &object.geometry {
+        Geometry::Mesh(mesh) if mesh.triangles.len() <= HIGHLIGHT_TRIANGLES => {
+            Some((mesh.vertices.clone(), mesh.triangles.clone()))
+        }
+        Geometry::Mesh(_) => None,
+        Geometry::Primitive {
+            shape,
+            translation,
+            rotation,
+        } => Some(placed_primitive_surface(shape, *translation, *rotation)),
     }
 }
 
@@ -302,5 +348,64 @@ mod tests {
                 .iter()
                 .any(|m| matches!(m, Mark::Point { at, .. } if *at == finding.point))
         );
+    }
+
+    #[test]
+    fn volumes_are_drawn_see_through_and_the_selected_probes_entries_marked() {
+        use plumbline_core::check::{VolumeCrossing, VolumeRecord};
+        let (mut level, probe, mut result) = overlap_probe();
+        level.objects.push(LevelObject {
+            name: "pool".into(),
+            tags: vec!["volume".into()],
+            geometry: Geometry::Primitive {
+                shape: Primitive::Box {
+                    half_extents: DVec3::ONE,
+                },
+                translation: DVec3::ZERO,
+                rotation: glam::DQuat::IDENTITY,
+            },
+        });
+        result.volumes = vec![VolumeRecord {
+            volume: "pool".into(),
+            tags: vec!["volume".to_string()].into(),
+            event: VolumeCrossing::Enter,
+            distance: Some(1.0),
+            time: None,
+            point: [1.0, 2.0, 3.0],
+        }];
+        let probes = [probe];
+        let results = [result];
+        let scene = |selected: Option<usize>| SceneMarks {
+            level: &level,
+            probes: &probes,
+            results: &results,
+            shown: &[0],
+            selected,
+            selected_all: &[],
+            hit: None,
+            handles: &[],
+            preview: &[],
+            hover_triangle: None,
+            finding: None,
+            highlight_tag: None,
+            dim_others: true,
+        };
+        let volume_ghosts = |marks: &[Mark]| {
+            marks
+                .iter()
+                .filter(|m| matches!(m, Mark::Ghost { colour, alpha, .. } if *colour == VOLUME && *alpha == VOLUME_ALPHA))
+                .count()
+        };
+        let entry = Mark::Point {
+            at: DVec3::new(1.0, 2.0, 3.0),
+            colour: VOLUME,
+            size: EVENT_SIZE,
+            mark: StateMark::Diamond,
+        };
+        let unselected = scene_marks(&scene(None));
+        assert_eq!(volume_ghosts(&unselected), 1);
+        assert!(!unselected.contains(&entry));
+        let selected = scene_marks(&scene(Some(0)));
+        assert!(selected.contains(&entry));
     }
 }

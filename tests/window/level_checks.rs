@@ -205,3 +205,14 @@ fn a_reach_map_cancelled_says_so_and_can_be_answered_again() {
         Verdict::Fail
     );
 }
+
+#[test]
+fn a_probe_that_enters_a_volume_lists_it_in_the_inspector() {
+    let mut harness = harness();
+    let index = index_of(harness.state(), "jump-into-the-river");
+    harness.state_mut().select_probe(Some(index));
+    harness.run_steps(2);
+    harness.get_by_label("Volumes (1)");
+    harness.get_by_label("river");
+    harness.get_by_label("enters");
+}

@@ -226,6 +226,7 @@ pub fn probe_set(level: &str) -> ProbeSet {
             when(Conditions {
                 blocked: Some(false),
                 min_clearance: Some(1.0),
+                never_enters: Some(vec!["no-camera".into()]),
                 ..Conditions::default()
             }),
         ),
@@ -399,6 +400,7 @@ pub fn probe_set(level: &str) -> ProbeSet {
             },
             when(Conditions {
                 reaches: Some(true),
+                enters: Some(vec!["checkpoint".into()]),
                 ..Conditions::default()
             }),
         ),
@@ -451,6 +453,24 @@ pub fn probe_set(level: &str) -> ProbeSet {
             when(Conditions {
                 first_object: Some("container-19".into()),
                 walkable: Some(true),
+                ..Conditions::default()
+            }),
+        ),
+        // Off the quay's edge between two bollards, over the kerb and into the river.
+        probe(
+            "jump-into-the-river",
+            "A character jumping off the quay lands in the river",
+            ProbeQuery::Jump {
+                shape: character(),
+                rotation: None,
+                from: v(4.0, standing(0.0), QUAY_Z + 1.5),
+                launch: Launch::Velocity(v(0.0, 4.0, -5.0)),
+                gravity: None,
+                max_slope: None,
+                max_time: None,
+            },
+            when(Conditions {
+                enters: Some(vec!["water".into()]),
                 ..Conditions::default()
             }),
         ),

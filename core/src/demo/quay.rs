@@ -669,6 +669,10 @@ pub fn level_file(glb_name: &str, edited: bool) -> Value {
             "shape": {"type": "box", "half_extents": half}}),
         );
     }
+    for (name, tags, at, half) in volumes() {
+        objects.push(json!({"name": name, "tags": tags, "volume": true,
+            "translation": at.to_array(), "shape": {"type": "box", "half_extents": half}}));
+    }
     if edited {
         let (at, half) = e.door_leaf;
         objects.push(
@@ -684,6 +688,33 @@ pub fn level_file(glb_name: &str, edited: bool) -> Value {
         "objects": objects,
         "lint": lint_section(),
     })
+}
+
+/// The quay's volumes (boxes that block nothing): name, tags, centre and half extents. A no-camera
+/// zone around the crane's cab above the camera's path along the quay, a checkpoint at the foot of
+/// the catwalk stairs, and the river below the quay (its bottom kept a little off the river bed, so
+/// the two are told apart in the view).
+pub fn volumes() -> Vec<(&'static str, Vec<&'static str>, DVec3, [f64; 3])> {
+    vec![
+        (
+            "no-camera-cab",
+            vec!["no-camera"],
+            DVec3::new(0.0, 9.3, -36.5),
+            [3.0, 1.2, 1.5],
+        ),
+        (
+            "checkpoint-stairs",
+            vec!["checkpoint"],
+            DVec3::new(40.7, 1.5, -1.0),
+            [1.0, 1.5, 0.5],
+        ),
+        (
+            "river",
+            vec!["water"],
+            DVec3::new(0.0, -2.7, QUAY_Z - 11.5),
+            [100.0, 1.7, 10.0],
+        ),
+    ]
 }
 
 /// What the quay's level file tells lint: rocks must be closed, and the findings its authors

@@ -7,7 +7,7 @@ use egui::{Align2, FontId, Pos2, Rect, Stroke, Vec2};
 use super::super::badge::{color32, color32_alpha, paint_mark, paint_shape};
 use super::overlays::paint_number;
 use crate::view::palette::{
-    BACKING, HANDLE, HIT, NORMAL, SELECTED, StateMark, okabe_ito, tag_tone, verdict_colour,
+    BACKING, HANDLE, HIT, NORMAL, SELECTED, StateMark, VOLUME, okabe_ito, tag_tone, verdict_colour,
     verdict_word,
 };
 use plumbline_core::check::Verdict;
@@ -36,12 +36,14 @@ enum Sample {
     Arrow,
     /// A see-through shape.
     Ghost,
+    /// A see-through volume.
+    Volume,
     /// A number in a disc.
     Number,
 }
 
 /// The legend's rows: a sample and what it means.
-const ROWS: [(Sample, &str); 12] = [
+const ROWS: [(Sample, &str); 15] = [
     (Sample::Verdicts, ""),
     (
         Sample::Line {
@@ -78,6 +80,9 @@ const ROWS: [(Sample, &str); 12] = [
         Sample::Shape(StateMark::Square, okabe_ito::VERMILLION),
         "coverage: seen from no spot",
     ),
+    (Sample::Volume, "volume: blocks nothing"),
+    (Sample::Shape(StateMark::Diamond, VOLUME), "enters a volume"),
+    (Sample::Shape(StateMark::Square, VOLUME), "leaves a volume"),
 ];
 
 /// Paints the legend in the top-right corner of `rect`.
@@ -178,6 +183,10 @@ fn paint_sample(painter: &egui::Painter, sample: Sample, centre: Pos2) {
         }
         Sample::Ghost => {
             painter.circle_filled(centre, 8.0, color32_alpha(HIT, 110));
+        }
+        Sample::Volume => {
+            let patch = Rect::from_center_size(centre, Vec2::new(SAMPLE * 0.8, ROW - 6.0));
+            painter.rect_filled(patch, 2.0, color32_alpha(VOLUME, 110));
         }
         Sample::Number => paint_number(painter, centre, 1, color32(HIT)),
     }
