@@ -89,18 +89,17 @@ impl fmt::Display for Aspect {
                         .map(|(a, b)| format!("{a}-{b}"))
                         .collect::<Vec<_>>()
                 };
-                lost_and_gained(f, "sightlines", &pairs(lost), &pairs(gained))
+                two_lists(
+                    f,
+                    ("sightlines lost:", &pairs(lost)),
+                    ("sightlines gained:", &pairs(gained)),
+                )
             }
-            Aspect::Targets { lost, gained } => lost_and_gained(f, "targets", lost, gained),
+            Aspect::Targets { lost, gained } => {
+                two_lists(f, ("targets lost:", lost), ("targets gained:", gained))
+            }
             Aspect::Volumes { entered, left } => {
-                let mut parts = Vec::new();
-                if !entered.is_empty() {
-                    parts.push(format!("now enters {}", entered.join(", ")));
-                }
-                if !left.is_empty() {
-                    parts.push(format!("no longer enters {}", left.join(", ")));
-                }
-                write!(f, "{}", parts.join("; "))
+                two_lists(f, ("now enters", entered), ("no longer enters", left))
             }
             Aspect::Reached(a, b) => write!(f, "reached {a:.0} m² -> {b:.0} m² ({:+.0} m²)", b - a),
             Aspect::Coverage(a, b) => write!(
@@ -114,20 +113,18 @@ impl fmt::Display for Aspect {
     }
 }
 
-/// "`what` lost: …; `what` gained: …", each part only when it lists something.
-fn lost_and_gained(
+/// Two lists, each after its words ("targets lost: a, b; targets gained: c"), each only when it
+/// lists something.
+fn two_lists(
     f: &mut fmt::Formatter<'_>,
-    what: &str,
-    lost: &[String],
-    gained: &[String],
+    first: (&str, &[String]),
+    second: (&str, &[String]),
 ) -> fmt::Result {
-    let mut parts = Vec::new();
-    if !lost.is_empty() {
-        parts.push(format!("{what} lost: {}", lost.join(", ")));
-    }
-    if !gained.is_empty() {
-        parts.push(format!("{what} gained: {}", gained.join(", ")));
-    }
+    let parts: Vec<String> = [first, second]
+        .into_iter()
+        .filter(|(_, list)| !list.is_empty())
+        .map(|(words, list)| format!("{words} {}", list.join(", ")))
+        .collect();
     write!(f, "{}", parts.join("; "))
 }
 
