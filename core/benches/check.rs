@@ -118,6 +118,7 @@ fn bare_queries(world: &World, probes: &[Probe]) -> usize {
             | ProbeQuery::Coverage { .. }
             | ProbeQuery::Jump { .. }
             | ProbeQuery::Walk { .. }
+            | ProbeQuery::Settle { .. }
             | ProbeQuery::Reach { .. } => {
                 unreachable!("the generated probes are single queries")
             }

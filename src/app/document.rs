@@ -49,10 +49,10 @@ pub struct Document {
     cancelled: Vec<String>,
 }
 
-/// True for the kinds whose answers take long enough (a reach map: seconds) that an edit in the
-/// window answers them in the background, with progress and a way to cancel.
+/// True for the kinds whose answers take long enough (a reach map: seconds; a settle: a physics run)
+/// that an edit in the window answers them in the background, with progress and a way to cancel.
 pub fn answers_in_background(kind: ProbeKind) -> bool {
-    kind == ProbeKind::Reach
+    matches!(kind, ProbeKind::Reach | ProbeKind::Settle)
 }
 
 /// What a probe shows while its answer is owed.

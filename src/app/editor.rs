@@ -275,6 +275,20 @@ fn query_fields(ui: &mut egui::Ui, query: &mut ProbeQuery) -> Option<String> {
                 mark(true, "search");
             }
         }
+        ProbeQuery::Settle {
+            shape,
+            at,
+            friction,
+            ..
+        } => {
+            mark(shape_editor(ui, shape, false), "shape");
+            mark(point(ui, "at", at), "at");
+            let mut grip = friction.unwrap_or(plumbline_core::probe::SETTLE_FRICTION);
+            if number(ui, "friction", &mut grip, "", 0.01) {
+                *friction = Some(grip);
+                mark(true, "friction");
+            }
+        }
         ProbeQuery::Sightlines { spots } => spots_editor(ui, spots, &mut mark),
         ProbeQuery::Coverage {
             spots,

@@ -163,6 +163,31 @@ const REACHED: Column = Column {
     tip: "A dot when the character reached the last waypoint",
     kind: ColumnKind::Flag,
 };
+const RESTS_ON: Column = Column {
+    head: "rests on",
+    tip: "The object the body touches at the end",
+    kind: ColumnKind::Text,
+};
+const MOVED: Column = Column {
+    head: "moved",
+    tip: "How far the body ended from where it was put, metres",
+    kind: ColumnKind::Number,
+};
+const TURNED: Column = Column {
+    head: "turned",
+    tip: "How far the body ended turned from how it was put, degrees",
+    kind: ColumnKind::Number,
+};
+const SETTLED_AFTER: Column = Column {
+    head: "s",
+    tip: "Seconds until it came to rest (or stopped being followed)",
+    kind: ColumnKind::Number,
+};
+const AT_REST: Column = Column {
+    head: "rest",
+    tip: "A dot when the body came to rest",
+    kind: ColumnKind::Flag,
+};
 const ENCLOSED: Column = Column {
     head: "enclosed",
     tip: "A dot when the shape is wholly inside the object",
@@ -259,6 +284,21 @@ pub fn hit_columns(hits: &Hits) -> (Vec<Column>, Vec<Vec<Cell>>) {
                     plain(format!("{:.1}", x.steepest_slope)),
                     plain(format!("{:.3}", x.longest_fall)),
                     tick(x.reached),
+                ]
+            }),
+        ),
+        Hits::Settle(h) => (
+            vec![NUMBER, RESTS_ON, MOVED, TURNED, SETTLED_AFTER, AT_REST],
+            numbered(h, |x| {
+                vec![
+                    match &x.object {
+                        Some(name) => object(name, &None),
+                        None => plain("—".into()),
+                    },
+                    plain(format!("{:.3}", x.moved)),
+                    plain(format!("{:.1}", x.turned)),
+                    plain(format!("{:.2}", x.time)),
+                    tick(x.rests()),
                 ]
             }),
         ),

@@ -174,6 +174,7 @@ pub fn inspector_ui(
         Hits::Jump(_) => "Landing".to_string(),
         Hits::Walk(_) => "Walk".to_string(),
         Hits::Reach(_) => "Reach".to_string(),
+        Hits::Settle(_) => "Where it ends".to_string(),
         hits => format!("Hits ({})", hits.len()),
     };
     egui::CollapsingHeader::new(heading)
@@ -346,6 +347,7 @@ fn question_words(probe: &Probe) -> String {
         ProbeQuery::Closest { shape, .. } => format!("closest to a {}", shape_words(shape)),
         ProbeQuery::Overlap { shape, .. } => format!("overlap of a {}", shape_words(shape)),
         ProbeQuery::Rest { shape, .. } => format!("rest of a {}", shape_words(shape)),
+        ProbeQuery::Settle { shape, .. } => format!("a {} let go", shape_words(shape)),
         ProbeQuery::Sightlines { spots } => format!("sightlines among {}", spots_words(spots)),
         ProbeQuery::Coverage { spots, spacing, .. } => format!(
             "coverage from {}, every {}",
@@ -480,6 +482,12 @@ fn expect_words(expect: Option<&Expect>) -> String {
             (None, Some(hi)) => words.push(format!("at most {} seen", percent(hi))),
             (None, None) => {}
         }
+    }
+    if let Some(m) = c.max_move {
+        words.push(format!("moves at most {}", metres(m)));
+    }
+    if let Some(t) = c.max_turn {
+        words.push(format!("turns at most {t:.1}°"));
     }
     let volumes = [
         ("enters", &c.enters),

@@ -282,6 +282,27 @@ fn own_marks(
             }
         }
         (
+            ProbeQuery::Settle {
+                shape,
+                at,
+                rotation,
+                ..
+            },
+            Hits::Settle(settled),
+        ) => {
+            // Where it was put, faint; the way it went; where it ends, solid when at rest.
+            ShapeGhost::new(shape, *rotation).place(*at, colour, 50, out);
+            for x in settled {
+                let way: Vec<DVec3> = x.path.iter().map(|p| DVec3::from(*p)).collect();
+                if way.len() >= 2 {
+                    path_lines(&way, None, colour, width, out);
+                }
+                let end = DQuat::from_array(x.rotation);
+                let tint = if x.rests() { colour } else { HIT };
+                ShapeGhost::new(shape, Some(end)).place(x.position.into(), tint, 120, out);
+            }
+        }
+        (
             ProbeQuery::Jump {
                 shape, rotation, ..
             },
@@ -495,7 +516,8 @@ pub fn start_point(query: &ProbeQuery, result: Option<&ProbeResult>) -> DVec3 {
         ProbeQuery::Sweep { path, .. } => path[0],
         ProbeQuery::Closest { at, .. }
         | ProbeQuery::Overlap { at, .. }
-        | ProbeQuery::Rest { at, .. } => *at,
+        | ProbeQuery::Rest { at, .. }
+        | ProbeQuery::Settle { at, .. } => *at,
         ProbeQuery::Jump { from, .. } => *from,
         ProbeQuery::Walk { path, .. } => path[0],
         ProbeQuery::Sightlines { .. } | ProbeQuery::Coverage { .. } | ProbeQuery::Reach { .. } => {
@@ -528,6 +550,7 @@ pub fn hit_points(hits: &Hits) -> Vec<DVec3> {
             .filter(|w| !w.reached)
             .filter_map(|w| w.end())
             .collect(),
+        Hits::Settle(h) => h.iter().map(|x| x.position.into()).collect(),
         Hits::Rest(_) | Hits::Sightlines(_) | Hits::Coverage(_) | Hits::Reach(_) => Vec::new(),
     }
 }
@@ -545,6 +568,11 @@ pub fn probe_points(probe: &Probe, result: Option<&ProbeResult>, up: DVec3) -> V
             points.extend(arc_points(&probe.query, up, hits.first().map(|h| h.time)))
         }
         Some(Hits::Closest(hits)) => points.extend(hits.iter().map(|h| DVec3::from(h.point))),
+        Some(Hits::Settle(settled)) => points.extend(
+            settled
+                .iter()
+                .flat_map(|x| x.path.iter().map(|p| DVec3::from(*p))),
+        ),
         Some(Hits::Rest(hits)) => points.extend(hits.iter().map(|h| DVec3::from(h.point))),
         Some(Hits::Sightlines(pairs)) => points.extend(
             pairs

@@ -70,7 +70,7 @@ fn selecting_a_probe_in_the_list_shows_its_hits_in_the_inspector() {
 fn with_nothing_selected_the_overview_links_the_failures_and_highlights_a_tag() {
     let mut harness = harness();
     // The counts, as in the summary bar.
-    assert_eq!(harness.query_all_by_label("pass 59").count(), 2);
+    assert_eq!(harness.query_all_by_label("pass 60").count(), 2);
     harness.get_by_label("spawns-clear/spawn-pad-hedge").click();
     harness.run_steps(2);
     let workbench = harness.state();

@@ -7,7 +7,7 @@ use super::records::{
     SweepHitRecord, Verdict,
 };
 use super::verdict::judge;
-use super::{answer_level, jump, reach, volumes, walk};
+use super::{answer_level, jump, reach, settle, volumes, walk};
 use crate::json_text::{round9, round9_vec};
 use crate::level::{FacePlace, ShapeSpec};
 use crate::probe::{HitsMode, Probe, ProbeQuery};
@@ -224,6 +224,7 @@ fn answer(world: &World, probe: &Probe, progress: &Progress) -> Result<Answer, Q
         ProbeQuery::Jump { .. } => (jump::answer(&view, &probe.query)?, None),
         ProbeQuery::Walk { .. } => (walk::answer(&view, &probe.query)?, None),
         ProbeQuery::Reach { .. } => (reach::answer(&view, &probe.query, progress)?, None),
+        ProbeQuery::Settle { .. } => (settle::answer(&view, &probe.query)?, None),
     })
 }
 

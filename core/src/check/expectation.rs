@@ -12,7 +12,8 @@ const SLACK: f64 = super::compare::DEFAULT_TOLERANCE;
 /// clearance, the clearance rounded down to the centimetre; for sightlines, which pairs see each
 /// other and which do not; for coverage, at least the share seen now, rounded down to a tenth of a
 /// percent; for jumps, the object landed on and whether it is walkable; for walks, whether it
-/// reaches the end. `None` when the probe could
+/// reaches the end; for a settle that comes to rest, how far it moves and turns (rounded up, with a
+/// centimetre and a degree of slack). `None` when the probe could
 /// not be answered.
 pub fn expectation_from(result: &ProbeResult) -> Option<Expect> {
     if result.verdict == Verdict::Error {
@@ -55,6 +56,14 @@ pub fn expectation_from(result: &ProbeResult) -> Option<Expect> {
             Expect::Conditions(Conditions {
                 reachable: list(true),
                 unreachable: list(false),
+                ..Conditions::default()
+            })
+        }
+        (Hits::Settle(h), _) if h.first().is_some_and(|x| x.rests()) => {
+            let x = &h[0];
+            Expect::Conditions(Conditions {
+                max_move: Some(((x.moved + SLACK) * 100.0).ceil() / 100.0),
+                max_turn: Some((x.turned + 1.0).ceil().min(180.0)),
                 ..Conditions::default()
             })
         }

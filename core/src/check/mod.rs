@@ -15,6 +15,7 @@ mod records;
 mod results_file;
 mod rules;
 mod run;
+mod settle;
 mod verdict;
 mod volumes;
 mod walk;
@@ -36,6 +37,7 @@ pub use results_file::{
 };
 pub use rules::expand_rules;
 pub use run::{Runner, run_probes};
+pub use settle::{SettleRecord, settle_ends};
 pub use verdict::metres;
 pub use volumes::{VolumeCrossing, VolumeRecord};
 pub use walk::WalkRecord;

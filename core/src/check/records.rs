@@ -7,6 +7,7 @@ use serde::{Deserialize, Serialize};
 pub use super::jump::JumpRecord;
 pub use super::level_records::{CoverageRecord, PairRecord, RestRecord};
 pub use super::reach::ReachRecord;
+pub use super::settle::SettleRecord;
 pub use super::volumes::VolumeRecord;
 pub use super::walk::WalkRecord;
 use crate::json_text::Json;
@@ -257,6 +258,8 @@ pub enum Hits {
     Walk(Vec<WalkRecord>),
     /// One record of what the character reaches.
     Reach(Vec<ReachRecord>),
+    /// One record of where the let-go body ends up.
+    Settle(Vec<SettleRecord>),
 }
 
 impl Hits {
@@ -273,6 +276,7 @@ impl Hits {
             Hits::Jump(h) => h.len(),
             Hits::Walk(h) => h.iter().filter(|w| !w.reached).count(),
             Hits::Reach(h) => h.iter().map(|r| r.unreached_targets().count()).sum(),
+            Hits::Settle(h) => h.iter().filter(|x| !x.rests()).count(),
         }
     }
 
@@ -312,6 +316,13 @@ impl Hits {
                     w.length,
                 )
             }),
+            Hits::Settle(h) => h.first().map(|x| {
+                (
+                    x.object.as_deref().unwrap_or(""),
+                    x.tags.as_deref().unwrap_or(&[]),
+                    x.moved,
+                )
+            }),
         }
     }
 
@@ -328,6 +339,7 @@ impl Hits {
             ProbeKind::Jump => Hits::Jump(Vec::new()),
             ProbeKind::Walk => Hits::Walk(Vec::new()),
             ProbeKind::Reach => Hits::Reach(Vec::new()),
+            ProbeKind::Settle => Hits::Settle(Vec::new()),
         }
     }
 }
@@ -564,6 +576,7 @@ mod layout {
                 Hits::Jump(h) => h.iter().map(JumpRecord::to_json).collect(),
                 Hits::Walk(h) => h.iter().map(WalkRecord::to_json).collect(),
                 Hits::Reach(h) => h.iter().map(ReachRecord::to_json).collect(),
+                Hits::Settle(h) => h.iter().map(SettleRecord::to_json).collect(),
             };
             let mut f = vec![
                 ("id", Json::Str(&self.id)),

@@ -267,5 +267,6 @@ fn parse_hits(kind: ProbeKind, hits: Vec<Value>) -> Result<Hits, String> {
         ProbeKind::Jump => Hits::Jump(serde_json::from_value(value).map_err(err)?),
         ProbeKind::Walk => Hits::Walk(serde_json::from_value(value).map_err(err)?),
         ProbeKind::Reach => Hits::Reach(serde_json::from_value(value).map_err(err)?),
+        ProbeKind::Settle => Hits::Settle(serde_json::from_value(value).map_err(err)?),
     })
 }

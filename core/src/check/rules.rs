@@ -74,17 +74,7 @@ fn template_probe(rule: &Rule, world: &World, object: Option<ObjectId>) -> Probe
             )
         }
         Template::Rests { max_gap, max_sink } => {
-            let (shape, at, rotation) = match object {
-                Some(id) => {
-                    let (at, turn) = world.object_frame(id);
-                    (world.object_shape(id), at, Some(turn))
-                }
-                None => (
-                    crate::level::ShapeSpec::Sphere { radius: 1.0 },
-                    glam::DVec3::ZERO,
-                    None,
-                ),
-            };
+            let (shape, at, rotation) = own_pose(world, object);
             blank(
                 ProbeQuery::Rest {
                     shape,
@@ -93,6 +83,25 @@ fn template_probe(rule: &Rule, world: &World, object: Option<ObjectId>) -> Probe
                     search: Some(REST_SEARCH),
                 },
                 Some(Rule::rests_expectation(*max_gap, *max_sink)),
+            )
+        }
+        Template::Settles { max_move, max_turn } => {
+            let (shape, at, rotation) = own_pose(world, object);
+            blank(
+                ProbeQuery::Settle {
+                    shape,
+                    at,
+                    rotation,
+                    density: None,
+                    friction: None,
+                    restitution: None,
+                    max_time: None,
+                },
+                Some(Expect::Conditions(crate::probe::Conditions {
+                    max_move: Some(*max_move),
+                    max_turn: Some(*max_turn),
+                    ..Default::default()
+                })),
             )
         }
         Template::Probe { probe, anchors } => {
@@ -107,5 +116,24 @@ fn template_probe(rule: &Rule, world: &World, object: Option<ObjectId>) -> Probe
             }
             probe
         }
+    }
+}
+
+/// An object's own shape at its own pose (a stand-in when the rule selected no object: its probe
+/// errs before it is answered).
+fn own_pose(
+    world: &World,
+    object: Option<ObjectId>,
+) -> (crate::level::ShapeSpec, glam::DVec3, Option<glam::DQuat>) {
+    match object {
+        Some(id) => {
+            let (at, turn) = world.object_frame(id);
+            (world.object_shape(id), at, Some(turn))
+        }
+        None => (
+            crate::level::ShapeSpec::Sphere { radius: 1.0 },
+            glam::DVec3::ZERO,
+            None,
+        ),
     }
 }

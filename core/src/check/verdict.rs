@@ -92,6 +92,9 @@ fn first_unmet(
     if let Hits::Reach(h) = hits {
         return super::reach::first_unmet(c, h);
     }
+    if let Hits::Settle(h) = hits {
+        return super::settle::first_unmet(c, h);
+    }
     super::level_verdict::first_unmet(c, hits)
 }
 
@@ -106,6 +109,7 @@ fn first_word(hits: &Hits) -> &'static str {
         Hits::Jump(_) => "the landing to be on",
         Hits::Walk(_) => "the walk to be stopped by",
         Hits::Reach(_) => "the first target not reached to be",
+        Hits::Settle(_) => "the support at rest to be",
     }
 }
 
@@ -148,6 +152,7 @@ fn describe(hits: &Hits, clearance: Option<&ClearanceRecord>) -> String {
         Hits::Jump(h) => return super::jump::describe(h),
         Hits::Walk(h) => return super::walk::describe(h),
         Hits::Reach(h) => return super::reach::describe(h),
+        Hits::Settle(h) => return super::settle::describe(h),
     };
     match (found, clearance) {
         (Some(text), _) => text,

@@ -94,6 +94,64 @@ fn ignoring_tags(mut p: Probe, tags: &[&str]) -> Probe {
     p
 }
 
+/// Props let go as rigid bodies: crate 3 stays where it was put; a barrel laid on its side on the
+/// spoil bank's back rolls away (on purpose).
+fn settle_probes() -> Vec<Probe> {
+    let (_, crate_3) = crates()
+        .into_iter()
+        .find(|(n, _)| *n == "crate-3")
+        .expect("the demo has crate 3");
+    let mut stays = probe(
+        "crate-3-stays-put",
+        "Crate 3, let go where it stands, stays put",
+        ProbeQuery::Settle {
+            shape: ShapeSpec::Box {
+                half_extents: [0.3, 0.3, 0.3],
+            },
+            at: crate_3,
+            rotation: None,
+            density: None,
+            friction: None,
+            restitution: None,
+            max_time: None,
+        },
+        when(Conditions {
+            max_move: Some(0.01),
+            max_turn: Some(1.0),
+            ..Conditions::default()
+        }),
+    );
+    stays.filter.ignore_objects = vec!["crate-3".into()];
+    // On the bank's 25° back, 30.5 m north, lying along x with its side 1 mm off the slope.
+    let slope = 25f64.to_radians();
+    let (x0, x1, profile) = SPOIL_BANK;
+    let (top, foot) = (profile[2], profile[3]);
+    let z = 30.5;
+    let ground = top.1 * (foot.0 - z) / (foot.0 - top.0);
+    let normal = v(0.0, slope.cos(), slope.sin());
+    let barrel = probe(
+        "barrel-on-the-spoil-bank",
+        "A barrel laid on the spoil bank stays there (fails on purpose: it rolls down)",
+        ProbeQuery::Settle {
+            shape: ShapeSpec::Cylinder {
+                radius: 0.3,
+                half_height: 0.45,
+            },
+            at: v((x0 + x1) / 2.0, ground, z) + normal * 0.301,
+            rotation: Some(glam::DQuat::from_rotation_z(std::f64::consts::FRAC_PI_2)),
+            density: None,
+            friction: None,
+            restitution: None,
+            max_time: None,
+        },
+        when(Conditions {
+            max_move: Some(0.05),
+            ..Conditions::default()
+        }),
+    );
+    vec![stays, barrel]
+}
+
 /// Eye height above a floor, for lookouts.
 const EYE: f64 = 1.7;
 
@@ -552,6 +610,7 @@ pub fn probe_set(level: &str) -> ProbeSet {
             }),
         ));
     }
+    probes.extend(settle_probes());
     probes.extend(whole_level_probes());
     ProbeSet {
         level: level.to_string(),

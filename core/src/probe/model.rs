@@ -69,11 +69,13 @@ pub enum ProbeKind {
     Walk,
     /// Which of a region's ground a character walks to from its start spots, and which targets.
     Reach,
+    /// A shape let go as a rigid body: where it comes to rest.
+    Settle,
 }
 
 impl ProbeKind {
     /// Every kind, in the order the documentation lists them.
-    pub const ALL: [ProbeKind; 10] = [
+    pub const ALL: [ProbeKind; 11] = [
         ProbeKind::Ray,
         ProbeKind::Sweep,
         ProbeKind::Closest,
@@ -84,6 +86,7 @@ impl ProbeKind {
         ProbeKind::Jump,
         ProbeKind::Walk,
         ProbeKind::Reach,
+        ProbeKind::Settle,
     ];
 
     /// The kind's name as written in files.
@@ -99,6 +102,7 @@ impl ProbeKind {
             ProbeKind::Jump => "jump",
             ProbeKind::Walk => "walk",
             ProbeKind::Reach => "reach",
+            ProbeKind::Settle => "settle",
         }
     }
 
@@ -205,6 +209,23 @@ pub enum ProbeQuery {
         /// How long to follow it, seconds (default [`JUMP_TIME`]).
         max_time: Option<f64>,
     },
+    /// A shape let go at a pose as a rigid body under gravity: where it comes to rest.
+    Settle {
+        /// The body's shape (not a point).
+        shape: ShapeSpec,
+        /// Where its centre starts.
+        at: DVec3,
+        /// Its turn at the start.
+        rotation: Option<DQuat>,
+        /// Mass per cubic metre, kg/m³ (default [`SETTLE_DENSITY`]).
+        density: Option<f64>,
+        /// Friction coefficient, the level's surfaces' too (default [`SETTLE_FRICTION`]).
+        friction: Option<f64>,
+        /// Bounciness from 0 to 1 (default 0).
+        restitution: Option<f64>,
+        /// How long to follow it, seconds (default [`SETTLE_TIME`]).
+        max_time: Option<f64>,
+    },
     /// A character led over the ground from waypoint to waypoint.
     Walk {
         /// The character's shape (not a point).
@@ -306,6 +327,16 @@ pub const MAX_WALKABLE_SLOPE: f64 = 45.0;
 /// How long a jump is followed when the probe does not say, seconds. Ours: a fall of about 490 m.
 pub const JUMP_TIME: f64 = 10.0;
 
+/// Density of a settled body when the probe does not say, kg/m³: about that of wood (from memory).
+pub const SETTLE_DENSITY: f64 = 500.0;
+
+/// Friction of a settled body and of the level when the probe does not say: 0.5, a common default of
+/// physics engines for dry surfaces (from memory).
+pub const SETTLE_FRICTION: f64 = 0.5;
+
+/// How long a settle probe is followed when it does not say, seconds. Ours.
+pub const SETTLE_TIME: f64 = 10.0;
+
 /// How far below a rest probe looks for a support when the file does not say, metres. Ours.
 pub const REST_SEARCH: f64 = 2.0;
 
@@ -378,6 +409,7 @@ impl ProbeQuery {
             ProbeQuery::Jump { .. } => ProbeKind::Jump,
             ProbeQuery::Walk { .. } => ProbeKind::Walk,
             ProbeQuery::Reach { .. } => ProbeKind::Reach,
+            ProbeQuery::Settle { .. } => ProbeKind::Settle,
         }
     }
 
@@ -388,7 +420,8 @@ impl ProbeQuery {
             ProbeQuery::Sweep { path, .. } | ProbeQuery::Walk { path, .. } => path.clone(),
             ProbeQuery::Closest { at, .. }
             | ProbeQuery::Overlap { at, .. }
-            | ProbeQuery::Rest { at, .. } => vec![*at],
+            | ProbeQuery::Rest { at, .. }
+            | ProbeQuery::Settle { at, .. } => vec![*at],
             ProbeQuery::Sightlines { spots } => spot_points(spots),
             ProbeQuery::Coverage { spots, region, .. } => {
                 let mut points = spot_points(spots);
@@ -426,7 +459,8 @@ impl ProbeQuery {
             ProbeQuery::Sweep { path, .. } | ProbeQuery::Walk { path, .. } => path.get_mut(k),
             ProbeQuery::Closest { at, .. }
             | ProbeQuery::Overlap { at, .. }
-            | ProbeQuery::Rest { at, .. } => (k == 0).then_some(at),
+            | ProbeQuery::Rest { at, .. }
+            | ProbeQuery::Settle { at, .. } => (k == 0).then_some(at),
             ProbeQuery::Jump { from, launch, .. } => match (k, launch) {
                 (0, _) => Some(from),
                 (1, Launch::Target { to, .. }) => Some(to),
@@ -534,6 +568,12 @@ pub struct Conditions {
     /// Reach: these targets are not reached.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub unreachable: Option<Vec<String>>,
+    /// Settle: the body comes to rest at most this far from where it was put, metres.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub max_move: Option<f64>,
+    /// Settle: the body comes to rest turned at most this much from how it was put, degrees.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub max_turn: Option<f64>,
     /// Volumes (by name or tag) the probe is in at some point of its way.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub enters: Option<Vec<String>>,

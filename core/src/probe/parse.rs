@@ -49,6 +49,9 @@ struct RawProbe<'a> {
     targets: Option<Vec<Spot>>,
     target_tags: Option<Vec<String>>,
     max_time: Option<f64>,
+    density: Option<f64>,
+    friction: Option<f64>,
+    restitution: Option<f64>,
     ignore_tags: Option<Vec<String>>,
     only_tags: Option<Vec<String>>,
     ignore_objects: Option<Vec<String>>,
@@ -132,6 +135,15 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
         ProbeKind::Closest => &["shape", "at", "rotation", "max_distance"],
         ProbeKind::Overlap => &["shape", "at", "rotation"],
         ProbeKind::Rest => &["shape", "at", "rotation", "search"],
+        ProbeKind::Settle => &[
+            "shape",
+            "at",
+            "rotation",
+            "density",
+            "friction",
+            "restitution",
+            "max_time",
+        ],
         ProbeKind::Sightlines => &["spots", "spot_tags", "eye"],
         ProbeKind::Coverage => &["spots", "spot_tags", "eye", "region", "spacing"],
         ProbeKind::Walk => &["shape", "path", "max_step", "max_slope"],
@@ -365,6 +377,35 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
                 .map(|h| positive("max_step", h, "metres"))
                 .transpose()?,
             max_slope: raw.max_slope.map(slope_limit).transpose()?,
+        },
+        ProbeKind::Settle => ProbeQuery::Settle {
+            shape: shape(false)?,
+            at: at()?,
+            rotation,
+            density: raw
+                .density
+                .map(|d| positive("density", d, "kg per cubic metre"))
+                .transpose()?,
+            friction: raw
+                .friction
+                .map(|f| {
+                    (f.is_finite() && f >= 0.0)
+                        .then_some(f)
+                        .ok_or_else(|| format!("friction must be zero or more, not {}", number(f)))
+                })
+                .transpose()?,
+            restitution: raw
+                .restitution
+                .map(|r| {
+                    (0.0..=1.0).contains(&r).then_some(r).ok_or_else(|| {
+                        format!("restitution must be from 0 to 1, not {}", number(r))
+                    })
+                })
+                .transpose()?,
+            max_time: raw
+                .max_time
+                .map(|t| positive("max_time", t, "seconds"))
+                .transpose()?,
         },
         ProbeKind::Jump => ProbeQuery::Jump {
             shape: shape(false)?,
@@ -615,7 +656,10 @@ fn finite_point(field: &str, p: [f64; 3]) -> Result<DVec3, String> {
 
 fn unit_quaternion(q: [f64; 4]) -> Result<DQuat, String> {
     let q = DQuat::from_array(q);
-    if q.is_finite() && (q.length() - 1.0).abs() <= 1e-6 {
+    // Unit to the last bits is kept as written, so that saving what was loaded writes it again.
+    if q.is_finite() && (q.length_squared() - 1.0).abs() <= 4.0 * f64::EPSILON {
+        Ok(q)
+    } else if q.is_finite() && (q.length() - 1.0).abs() <= 1e-6 {
         Ok(q.normalize())
     } else {
         Err("rotation must be a unit quaternion [x, y, z, w]".into())
@@ -747,6 +791,22 @@ fn check_conditions(c: &Conditions, query: &ProbeQuery) -> Result<(), String> {
     if (c.reaches.is_some() || c.max_detour.is_some()) && kind != ProbeKind::Walk {
         return Err(format!(
             "expect.reaches and max_detour apply to walks, not to a {kind} probe"
+        ));
+    }
+    if (c.max_move.is_some() || c.max_turn.is_some()) && kind != ProbeKind::Settle {
+        return Err(format!(
+            "expect.max_move and max_turn apply to settle probes, not to a {kind} probe"
+        ));
+    }
+    if let Some(m) = c.max_move {
+        metres("max_move", m)?;
+    }
+    if let Some(t) = c.max_turn
+        && !(t.is_finite() && (0.0..=180.0).contains(&t))
+    {
+        return Err(format!(
+            "expect.max_turn is degrees from 0 to 180, not {}",
+            number(t)
         ));
     }
     if (c.reachable.is_some() || c.unreachable.is_some()) && kind != ProbeKind::Reach {

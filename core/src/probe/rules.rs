@@ -91,6 +91,14 @@ pub enum Template {
         /// Metres (default [`REST_TOLERANCE`]).
         max_sink: f64,
     },
+    /// The object, let go as a rigid body where it is, comes to rest at most `max_move` metres away
+    /// and turned at most `max_turn` degrees.
+    Settles {
+        /// Metres (default [`SETTLE_MOVE`]).
+        max_move: f64,
+        /// Degrees (default [`SETTLE_TURN`]).
+        max_turn: f64,
+    },
     /// Any probe, with anchors for points.
     Probe {
         /// The template parsed with every anchor at the origin.
@@ -104,6 +112,13 @@ pub enum Template {
 /// How far a prop may float above or sink into its support under a `rests` rule when the rule does
 /// not say: a centimetre, common practice for placement checks (from memory).
 pub const REST_TOLERANCE: f64 = 0.01;
+
+/// How far a prop may move when let go under a `settles` rule that does not say, metres: 5 cm, a
+/// small nudge nobody would notice in play. Ours.
+pub const SETTLE_MOVE: f64 = 0.05;
+
+/// How far a prop may turn when let go under a `settles` rule that does not say, degrees. Ours.
+pub const SETTLE_TURN: f64 = 5.0;
 
 /// Which probe a rule gave: the rule, and the object (`None`: the rule selected no object, an error
 /// of its own).
@@ -125,6 +140,7 @@ struct RawRule<'a> {
     objects: Selection,
     clear: Option<RawClear>,
     rests: Option<RawRests>,
+    settles: Option<RawSettles>,
     #[serde(borrow)]
     probe: Option<&'a RawValue>,
     ignore_tags: Option<Vec<String>>,
@@ -147,6 +163,13 @@ struct RawClear {
 struct RawRests {
     max_gap: Option<f64>,
     max_sink: Option<f64>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawSettles {
+    max_move: Option<f64>,
+    max_turn: Option<f64>,
 }
 
 /// Parses rule `fragment`, a slice of the probe-set file's `text`.
@@ -177,8 +200,8 @@ pub(super) fn parse_rule(path: &Path, text: &str, fragment: &str) -> Result<Rule
         check_name("a tag or object name", name).map_err(fail)?;
     }
     let filters = filter_fields(&written);
-    let template = match (&raw.clear, &raw.rests, raw.probe) {
-        (Some(clear), None, None) => {
+    let template = match (&raw.clear, &raw.rests, &raw.settles, raw.probe) {
+        (Some(clear), None, None, None) => {
             // Checked as the overlap probe it stands for.
             let mut probe = json_object(&[
                 ("kind", Value::from("overlap")),
@@ -196,7 +219,7 @@ pub(super) fn parse_rule(path: &Path, text: &str, fragment: &str) -> Result<Rule
                 at: clear.at,
             }
         }
-        (None, Some(rests), None) => {
+        (None, Some(rests), None, None) => {
             let tolerance = |field: &str, v: Option<f64>| -> Result<f64, String> {
                 let v = v.unwrap_or(REST_TOLERANCE);
                 if v.is_finite() && v >= 0.0 {
@@ -210,7 +233,18 @@ pub(super) fn parse_rule(path: &Path, text: &str, fragment: &str) -> Result<Rule
                 max_sink: tolerance("max_sink", rests.max_sink).map_err(fail)?,
             }
         }
-        (None, None, Some(probe)) => {
+        (None, None, Some(settles), None) => {
+            let max_move = settles.max_move.unwrap_or(SETTLE_MOVE);
+            let max_turn = settles.max_turn.unwrap_or(SETTLE_TURN);
+            if !(max_move.is_finite() && max_move >= 0.0) {
+                return Err(fail("settles.max_move must be zero or more metres".into()));
+            }
+            if !(max_turn.is_finite() && (0.0..=180.0).contains(&max_turn)) {
+                return Err(fail("settles.max_turn is degrees from 0 to 180".into()));
+            }
+            Template::Settles { max_move, max_turn }
+        }
+        (None, None, None, Some(probe)) => {
             let mut value: Value = serde_json::from_str(probe.get())
                 .map_err(|e| InputError::json_in(path, text, probe.get(), &e))?;
             if value.get("id").is_some() {
@@ -232,7 +266,8 @@ pub(super) fn parse_rule(path: &Path, text: &str, fragment: &str) -> Result<Rule
         }
         _ => {
             return Err(fail(
-                "a rule needs exactly one of \"clear\", \"rests\" and \"probe\"".into(),
+                "a rule needs exactly one of \"clear\", \"rests\", \"settles\" and \"probe\""
+                    .into(),
             ));
         }
     };

@@ -189,6 +189,29 @@ fn probe_to_value(p: &Probe) -> Value {
                 }
             }
         }
+        ProbeQuery::Settle {
+            shape: s,
+            at,
+            rotation,
+            density,
+            friction,
+            restitution,
+            max_time,
+        } => {
+            m.insert("shape".into(), shape(s));
+            m.insert("at".into(), vec3(*at));
+            quat(rotation, &mut m);
+            for (field, value) in [
+                ("density", density),
+                ("friction", friction),
+                ("restitution", restitution),
+                ("max_time", max_time),
+            ] {
+                if let Some(v) = value {
+                    m.insert(field.into(), json!(v));
+                }
+            }
+        }
         ProbeQuery::Jump {
             shape: s,
             rotation,

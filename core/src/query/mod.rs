@@ -19,6 +19,7 @@ mod progress;
 mod ray;
 mod reach;
 mod rest;
+mod settle;
 mod shapes;
 mod sightlines;
 mod sweep;
@@ -41,6 +42,7 @@ pub use progress::Progress;
 pub use ray::RayHit;
 pub use reach::{Cell, Reach};
 pub use rest::RestHit;
+pub use settle::{Material, REST_HOLD, REST_SPEED, REST_SPIN, SETTLE_STEP, SettleEnd, Settled};
 pub use shapes::{
     ProbeShape, box_surface, placed_primitive_surface, primitive_shape, shape_surface,
 };

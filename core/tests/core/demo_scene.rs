@@ -97,6 +97,11 @@ fn the_probe_set_gives_the_reviewed_baseline() {
                 "Expected clear; overlaps drum-2 by 0.289 m (and 1 more)"
             ),
             (
+                "barrel-on-the-spoil-bank",
+                "Expected it to come to rest; is still moving after 10.00 s, 12.595 m from where \
+                 it was put, turned 22.6°"
+            ),
+            (
                 "pickups-reachable",
                 "Expected clear; reaches 6255 of 7221 walkable cells (6255 m² of 7221 m²); 7 of 8 \
                  targets; pickup-on-containers is 8.434 m from the nearest reached ground"

@@ -35,3 +35,19 @@ fn save_and_reload_is_identical() {
         "{saved}"
     );
 }
+
+#[test]
+fn numbers_that_need_seventeen_digits_are_read_back_exactly() {
+    // A probe set written by the program and read back is the same value (and the same text): each
+    // number is read to the nearest double, as IEEE 754-2008 §5.12 requires of conversions from
+    // decimal, not to a neighbour of it.
+    let text = r#"{"plumbline": "probes", "version": 1, "level": "l.level.json", "probes": [
+        {"id": "p", "kind": "closest", "shape": {"type": "point"},
+         "at": [-20.0, 1.8246433040922059, 30.62720809678395], "max_distance": 1}]}"#;
+    let path = Path::new("t.probes.json");
+    let set = parse_probe_set(path, text).unwrap();
+    assert_eq!(set.probes[0].query.points()[0].y, 1.8246433040922059);
+    let written = probe_set_to_json(&set);
+    assert!(written.contains("1.8246433040922059"), "{written}");
+    assert_eq!(parse_probe_set(path, &written).unwrap(), set);
+}
