@@ -154,12 +154,17 @@ impl ProbeShape {
 
     /// The farthest the shape reaches from its centre along the unit direction `dir`.
     pub fn extent_along(&self, dir: DVec3) -> f64 {
+        self.support_offset(dir).dot(dir)
+    }
+
+    /// The shape's farthest point along the unit direction `dir`, from its centre.
+    pub(crate) fn support_offset(&self, dir: DVec3) -> DVec3 {
         let local = self.rotation.inverse() * dir;
         let support = self
             .shape
             .as_support_map()
             .map(|s| s.local_support_point_toward(local))
             .unwrap_or(DVec3::ZERO);
-        support.dot(local)
+        self.rotation * support
     }
 }

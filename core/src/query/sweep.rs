@@ -9,7 +9,7 @@ use parry3d_f64::query::{
     ClosestPoints, ShapeCastOptions, ShapeCastStatus, cast_shapes, closest_points, contact,
 };
 use parry3d_f64::query::{PointQuery, Ray, RayCast};
-use parry3d_f64::shape::{Segment, Shape, Triangle};
+use parry3d_f64::shape::{FeatureId, Segment, Shape, Triangle};
 
 use super::body::Body;
 use super::shapes::ProbeShape;
@@ -196,6 +196,10 @@ impl View<'_> {
             };
             let (point, normal) =
                 part.unwrap_or_else(|| contact_geometry(body, &pose, shape, -dir));
+            let normal = match impact.started_inside {
+                true => normal,
+                false => face_normal(body, shape, before, normal),
+            };
             (impact.toi, point, normal)
         });
         let distance = geometry.distance_at(impact.segment, toi);
@@ -380,6 +384,42 @@ fn capsule_triangle_contact(
     }
     let (_, on_triangle, on_axis) = best?;
     Some((on_triangle, (on_axis - on_triangle).try_normalize()?))
+}
+
+/// A contact on a mesh's face has the face's own normal: exact, where the closest-point direction a
+/// hair before impact carries the iterative query's error (a curved rim meeting a floor, say). It is
+/// a face contact when the shape's farthest point against the measured normal projects onto the
+/// inside of a face whose normal agrees with the measured one to within a hundredth of a radian (far
+/// more than the query's error, far less than any crease a level is built with); edge and corner
+/// contacts keep the measured normal.
+fn face_normal(body: &Body, shape: &ProbeShape, centre: DVec3, measured: DVec3) -> DVec3 {
+    let Some(mesh) = body.mesh() else {
+        return measured;
+    };
+    let lowest = body
+        .pose
+        .inverse_transform_point(centre + shape.support_offset(-measured));
+    let (projection, feature) = mesh.project_local_point_and_get_feature(lowest);
+    let FeatureId::Face(_) = feature else {
+        return measured;
+    };
+    let Some(face) = mesh
+        .triangle(projection.subshape)
+        .normal()
+        .map(|n| body.pose.rotation * n)
+    else {
+        return measured;
+    };
+    let face = if face.dot(measured) < 0.0 {
+        -face
+    } else {
+        face
+    };
+    if face.angle_between(measured) < 0.01 {
+        face
+    } else {
+        measured
+    }
 }
 
 /// The contact point on one convex part of an object (a mesh triangle or a primitive) and the unit
