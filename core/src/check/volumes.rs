@@ -4,7 +4,7 @@
 
 use std::sync::Arc;
 
-use glam::DVec3;
+use glam::{DQuat, DVec3};
 use serde::Deserialize;
 
 use super::answer::probe_shape;
@@ -13,7 +13,7 @@ use super::records::{Hits, tags_json};
 use crate::json_text::{Json, round9, round9_vec};
 use crate::level::ShapeSpec;
 use crate::probe::{Conditions, HitsMode, JUMP_TIME, Probe, ProbeQuery};
-use crate::query::{Crossing, Mover, QueryError, View, VolumeEvent};
+use crate::query::{Crossing, Mover, QueryError, TurningPath, View, VolumeEvent};
 
 /// One meeting of a probe with a volume.
 #[derive(Debug, Clone, PartialEq, Deserialize)]
@@ -85,7 +85,7 @@ impl VolumeRecord {
 /// Where the probe is in, enters and leaves the volumes its filter lets through: rays and sweeps up
 /// to where they stop (the whole way when they list every hit), walks along the way taken, jumps
 /// along the arc to the landing, placed shapes where they are. Nothing for the whole-level kinds,
-/// rests, sweeps that turn, and levels without volumes.
+/// rests and settles.
 pub(super) fn records(
     view: &View,
     probe: &Probe,
@@ -119,20 +119,35 @@ pub(super) fn records(
                 path,
                 hits: mode,
                 duration,
-                turns: None,
+                turns,
                 ..
             },
             Hits::Sweep(found),
         ) => {
             let shape = probe_shape(shape, *rotation)?;
             let mut way = path.clone();
+            let mut orientations = turns.as_ref().map(|t| t.orientations(view.world().up()));
             if let Some(h) = found.first().filter(|_| *mode != Some(HitsMode::All)) {
                 way.truncate(h.segment + 1);
                 way.push(DVec3::from_array(h.position));
+                if let Some(o) = orientations.as_mut() {
+                    o.truncate(h.segment + 1);
+                    o.push(h.rotation.map_or(o[h.segment], DQuat::from_array));
+                }
             }
             let length: f64 = path.windows(2).map(|p| p[0].distance(p[1])).sum();
             let per_metre = duration.filter(|_| length > 0.0).map(|d| d / length);
-            along(view.volume_events(Mover::Shape(&shape), &way)?, per_metre)
+            let events = match &orientations {
+                Some(turns) => view.volume_events_turning(
+                    &shape,
+                    TurningPath {
+                        points: &way,
+                        turns,
+                    },
+                )?,
+                None => view.volume_events(Mover::Shape(&shape), &way)?,
+            };
+            along(events, per_metre)
         }
         (ProbeQuery::Walk { shape, .. }, Hits::Walk(walked)) => {
             let shape = probe_shape(shape, None)?;

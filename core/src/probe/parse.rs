@@ -840,7 +840,7 @@ fn check_conditions(c: &Conditions, query: &ProbeQuery) -> Result<(), String> {
         let moves = matches!(
             query,
             ProbeQuery::Ray { .. }
-                | ProbeQuery::Sweep { turns: None, .. }
+                | ProbeQuery::Sweep { .. }
                 | ProbeQuery::Walk { .. }
                 | ProbeQuery::Jump { .. }
                 | ProbeQuery::Closest { .. }
@@ -848,12 +848,8 @@ fn check_conditions(c: &Conditions, query: &ProbeQuery) -> Result<(), String> {
         );
         if !moves {
             return Err(format!(
-                "expect.enters, never_enters and ends_inside apply to rays, sweeps (without turns), \
-                 walks, jumps, closest points and overlaps, not to {}",
-                match query {
-                    ProbeQuery::Sweep { .. } => "a sweep that turns".to_string(),
-                    _ => format!("a {kind} probe"),
-                }
+                "expect.enters, never_enters and ends_inside apply to rays, sweeps, walks, jumps, \
+                 closest points and overlaps, not to a {kind} probe"
             ));
         }
         if let Some(name) = volumes

@@ -6,14 +6,15 @@
 //! convex Minkowski difference of the two in one piece). Its ends are exact: the entry is the time of
 //! impact of the shape cast forward from the segment's start, the exit that of the shape cast back
 //! from the segment's end (a ray: the ray cast both ways). A path is taken a segment at a time. Along
-//! a jump's parabola the intervals are found by conservative advancement, as jumps find their
-//! contacts: outside, the shape moves no farther than its distance to the volume; inside, no farther
+//! a jump's parabola, and along a path whose shape turns, the intervals are found by conservative
+//! advancement, as jumps and turning sweeps find their contacts: outside, the shape moves no farther than its distance to the volume; inside, no farther
 //! than its penetration depth (the least move that separates the two), so no entry or exit between
 //! steps is missed (Mirtich, B., "Impulse-based Dynamic Simulation of Rigid Body Systems", PhD
 //! thesis, University of California, Berkeley, 1996, ch. 2; from memory). Touching counts as inside:
 //! a path that grazes a volume enters and leaves it at the same place.
 
-use glam::DVec3;
+use glam::{DQuat, DVec3};
+use parry3d_f64::math::Pose;
 use parry3d_f64::query::{
     Ray, ShapeCastOptions, cast_shapes, contact, distance, intersection_test,
 };
@@ -21,9 +22,10 @@ use parry3d_f64::query::{
 use super::QueryError;
 use super::jump::{CONTACT_TOLERANCE, Trajectory, arc_step};
 use super::shapes::ProbeShape;
+use super::turning::TurningPath;
 use super::world::{ObjectId, View, Volume};
 
-/// Most advancement steps along one arc before giving up (a shape grazing a volume's face).
+/// Most advancement steps along one motion before giving up (a shape grazing a volume's face).
 const MAX_ARC_STEPS: usize = 100_000;
 
 /// How a probe meets a volume.
@@ -172,44 +174,139 @@ impl View<'_> {
     ) -> Result<Vec<VolumeEvent>, QueryError> {
         let mut events = Vec::new();
         for volume in self.volumes() {
-            let pose = |t: f64| shape.pose_at(arc.at(t));
-            let mut inside = Mover::Shape(shape).touches(volume, arc.from);
-            if inside {
-                events.push(event(volume, Crossing::Inside, 0.0, arc.from));
-            }
-            // Signed distance: apart (> 0) or penetrating (< 0, minus the depth).
-            let signed = |t: f64| {
-                let here = pose(t);
-                match contact(&volume.pose, &*volume.shape, &here, &*shape.shape, 0.0) {
-                    Ok(Some(c)) => c.dist.min(0.0),
-                    _ => distance(&volume.pose, &*volume.shape, &here, &*shape.shape)
-                        .map_or(0.0, |d| d.distance),
+            let mut advance =
+                Advance::start(volume, shape, (arc.from, shape.rotation), &mut events);
+            advance.run(
+                |t| (arc.at(t), shape.rotation),
+                |t, reach| arc_step(arc, t, reach),
+                end,
+                |t| t,
+                &mut events,
+            )?;
+        }
+        sort_events(&mut events);
+        Ok(events)
+    }
+
+    /// Every volume the shape is in at the start and every entry and exit while it moves along a
+    /// path turning from each point's orientation to the next one's (as turning sweeps move), in
+    /// order of metres along the path.
+    pub fn volume_events_turning(
+        &self,
+        shape: &ProbeShape,
+        path: TurningPath,
+    ) -> Result<Vec<VolumeEvent>, QueryError> {
+        if let Some(k) = path.points.iter().position(|p| !p.is_finite()) {
+            return Err(QueryError::PathPointNotFinite(k));
+        }
+        if path.points.len() < 2 || path.turns.len() != path.points.len() {
+            return Err(QueryError::PathTooShort);
+        }
+        let mut events = Vec::new();
+        for volume in self.volumes() {
+            let first = (path.points[0], path.turns[0]);
+            let mut advance = Advance::start(volume, shape, first, &mut events);
+            let mut travelled = 0.0;
+            for k in 0..path.points.len() - 1 {
+                let length = path.points[k].distance(path.points[k + 1]);
+                let angle = path.turns[k].angle_between(path.turns[k + 1]);
+                // The farthest any point of the shape moves per unit of the segment's parameter.
+                let reach_per_unit = length + shape.bounding_radius * angle;
+                if reach_per_unit > 0.0 {
+                    advance.run(
+                        |s| path.pose(k, s),
+                        |_, reach| reach / reach_per_unit,
+                        1.0,
+                        |s| travelled + s * length,
+                        &mut events,
+                    )?;
                 }
-            };
-            // In within the tolerance: entered at the first time within it, left after the last.
-            let (mut t, mut last_in, mut steps) = (0.0, 0.0, 0);
-            while t < end {
-                steps += 1;
-                if steps > MAX_ARC_STEPS {
-                    return Err(QueryError::NotConverged);
-                }
-                let s = signed(t);
-                let close = s <= CONTACT_TOLERANCE;
-                if close && !inside {
-                    events.push(event(volume, Crossing::Enter, t, arc.at(t)));
-                } else if !close && inside {
-                    events.push(event(volume, Crossing::Exit, last_in, arc.at(last_in)));
-                }
-                inside = close;
-                if close {
-                    last_in = t;
-                }
-                // Apart, it moves no farther than the gap; in, no farther than the depth.
-                t += arc_step(arc, t, s.abs().max(CONTACT_TOLERANCE));
+                travelled += length;
             }
         }
         sort_events(&mut events);
         Ok(events)
+    }
+}
+
+/// Conservative advancement of a shape against one volume along a motion, carrying whether it is in
+/// the volume from one piece of the motion to the next.
+struct Advance<'a> {
+    volume: &'a Volume,
+    shape: &'a ProbeShape,
+    /// In the volume (within the tolerance) at the last place looked at.
+    inside: bool,
+    /// Where along the way (as reported) and where in space it was last in.
+    last_in: (f64, DVec3),
+    steps: usize,
+}
+
+impl<'a> Advance<'a> {
+    /// Starts at `(centre, turn)`, noting the volume when the shape starts in it.
+    fn start(
+        volume: &'a Volume,
+        shape: &'a ProbeShape,
+        (centre, turn): (DVec3, DQuat),
+        events: &mut Vec<VolumeEvent>,
+    ) -> Advance<'a> {
+        let inside = Mover::Shape(&shape.turned(turn)).touches(volume, centre);
+        if inside {
+            events.push(event(volume, Crossing::Inside, 0.0, centre));
+        }
+        Advance {
+            volume,
+            shape,
+            inside,
+            last_in: (0.0, centre),
+            steps: 0,
+        }
+    }
+
+    /// Follows the motion `place(u)` (centre and turn) for `u` from 0 to `end`, where `step(u,
+    /// reach)` is the longest step over which no point of the shape moves farther than `reach`, and
+    /// `at(u)` says where along the way `u` is, for the events.
+    fn run(
+        &mut self,
+        place: impl Fn(f64) -> (DVec3, DQuat),
+        step: impl Fn(f64, f64) -> f64,
+        end: f64,
+        at: impl Fn(f64) -> f64,
+        events: &mut Vec<VolumeEvent>,
+    ) -> Result<(), QueryError> {
+        let (volume, body) = (self.volume, &*self.shape.shape);
+        let mut u = 0.0;
+        loop {
+            self.steps += 1;
+            if self.steps > MAX_ARC_STEPS {
+                return Err(QueryError::NotConverged);
+            }
+            let (centre, turn) = place(u);
+            let pose = Pose::from_parts(centre, turn);
+            // Signed distance: apart (> 0) or penetrating (< 0, minus the depth).
+            let signed = match contact(&volume.pose, &*volume.shape, &pose, body, 0.0) {
+                Ok(Some(c)) => c.dist.min(0.0),
+                _ => {
+                    distance(&volume.pose, &*volume.shape, &pose, body).map_or(0.0, |d| d.distance)
+                }
+            };
+            // In within the tolerance: entered at the first place within it, left after the last.
+            let close = signed <= CONTACT_TOLERANCE;
+            if close && !self.inside {
+                events.push(event(volume, Crossing::Enter, at(u), centre));
+            } else if !close && self.inside {
+                let (was, point) = self.last_in;
+                events.push(event(volume, Crossing::Exit, was, point));
+            }
+            self.inside = close;
+            if close {
+                self.last_in = (at(u), centre);
+            }
+            if u >= end {
+                return Ok(());
+            }
+            // Apart, it moves no farther than the gap; in, no farther than the depth.
+            u = (u + step(u, signed.abs().max(CONTACT_TOLERANCE))).min(end);
+        }
     }
 }
 

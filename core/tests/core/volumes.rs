@@ -368,3 +368,58 @@ fn volume_events_are_written_to_results_files_and_read_back() {
     let back = parse_results(Path::new("t.results.json"), &text).unwrap();
     assert_eq!(back.results, vec![result]);
 }
+
+#[test]
+fn a_turning_plank_enters_a_volume_where_fine_sampling_finds_it() {
+    // A 4 m plank carried 1 m along x while it turns from along x to along z (yaw 0° to 90°) reaches
+    // into a volume beyond z = 1 part of the way: the entry agrees with a fine sampling of the
+    // motion (a brute-force upper bound on the first touching place, 1e-5 of the way apart).
+    let world = level(&[(
+        "bay",
+        Primitive::Box {
+            half_extents: DVec3::new(5.0, 5.0, 0.5),
+        },
+        DVec3::new(0.5, 0.0, 1.5),
+        &[],
+    )]);
+    let plank = ProbeShape::new(
+        &ShapeSpec::Box {
+            half_extents: [2.0, 0.1, 0.1],
+        },
+        DQuat::IDENTITY,
+    )
+    .unwrap();
+    let points = [DVec3::ZERO, DVec3::new(1.0, 0.0, 0.0)];
+    let turns = [
+        DQuat::IDENTITY,
+        DQuat::from_rotation_y(-std::f64::consts::FRAC_PI_2),
+    ];
+    let path = plumbline_core::query::TurningPath {
+        points: &points,
+        turns: &turns,
+    };
+    let events = world
+        .everything()
+        .volume_events_turning(&plank, path)
+        .unwrap();
+    assert_eq!(events.len(), 1, "{events:?}");
+    assert_eq!(events[0].crossing, Crossing::Enter);
+    let view = world.everything();
+    let touching = |s: f64| {
+        let (at, turn) = path.pose(0, s);
+        !view
+            .volumes_at(Mover::Shape(&plank.turned(turn)), at)
+            .unwrap()
+            .is_empty()
+    };
+    let n = 100_000;
+    let sampled = (0..=n)
+        .map(|k| k as f64 / n as f64)
+        .find(|s| touching(*s))
+        .expect("it reaches in");
+    assert!(
+        events[0].at <= sampled + 1e-9 && sampled - events[0].at <= 1e-5 + 1e-6,
+        "{} vs {sampled}",
+        events[0].at
+    );
+}
