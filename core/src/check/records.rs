@@ -421,6 +421,26 @@ pub(super) fn tags_json(tags: &[String]) -> Json<'_> {
     Json::Arr(tags.iter().map(|t| Json::Str(t)).collect())
 }
 
+/// The tail walks and settles share in results files: the object met (and its tags), when there is
+/// one, then the centre's way.
+pub(super) fn push_object_and_way<'a>(
+    f: &mut Vec<(&'static str, Json<'a>)>,
+    object: &'a Option<Arc<str>>,
+    tags: &'a Option<Arc<[String]>>,
+    way: &[[f64; 3]],
+) {
+    if let Some(o) = object {
+        f.push(("object", Json::Str(o)));
+    }
+    if let Some(t) = tags {
+        f.push(("tags", tags_json(t)));
+    }
+    f.push((
+        "path",
+        Json::Arr(way.iter().map(|p| Json::vec3(*p)).collect()),
+    ));
+}
+
 /// The records as the results file lays them out (the one writer of results; reading is serde's):
 /// built as borrowed JSON, without intermediate values.
 mod layout {

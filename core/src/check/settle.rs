@@ -7,7 +7,7 @@ use glam::{DQuat, DVec3};
 use serde::Deserialize;
 
 use super::answer::probe_shape;
-use super::records::{Hits, tags_json};
+use super::records::{Hits, push_object_and_way};
 use super::verdict::metres;
 use crate::json_text::{Json, round9, round9_vec};
 use crate::probe::{Conditions, ProbeQuery, SETTLE_DENSITY, SETTLE_FRICTION, SETTLE_TIME};
@@ -53,16 +53,7 @@ impl SettleRecord {
                 Json::Arr(self.rotation.iter().map(|x| Json::float(*x)).collect()),
             ),
         ];
-        if let Some(o) = &self.object {
-            f.push(("object", Json::Str(o)));
-        }
-        if let Some(t) = &self.tags {
-            f.push(("tags", tags_json(t)));
-        }
-        f.push((
-            "path",
-            Json::Arr(self.path.iter().map(|p| Json::vec3(*p)).collect()),
-        ));
+        push_object_and_way(&mut f, &self.object, &self.tags, &self.path);
         Json::Obj(f)
     }
 

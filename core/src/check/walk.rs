@@ -6,7 +6,7 @@ use std::sync::Arc;
 use glam::{DQuat, DVec3};
 use serde::Deserialize;
 
-use super::records::{Hits, tags_json};
+use super::records::{Hits, push_object_and_way};
 use super::verdict::metres;
 use crate::json_text::{Json, round9, round9_vec};
 use crate::probe::{Conditions, MAX_STEP, MAX_WALKABLE_SLOPE, ProbeQuery};
@@ -61,16 +61,7 @@ impl WalkRecord {
         if let Some(s) = &self.stop {
             f.push(("stop", Json::Str(s)));
         }
-        if let Some(o) = &self.object {
-            f.push(("object", Json::Str(o)));
-        }
-        if let Some(t) = &self.tags {
-            f.push(("tags", tags_json(t)));
-        }
-        f.push((
-            "path",
-            Json::Arr(self.path.iter().map(|p| Json::vec3(*p)).collect()),
-        ));
+        push_object_and_way(&mut f, &self.object, &self.tags, &self.path);
         Json::Obj(f)
     }
 
