@@ -301,21 +301,21 @@ impl Opened {
         progress: &(dyn Fn(usize) + Sync),
     ) -> Result<Vec<ProbeResult>, Error> {
         let mut results = Vec::with_capacity(self.probes.len());
-        self.answer_each(jobs, progress, &mut |_, result| {
+        self.answer_each(jobs, progress, &mut |_, result, _| {
             results.push(result);
             Ok(())
         })?;
         Ok(results)
     }
 
-    /// Answers every probe as [`Opened::answer`] does, handing each probe and its result to `each` in
-    /// probe order as soon as its chunk is done, so that nothing of the run is held beyond one chunk.
-    /// Returns the counts by verdict.
+    /// Answers every probe as [`Opened::answer`] does, handing each probe, its result and the time
+    /// its answer took to `each` in probe order as soon as its chunk is done, so that nothing of the
+    /// run is held beyond one chunk. Returns the counts by verdict.
     pub fn answer_each(
         &self,
         jobs: Option<usize>,
         progress: &(dyn Fn(usize) + Sync),
-        each: &mut dyn FnMut(&Probe, ProbeResult) -> Result<(), Error>,
+        each: &mut dyn FnMut(&Probe, ProbeResult, std::time::Duration) -> Result<(), Error>,
     ) -> Result<Summary, Error> {
         let runner = Runner::new(jobs)?;
         let mut summary = Summary::default();
@@ -325,9 +325,9 @@ impl Opened {
             let range = start..(start + CHUNK).min(total);
             let probes = self.probes.chunk(range.clone())?;
             let results = runner.answer(&self.level.world, &probes, start, progress);
-            for (probe, result) in probes.iter().zip(results) {
+            for (probe, (result, took)) in probes.iter().zip(results) {
                 summary.count(result.verdict);
-                each(probe, result)?;
+                each(probe, result, took)?;
             }
             start = range.end;
         }

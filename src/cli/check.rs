@@ -16,6 +16,7 @@ use plumbline_core::report::{JunitWriter, MarkdownWriter};
 use plumbline_core::session::{OpenOptions, open};
 
 use super::terminal::{Lines, Progress, Style, Tone, column_width, write_stdout};
+use super::timings::Timings;
 use super::{EXIT_FAILED, print_comparison};
 
 /// The options of `plumbline check`.
@@ -50,6 +51,9 @@ pub struct CheckOptions {
     /// List only failures, errors and changes.
     #[arg(long)]
     pub brief: bool,
+    /// At the end, print the time spent answering per kind and the slowest probes.
+    #[arg(long)]
+    pub timings: bool,
     /// Let files name paths outside their own folder (absolute, or `..` above it).
     #[arg(long)]
     pub allow_outside_paths: bool,
@@ -79,6 +83,8 @@ pub struct Outcome {
     pub inputs: Vec<PathBuf>,
     /// The whole results, when asked for (the next `--watch` run compares with them).
     pub results: Option<ResultsFile>,
+    /// What the answers cost, when `--timings` asked.
+    pub timings: Option<Timings>,
 }
 
 /// Runs the check once, prints the summary and writes the files. Exit 0, 1 or 2 (SPEC §4).
@@ -93,6 +99,9 @@ pub fn check(options: &CheckOptions) -> Result<ExitCode, String> {
     let outcome = run_once(options, baseline.as_ref(), options.brief, false, style)
         .map_err(|e| e.to_string())?;
     print_totals(&outcome.summary, style);
+    if let Some(t) = &outcome.timings {
+        t.print(style);
+    }
     let changed = outcome.comparison.as_ref().is_some_and(|c| !c.is_empty());
     Ok(
         if outcome.summary.all_hold() && !(options.fail_on_change && changed) {
@@ -181,10 +190,14 @@ pub fn run_once(
     let width = column_width(opened.probes.longest_id());
     let progress = Progress::new(total);
     let mut lines = Lines::new(&progress);
+    let mut timings = options.timings.then(Timings::default);
     let summary = opened.answer_each(
         options.jobs.map(|j| j as usize),
         &|done| progress.update(done),
-        &mut |probe, result| {
+        &mut |probe, result, took| {
+            if let Some(t) = &mut timings {
+                t.add(probe, took);
+            }
             if !(brief && matches!(result.verdict, Verdict::Pass | Verdict::Unchecked)) {
                 lines.push(&result_line(&result, width, style));
             }
@@ -254,6 +267,7 @@ pub fn run_once(
         comparison,
         inputs,
         results,
+        timings,
     })
 }
 

@@ -5,6 +5,7 @@ mod diff;
 mod info;
 mod lint;
 mod terminal;
+mod timings;
 mod watch;
 mod window;
 

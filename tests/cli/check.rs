@@ -87,6 +87,42 @@ fn results_are_byte_identical_across_thread_counts() {
 }
 
 #[test]
+fn timings_list_each_kind_and_the_slowest_probes_and_leave_the_results_alone() {
+    let dir = fixture_copy();
+    plumbline(
+        dir.path(),
+        &["check", "lane.probes.json", "--out", "plain.json"],
+    );
+    let run = plumbline(
+        dir.path(),
+        &[
+            "check",
+            "lane.probes.json",
+            "--out",
+            "timed.json",
+            "--timings",
+        ],
+    );
+    let stdout = text(&run.stdout);
+    assert!(stdout.contains("Answering took "), "{stdout}");
+    let kinds = stdout
+        .lines()
+        .filter(|l| l.contains(" probes ") || l.contains(" probe "))
+        .count();
+    assert!(kinds >= 2, "{stdout}");
+    let slowest: Vec<&str> = stdout
+        .lines()
+        .skip_while(|l| *l != "Slowest:")
+        .skip(1)
+        .collect();
+    assert!(!slowest.is_empty() && slowest.len() <= 10, "{stdout}");
+    assert_eq!(
+        std::fs::read(out(dir.path(), "plain.json")).unwrap(),
+        std::fs::read(out(dir.path(), "timed.json")).unwrap()
+    );
+}
+
+#[test]
 fn exit_0_when_every_expectation_holds() {
     let dir = fixture_copy();
     let probes = std::fs::read_to_string(dir.path().join("lane.probes.json")).unwrap();

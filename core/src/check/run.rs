@@ -1,6 +1,8 @@
 //! Running probes: each answered on a pool of worker threads, the results in probe order whatever
 //! the thread count.
 
+use std::time::{Duration, Instant};
+
 use rayon::prelude::*;
 
 use super::answer::answer_probe;
@@ -26,23 +28,26 @@ impl Runner {
         })
     }
 
-    /// Answers `probes` in parallel; the results are in probe order. `progress` is told each time a
-    /// probe is done (with how many are done, counting `done_before`), from any thread.
+    /// Answers `probes` in parallel; the results are in probe order, each with the time its answer
+    /// took (wall clock, on its thread; for `--timings`, never part of a result). `progress` is told
+    /// each time a probe is done (with how many are done, counting `done_before`), from any thread.
     pub fn answer(
         &self,
         world: &World,
         probes: &[Probe],
         done_before: usize,
         progress: &(dyn Fn(usize) + Sync),
-    ) -> Vec<ProbeResult> {
+    ) -> Vec<(ProbeResult, Duration)> {
         let done = std::sync::atomic::AtomicUsize::new(done_before);
         self.pool.install(|| {
             probes
                 .par_iter()
                 .map(|probe| {
+                    let started = Instant::now();
                     let result = answer_probe(world, probe);
+                    let took = started.elapsed();
                     progress(done.fetch_add(1, std::sync::atomic::Ordering::Relaxed) + 1);
-                    result
+                    (result, took)
                 })
                 .collect()
         })
@@ -58,5 +63,6 @@ pub fn run_probes(
     jobs: Option<usize>,
     progress: &(dyn Fn(usize) + Sync),
 ) -> Result<Vec<ProbeResult>, Error> {
-    Ok(Runner::new(jobs)?.answer(world, probes, 0, progress))
+    let answered = Runner::new(jobs)?.answer(world, probes, 0, progress);
+    Ok(answered.into_iter().map(|(result, _)| result).collect())
 }
