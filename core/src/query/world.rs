@@ -44,6 +44,9 @@ pub enum BuildCause {
     /// A primitive's shape could not be built.
     #[error("{0}")]
     Shape(ShapeError),
+    /// An object marked as a volume encloses no space (its points are flat or a line).
+    #[error("a volume must enclose space, but its points lie flat")]
+    FlatVolume,
 }
 
 /// What the world keeps of each object besides its bodies.
@@ -115,11 +118,14 @@ impl World {
             let mut primitive_of = None;
             if tags.iter().any(|t| t == VOLUME_TAG) {
                 let (shape, pose) = match &item.geometry {
-                    Geometry::Mesh(mesh) => (
-                        SharedShape::convex_hull(&mesh.vertices)
-                            .ok_or(fail(BuildCause::Shape(ShapeError::Hull)))?,
-                        Pose::IDENTITY,
-                    ),
+                    Geometry::Mesh(mesh) => {
+                        let hull = SharedShape::convex_hull(&mesh.vertices)
+                            .ok_or(fail(BuildCause::Shape(ShapeError::Hull)))?;
+                        if !(hull.mass_properties(1.0).mass() > 0.0) {
+                            return Err(fail(BuildCause::FlatVolume));
+                        }
+                        (hull, Pose::IDENTITY)
+                    }
                     Geometry::Primitive {
                         shape,
                         translation,

@@ -423,3 +423,19 @@ fn a_turning_plank_enters_a_volume_where_fine_sampling_finds_it() {
         events[0].at
     );
 }
+
+#[test]
+fn a_flat_mesh_marked_as_a_volume_is_refused_with_its_name_not_a_panic() {
+    // A volume is a solid region; a single triangle encloses nothing.
+    let level = LevelBuilder::new()
+        .mesh(
+            "sheet",
+            vec![DVec3::ZERO, DVec3::X, DVec3::Z],
+            vec![[0, 1, 2]],
+        )
+        .tagged(&["volume"])
+        .level();
+    let error = World::new(&level).err().expect("refused");
+    assert!(error.to_string().contains("sheet"), "{error}");
+    assert!(error.to_string().contains("enclose"), "{error}");
+}
