@@ -49,9 +49,8 @@ impl BackgroundAnswers {
                 (asked, on, result, watched.is_cancelled())
             });
             self.running = Some((probe, world, progress));
-            // The progress bar moves while the run goes.
-            ctx.request_repaint_after(std::time::Duration::from_millis(100));
         }
+        // The progress bar moves while the run goes.
         if self.running.is_some() {
             ctx.request_repaint_after(std::time::Duration::from_millis(100));
         }

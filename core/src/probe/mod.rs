@@ -11,10 +11,10 @@ mod text;
 mod write;
 
 pub use model::{
-    Conditions, EYE_HEIGHT, Expect, ExpectWord, HitsMode, JUMP_TIME, Launch, MAX_STEP,
-    MAX_WALKABLE_SLOPE, Probe, ProbeKind, ProbeQuery, ProbeSet, REST_SEARCH, Range, Region,
-    SETTLE_DENSITY, SETTLE_FRICTION, SETTLE_TIME, STANDARD_GRAVITY, Spot, Spots, TARGET_REACH,
-    Turns,
+    Conditions, EYE_HEIGHT, Expect, ExpectWord, HitsMode, JUMP_TIME, Launch, MAX_SETTLE_TIME,
+    MAX_STEP, MAX_WALKABLE_SLOPE, Probe, ProbeKind, ProbeQuery, ProbeSet, REST_SEARCH, Range,
+    Region, SETTLE_DENSITY, SETTLE_FRICTION, SETTLE_TIME, STANDARD_GRAVITY, Spot, Spots,
+    TARGET_REACH, Turns,
 };
 pub use rules::{Anchor, FromRule, Landmark, REST_TOLERANCE, Rule, Template, parse_rules};
 pub use text::{ProbeText, load_probe_set, parse_probe_set, validate_probe};

@@ -337,6 +337,10 @@ pub const SETTLE_FRICTION: f64 = 0.5;
 /// How long a settle probe is followed when it does not say, seconds. Ours.
 pub const SETTLE_TIME: f64 = 10.0;
 
+/// The longest a settle probe may ask to be followed, seconds: ten minutes of simulated time, 36,000
+/// steps (a bound on the work one probe from a file can ask for). Ours.
+pub const MAX_SETTLE_TIME: f64 = 600.0;
+
 /// How far below a rest probe looks for a support when the file does not say, metres. Ours.
 pub const REST_SEARCH: f64 = 2.0;
 

@@ -9,8 +9,8 @@ use serde::Deserialize;
 use serde_json::value::RawValue;
 
 use super::model::{
-    Conditions, Expect, ExpectWord, HitsMode, Launch, Probe, ProbeKind, ProbeQuery, Region, Spot,
-    Spots, Turns,
+    Conditions, Expect, ExpectWord, HitsMode, Launch, MAX_SETTLE_TIME, Probe, ProbeKind,
+    ProbeQuery, Region, Spot, Spots, Turns,
 };
 use crate::error::InputError;
 use crate::input::{MAX_NAME_CHARS, check_name, number, one_line};
@@ -404,7 +404,13 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
                 .transpose()?,
             max_time: raw
                 .max_time
-                .map(|t| positive("max_time", t, "seconds"))
+                .map(|t| match positive("max_time", t, "seconds")? {
+                    t if t <= MAX_SETTLE_TIME => Ok(t),
+                    t => Err(format!(
+                        "max_time of a settle is at most {MAX_SETTLE_TIME} seconds, not {}",
+                        number(t)
+                    )),
+                })
                 .transpose()?,
         },
         ProbeKind::Jump => ProbeQuery::Jump {

@@ -149,3 +149,14 @@ fn a_body_let_go_beyond_the_level_falls_out_of_it() {
         .unwrap();
     assert_eq!(rest.end, SettleEnd::FellOut);
 }
+
+#[test]
+fn a_settle_asking_to_be_followed_for_days_is_refused() {
+    // Each second is 60 physics steps: a file may not ask one probe for years of work.
+    let text = r#"{"plumbline": "probes", "version": 1, "level": "l.level.json", "probes": [
+        {"id": "s", "kind": "settle", "shape": {"type": "sphere", "radius": 0.3},
+         "at": [0, 1, 0], "max_time": 1000000}]}"#;
+    let error = plumbline_core::probe::parse_probe_set(std::path::Path::new("t.probes.json"), text)
+        .unwrap_err();
+    assert!(error.to_string().contains("at most 600 seconds"), "{error}");
+}
