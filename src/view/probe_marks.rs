@@ -240,26 +240,14 @@ fn own_marks(
         }
         // Whole-level answers cover the view: drawn in full only while selected.
         (ProbeQuery::Coverage { region, .. }, Hits::Coverage(records)) if emphasis.selected => {
-            box_outline(
-                region.min.into(),
-                region.max.into(),
-                colour,
-                width * 0.6,
-                out,
-            );
+            region_outline(region, colour, width, out);
             for record in records {
                 coverage_marks(record, out);
             }
         }
         // A reach map covers the view: drawn in full only while selected.
         (ProbeQuery::Reach { region, .. }, Hits::Reach(records)) if emphasis.selected => {
-            box_outline(
-                region.min.into(),
-                region.max.into(),
-                colour,
-                width * 0.6,
-                out,
-            );
+            region_outline(region, colour, width, out);
             for record in records {
                 reach_marks(record, out);
             }
@@ -326,6 +314,22 @@ fn own_marks(
         }
         _ => {}
     }
+}
+
+/// The box of a whole-level probe's region, in thinner lines than the probe's own.
+fn region_outline(
+    region: &plumbline_core::probe::Region,
+    colour: [u8; 3],
+    width: f64,
+    out: &mut Vec<Mark>,
+) {
+    box_outline(
+        region.min.into(),
+        region.max.into(),
+        colour,
+        width * 0.6,
+        out,
+    );
 }
 
 /// How many straight pieces draw a jump's arc. The answer itself is continuous; only the drawing is
