@@ -121,7 +121,9 @@ impl World {
                     Geometry::Mesh(mesh) => {
                         let hull = SharedShape::convex_hull(&mesh.vertices)
                             .ok_or(fail(BuildCause::Shape(ShapeError::Hull)))?;
-                        if !(hull.mass_properties(1.0).mass() > 0.0) {
+                        if hull.mass_properties(1.0).mass().partial_cmp(&0.0)
+                            != Some(std::cmp::Ordering::Greater)
+                        {
                             return Err(fail(BuildCause::FlatVolume));
                         }
                         (hull, Pose::IDENTITY)
