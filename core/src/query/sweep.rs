@@ -189,17 +189,23 @@ impl View<'_> {
                             capsule_triangle_contact(&triangle, &shape.pose_at(position), shape)
                         })
                         .flatten();
-                    exact.or_else(|| part_contact(&triangle, &Pose::IDENTITY, &pose, shape))
+                    // Only the iterative contact needs its normal set to the face's; the capsule's
+                    // exact one has it already (and the check costs a point query on the mesh).
+                    exact.or_else(|| {
+                        let (point, normal) =
+                            part_contact(&triangle, &Pose::IDENTITY, &pose, shape)?;
+                        let normal = match impact.started_inside {
+                            true => normal,
+                            false => face_normal(body, shape, before, normal),
+                        };
+                        Some((point, normal))
+                    })
                 }
                 Some(_) => None,
                 None => part_contact(&*body.shape, &body.pose, &pose, shape),
             };
             let (point, normal) =
                 part.unwrap_or_else(|| contact_geometry(body, &pose, shape, -dir));
-            let normal = match impact.started_inside {
-                true => normal,
-                false => face_normal(body, shape, before, normal),
-            };
             (impact.toi, point, normal)
         });
         let distance = geometry.distance_at(impact.segment, toi);
