@@ -38,8 +38,14 @@ enum Command {
         #[command(flatten)]
         options: cli::CheckOptions,
         /// Re-run whenever the level or the probe set changes on disk.
-        #[arg(long)]
+        #[arg(long, conflicts_with = "shard")]
         watch: bool,
+    },
+    /// Joins the partial results files of a check split with `check --shard K/N` into the results
+    /// file a single run writes.
+    Merge {
+        #[command(flatten)]
+        options: cli::MergeOptions,
     },
     /// Lists what changed between two results files.
     Diff {
@@ -132,6 +138,7 @@ fn run(parsed: Cli) -> Result<ExitCode, String> {
             allow_outside_paths,
         }) => cli::info(&level, allow_outside_paths),
         Some(Command::Lint { args }) => cli::lint(&args),
+        Some(Command::Merge { options }) => cli::merge(&options),
         Some(Command::Open { file, window }) => open(file, window),
         None => open(None, parsed.window),
     }

@@ -1,12 +1,16 @@
 //! `check` over 100,000 mixed probes on a generated 1M-triangle level: the whole run (answers,
 //! verdicts, results file written) beside the sum of the bare query calls for the same probes, on one
-//! thread; and the same run on two threads. Figures are in the README.
+//! thread; and the same run on two threads. Then the merge of that run split into four shards'
+//! partial results files. Figures are in the README.
 
 mod common;
 
 use criterion::{BenchmarkId, Criterion, criterion_group, criterion_main};
 use glam::DQuat;
-use plumbline_core::check::{ResultsFile, run_probes, text_digest};
+use plumbline_core::check::{
+    PartHead, ResultsFile, ResultsHead, ResultsWriter, Shard, Summary, assign, expected_cost,
+    merge, run_probes, text_digest,
+};
 use plumbline_core::demo::quay::Random;
 use plumbline_core::level::{ShapeSpec, level_digest};
 use plumbline_core::probe::{
@@ -168,6 +172,56 @@ fn bench(c: &mut Criterion) {
             },
         );
     }
+    group.finish();
+    bench_merge(c, &world, &set.probes, &digest, out.path());
+}
+
+/// `merge` of four partial files that split the 100,000 probes as `check --shard K/4` would.
+fn bench_merge(
+    c: &mut Criterion,
+    world: &World,
+    probes: &[Probe],
+    digest: &str,
+    dir: &std::path::Path,
+) {
+    let results = run_probes(world, probes, None, &|_| {}).unwrap();
+    let costs: Vec<u64> = probes.iter().map(|p| expected_cost(p, world)).collect();
+    let shard_of = assign(&costs, 4);
+    let head = ResultsHead {
+        probes: "bench.probes.json".into(),
+        level: "bench.level.json".into(),
+        level_digest: digest.into(),
+        probes_digest: "sha256:bench".into(),
+    };
+    let parts: Vec<std::path::PathBuf> = (0..4u32)
+        .map(|shard| {
+            let positions: Vec<usize> = (0..probes.len())
+                .filter(|&p| shard_of[p] == shard)
+                .collect();
+            let path = dir.join(format!("part-{}.json", shard + 1));
+            let mut writer = ResultsWriter::create(&path, positions.len()).unwrap();
+            let mut summary = Summary::default();
+            for &p in &positions {
+                writer.push(&results[p]).unwrap();
+                summary.count(results[p].verdict);
+            }
+            let part = PartHead {
+                shard: Shard {
+                    index: shard as usize + 1,
+                    count: 4,
+                },
+                of_probes: probes.len(),
+                positions,
+            };
+            writer.finish_part(&head, &summary, &part).unwrap();
+            path
+        })
+        .collect();
+    let mut group = c.benchmark_group("merge");
+    group.sample_size(10);
+    group.bench_function("4 parts of 100k probes", |b| {
+        b.iter(|| merge(&parts, &dir.join("merged.results.json"), None).unwrap())
+    });
     group.finish();
 }
 

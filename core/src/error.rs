@@ -43,6 +43,9 @@ pub enum Error {
         /// Why not.
         source: std::io::Error,
     },
+    /// The files given do not make up what the command needs (a shard missing from a merge).
+    #[error("{0}")]
+    Incomplete(String),
 }
 
 /// Where in an input file a problem lies.

@@ -17,7 +17,9 @@ use std::path::{Path, PathBuf};
 use std::borrow::Cow;
 use std::ops::Range;
 
-use crate::check::{ProbeResult, Runner, Summary, expand_rules, text_digest};
+use crate::check::{
+    ProbeResult, Runner, Shard, Summary, assign, expand_rules, expected_cost, text_digest,
+};
 use crate::error::{Diagnostic, Error, InputError, Warning};
 use crate::input::{PathPolicy, resolve_named};
 use crate::level::{Level, LintSettings, LoadedLevel, level_digest, load_level};
@@ -301,7 +303,7 @@ impl Opened {
         progress: &(dyn Fn(usize) + Sync),
     ) -> Result<Vec<ProbeResult>, Error> {
         let mut results = Vec::with_capacity(self.probes.len());
-        self.answer_each(jobs, progress, &mut |_, result, _| {
+        self.answer_each(jobs, None, progress, &mut |_, result, _| {
             results.push(result);
             Ok(())
         })?;
@@ -310,28 +312,67 @@ impl Opened {
 
     /// Answers every probe as [`Opened::answer`] does, handing each probe, its result and the time
     /// its answer took to `each` in probe order as soon as its chunk is done, so that nothing of the
-    /// run is held beyond one chunk. Returns the counts by verdict.
+    /// run is held beyond one chunk. With `only` (ascending positions in the whole set, as
+    /// [`Opened::shard_positions`] gives), answers those probes alone. Returns the counts by verdict.
     pub fn answer_each(
         &self,
         jobs: Option<usize>,
+        only: Option<&[usize]>,
         progress: &(dyn Fn(usize) + Sync),
         each: &mut dyn FnMut(&Probe, ProbeResult, std::time::Duration) -> Result<(), Error>,
     ) -> Result<Summary, Error> {
         let runner = Runner::new(jobs)?;
         let mut summary = Summary::default();
         let total = self.probes.len();
+        let mut done = 0;
         let mut start = 0;
         while start < total {
             let range = start..(start + CHUNK).min(total);
-            let probes = self.probes.chunk(range.clone())?;
-            let results = runner.answer(&self.level.world, &probes, start, progress);
-            for (probe, (result, took)) in probes.iter().zip(results) {
+            start = range.end;
+            let chunk = match only {
+                None => self.probes.chunk(range)?,
+                Some(positions) => {
+                    let wanted = &positions[positions.partition_point(|&p| p < range.start)
+                        ..positions.partition_point(|&p| p < range.end)];
+                    if wanted.is_empty() {
+                        continue;
+                    }
+                    let all = self.probes.chunk(range.clone())?;
+                    Cow::Owned(
+                        wanted
+                            .iter()
+                            .map(|&p| all[p - range.start].clone())
+                            .collect(),
+                    )
+                }
+            };
+            let results = runner.answer(&self.level.world, &chunk, done, progress);
+            done += chunk.len();
+            for (probe, (result, took)) in chunk.iter().zip(results) {
                 summary.count(result.verdict);
                 each(probe, result, took)?;
             }
-            start = range.end;
         }
         Ok(summary)
+    }
+
+    /// The positions (in the whole set, ascending) of the probes shard `shard` answers: every probe's
+    /// [`expected_cost`] on this level, split by [`assign`]. The same for every shard of a check, so
+    /// the shards answer each probe exactly once between them.
+    pub fn shard_positions(&self, shard: Shard) -> Result<Vec<usize>, Error> {
+        let total = self.probes.len();
+        let mut costs = Vec::with_capacity(total);
+        let mut start = 0;
+        while start < total {
+            let range = start..(start + CHUNK).min(total);
+            start = range.end;
+            let chunk = self.probes.chunk(range)?;
+            costs.extend(chunk.iter().map(|p| expected_cost(p, &self.level.world)));
+        }
+        let shard_of = assign(&costs, shard.count);
+        Ok((0..total)
+            .filter(|&p| shard_of[p] as usize + 1 == shard.index)
+            .collect())
     }
 
     /// Every file this run reads: the probe set, then the level's files.

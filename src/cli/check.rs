@@ -7,8 +7,8 @@ use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
 use plumbline_core::check::{
-    Comparer, Comparison, DEFAULT_TOLERANCE, ProbeResult, ResultsFile, ResultsHead, ResultsWriter,
-    Summary, Verdict, load_results,
+    Comparer, Comparison, DEFAULT_TOLERANCE, PartHead, ProbeResult, ResultsFile, ResultsHead,
+    ResultsWriter, Shard, Summary, Verdict, load_results,
 };
 use plumbline_core::error::Error;
 use plumbline_core::input::{PathPolicy, check_outputs};
@@ -57,6 +57,10 @@ pub struct CheckOptions {
     /// Let files name paths outside their own folder (absolute, or `..` above it).
     #[arg(long)]
     pub allow_outside_paths: bool,
+    /// Answer only the K-th of N shares of the probes, balanced by expected cost; `--out` then
+    /// writes a partial results file for `plumbline merge`.
+    #[arg(long, value_name = "K/N", conflicts_with_all = ["baseline", "fail_on_change"])]
+    pub shard: Option<Shard>,
 }
 
 impl CheckOptions {
@@ -125,10 +129,6 @@ impl Writers {
             let path = path.to_path_buf();
             move |source| Error::Write { path, source }
         };
-        let suite = options
-            .probes
-            .file_name()
-            .map_or("probes".into(), |n| n.to_string_lossy().to_string());
         Ok(Writers {
             results: options
                 .out
@@ -138,7 +138,7 @@ impl Writers {
             junit: options
                 .junit
                 .as_deref()
-                .map(|p| JunitWriter::create(p, &suite).map_err(failed(p)))
+                .map(|p| JunitWriter::create(p).map_err(failed(p)))
                 .transpose()?,
             markdown: options
                 .markdown
@@ -171,10 +171,18 @@ pub fn run_once(
     let mut inputs = opened.inputs();
     inputs.extend(options.baseline.clone());
     check_outputs(&inputs, &options.outputs())?;
-    let total = opened.probes.len();
+    let positions = options
+        .shard
+        .map(|shard| opened.shard_positions(shard))
+        .transpose()?;
+    let total = positions.as_ref().map_or(opened.probes.len(), Vec::len);
     let level = &opened.level;
+    let share = match options.shard {
+        Some(shard) => format!("shard {shard}: {total} of {} probes", opened.probes.len()),
+        None => format!("{total} probes"),
+    };
     let mut header = format!(
-        "{} on {} ({total} probes, {} triangles)\n",
+        "{} on {} ({share}, {} triangles)\n",
         options.probes.display(),
         level.path.display(),
         level.triangles
@@ -193,6 +201,7 @@ pub fn run_once(
     let mut timings = options.timings.then(Timings::default);
     let summary = opened.answer_each(
         options.jobs.map(|j| j as usize),
+        positions.as_deref(),
         &|done| progress.update(done),
         &mut |probe, result, took| {
             if let Some(t) = &mut timings {
@@ -217,7 +226,7 @@ pub fn run_once(
                 w.push(&result).map_err(|e| write(&options.junit, e))?;
             }
             if let Some(w) = &mut writers.markdown {
-                w.push(probe, &result)
+                w.push(probe.label.as_deref(), &result)
                     .map_err(|e| write(&options.markdown, e))?;
             }
             if keep_results {
@@ -243,10 +252,22 @@ pub fn run_once(
         move |source| Error::Write { path, source }
     };
     if let Some(w) = writers.results {
-        w.finish(&head, &summary).map_err(written(&options.out))?;
+        match (options.shard, positions) {
+            (Some(shard), Some(positions)) => {
+                let part = PartHead {
+                    shard,
+                    of_probes: opened.probes.len(),
+                    positions,
+                };
+                w.finish_part(&head, &summary, &part)
+            }
+            _ => w.finish(&head, &summary),
+        }
+        .map_err(written(&options.out))?;
     }
     if let Some(w) = writers.junit {
-        w.finish(&summary).map_err(written(&options.junit))?;
+        w.finish(&suite_name(&options.probes), &summary)
+            .map_err(written(&options.junit))?;
     }
     if let Some(w) = writers.markdown {
         let labels = |id: &str| changed_labels.get(id).cloned().flatten();
@@ -269,6 +290,13 @@ pub fn run_once(
         results,
         timings,
     })
+}
+
+/// The JUnit suite's name: the probe set's file name.
+pub fn suite_name(probes: &Path) -> String {
+    probes
+        .file_name()
+        .map_or("probes".into(), |n| n.to_string_lossy().to_string())
 }
 
 /// One probe's line: its verdict, id and reason.

@@ -4,6 +4,7 @@ mod check;
 mod diff;
 mod info;
 mod lint;
+mod merge;
 mod terminal;
 mod timings;
 mod watch;
@@ -13,6 +14,7 @@ pub use check::{CheckOptions, check};
 pub use diff::diff;
 pub use info::info;
 pub use lint::{LintArgs, lint};
+pub use merge::{MergeOptions, merge};
 pub use watch::watch;
 pub use window::WindowArgs;
 

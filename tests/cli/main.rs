@@ -6,4 +6,5 @@ mod demo;
 mod hostile;
 mod info;
 mod lint;
+mod shard;
 mod support;

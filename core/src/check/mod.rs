@@ -10,12 +10,14 @@ mod expectation;
 mod jump;
 mod level_records;
 mod level_verdict;
+mod merge;
 mod reach;
 mod records;
 mod results_file;
 mod rules;
 mod run;
 mod settle;
+mod shard;
 mod verdict;
 mod volumes;
 mod walk;
@@ -26,18 +28,20 @@ pub use compare::{Aspect, Comparer, Comparison, DEFAULT_TOLERANCE, ProbeChange, 
 pub use expectation::expectation_from;
 pub use jump::{JumpRecord, trajectory};
 pub use level_records::MAX_LISTED_POINTS;
+pub use merge::merge;
 pub use reach::{ReachRecord, TargetRecord};
 pub use records::{
     ClearanceRecord, ClosestRecord, CoverageRecord, Hits, OverlapRecord, PairRecord, ProbeResult,
     RayHitRecord, RestRecord, SourceRecord, Summary, SweepHitRecord, Verdict,
 };
 pub use results_file::{
-    ResultsFile, ResultsHead, ResultsWriter, load_results, parse_results, probes_digest,
-    text_digest,
+    PARTIAL_KIND, PartHead, ResultsFile, ResultsHead, ResultsWriter, load_results, parse_results,
+    probes_digest, text_digest,
 };
 pub use rules::expand_rules;
 pub use run::{Runner, run_probes};
 pub use settle::{SettleRecord, settle_ends};
+pub use shard::{MAX_SHARDS, Shard, assign, expected_cost};
 pub use verdict::metres;
 pub use volumes::{VolumeCrossing, VolumeRecord};
 pub use walk::WalkRecord;

@@ -410,6 +410,15 @@ impl Summary {
         }
     }
 
+    /// Adds another run's counts (a shard's, when merging).
+    pub fn add(&mut self, other: &Summary) {
+        self.probes += other.probes;
+        self.pass += other.pass;
+        self.fail += other.fail;
+        self.unchecked += other.unchecked;
+        self.error += other.error;
+    }
+
     /// True when every expectation holds and no probe erred.
     pub fn all_hold(&self) -> bool {
         self.fail == 0 && self.error == 0

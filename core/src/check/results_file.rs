@@ -10,6 +10,7 @@ use serde_json::value::RawValue;
 use sha2::{Digest, Sha256};
 
 use super::records::{ClearanceRecord, Hits, ProbeResult, Summary, Verdict, VolumeRecord};
+use super::shard::Shard;
 use crate::atomic::{AtomicFile, Spill};
 use crate::error::{InputError, check_header};
 use crate::probe::{ProbeKind, ProbeSet, probe_set_to_json};
@@ -58,7 +59,7 @@ impl ResultsFile {
 
     /// The file's text: stable JSON, no timestamps (the same layout [`ResultsWriter`] streams).
     pub fn to_json(&self) -> String {
-        let mut out = head_text(&self.head(), &self.summary, self.results.len());
+        let mut out = head_text(&self.head(), &self.summary, self.results.len(), None);
         for (k, result) in self.results.iter().enumerate() {
             entry_text(result, k + 1 == self.results.len(), &mut out);
         }
@@ -90,14 +91,44 @@ pub struct ResultsHead {
     pub probes_digest: String,
 }
 
-/// The file up to its first result: the head, the summary, and the opening of the results array.
-fn head_text(head: &ResultsHead, summary: &Summary, count: usize) -> String {
+/// What a shard's partial results file says beyond a results file's head: which shard it is, of how
+/// many probes, and where in the whole set each of its results goes.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct PartHead {
+    /// Which shard.
+    pub shard: Shard,
+    /// How many probes the whole set has.
+    pub of_probes: usize,
+    /// The position in the whole set of each result, in the order written (ascending).
+    pub positions: Vec<usize>,
+}
+
+/// The file up to its first result: the head (and the shard's, for a partial file), the summary,
+/// and the opening of the results array.
+pub(super) fn head_text(
+    head: &ResultsHead,
+    summary: &Summary,
+    count: usize,
+    part: Option<&PartHead>,
+) -> String {
     use crate::json_text::to_pretty;
-    let value = serde_json::json!({
-        "plumbline": "results", "version": 1, "probes": head.probes, "level": head.level,
+    let mut value = serde_json::json!({
+        "plumbline": if part.is_some() { PARTIAL_KIND } else { "results" }, "version": 1,
+        "probes": head.probes, "level": head.level,
         "level_digest": head.level_digest, "probes_digest": head.probes_digest,
-        "summary": summary, "results": [],
     });
+    let map = value.as_object_mut().expect("an object");
+    if let Some(part) = part {
+        map.insert(
+            "shard".into(),
+            serde_json::json!({
+                "index": part.shard.index, "count": part.shard.count, "of_probes": part.of_probes,
+            }),
+        );
+        map.insert("positions".into(), serde_json::json!(part.positions));
+    }
+    map.insert("summary".into(), serde_json::json!(summary));
+    map.insert("results".into(), serde_json::json!([]));
     let text = to_pretty(&value);
     // The text ends with `"results": []\n}\n`: open the array there instead.
     let mut out = text[..text.len() - "[]\n}\n".len()].to_string();
@@ -106,14 +137,17 @@ fn head_text(head: &ResultsHead, summary: &Summary, count: usize) -> String {
 }
 
 /// One result as an element of the results array.
-fn entry_text(result: &ProbeResult, last: bool, out: &mut String) {
+pub(super) fn entry_text(result: &ProbeResult, last: bool, out: &mut String) {
     out.push_str("    ");
     crate::json_text::write_pretty(&result.to_json(), 2, out);
     out.push_str(if last { "\n" } else { ",\n" });
 }
 
+/// `"plumbline"` of a shard's partial results file.
+pub const PARTIAL_KIND: &str = "partial-results";
+
 /// The end of the file after the last result.
-fn tail_text(count: usize) -> &'static str {
+pub(super) fn tail_text(count: usize) -> &'static str {
     if count == 0 { "\n}\n" } else { "  ]\n}\n" }
 }
 
@@ -151,6 +185,26 @@ impl ResultsWriter {
 
     /// Writes the file atomically: head and summary, then every result pushed.
     pub fn finish(self, head: &ResultsHead, summary: &Summary) -> io::Result<()> {
+        self.finish_as(head, summary, None)
+    }
+
+    /// Writes a shard's partial results file atomically: as [`ResultsWriter::finish`], with the
+    /// shard's head (`plumbline merge` joins the parts).
+    pub fn finish_part(
+        self,
+        head: &ResultsHead,
+        summary: &Summary,
+        part: &PartHead,
+    ) -> io::Result<()> {
+        self.finish_as(head, summary, Some(part))
+    }
+
+    fn finish_as(
+        self,
+        head: &ResultsHead,
+        summary: &Summary,
+        part: Option<&PartHead>,
+    ) -> io::Result<()> {
         if self.written != self.total {
             return Err(io::Error::other(format!(
                 "{} of {} results were written",
@@ -158,7 +212,7 @@ impl ResultsWriter {
             )));
         }
         let mut file = AtomicFile::create(&self.path)?;
-        file.write_all(head_text(head, summary, self.total).as_bytes())?;
+        file.write_all(head_text(head, summary, self.total, part).as_bytes())?;
         self.body.copy_into(&mut file)?;
         file.write_all(tail_text(self.total).as_bytes())?;
         file.commit()
@@ -224,23 +278,11 @@ pub fn parse_results(path: &Path, text: &str) -> Result<ResultsFile, InputError>
         "results",
         "a results file",
     )?;
-    let mut results = Vec::with_capacity(raw.results.len());
-    for item in &raw.results {
-        let r: RawResult = serde_json::from_str(item.get())
-            .map_err(|e| InputError::json_in(path, text, item.get(), &e))?;
-        let hits = parse_hits(r.kind, r.hits).map_err(|m| {
-            InputError::at_fragment(path, text, item.get(), format!("result \"{}\": {m}", r.id))
-        })?;
-        results.push(ProbeResult {
-            id: r.id,
-            kind: r.kind,
-            verdict: r.verdict,
-            reason: r.reason,
-            hits,
-            clearance: r.clearance,
-            volumes: r.volumes,
-        });
-    }
+    let results = raw
+        .results
+        .iter()
+        .map(|item| parse_entry(path, text, item))
+        .collect::<Result<Vec<_>, _>>()?;
     Ok(ResultsFile {
         plumbline: raw.plumbline,
         version: raw.version,
@@ -250,6 +292,28 @@ pub fn parse_results(path: &Path, text: &str) -> Result<ResultsFile, InputError>
         probes_digest: raw.probes_digest,
         summary: raw.summary,
         results,
+    })
+}
+
+/// Parses one element of a results array; `text` is the whole file's, for the line and column.
+pub(super) fn parse_entry(
+    path: &Path,
+    text: &str,
+    item: &RawValue,
+) -> Result<ProbeResult, InputError> {
+    let r: RawResult = serde_json::from_str(item.get())
+        .map_err(|e| InputError::json_in(path, text, item.get(), &e))?;
+    let hits = parse_hits(r.kind, r.hits).map_err(|m| {
+        InputError::at_fragment(path, text, item.get(), format!("result \"{}\": {m}", r.id))
+    })?;
+    Ok(ProbeResult {
+        id: r.id,
+        kind: r.kind,
+        verdict: r.verdict,
+        reason: r.reason,
+        hits,
+        clearance: r.clearance,
+        volumes: r.volumes,
     })
 }
 

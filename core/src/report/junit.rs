@@ -13,16 +13,14 @@ use crate::check::{ProbeResult, Summary, Verdict};
 /// answered as errors.
 pub struct JunitWriter {
     path: PathBuf,
-    suite: String,
     cases: Spill,
 }
 
 impl JunitWriter {
-    /// Starts the report at `path` for a suite named `suite` (the probe set's file name).
-    pub fn create(path: &Path, suite: &str) -> io::Result<JunitWriter> {
+    /// Starts the report at `path`.
+    pub fn create(path: &Path) -> io::Result<JunitWriter> {
         Ok(JunitWriter {
             path: path.to_path_buf(),
-            suite: suite.to_string(),
             cases: Spill::beside(path, "cases")?,
         })
     }
@@ -52,8 +50,9 @@ impl JunitWriter {
         self.cases.write_all(case.as_bytes())
     }
 
-    /// Writes the report atomically with the run's counts.
-    pub fn finish(self, s: &Summary) -> io::Result<()> {
+    /// Writes the report atomically with the run's counts, for a suite named `suite` (the probe
+    /// set's file name).
+    pub fn finish(self, suite: &str, s: &Summary) -> io::Result<()> {
         let mut file = AtomicFile::create(&self.path)?;
         let counts = format!(
             "tests=\"{}\" failures=\"{}\" errors=\"{}\" skipped=\"{}\"",
@@ -63,7 +62,7 @@ impl JunitWriter {
             file,
             "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n<testsuites name=\"plumbline\" {counts}>\n  \
              <testsuite name=\"{}\" {counts}>\n",
-            escape(&self.suite)
+            escape(suite)
         )?;
         self.cases.copy_into(&mut file)?;
         file.write_all(b"  </testsuite>\n</testsuites>\n")?;

@@ -5,7 +5,6 @@ use std::path::{Path, PathBuf};
 
 use crate::atomic::{AtomicFile, Spill};
 use crate::check::{Comparison, Hits, PairRecord, ProbeResult, Summary, Verdict};
-use crate::probe::Probe;
 
 /// Writes the Markdown summary probe by probe: failing rows go to a scratch file, and
 /// [`MarkdownWriter::finish`] writes the counts, the failing table and what changed since the
@@ -34,11 +33,12 @@ impl MarkdownWriter {
         })
     }
 
-    /// Adds the next result (a table row when it fails or errs; a sightline matrix as a table).
-    pub fn push(&mut self, probe: &Probe, r: &ProbeResult) -> io::Result<()> {
+    /// Adds the next result with its probe's label (a table row when it fails or errs; a sightline
+    /// matrix as a table).
+    pub fn push(&mut self, label: Option<&str>, r: &ProbeResult) -> io::Result<()> {
         if let Hits::Sightlines(pairs) = &r.hits {
             self.any_matrix = true;
-            let table = sightline_table(&r.id, probe.label.as_deref(), pairs);
+            let table = sightline_table(&r.id, label, pairs);
             self.matrices.write_all(table.as_bytes())?;
         }
         if !matches!(r.verdict, Verdict::Fail | Verdict::Error) {
@@ -48,7 +48,7 @@ impl MarkdownWriter {
         writeln!(
             self.failing,
             "| {} | {} | {} | {} |",
-            probe_cell(&r.id, probe.label.as_deref()),
+            probe_cell(&r.id, label),
             r.kind,
             r.verdict.word(),
             cell(&r.reason)
