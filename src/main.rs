@@ -63,6 +63,12 @@ enum Command {
         #[command(flatten)]
         args: cli::LintArgs,
     },
+    /// Prints the JSON Schema (draft 2020-12) of a file format, for editors.
+    Schema {
+        /// Which format: level, probes, results or partial-results.
+        #[arg(value_parser = ["level", "probes", "results", "partial-results"])]
+        kind: String,
+    },
     /// Lists a level's objects, tags, triangle counts, bounds and load warnings.
     Info {
         /// A .level.json, .gltf, .glb or .obj file (or a probe set: its level).
@@ -139,6 +145,7 @@ fn run(parsed: Cli) -> Result<ExitCode, String> {
         }) => cli::info(&level, allow_outside_paths),
         Some(Command::Lint { args }) => cli::lint(&args),
         Some(Command::Merge { options }) => cli::merge(&options),
+        Some(Command::Schema { kind }) => cli::schema(&kind),
         Some(Command::Open { file, window }) => open(file, window),
         None => open(None, parsed.window),
     }

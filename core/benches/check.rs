@@ -67,7 +67,7 @@ fn probes() -> Vec<Probe> {
                 }
             } else if pick < 0.9 {
                 ProbeQuery::Closest {
-                    shape: ShapeSpec::Point,
+                    shape: ShapeSpec::Point {},
                     at: from,
                     rotation: None,
                     max_distance: 5.0,
@@ -136,6 +136,7 @@ fn bench(c: &mut Criterion) {
     let world = World::new(&level).unwrap();
     let digest = level_digest(&level);
     let set = ProbeSet {
+        schema: None,
         level: "bench.level.json".into(),
         probes: probes(),
         rules: Vec::new(),

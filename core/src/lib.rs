@@ -44,6 +44,7 @@ pub mod check;
 pub mod demo;
 pub mod error;
 pub mod input;
+pub mod json_object;
 pub mod json_text;
 pub mod level;
 pub mod lint;

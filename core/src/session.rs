@@ -213,6 +213,7 @@ pub fn open(path: &Path, options: &OpenOptions) -> Result<Opened, Error> {
     } else {
         let name = path.file_name().and_then(|n| n.to_str()).unwrap_or("");
         let set = ProbeSet {
+            schema: None,
             level: name.to_string(),
             probes: Vec::new(),
             rules: Vec::new(),
@@ -220,11 +221,16 @@ pub fn open(path: &Path, options: &OpenOptions) -> Result<Opened, Error> {
         (None, None, Source::Given(set), path.to_path_buf())
     };
     if let Some(edited) = &options.probes {
-        let (level, rules) = match &probes {
-            Source::File(text) => (text.level().to_string(), text.rules().to_vec()),
-            Source::Given(set) => (set.level.clone(), set.rules.clone()),
+        let (schema, level, rules) = match &probes {
+            Source::File(text) => (
+                text.schema().map(str::to_string),
+                text.level().to_string(),
+                text.rules().to_vec(),
+            ),
+            Source::Given(set) => (set.schema.clone(), set.level.clone(), set.rules.clone()),
         };
         probes = Source::Given(ProbeSet {
+            schema,
             level,
             probes: edited.probes.clone(),
             rules: edited.rules.clone().unwrap_or(rules),

@@ -250,6 +250,7 @@ impl Document {
     /// The probe set as it would be saved to `path`: the level named relative to that file's folder.
     fn probe_set_for(&self, path: &Path) -> ProbeSet {
         ProbeSet {
+            schema: self.probes.schema.clone(),
             level: level_reference(path, &self.level_path),
             probes: written_probes(&self.probes.probes),
             rules: self.probes.rules.clone(),

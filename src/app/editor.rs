@@ -587,7 +587,7 @@ fn shape_editor(ui: &mut egui::Ui, shape: &mut ShapeSpec, point_allowed: bool) -
     let mut changed = false;
     if kind != shape.type_name() {
         *shape = match kind {
-            "point" => ShapeSpec::Point,
+            "point" => ShapeSpec::Point {},
             "sphere" => ShapeSpec::Sphere { radius: 0.35 },
             "box" => ShapeSpec::Box {
                 half_extents: [0.5, 0.5, 0.5],

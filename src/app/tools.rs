@@ -206,7 +206,7 @@ pub fn new_probe(tool: Tool, id: String, points: &[DVec3], up: DVec3) -> Option<
             turns: None,
         },
         (Tool::Closest, [at, ..]) => ProbeQuery::Closest {
-            shape: ShapeSpec::Point,
+            shape: ShapeSpec::Point {},
             at: *at,
             rotation: None,
             max_distance: 5.0,

@@ -5,6 +5,7 @@ mod diff;
 mod info;
 mod lint;
 mod merge;
+mod schema;
 mod terminal;
 mod timings;
 mod watch;
@@ -15,6 +16,7 @@ pub use diff::diff;
 pub use info::info;
 pub use lint::{LintArgs, lint};
 pub use merge::{MergeOptions, merge};
+pub use schema::schema;
 pub use watch::watch;
 pub use window::WindowArgs;
 

@@ -1,7 +1,10 @@
-//! `plumbline info`: the level's objects and warnings, and exit 2 with a one-line error for bad input.
+//! `plumbline info`: the level's objects and warnings, and exit 2 with a one-line error for bad input;
+//! `plumbline schema`: the formats' JSON Schemas.
 
 use std::path::{Path, PathBuf};
 use std::process::Command;
+
+use super::support::plumbline;
 
 fn write(dir: &Path, name: &str, bytes: &[u8]) -> PathBuf {
     let p = dir.join(name);
@@ -49,4 +52,17 @@ fn info_lists_objects_and_warnings() {
         stdout.contains("crate") && stdout.contains("1 degenerate triangle(s)"),
         "{stdout}"
     );
+}
+
+#[test]
+fn schema_prints_each_formats_schema_as_the_repository_holds_it() {
+    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+    for kind in ["level", "probes", "results", "partial-results"] {
+        let run = plumbline(root, &["schema", kind]);
+        assert_eq!(run.status.code(), Some(0));
+        let file = std::fs::read(root.join(format!("schemas/{kind}.schema.json"))).unwrap();
+        assert!(run.stdout == file, "{kind}");
+    }
+    let run = plumbline(root, &["schema", "lint"]);
+    assert_eq!(run.status.code(), Some(2));
 }

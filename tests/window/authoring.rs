@@ -200,6 +200,7 @@ fn a_recovery_file_is_offered_at_start_and_restored() {
     std::fs::write(
         &recovery,
         probe_set_to_json(&ProbeSet {
+            schema: None,
             level: files::LEVEL.into(),
             probes: probes.probes.clone(),
             rules: probes.rules.clone(),

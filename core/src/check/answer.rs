@@ -172,7 +172,7 @@ fn answer(world: &World, probe: &Probe, progress: &Progress) -> Result<Answer, Q
             max_distance,
         } => {
             let probe_shape;
-            let target = if matches!(shape, ShapeSpec::Point) {
+            let target = if matches!(shape, ShapeSpec::Point {}) {
                 ClosestProbe::Point
             } else {
                 probe_shape = self::probe_shape(shape, *rotation)?;

@@ -17,6 +17,8 @@ use crate::error::{Error, InputError, check_header};
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
 struct RawPart<'a> {
+    #[serde(rename = "$schema")]
+    _schema: Option<String>,
     #[serde(rename = "plumbline")]
     _plumbline: String,
     #[serde(rename = "version")]
@@ -25,8 +27,10 @@ struct RawPart<'a> {
     level: String,
     level_digest: String,
     probes_digest: String,
+    #[serde(deserialize_with = "crate::json_object::object")]
     shard: RawShard,
     positions: Vec<usize>,
+    #[serde(deserialize_with = "crate::json_object::object")]
     summary: Summary,
     #[serde(borrow)]
     results: Vec<&'a RawValue>,
@@ -189,7 +193,8 @@ fn parse_part<'a>(path: &Path, text: &'a str) -> Result<RawPart<'a>, InputError>
         PARTIAL_KIND,
         "a shard's partial results (check --shard K/N --out …)",
     )?;
-    let raw: RawPart = serde_json::from_str(text).map_err(|e| InputError::json(path, &e))?;
+    let raw: RawPart =
+        crate::json_object::from_object_str(text).map_err(|e| InputError::json(path, &e))?;
     let shard = format!("{}/{}", raw.shard.index, raw.shard.count);
     if shard.parse::<Shard>().is_err() {
         return Err(InputError::at(

@@ -31,6 +31,7 @@ pub struct ReachRecord {
     /// Square metres walkable but not reached.
     pub area_unreached: f64,
     /// Every target, in order (named ones first, then tagged objects in level order).
+    #[serde(deserialize_with = "crate::json_object::objects")]
     pub targets: Vec<TargetRecord>,
     /// The reached cells' ground points (at most [`MAX_LISTED_POINTS`]).
     pub reached_points: Vec<[f64; 3]>,

@@ -59,7 +59,7 @@ pub struct RayHitRecord {
     #[serde(default)]
     pub triangle: Option<u32>,
     /// Where that triangle is in the user's file (meshes read from files).
-    #[serde(default)]
+    #[serde(default, deserialize_with = "crate::json_object::optional_object")]
     pub source: Option<SourceRecord>,
     /// The material of the surface, when the file names one.
     #[serde(default)]
@@ -166,7 +166,7 @@ pub struct SweepHitRecord {
     #[serde(default)]
     pub triangle: Option<u32>,
     /// Where that triangle is in the user's file.
-    #[serde(default)]
+    #[serde(default, deserialize_with = "crate::json_object::optional_object")]
     pub source: Option<SourceRecord>,
     /// The material of the surface, when the file names one.
     #[serde(default)]

@@ -236,12 +236,16 @@ pub fn probes_digest(set: &ProbeSet) -> String {
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
 struct RawResults<'a> {
+    /// The JSON Schema the file names; not used.
+    #[serde(rename = "$schema")]
+    _schema: Option<String>,
     plumbline: String,
     version: u32,
     probes: String,
     level: String,
     level_digest: String,
     probes_digest: String,
+    #[serde(deserialize_with = "crate::json_object::object")]
     summary: Summary,
     #[serde(borrow)]
     results: Vec<&'a RawValue>,
@@ -255,8 +259,9 @@ struct RawResult {
     verdict: Verdict,
     reason: String,
     hits: Vec<Value>,
+    #[serde(default, deserialize_with = "crate::json_object::optional_object")]
     clearance: Option<ClearanceRecord>,
-    #[serde(default)]
+    #[serde(default, deserialize_with = "crate::json_object::objects")]
     volumes: Vec<VolumeRecord>,
 }
 
@@ -270,7 +275,8 @@ pub fn load_results(path: &Path) -> Result<ResultsFile, InputError> {
 
 /// Parses the text of a results file; `path` is named in errors.
 pub fn parse_results(path: &Path, text: &str) -> Result<ResultsFile, InputError> {
-    let raw: RawResults = serde_json::from_str(text).map_err(|e| InputError::json(path, &e))?;
+    let raw: RawResults =
+        crate::json_object::from_object_str(text).map_err(|e| InputError::json(path, &e))?;
     check_header(
         path,
         &raw.plumbline,
@@ -301,7 +307,7 @@ pub(super) fn parse_entry(
     text: &str,
     item: &RawValue,
 ) -> Result<ProbeResult, InputError> {
-    let r: RawResult = serde_json::from_str(item.get())
+    let r: RawResult = crate::json_object::from_object_str(item.get())
         .map_err(|e| InputError::json_in(path, text, item.get(), &e))?;
     let hits = parse_hits(r.kind, r.hits).map_err(|m| {
         InputError::at_fragment(path, text, item.get(), format!("result \"{}\": {m}", r.id))
@@ -318,6 +324,9 @@ pub(super) fn parse_entry(
 }
 
 fn parse_hits(kind: ProbeKind, hits: Vec<Value>) -> Result<Hits, String> {
+    if let Some(k) = hits.iter().position(|h| !h.is_object()) {
+        return Err(format!("hits[{k}] must be an object"));
+    }
     let value = Value::Array(hits);
     let err = |e: serde_json::Error| format!("hits: {e}");
     Ok(match kind {

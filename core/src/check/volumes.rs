@@ -192,7 +192,7 @@ pub(super) fn records(
             _,
         ) => {
             let placed;
-            let mover = if matches!(shape, ShapeSpec::Point) {
+            let mover = if matches!(shape, ShapeSpec::Point {}) {
                 Mover::Point
             } else {
                 placed = probe_shape(shape, *rotation)?;

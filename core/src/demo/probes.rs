@@ -82,7 +82,7 @@ fn spawn(at: DVec3) -> ProbeQuery {
 
 fn resting(at: DVec3) -> ProbeQuery {
     ProbeQuery::Closest {
-        shape: ShapeSpec::Point,
+        shape: ShapeSpec::Point {},
         at,
         rotation: None,
         max_distance: 0.5,
@@ -613,6 +613,7 @@ pub fn probe_set(level: &str) -> ProbeSet {
     probes.extend(settle_probes());
     probes.extend(whole_level_probes());
     ProbeSet {
+        schema: None,
         level: level.to_string(),
         probes,
         rules: rules(),

@@ -19,13 +19,17 @@ use crate::input::{MAX_TRIANGLES, PathPolicy, check_name, one_line, resolve_name
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
 struct LevelFile {
+    /// The JSON Schema the file names; not used.
+    #[serde(rename = "$schema")]
+    _schema: Option<String>,
     plumbline: String,
     version: u32,
     up: Option<[f64; 3]>,
-    #[serde(default)]
+    #[serde(default, deserialize_with = "crate::json_object::objects")]
     tag_rules: Vec<TagRule>,
+    #[serde(deserialize_with = "crate::json_object::objects")]
     objects: Vec<ObjectSpec>,
-    #[serde(default)]
+    #[serde(default, deserialize_with = "crate::json_object::object")]
     lint: LintSettings,
 }
 
@@ -50,6 +54,7 @@ struct ObjectSpec {
     rotation: Option<[f64; 4]>,
     scale: Option<Scale>,
     mesh: Option<String>,
+    #[serde(default, deserialize_with = "crate::json_object::optional_object")]
     shape: Option<ShapeSpec>,
     /// The object is a volume (see [`super::VOLUME_TAG`]).
     #[serde(default)]
@@ -84,7 +89,8 @@ pub fn load_level_file(
 ) -> Result<(Level, Vec<Diagnostic>, LintSettings), InputError> {
     let text = std::str::from_utf8(bytes)
         .map_err(|e| InputError::file(path, format!("not UTF-8 text: {e}")))?;
-    let file: LevelFile = serde_json::from_str(text).map_err(|e| InputError::json(path, &e))?;
+    let file: LevelFile =
+        crate::json_object::from_object_str(text).map_err(|e| InputError::json(path, &e))?;
     check_header(path, &file.plumbline, file.version, "level", "a level")?;
     let up = parse_up(path, file.up)?;
     check_tag_rules(path, &file.tag_rules)?;

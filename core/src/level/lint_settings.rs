@@ -25,13 +25,13 @@ use crate::lint::FindingKind;
 #[serde(deny_unknown_fields)]
 pub struct LintSettings {
     /// Meshes that must be closed (no open or non-manifold edges).
-    #[serde(default)]
+    #[serde(default, deserialize_with = "crate::json_object::optional_object")]
     pub closed: Option<Selection>,
     /// Objects that must rest on the level (default: those tagged `prop`).
-    #[serde(default)]
+    #[serde(default, deserialize_with = "crate::json_object::optional_object")]
     pub props: Option<Selection>,
     /// Findings accepted as they are.
-    #[serde(default)]
+    #[serde(default, deserialize_with = "crate::json_object::objects")]
     pub allow: Vec<Allowance>,
 }
 

@@ -156,8 +156,9 @@ pub enum ShapeSpec {
         /// Size along X and Z in metres.
         size: [f64; 2],
     },
-    /// A single point (probes only).
-    Point,
+    /// A single point (probes only). Written with braces so that, like every other shape, it takes
+    /// no fields it does not know.
+    Point {},
 }
 
 impl ShapeSpec {
@@ -171,7 +172,7 @@ impl ShapeSpec {
             ShapeSpec::Convex { .. } => "convex",
             ShapeSpec::Triangles { .. } => "triangles",
             ShapeSpec::Heightfield { .. } => "heightfield",
-            ShapeSpec::Point => "point",
+            ShapeSpec::Point {} => "point",
         }
     }
 
@@ -207,7 +208,7 @@ impl ShapeSpec {
             ShapeSpec::Convex { points } => Primitive::Convex {
                 points: convex_points(points)?,
             },
-            ShapeSpec::Triangles { .. } | ShapeSpec::Heightfield { .. } | ShapeSpec::Point => {
+            ShapeSpec::Triangles { .. } | ShapeSpec::Heightfield { .. } | ShapeSpec::Point {} => {
                 return Ok(None);
             }
         }))
@@ -217,7 +218,7 @@ impl ShapeSpec {
     /// were dropped. Errors name the field or the vertex/triangle at fault.
     pub fn level_geometry(&self, transform: &Transform) -> Result<(Geometry, usize), ShapeError> {
         match self {
-            ShapeSpec::Point => Err(ShapeError::PointInLevel),
+            ShapeSpec::Point {} => Err(ShapeError::PointInLevel),
             ShapeSpec::Triangles { vertices, indices } => {
                 let vertices: Vec<DVec3> = vertices.iter().map(|v| DVec3::from_array(*v)).collect();
                 let mut triangles = Vec::with_capacity(indices.len());

@@ -10,6 +10,8 @@ use crate::query::Filter;
 /// A probe set: the level it is about, its probes and its rules, in file order.
 #[derive(Debug, Clone, PartialEq)]
 pub struct ProbeSet {
+    /// The JSON Schema the file names (`"$schema"`), kept when the set is saved.
+    pub schema: Option<String>,
     /// The level file, as written (relative to the probe set's folder).
     pub level: String,
     /// The probes, in order.
@@ -534,7 +536,11 @@ pub struct Conditions {
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub first_tag: Option<String>,
     /// The first hit's distance lies in this range.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(
+        default,
+        skip_serializing_if = "Option::is_none",
+        deserialize_with = "crate::json_object::optional_object"
+    )]
     pub distance: Option<Range>,
     /// A sweep stays at least this far from everything.
     #[serde(default, skip_serializing_if = "Option::is_none")]
@@ -552,13 +558,21 @@ pub struct Conditions {
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub min_seen: Option<usize>,
     /// Coverage: the share of the region seen (0 to 1) lies in this range.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(
+        default,
+        skip_serializing_if = "Option::is_none",
+        deserialize_with = "crate::json_object::optional_object"
+    )]
     pub seen: Option<Range>,
     /// Jump: it lands on ground a character can stand on (true) or too steep to (false).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub walkable: Option<bool>,
     /// Jump: the centre where it lands lies inside this region.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(
+        default,
+        skip_serializing_if = "Option::is_none",
+        deserialize_with = "crate::json_object::optional_object"
+    )]
     pub lands_within: Option<Region>,
     /// Walk: it reaches the last waypoint (true) or does not (false).
     #[serde(default, skip_serializing_if = "Option::is_none")]

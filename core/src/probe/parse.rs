@@ -26,6 +26,7 @@ struct RawProbe<'a> {
     from: Option<[f64; 3]>,
     to: Option<[f64; 3]>,
     hits: Option<HitsMode>,
+    #[serde(default, deserialize_with = "crate::json_object::optional_object")]
     shape: Option<ShapeSpec>,
     rotation: Option<[f64; 4]>,
     path: Option<Vec<[f64; 3]>>,
@@ -34,9 +35,11 @@ struct RawProbe<'a> {
     at: Option<[f64; 3]>,
     max_distance: Option<f64>,
     search: Option<f64>,
+    #[serde(default, deserialize_with = "crate::json_object::optional_objects")]
     spots: Option<Vec<Spot>>,
     spot_tags: Option<Vec<String>>,
     eye: Option<f64>,
+    #[serde(default, deserialize_with = "crate::json_object::optional_object")]
     region: Option<Region>,
     spacing: Option<f64>,
     velocity: Option<[f64; 3]>,
@@ -46,6 +49,7 @@ struct RawProbe<'a> {
     gravity: Option<f64>,
     max_slope: Option<f64>,
     max_step: Option<f64>,
+    #[serde(default, deserialize_with = "crate::json_object::optional_objects")]
     targets: Option<Vec<Spot>>,
     target_tags: Option<Vec<String>>,
     max_time: Option<f64>,
@@ -80,7 +84,7 @@ fn check_names(raw: &RawProbe) -> Result<(), String> {
 
 /// Parses probe `fragment`, a slice of the file's `text`.
 pub(super) fn parse_probe(path: &Path, text: &str, fragment: &str) -> Result<Probe, InputError> {
-    let raw: RawProbe = serde_json::from_str(fragment)
+    let raw: RawProbe = crate::json_object::from_object_str(fragment)
         .map_err(|e| InputError::json_in(path, text, fragment, &e))?;
     let here = |message: String| InputError::at_fragment(path, text, fragment, message);
     check_id("probe", &raw.id).map_err(here)?;
@@ -636,7 +640,7 @@ fn probe_shape(
     rotation: Option<DQuat>,
     point_allowed: bool,
 ) -> Result<ShapeSpec, String> {
-    if matches!(shape, ShapeSpec::Point) {
+    if matches!(shape, ShapeSpec::Point {}) {
         return if point_allowed {
             Ok(shape.clone())
         } else {
@@ -696,7 +700,7 @@ fn parse_expect(
             }
         }
     } else {
-        let c: Conditions = serde_json::from_str(fragment)
+        let c: Conditions = crate::json_object::from_object_str(fragment)
             .map_err(|e| ExpectError::Json(InputError::json_in(path, text, fragment, &e)))?;
         check_conditions(&c, query).map_err(ExpectError::Value)?;
         Expect::Conditions(c)

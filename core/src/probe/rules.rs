@@ -137,9 +137,13 @@ pub struct FromRule {
 struct RawRule<'a> {
     id: String,
     label: Option<String>,
+    #[serde(deserialize_with = "crate::json_object::object")]
     objects: Selection,
+    #[serde(default, deserialize_with = "crate::json_object::optional_object")]
     clear: Option<RawClear>,
+    #[serde(default, deserialize_with = "crate::json_object::optional_object")]
     rests: Option<RawRests>,
+    #[serde(default, deserialize_with = "crate::json_object::optional_object")]
     settles: Option<RawSettles>,
     #[serde(borrow)]
     probe: Option<&'a RawValue>,
@@ -153,8 +157,9 @@ struct RawRule<'a> {
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
 struct RawClear {
+    #[serde(deserialize_with = "crate::json_object::object")]
     shape: ShapeSpec,
-    #[serde(default)]
+    #[serde(default, deserialize_with = "crate::json_object::object")]
     at: Anchor,
 }
 
@@ -174,7 +179,7 @@ struct RawSettles {
 
 /// Parses rule `fragment`, a slice of the probe-set file's `text`.
 pub(super) fn parse_rule(path: &Path, text: &str, fragment: &str) -> Result<Rule, InputError> {
-    let raw: RawRule = serde_json::from_str(fragment)
+    let raw: RawRule = crate::json_object::from_object_str(fragment)
         .map_err(|e| InputError::json_in(path, text, fragment, &e))?;
     let here = |message: String| InputError::at_fragment(path, text, fragment, message);
     check_id("rule", &raw.id).map_err(here)?;

@@ -19,6 +19,8 @@ use crate::input::{MAX_PROBES, read_input};
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
 struct RawSet<'a> {
+    #[serde(rename = "$schema")]
+    schema: Option<String>,
     plumbline: String,
     version: u32,
     level: String,
@@ -40,6 +42,8 @@ pub struct ProbeText {
     longest_id: usize,
     /// The rules, parsed.
     rules: Vec<Rule>,
+    /// The `$schema` the file names.
+    schema: Option<String>,
 }
 
 impl ProbeText {
@@ -54,8 +58,8 @@ impl ProbeText {
     /// Checks probe-set text; `path` is named in errors.
     pub fn parse(path: &Path, text: String) -> Result<ProbeText, InputError> {
         let level = {
-            let raw: RawSet =
-                serde_json::from_str(&text).map_err(|e| InputError::json(path, &e))?;
+            let raw: RawSet = crate::json_object::from_object_str(&text)
+                .map_err(|e| InputError::json(path, &e))?;
             check_header(path, &raw.plumbline, raw.version, "probes", "a probe set")?;
             if raw.probes.len() > MAX_PROBES {
                 return Err(InputError::at(
@@ -86,12 +90,13 @@ impl ProbeText {
                     (start, start + r.get().len())
                 })
                 .collect();
-            (raw.level, spans, rules, rule_spans)
+            (raw.schema, raw.level, spans, rules, rule_spans)
         };
-        let (level, spans, rules, rule_spans) = level;
+        let (schema, level, spans, rules, rule_spans) = level;
         let mut checked = ProbeText {
             path: path.to_path_buf(),
             text,
+            schema,
             level,
             spans,
             longest_id: 0,
@@ -161,10 +166,16 @@ impl ProbeText {
     /// The whole set, parsed.
     pub fn to_set(&self) -> Result<ProbeSet, InputError> {
         Ok(ProbeSet {
+            schema: self.schema.clone(),
             level: self.level.clone(),
             probes: self.probes(0..self.len())?,
             rules: self.rules.clone(),
         })
+    }
+
+    /// The JSON Schema the file names (`"$schema"`), if it names one.
+    pub fn schema(&self) -> Option<&str> {
+        self.schema.as_deref()
     }
 
     /// The rules.
@@ -198,6 +209,7 @@ pub fn parse_probe_set(path: &Path, text: &str) -> Result<ProbeSet, InputError> 
 /// names the probe and what is wrong.
 pub fn validate_probe(probe: &Probe) -> Result<(), InputError> {
     let set = ProbeSet {
+        schema: None,
         level: "level".into(),
         probes: vec![probe.clone()],
         rules: Vec::new(),

@@ -15,8 +15,14 @@ pub fn probe_set_to_json(set: &ProbeSet) -> String {
         .filter(|p| p.from_rule.is_none())
         .map(probe_to_value)
         .collect();
-    let mut value =
-        json!({ "plumbline": "probes", "version": 1, "level": set.level, "probes": probes });
+    let mut value = json!({});
+    if let Some(schema) = &set.schema {
+        value["$schema"] = json!(schema);
+    }
+    value["plumbline"] = json!("probes");
+    value["version"] = json!(1);
+    value["level"] = json!(set.level);
+    value["probes"] = Value::Array(probes);
     if !set.rules.is_empty() {
         let rules: Vec<Value> = set.rules.iter().map(|r| r.written.clone()).collect();
         value["rules"] = Value::Array(rules);

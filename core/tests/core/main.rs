@@ -17,6 +17,7 @@ mod probe_robustness;
 mod query_properties;
 mod query_references;
 mod reference_library;
+mod schemas;
 mod settle;
 mod turning;
 mod volumes;
