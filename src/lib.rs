@@ -2,4 +2,5 @@
 //! core in `plumbline_core`. The `plumbline` command line lives in the binary beside this library.
 
 pub mod app;
+pub mod pictures;
 pub mod view;

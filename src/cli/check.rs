@@ -12,9 +12,10 @@ use plumbline_core::check::{
 };
 use plumbline_core::error::Error;
 use plumbline_core::input::{PathPolicy, check_outputs};
-use plumbline_core::report::{JunitWriter, MarkdownWriter};
+use plumbline_core::report::{HtmlWriter, JunitWriter, MarkdownWriter};
 use plumbline_core::session::{OpenOptions, open};
 
+use super::pictures::{Pictures, relative_link};
 use super::terminal::{Lines, Progress, Style, Tone, column_width, write_stdout};
 use super::timings::Timings;
 use super::{EXIT_FAILED, print_comparison};
@@ -39,6 +40,16 @@ pub struct CheckOptions {
     /// Write a Markdown summary here.
     #[arg(long)]
     pub markdown: Option<PathBuf>,
+    /// Write a self-contained HTML report here (with pictures, when --pictures draws them).
+    #[arg(long)]
+    pub html: Option<PathBuf>,
+    /// Draw a picture of each failing, erring or changed probe into this folder (PNG); the
+    /// Markdown, HTML and JUnit reports show them.
+    #[arg(long, value_name = "DIR")]
+    pub pictures: Option<PathBuf>,
+    /// With --pictures, draw every probe, not only failing, erring and changed ones.
+    #[arg(long, requires = "pictures")]
+    pub pictures_all: bool,
     /// Metres a distance must move to count as a change.
     #[arg(long, default_value_t = DEFAULT_TOLERANCE, value_parser = super::parse_tolerance)]
     pub tolerance: f64,
@@ -70,6 +81,7 @@ impl CheckOptions {
             ("results file (--out)", &self.out),
             ("JUnit report (--junit)", &self.junit),
             ("Markdown summary (--markdown)", &self.markdown),
+            ("HTML report (--html)", &self.html),
         ]
         .into_iter()
         .filter_map(|(what, path)| path.as_deref().map(|p| (what, p)))
@@ -121,6 +133,7 @@ struct Writers {
     results: Option<ResultsWriter>,
     junit: Option<JunitWriter>,
     markdown: Option<MarkdownWriter>,
+    html: Option<HtmlWriter>,
 }
 
 impl Writers {
@@ -145,6 +158,11 @@ impl Writers {
                 .as_deref()
                 .map(|p| MarkdownWriter::create(p).map_err(failed(p)))
                 .transpose()?,
+            html: options
+                .html
+                .as_deref()
+                .map(|p| HtmlWriter::create(p).map_err(failed(p)))
+                .transpose()?,
         })
     }
 }
@@ -165,6 +183,7 @@ pub fn run_once(
             paths: PathPolicy {
                 anywhere: options.allow_outside_paths,
             },
+            keep_level: options.pictures.is_some(),
             ..OpenOptions::default()
         },
     )?;
@@ -192,6 +211,19 @@ pub fn run_once(
     }
     write_stdout(&header);
     let mut writers = Writers::create(options, total)?;
+    let mut pictures = match (&options.pictures, &level.model) {
+        (Some(dir), Some(model)) => {
+            Some(Pictures::new(dir, model, options.pictures_all, baseline)?)
+        }
+        _ => None,
+    };
+    let markdown_dir = options
+        .markdown
+        .as_deref()
+        .and_then(Path::parent)
+        .map(Path::to_path_buf)
+        .unwrap_or_default();
+    let mut changed_count = 0;
     let mut comparer = baseline.map(|b| Comparer::new(b, &level.digest, options.tolerance));
     let mut changed_labels: HashMap<String, Option<String>> = HashMap::new();
     let mut kept = Vec::new();
@@ -210,11 +242,15 @@ pub fn run_once(
             if !(brief && matches!(result.verdict, Verdict::Pass | Verdict::Unchecked)) {
                 lines.push(&result_line(&result, width, style));
             }
-            if let Some(c) = &mut comparer
-                && c.observe(&result)
-            {
+            let changed = comparer.as_mut().is_some_and(|c| c.observe(&result));
+            if changed {
+                changed_count += 1;
                 changed_labels.insert(result.id.clone(), probe.label.clone());
             }
+            let drawn = match &mut pictures {
+                Some(p) => p.draw(probe, &result, changed)?,
+                None => Vec::new(),
+            };
             let write = |path: &Option<PathBuf>, e| Error::Write {
                 path: path.clone().unwrap_or_default(),
                 source: e,
@@ -223,11 +259,28 @@ pub fn run_once(
                 w.push(&result).map_err(|e| write(&options.out, e))?;
             }
             if let Some(w) = &mut writers.junit {
-                w.push(&result).map_err(|e| write(&options.junit, e))?;
+                let paths: Vec<String> =
+                    drawn.iter().map(|d| d.path.display().to_string()).collect();
+                w.push(&result, &paths)
+                    .map_err(|e| write(&options.junit, e))?;
             }
             if let Some(w) = &mut writers.markdown {
                 w.push(probe.label.as_deref(), &result)
                     .map_err(|e| write(&options.markdown, e))?;
+                if !drawn.is_empty() {
+                    let links: Vec<(String, String)> = drawn
+                        .iter()
+                        .map(|d| (d.caption.clone(), relative_link(&markdown_dir, &d.path)))
+                        .collect();
+                    w.picture(&result.id, &links)
+                        .map_err(|e| write(&options.markdown, e))?;
+                }
+            }
+            if let Some(w) = &mut writers.html {
+                let shown: Vec<(String, Vec<u8>)> =
+                    drawn.into_iter().map(|d| (d.caption, d.png)).collect();
+                w.push(probe.label.as_deref(), &result, changed, &shown)
+                    .map_err(|e| write(&options.html, e))?;
             }
             if keep_results {
                 kept.push(result);
@@ -268,6 +321,10 @@ pub fn run_once(
     if let Some(w) = writers.junit {
         w.finish(&suite_name(&options.probes), &summary)
             .map_err(written(&options.junit))?;
+    }
+    if let Some(w) = writers.html {
+        w.finish(&summary, &head.level, changed_count)
+            .map_err(written(&options.html))?;
     }
     if let Some(w) = writers.markdown {
         let labels = |id: &str| changed_labels.get(id).cloned().flatten();

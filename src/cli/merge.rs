@@ -67,7 +67,7 @@ fn run(options: &MergeOptions) -> Result<ExitCode, Error> {
         .transpose()?;
     let mut report = |result| {
         if let (Some(w), Some(p)) = (&mut junit, &options.junit) {
-            w.push(&result).map_err(failed(p))?;
+            w.push(&result, &[]).map_err(failed(p))?;
         }
         if let (Some(w), Some(p)) = (&mut markdown, &options.markdown) {
             w.push(None, &result).map_err(failed(p))?;

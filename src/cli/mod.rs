@@ -5,6 +5,7 @@ mod diff;
 mod info;
 mod lint;
 mod merge;
+mod pictures;
 mod schema;
 mod terminal;
 mod timings;

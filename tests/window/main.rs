@@ -4,6 +4,7 @@
 mod authoring;
 mod level_checks;
 mod panels;
+mod pictures;
 mod real_input;
 mod render;
 mod screenshot;

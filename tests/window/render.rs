@@ -10,12 +10,14 @@
 
 use std::sync::Arc;
 
+use plumbline::pictures::Headless;
+
 use glam::{DQuat, DVec2, DVec3};
 use plumbline::view::camera::OrbitCamera;
 use plumbline::view::level_drawing::LevelDrawing;
 use plumbline::view::marks::{MarkSurfaces, Sizing, mark_surfaces};
 use plumbline::view::probe_marks::{Emphasis, probe_marks};
-use plumbline::view::renderer::{BACKGROUND, FrameInput, Renderer};
+use plumbline::view::renderer::{BACKGROUND, FrameInput};
 use plumbline::view::surface::Surface;
 use plumbline_core::check::answer_probe;
 use plumbline_core::level::{Geometry, Level, LevelObject, Primitive};
@@ -25,52 +27,9 @@ use plumbline_core::query::{Filter, World};
 const WIDTH: u32 = 320;
 const HEIGHT: u32 = 240;
 
-/// An OpenGL 3.3 context with no surface, current on this thread for the test's lifetime.
-struct Headless {
-    renderer: Renderer,
-    _context: glutin::api::egl::context::PossiblyCurrentContext,
-}
-
+/// The renderer on an EGL surfaceless context (the one `check --pictures` draws with).
 fn headless() -> Headless {
-    use glutin::api::egl::{device::Device, display::Display};
-    use glutin::config::{ConfigSurfaceTypes, ConfigTemplateBuilder};
-    use glutin::context::{ContextApi, ContextAttributesBuilder, Version};
-    use glutin::prelude::*;
-
-    let device = Device::query_devices()
-        .expect("EGL is available (Debian: libegl1 and libgl1-mesa-dri)")
-        .next()
-        .expect("an EGL device (Mesa offers a software one)");
-    // SAFETY: no native display is passed; the device comes from EGL itself.
-    let display = unsafe { Display::with_device(&device, None) }.expect("an EGL display");
-    // SAFETY: the template asks for no surface at all.
-    let template = ConfigTemplateBuilder::new()
-        .with_surface_type(ConfigSurfaceTypes::empty())
-        .build();
-    let config = unsafe { display.find_configs(template) }
-        .expect("EGL configs")
-        .next()
-        .expect("one EGL config");
-    let attributes = ContextAttributesBuilder::new()
-        .with_context_api(ContextApi::OpenGl(Some(Version::new(3, 3))))
-        .build(None);
-    // SAFETY: the config belongs to this display.
-    let context = unsafe { display.create_context(&config, &attributes) }
-        .expect("an OpenGL 3.3 context")
-        .make_current_surfaceless()
-        .expect("a surfaceless current context");
-    // SAFETY: the context is current on this thread and outlives every call made through `gl`.
-    let gl = unsafe {
-        three_d::context::Context::from_loader_function_cstr(|name| {
-            display.get_proc_address(name).cast()
-        })
-    };
-    let context3d =
-        three_d::Context::from_gl_context(Arc::new(gl)).expect("three-d on the context");
-    Headless {
-        renderer: Renderer::new(context3d),
-        _context: context,
-    }
+    Headless::new().expect("EGL is available (Debian: libegl1 and libgl1-mesa-dri)")
 }
 
 fn unit_box_level() -> Level {

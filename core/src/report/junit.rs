@@ -25,28 +25,42 @@ impl JunitWriter {
         })
     }
 
-    /// Adds the test case of the next result.
-    pub fn push(&mut self, r: &ProbeResult) -> io::Result<()> {
+    /// Adds the test case of the next result, with the paths of its pictures as attachments (the
+    /// `[[ATTACHMENT|path]]` lines in `system-out` that common CI systems show beside the case).
+    pub fn push(&mut self, r: &ProbeResult, attachments: &[String]) -> io::Result<()> {
         let open = format!(
             "    <testcase name=\"{}\" classname=\"plumbline.{}\"",
             escape(&r.id),
             escape(r.kind.name())
         );
-        let case = match r.verdict {
-            Verdict::Pass => format!("{open}/>\n"),
+        let attached: String = attachments
+            .iter()
+            .map(|path| format!("[[ATTACHMENT|{}]]\n", escape(path)))
+            .collect();
+        let out = if attached.is_empty() {
+            String::new()
+        } else {
+            format!("      <system-out>{attached}</system-out>\n")
+        };
+        let inner = match r.verdict {
+            Verdict::Pass if out.is_empty() => {
+                return self.cases.write_all(format!("{open}/>\n").as_bytes());
+            }
+            Verdict::Pass => String::new(),
             Verdict::Fail => format!(
-                "{open}>\n      <failure message=\"{0}\" type=\"expectation\">{0}</failure>\n    </testcase>\n",
+                "      <failure message=\"{0}\" type=\"expectation\">{0}</failure>\n",
                 escape(&r.reason)
             ),
             Verdict::Error => format!(
-                "{open}>\n      <error message=\"{0}\" type=\"unanswerable\">{0}</error>\n    </testcase>\n",
+                "      <error message=\"{0}\" type=\"unanswerable\">{0}</error>\n",
                 escape(&r.reason)
             ),
             Verdict::Unchecked => format!(
-                "{open}>\n      <skipped message=\"no expectation: {}\"/>\n    </testcase>\n",
+                "      <skipped message=\"no expectation: {}\"/>\n",
                 escape(&r.reason)
             ),
         };
+        let case = format!("{open}>\n{inner}{out}    </testcase>\n");
         self.cases.write_all(case.as_bytes())
     }
 

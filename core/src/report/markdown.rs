@@ -15,6 +15,8 @@ pub struct MarkdownWriter {
     any_failing: bool,
     matrices: Spill,
     any_matrix: bool,
+    pictures: Spill,
+    any_picture: bool,
 }
 
 /// Sightline matrices of at most this many spots are drawn as tables; larger ones list their
@@ -30,6 +32,8 @@ impl MarkdownWriter {
             any_failing: false,
             matrices: Spill::beside(path, "matrices")?,
             any_matrix: false,
+            pictures: Spill::beside(path, "pictures")?,
+            any_picture: false,
         })
     }
 
@@ -52,6 +56,22 @@ impl MarkdownWriter {
             r.kind,
             r.verdict.word(),
             cell(&r.reason)
+        )
+    }
+
+    /// Adds a probe's pictures (`link`s relative to the summary's folder, each with its alt text),
+    /// shown in a section of their own after the tables.
+    pub fn picture(&mut self, id: &str, pictures: &[(String, String)]) -> io::Result<()> {
+        self.any_picture = true;
+        let images: Vec<String> = pictures
+            .iter()
+            .map(|(alt, link)| format!("![{}]({})", alt.replace(['[', ']'], ""), link))
+            .collect();
+        writeln!(
+            self.pictures,
+            "**`{}`**\n\n{}\n",
+            cell(id),
+            images.join(" ")
         )
     }
 
@@ -82,6 +102,10 @@ impl MarkdownWriter {
         }
         if self.any_matrix {
             self.matrices.copy_into(&mut file)?;
+        }
+        if self.any_picture {
+            file.write_all(b"\n#### Pictures\n\n")?;
+            self.pictures.copy_into(&mut file)?;
         }
         file.commit()
     }

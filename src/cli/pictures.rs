@@ -1,0 +1,127 @@
+//! `check --pictures DIR`: a picture of each failing, erring or changed probe (or of every probe),
+//! with a before picture beside it for a probe that changed since the baseline, for the reports.
+
+use std::collections::HashMap;
+use std::path::{Component, Path, PathBuf};
+
+use plumbline::pictures::PictureMaker;
+use plumbline_core::check::{ProbeResult, ResultsFile, Verdict};
+use plumbline_core::error::Error;
+use plumbline_core::level::Level;
+use plumbline_core::probe::Probe;
+
+/// One picture drawn and written.
+pub struct Drawn {
+    /// What it shows, in words.
+    pub caption: String,
+    /// Where it was written.
+    pub path: PathBuf,
+    /// Its PNG bytes.
+    pub png: Vec<u8>,
+}
+
+/// Draws and writes the pictures of a run.
+pub struct Pictures<'a> {
+    dir: PathBuf,
+    maker: PictureMaker,
+    every_probe: bool,
+    before: HashMap<&'a str, &'a ProbeResult>,
+}
+
+impl<'a> Pictures<'a> {
+    /// Pictures into `dir` (made if missing) of probes on `level`; `baseline` gives the before
+    /// pictures of changed probes.
+    pub fn new(
+        dir: &Path,
+        level: &Level,
+        every_probe: bool,
+        baseline: Option<&'a ResultsFile>,
+    ) -> Result<Pictures<'a>, Error> {
+        let failed = |source| Error::Write {
+            path: dir.to_path_buf(),
+            source,
+        };
+        std::fs::create_dir_all(dir).map_err(failed)?;
+        let maker = PictureMaker::new(level).map_err(|m| failed(std::io::Error::other(m)))?;
+        let before = baseline
+            .iter()
+            .flat_map(|b| &b.results)
+            .map(|r| (r.id.as_str(), r))
+            .collect();
+        Ok(Pictures {
+            dir: dir.to_path_buf(),
+            maker,
+            every_probe,
+            before,
+        })
+    }
+
+    /// Draws the pictures `probe` gets (none when it passes unchanged and not every probe is
+    /// drawn): the answer now, and for a changed probe the baseline's answer first.
+    pub fn draw(
+        &mut self,
+        probe: &Probe,
+        result: &ProbeResult,
+        changed: bool,
+    ) -> Result<Vec<Drawn>, Error> {
+        let wanted =
+            self.every_probe || changed || matches!(result.verdict, Verdict::Fail | Verdict::Error);
+        if !wanted {
+            return Ok(Vec::new());
+        }
+        let stem = result.id.replace('/', "~");
+        let mut shots = Vec::new();
+        if changed && let Some(before) = self.before.get(result.id.as_str()) {
+            shots.push((
+                format!("{} — before", result.id),
+                before,
+                format!("{stem}.before.png"),
+            ));
+        }
+        let now = if changed {
+            format!("{} — now", result.id)
+        } else {
+            result.id.clone()
+        };
+        shots.push((now, &result, format!("{stem}.png")));
+        shots
+            .into_iter()
+            .map(|(caption, shown, name)| {
+                let title = format!("{caption}  ({} probe)", result.kind);
+                let path = self.dir.join(name);
+                let failed = |source| Error::Write {
+                    path: path.clone(),
+                    source,
+                };
+                let picture = self
+                    .maker
+                    .picture(probe, shown, &title)
+                    .map_err(|m| failed(std::io::Error::other(m)))?;
+                let png = picture.to_png();
+                plumbline_core::atomic::write_atomic(&path, &png).map_err(failed)?;
+                Ok(Drawn { caption, path, png })
+            })
+            .collect()
+    }
+}
+
+/// A link from a file in the folder `from_dir` to `to`, with forward slashes (for Markdown).
+pub fn relative_link(from_dir: &Path, to: &Path) -> String {
+    let absolute = |p: &Path| {
+        let p = if p.as_os_str().is_empty() {
+            Path::new(".")
+        } else {
+            p
+        };
+        std::path::absolute(p).unwrap_or_else(|_| p.to_path_buf())
+    };
+    let (from, to) = (absolute(from_dir), absolute(to));
+    let from: Vec<Component> = from.components().collect();
+    let to: Vec<Component> = to.components().collect();
+    let common = from.iter().zip(&to).take_while(|(a, b)| a == b).count();
+    let ups = std::iter::repeat_n("..".to_string(), from.len() - common);
+    let downs = to[common..]
+        .iter()
+        .map(|c| c.as_os_str().to_string_lossy().to_string());
+    ups.chain(downs).collect::<Vec<_>>().join("/")
+}
