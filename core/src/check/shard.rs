@@ -52,7 +52,8 @@ impl fmt::Display for Shard {
 /// What a probe is expected to cost to answer, in microseconds on one core of this project's
 /// benchmark machine: rough figures from `check --timings` on the demo and the 1M-triangle level,
 /// good to a factor of a few, which is all balancing needs. The order of kinds matters more than the
-/// figures: a ray costs microseconds, a sweep tens, a walk milliseconds, a reach map seconds.
+/// figures: a ray costs microseconds, a sweep tens, a walk hundreds, a reach map tenths of a second
+/// and more.
 pub fn expected_cost(probe: &Probe, world: &World) -> u64 {
     let up = world.up();
     let cost = match &probe.query {
@@ -71,7 +72,7 @@ pub fn expected_cost(probe: &Probe, world: &World) -> u64 {
             let segments = path.len().saturating_sub(1) as f64;
             let clearance = if *clearance == Some(true) { 2.0 } else { 1.0 };
             let turning = if turns.is_some() { 4.0 } else { 1.0 };
-            50.0 * segments * clearance * turning
+            15.0 * segments * clearance * turning
         }
         ProbeQuery::Sightlines { spots } => {
             let n = spot_count(world, spots);
@@ -84,10 +85,10 @@ pub fn expected_cost(probe: &Probe, world: &World) -> u64 {
             ..
         } => 2.0 * spot_count(world, spots) * cells(region, *spacing, up),
         ProbeQuery::Jump { .. } => 500.0,
-        ProbeQuery::Walk { path, .. } => 2000.0 * path.len().saturating_sub(1) as f64,
+        ProbeQuery::Walk { path, .. } => 200.0 * path.len().saturating_sub(1) as f64,
         ProbeQuery::Reach {
             region, spacing, ..
-        } => 400.0 * cells(region, *spacing, up),
+        } => 40.0 * cells(region, *spacing, up),
         ProbeQuery::Settle { max_time, .. } => {
             // About 200 µs a physics step at 60 steps a second, for the longest it may run.
             200.0 * 60.0 * max_time.unwrap_or(crate::probe::SETTLE_TIME)

@@ -19,6 +19,7 @@ mod progress;
 mod ray;
 mod reach;
 mod rest;
+mod rounded;
 mod settle;
 mod shapes;
 mod sightlines;

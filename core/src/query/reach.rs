@@ -86,14 +86,16 @@ fn horizontal_axis(up: DVec3) -> DVec3 {
 
 impl View<'_> {
     /// True when a character whose lowest point is at `foot` stands on the surface at `ground`:
-    /// nothing lies between them (a floor under a ramp has the ramp in between).
+    /// nothing lies between them (a floor under a ramp has the ramp in between). The test runs a
+    /// hair past the foot at both ends, so a surface the foot rests on exactly (a plate laid on the
+    /// floor) counts as between, whichever side of it rounding puts the foot.
     fn stands_on(&self, ground: DVec3, foot: DVec3) -> Result<bool, QueryError> {
         let up = self.world.up();
         let start = ground + up * 1e-4;
         if (foot - start).dot(up) <= 1e-6 {
             return Ok(true);
         }
-        Ok(self.ray_first(start, foot)?.is_none())
+        Ok(self.ray_first(start, foot + up * 1e-4)?.is_none())
     }
 
     /// The walkable ground of the box `min`–`max` on a grid of `spacing`, and which of it the

@@ -147,6 +147,20 @@ impl ProbeShape {
         self.shape.as_ball().map(|b| b.radius)
     }
 
+    /// A ball or capsule as its axis (`start → end` relative to the centre, equal for a ball) and
+    /// radius: the shapes whose sweeps have a closed-form time of impact. `None` for others.
+    pub fn rounded(&self) -> Option<(DVec3, DVec3, f64)> {
+        if let Some(ball) = self.shape.as_ball() {
+            return Some((DVec3::ZERO, DVec3::ZERO, ball.radius));
+        }
+        let capsule = self.shape.as_capsule()?;
+        Some((
+            self.rotation * capsule.segment.a,
+            self.rotation * capsule.segment.b,
+            capsule.radius,
+        ))
+    }
+
     /// The pose of the shape with its centre at `at`.
     pub fn pose_at(&self, at: DVec3) -> Pose {
         Pose::from_parts(at, self.rotation)

@@ -9,9 +9,10 @@ use parry3d_f64::query::{
     ClosestPoints, ShapeCastOptions, ShapeCastStatus, cast_shapes, closest_points, contact,
 };
 use parry3d_f64::query::{PointQuery, Ray, RayCast};
-use parry3d_f64::shape::{FeatureId, Segment, Shape, Triangle};
+use parry3d_f64::shape::{FeatureId, Segment, Shape, TriMesh, Triangle};
 
 use super::body::Body;
+use super::rounded;
 use super::shapes::ProbeShape;
 use super::world::{MaterialId, ObjectId, View};
 use super::{PathGeometry, QueryError};
@@ -247,6 +248,9 @@ fn time_of_impact(
     if segment == 0 && body.encloses(a) {
         return Some((0.0, u32::MAX, true));
     }
+    if let (Some(mesh), Some(axis)) = (body.mesh(), shape.rounded()) {
+        return rounded_time_of_impact(mesh, &body.pose, shape, axis, segment, a, dir, limit);
+    }
     let options = ShapeCastOptions {
         max_time_of_impact: limit,
         target_distance: 0.0,
@@ -267,6 +271,62 @@ fn time_of_impact(
     let started_inside =
         segment == 0 && cast.status == ShapeCastStatus::PenetratingOrWithinTargetDist;
     Some((cast.time_of_impact, cast.subshape1, started_inside))
+}
+
+/// [`time_of_impact`] of a ball or capsule (`axis`: its ends relative to the centre, and its radius)
+/// against a mesh, in closed form per triangle ([`super::rounded`]): the mesh's BVH is searched
+/// best-first, each node's box grown by the shape's box and cast along the path, so triangles the
+/// shape reaches later than the best impact so far are never looked at. A triangle the shape
+/// already touches at `a` is an impact at 0.
+#[allow(clippy::too_many_arguments)]
+fn rounded_time_of_impact(
+    mesh: &TriMesh,
+    pose: &Pose,
+    shape: &ProbeShape,
+    (start, end, radius): (DVec3, DVec3, f64),
+    segment: usize,
+    a: DVec3,
+    dir: DVec3,
+    limit: f64,
+) -> Option<(f64, u32, bool)> {
+    // In the mesh's own frame (meshes are built in level coordinates, so this is usually the same).
+    let local_a = pose.inverse_transform_point(a);
+    let local_dir = pose.rotation.inverse() * dir;
+    let (s0, s1) = (
+        local_a + pose.rotation.inverse() * start,
+        local_a + pose.rotation.inverse() * end,
+    );
+    let reach = shape.shape.compute_aabb(&Pose::from_parts(
+        DVec3::ZERO,
+        pose.rotation.inverse() * shape.rotation,
+    ));
+    let ray = Ray::new(local_a, local_dir);
+    let ball = s0 == s1;
+    let (triangle, toi) = mesh.bvh().find_best(
+        limit,
+        |node, best| {
+            let boxed = node.aabb();
+            Aabb::new(boxed.mins - reach.maxs, boxed.maxs - reach.mins)
+                .loosened(1e-7)
+                .cast_local_ray(&ray, best, true)
+                .unwrap_or(f64::MAX)
+        },
+        |tri, best| {
+            let triangle = mesh.triangle(tri);
+            if ball {
+                if rounded::ball_touches(&triangle, s0, radius) {
+                    return Some(0.0);
+                }
+                rounded::ball_entry(&triangle, s0, local_dir, radius, best)
+            } else {
+                if rounded::capsule_touches(&triangle, s0, s1, radius) {
+                    return Some(0.0);
+                }
+                rounded::capsule_entry(&triangle, s0, s1, local_dir, radius, best)
+            }
+        },
+    )?;
+    Some((toi, triangle, segment == 0 && toi == 0.0))
 }
 
 /// A time of impact found along the path, before its contact geometry is measured.

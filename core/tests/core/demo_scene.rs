@@ -103,7 +103,7 @@ fn the_probe_set_gives_the_reviewed_baseline() {
             ),
             (
                 "pickups-reachable",
-                "Expected clear; reaches 6255 of 7221 walkable cells (6255 m² of 7221 m²); 7 of 8 \
+                "Expected clear; reaches 6251 of 7215 walkable cells (6251 m² of 7215 m²); 7 of 8 \
                  targets; pickup-on-containers is 8.434 m from the nearest reached ground"
             ),
             (
