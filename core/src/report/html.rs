@@ -1,4 +1,5 @@
-//! A self-contained HTML report: the counts, a table of probes that filters by verdict, each row
+//! A self-contained HTML report: the counts, a table of probes that filters by verdict (failing,
+//! erring and changed probes shown at first, passing ones a tick away), each row
 //! with its pictures as thumbnails that open large on a click. Pictures are embedded in the file,
 //! so it can be passed around alone. Stable: the same run gives the same bytes.
 
@@ -55,7 +56,8 @@ impl HtmlWriter {
             .iter()
             .map(|(caption, png)| {
                 format!(
-                    "<img class=\"thumb\" alt=\"{0}\" title=\"{0}\" src=\"data:image/png;base64,{1}\">",
+                    "<figure><img class=\"thumb\" alt=\"{0}\" title=\"{0}\" \
+                     src=\"data:image/png;base64,{1}\"><figcaption>{0}</figcaption></figure>",
                     escape(caption),
                     base64(png)
                 )
@@ -67,7 +69,7 @@ impl HtmlWriter {
         writeln!(
             self.rows,
             "<tr class=\"{verdict}{changed}\"><td><code>{id}</code>{label}</td><td>{kind}</td>\
-             <td class=\"verdict\">{verdict}{mark}</td><td>{reason}</td><td>{images}</td></tr>",
+             <td class=\"verdict\">{verdict}{mark}</td><td>{reason}</td><td class=\"pictures\">{images}</td></tr>",
             changed = if changed { " changed" } else { "" },
             id = escape(&r.id),
             kind = r.kind,
@@ -94,8 +96,8 @@ impl HtmlWriter {
              <p class=\"filter\">Show: <label><input type=\"checkbox\" value=\"fail\" checked> fail</label>\
              <label><input type=\"checkbox\" value=\"error\" checked> error</label>\
              <label><input type=\"checkbox\" value=\"changed\" checked> changed</label>\
-             <label><input type=\"checkbox\" value=\"pass\" checked> pass</label>\
-             <label><input type=\"checkbox\" value=\"unchecked\" checked> unchecked</label></p>\n\
+             <label><input type=\"checkbox\" value=\"pass\"> pass</label>\
+             <label><input type=\"checkbox\" value=\"unchecked\"> unchecked</label></p>\n\
              <table><thead><tr><th>Probe</th><th>Kind</th><th>Verdict</th><th>Reason</th>\
              <th>Pictures</th></tr></thead><tbody>\n",
             pass = s.pass,
@@ -127,7 +129,8 @@ table{border-collapse:collapse;width:100%}th,td{border-bottom:1px solid #d5d9de;
 text-align:left;vertical-align:top}th{background:#eef1f4}.label{color:#5a626c;font-size:12px}\
 tr.fail .verdict{color:#b34700;font-weight:600}tr.error .verdict{color:#8f3b76;font-weight:600}\
 tr.pass .verdict{color:#00785a}.delta{color:#7a6a00;font-weight:400}\
-.thumb{width:192px;margin:0 6px 6px 0;cursor:zoom-in;border:1px solid #c5cad0}\
+td.pictures{white-space:nowrap}figure{display:inline-block;margin:0 8px 4px 0}\
+figcaption{font-size:11px;color:#5a626c}.thumb{width:192px;cursor:zoom-in;border:1px solid #c5cad0}\
 .filter label{margin-right:1em}#large{position:fixed;inset:0;background:rgba(10,12,16,.88);\
 display:flex;flex-direction:column;align-items:center;justify-content:center;cursor:zoom-out}\
 #large[hidden]{display:none}#large img{max-width:96vw;max-height:88vh}#large p{color:#e1e4e8}";
@@ -135,7 +138,7 @@ display:flex;flex-direction:column;align-items:center;justify-content:center;cur
 const SCRIPT: &str = "const boxes=[...document.querySelectorAll('.filter input')];\
 function shown(row){return boxes.some(b=>b.checked&&row.classList.contains(b.value));}\
 function filter(){for(const row of document.querySelectorAll('tbody tr')){row.hidden=!shown(row);}}\
-boxes.forEach(b=>b.addEventListener('change',filter));\
+boxes.forEach(b=>b.addEventListener('change',filter));filter();\
 const large=document.getElementById('large');\
 for(const t of document.querySelectorAll('.thumb')){t.addEventListener('click',()=>{\
 large.querySelector('img').src=t.src;large.querySelector('p').textContent=t.title;large.hidden=false;});}\
