@@ -367,6 +367,11 @@ impl Document {
         Summary::of(&self.results)
     }
 
+    /// The files the level was read from.
+    pub fn level_files(&self) -> Vec<PathBuf> {
+        self.stamps.iter().map(|(p, _)| p.clone()).collect()
+    }
+
     /// True when the level file, or a geometry file beside it, changed on disk since it was loaded
     /// (so the answers on screen may no longer hold).
     pub fn level_changed_on_disk(&self) -> bool {

@@ -100,15 +100,21 @@ impl Workbench {
         self.recent.truncate(RECENT);
     }
 
-    /// Writes the recovery file when there are unsaved changes not yet written there.
-    pub fn autosave(&mut self) {
-        let due = self.last_autosave.elapsed() >= AUTOSAVE_EVERY;
-        if due && self.document.is_dirty() && self.autosaved != Some(self.document.edit_count()) {
-            self.last_autosave = Instant::now();
-            match self.document.write_recovery() {
-                Ok(()) => self.autosaved = Some(self.document.edit_count()),
-                Err(e) => self.say(format!("Cannot keep a recovery copy: {e}")),
-            }
+    /// Writes the recovery file when there are unsaved changes not yet written there; until then,
+    /// asks `ctx` for a frame when it is due (an idle window paints nothing otherwise).
+    pub fn autosave(&mut self, ctx: &egui::Context) {
+        if !self.document.is_dirty() || self.autosaved == Some(self.document.edit_count()) {
+            return;
+        }
+        let since = self.last_autosave.elapsed();
+        if since < AUTOSAVE_EVERY {
+            ctx.request_repaint_after(AUTOSAVE_EVERY - since);
+            return;
+        }
+        self.last_autosave = Instant::now();
+        match self.document.write_recovery() {
+            Ok(()) => self.autosaved = Some(self.document.edit_count()),
+            Err(e) => self.say(format!("Cannot keep a recovery copy: {e}")),
         }
     }
 

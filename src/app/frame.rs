@@ -59,7 +59,7 @@ impl Workbench {
         }
         self.check_disk(&ctx);
         self.shortcuts(&ctx);
-        self.autosave();
+        self.autosave(&ctx);
         self.plots.poll();
         self.poll_answers(&ctx);
         let shown = self.shown();

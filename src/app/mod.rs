@@ -13,6 +13,7 @@ pub mod badge;
 pub mod capture;
 pub mod commands;
 pub mod dialogs;
+pub mod disk_watch;
 pub mod document;
 pub mod editing;
 pub mod editor;
@@ -85,7 +86,7 @@ pub struct Workbench {
     answers: answering::BackgroundAnswers,
     results_revision: u64,
     scroll_list: bool,
-    last_disk_check: Instant,
+    disk: disk_watch::DiskWatch,
     /// What changed for each probe (by id) when the level was last reloaded, until dismissed.
     pub changes: HashMap<String, Vec<Aspect>>,
     reload_error: Option<Error>,
@@ -128,7 +129,7 @@ impl Workbench {
             answers: answering::BackgroundAnswers::default(),
             results_revision: 1,
             scroll_list: false,
-            last_disk_check: Instant::now(),
+            disk: disk_watch::DiskWatch::default(),
             changes: HashMap::new(),
             reload_error: None,
             reload: Background::default(),

@@ -1,17 +1,12 @@
-//! The level changing on disk: every [`DISK_CHECK`] the files the level was read from are looked at;
-//! when one changed, the level is loaded and every probe answered again on a background thread, and
-//! what changed is kept to show until dismissed.
-
-use std::time::{Duration, Instant};
+//! The level changing on disk: when a file the level was read from is touched (see
+//! [`super::disk_watch`]), its stamp is compared; when it changed, the level is loaded and every
+//! probe answered again on a background thread, and what changed is kept to show until dismissed.
 
 use eframe::egui;
 
 use super::Workbench;
 use super::document::Reloaded;
 use plumbline_core::check::Aspect;
-
-/// How often the level's files on disk are looked at.
-pub const DISK_CHECK: Duration = Duration::from_secs(2);
 
 impl Workbench {
     /// Reloads the level when its files change on disk, answers every probe again and keeps what
@@ -25,21 +20,18 @@ impl Workbench {
                 }
                 Err(e) => self.reload_error = Some(e),
             }
-        } else if !self.reload.is_running() && self.last_disk_check.elapsed() >= DISK_CHECK {
-            self.last_disk_check = Instant::now();
-            if self.document.level_changed_on_disk() {
-                // Loading a big level takes seconds: in the background, saying so meanwhile.
-                self.say(
-                    "The level changed on disk: reloading it and answering every probe…".into(),
-                );
-                let path = self.document.level_path.clone();
-                let set = self.document.probes.clone();
-                let paths = self.document.paths;
-                self.reload
-                    .start(ctx, move || Reloaded::load(path, &set, paths));
-            }
+        } else if !self.reload.is_running()
+            && self.disk.due(ctx, &self.document.level_files())
+            && self.document.level_changed_on_disk()
+        {
+            // Loading a big level takes seconds: in the background, saying so meanwhile.
+            self.say("The level changed on disk: reloading it and answering every probe…".into());
+            let path = self.document.level_path.clone();
+            let set = self.document.probes.clone();
+            let paths = self.document.paths;
+            self.reload
+                .start(ctx, move || Reloaded::load(path, &set, paths));
         }
-        ctx.request_repaint_after(DISK_CHECK);
     }
 
     pub(super) fn after_reload(&mut self, changed: Vec<(usize, Vec<Aspect>)>) {

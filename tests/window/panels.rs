@@ -204,3 +204,15 @@ fn picking_a_probe_frames_it_in_the_view_and_clicking_it_in_the_view_finds_it_in
     assert_eq!(harness.state().selection.probe, Some(target));
     harness.get_by_label_contains("FAIL  spawn-by-drums");
 }
+
+#[test]
+fn an_idle_window_asks_for_no_frames() {
+    // The level's files are watched, not looked at on a timer: once the demo is answered and
+    // drawn, nothing asks for another frame until something happens.
+    let mut harness = harness();
+    harness
+        .try_run()
+        .expect("the window settles within the harness's step limit");
+    harness.step();
+    assert!(!harness.ctx.has_requested_repaint());
+}
