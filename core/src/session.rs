@@ -336,14 +336,14 @@ impl Opened {
             let range = start..(start + CHUNK).min(total);
             start = range.end;
             let chunk = match only {
-                None => self.probes.chunk(range)?,
+                None => runner.install(|| self.probes.chunk(range))?,
                 Some(positions) => {
                     let wanted = &positions[positions.partition_point(|&p| p < range.start)
                         ..positions.partition_point(|&p| p < range.end)];
                     if wanted.is_empty() {
                         continue;
                     }
-                    let all = self.probes.chunk(range.clone())?;
+                    let all = runner.install(|| self.probes.chunk(range.clone()))?;
                     Cow::Owned(
                         wanted
                             .iter()

@@ -8,7 +8,7 @@ use std::process::ExitCode;
 
 use plumbline_core::check::{
     Comparer, Comparison, DEFAULT_TOLERANCE, PartHead, ProbeResult, ResultsFile, ResultsHead,
-    ResultsWriter, Shard, Summary, Verdict, load_results,
+    ResultsWriter, Runner, Shard, Summary, Verdict, load_results,
 };
 use plumbline_core::error::Error;
 use plumbline_core::input::{PathPolicy, check_outputs};
@@ -176,24 +176,30 @@ pub fn run_once(
     keep_results: bool,
     style: Style,
 ) -> Result<Outcome, Error> {
-    let opened = open(
-        &options.probes,
-        &OpenOptions {
-            level: options.level.clone(),
-            paths: PathPolicy {
-                anywhere: options.allow_outside_paths,
+    // Reading and checking the probe set runs on the threads the answers will use (--jobs).
+    let threads = Runner::new(options.jobs.map(|j| j as usize))?;
+    let opened = threads.install(|| {
+        open(
+            &options.probes,
+            &OpenOptions {
+                level: options.level.clone(),
+                paths: PathPolicy {
+                    anywhere: options.allow_outside_paths,
+                },
+                keep_level: options.pictures.is_some(),
+                ..OpenOptions::default()
             },
-            keep_level: options.pictures.is_some(),
-            ..OpenOptions::default()
-        },
-    )?;
+        )
+    })?;
     let mut inputs = opened.inputs();
     inputs.extend(options.baseline.clone());
     check_outputs(&inputs, &options.outputs())?;
-    let positions = options
-        .shard
-        .map(|shard| opened.shard_positions(shard))
-        .transpose()?;
+    let positions = threads.install(|| {
+        options
+            .shard
+            .map(|shard| opened.shard_positions(shard))
+            .transpose()
+    })?;
     let total = positions.as_ref().map_or(opened.probes.len(), Vec::len);
     let level = &opened.level;
     let share = match options.shard {

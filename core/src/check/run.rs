@@ -28,6 +28,11 @@ impl Runner {
         })
     }
 
+    /// Runs `work` on this pool's threads (so that what it does in parallel uses them alone).
+    pub fn install<R: Send>(&self, work: impl FnOnce() -> R + Send) -> R {
+        self.pool.install(work)
+    }
+
     /// Answers `probes` in parallel; the results are in probe order, each with the time its answer
     /// took (wall clock, on its thread; for `--timings`, never part of a result). `progress` is told
     /// each time a probe is done (with how many are done, counting `done_before`), from any thread.

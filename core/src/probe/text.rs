@@ -16,6 +16,10 @@ use super::rules::{Rule, parse_rule};
 use crate::error::{InputError, check_header};
 use crate::input::{MAX_PROBES, read_input};
 
+/// Probes parsed at a time while checking a file: enough to keep every core busy, few enough that
+/// what a batch holds stays small. Ours.
+const PARSE_BATCH: usize = 8192;
+
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
 struct RawSet<'a> {
@@ -121,21 +125,33 @@ impl ProbeText {
                 ));
             }
         }
-        for k in 0..self.spans.len() {
-            let probe = self.probe(k)?;
-            longest = longest.max(probe.id.chars().count());
-            if !ids.insert(probe.id) {
-                let (start, end) = self.spans[k];
-                let id = self.probe(k)?.id;
-                return Err(InputError::at_fragment(
-                    &self.path,
-                    &self.text,
-                    &self.text[start..end],
-                    format!("probe id \"{id}\" is used twice (by a probe or a rule)"),
-                ));
+        // A batch at a time, parsed on the current thread pool; the first error in file order wins.
+        for batch in (0..self.spans.len())
+            .collect::<Vec<_>>()
+            .chunks(PARSE_BATCH)
+        {
+            for (k, parsed) in batch.iter().zip(self.parse_each(batch)) {
+                let id = parsed?.id;
+                longest = longest.max(id.chars().count());
+                if !ids.insert(id) {
+                    let (start, end) = self.spans[*k];
+                    let id = self.probe(*k)?.id;
+                    return Err(InputError::at_fragment(
+                        &self.path,
+                        &self.text,
+                        &self.text[start..end],
+                        format!("probe id \"{id}\" is used twice (by a probe or a rule)"),
+                    ));
+                }
             }
         }
         Ok(longest)
+    }
+
+    /// The probes at `indices`, each parsed, in parallel on the current thread pool.
+    fn parse_each(&self, indices: &[usize]) -> Vec<Result<Probe, InputError>> {
+        use rayon::prelude::*;
+        indices.par_iter().map(|&k| self.probe(k)).collect()
     }
 
     fn probe(&self, k: usize) -> Result<Probe, InputError> {
@@ -160,7 +176,8 @@ impl ProbeText {
 
     /// The probes in `range` (of file order), parsed.
     pub fn probes(&self, range: Range<usize>) -> Result<Vec<Probe>, InputError> {
-        range.map(|k| self.probe(k)).collect()
+        let indices: Vec<usize> = range.collect();
+        self.parse_each(&indices).into_iter().collect()
     }
 
     /// The whole set, parsed.

@@ -51,3 +51,28 @@ fn numbers_that_need_seventeen_digits_are_read_back_exactly() {
     assert!(written.contains("1.8246433040922059"), "{written}");
     assert_eq!(parse_probe_set(path, &written).unwrap(), set);
 }
+
+#[test]
+fn of_many_bad_probes_the_first_in_the_file_is_named() {
+    // Probes are checked in parallel batches; the error must not depend on which thread finishes
+    // first. Probe 5 and probe 9,000 (in another batch) are both bad; only probe 5 is named.
+    let probes: Vec<String> = (0..10_000)
+        .map(|k| match k {
+            5 => r#"{"id": "bad-5", "kind": "ray", "from": [0, 0, 0]}"#.to_string(),
+            9_000 => r#"{"id": "bad-9000", "kind": "ray", "to": [0, 0, 0]}"#.to_string(),
+            k => format!(r#"{{"id": "p{k}", "kind": "ray", "from": [0, 0, 0], "to": [1, 0, 0]}}"#),
+        })
+        .collect();
+    let text = format!(
+        "{{\"plumbline\": \"probes\", \"version\": 1, \"level\": \"l.level.json\", \"probes\": [\n{}\n]}}",
+        probes.join(",\n")
+    );
+    for _ in 0..5 {
+        let err = parse_probe_set(Path::new("many.probes.json"), &text).unwrap_err();
+        let message = err.to_string();
+        assert!(
+            message.contains("line 7") && message.contains("bad-5"),
+            "{message}"
+        );
+    }
+}
