@@ -24,6 +24,18 @@ fn entry(a: f64, b: f64, c: f64) -> Option<f64> {
     Some(c / (-b + disc.sqrt()))
 }
 
+/// When a signed distance `h` from a plane, changing by `s` per metre travelled, first comes within
+/// `r` of the plane from the side it starts on; `None` when it starts within `r` or moves away.
+fn plane_entry(h: f64, s: f64, r: f64) -> Option<f64> {
+    if h > r && s < 0.0 {
+        Some((h - r) / -s)
+    } else if h < -r && s > 0.0 {
+        Some((-h - r) / s)
+    } else {
+        None
+    }
+}
+
 /// When a point moving from `p` along unit `d` first comes within `r` of the point `v`.
 fn point_ball_entry(p: DVec3, d: DVec3, v: DVec3, r: f64) -> Option<f64> {
     let m = p - v;
@@ -55,19 +67,12 @@ fn point_cylinder_entry(p: DVec3, d: DVec3, e0: DVec3, e1: DVec3, r: f64) -> Opt
 pub fn ball_entry(triangle: &Triangle, p: DVec3, d: DVec3, r: f64, limit: f64) -> Option<f64> {
     let [a, b, c] = [triangle.a, triangle.b, triangle.c];
     let mut best = f64::INFINITY;
-    if let Some(n) = (b - a).cross(c - a).try_normalize() {
-        let (h, s) = (n.dot(p - a), n.dot(d));
-        // Moving towards the face from above (or below) it, to a radius away.
-        let t = if h > r && s < 0.0 {
-            (h - r) / -s
-        } else if h < -r && s > 0.0 {
-            (-h - r) / s
-        } else {
-            f64::INFINITY
-        };
-        if t.is_finite() && inside(triangle, n, p + d * t) {
-            best = t;
-        }
+    // Moving towards the face from above (or below) it, to a radius away.
+    if let Some(n) = (b - a).cross(c - a).try_normalize()
+        && let Some(t) = plane_entry(n.dot(p - a), n.dot(d), r)
+        && inside(triangle, n, p + d * t)
+    {
+        best = t;
     }
     for (e0, e1) in [(a, b), (b, c), (c, a)] {
         if let Some(t) = point_cylinder_entry(p, d, e0, e1, r) {
@@ -122,12 +127,7 @@ pub fn capsule_entry(
         let Some(n) = e.cross(f).try_normalize() else {
             continue;
         };
-        let (h, s) = (n.dot(s0 - e0), n.dot(d));
-        let t = if h > r && s < 0.0 {
-            (h - r) / -s
-        } else if h < -r && s > 0.0 {
-            (-h - r) / s
-        } else {
+        let Some(t) = plane_entry(n.dot(s0 - e0), n.dot(d), r) else {
             continue;
         };
         let (on_axis, on_edge) = closest_points_segment_segment_with_locations_nD(
@@ -192,4 +192,67 @@ pub fn capsule_touches(triangle: &Triangle, s0: DVec3, s1: DVec3, r: f64) -> boo
         }
     }
     false
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn floor_triangle() -> Triangle {
+        Triangle::new(
+            DVec3::new(0.0, 0.0, 0.0),
+            DVec3::new(4.0, 0.0, 0.0),
+            DVec3::new(0.0, 0.0, 4.0),
+        )
+    }
+
+    /// A ball dropped onto the face lands when its centre is a radius above it; one moving at the
+    /// corner along the diagonal touches the corner when its centre is a radius away; one passing
+    /// an edge exactly a radius from its line grazes it where the edge begins, and one passing
+    /// farther never touches (elementary geometry).
+    #[test]
+    fn a_ball_meets_the_face_an_edge_and_a_corner_where_geometry_says() {
+        let t = floor_triangle();
+        let face = ball_entry(&t, DVec3::new(1.0, 3.0, 1.0), -DVec3::Y, 0.5, 10.0);
+        assert!((face.unwrap() - 2.5).abs() < 1e-12);
+        // Towards the corner at the origin from (-3, 0, -3) along the diagonal: the corner is
+        // 3√2 away, so contact at 3√2 − r.
+        let d = DVec3::new(1.0, 0.0, 1.0).normalize();
+        let corner = ball_entry(&t, DVec3::new(-3.0, 0.0, -3.0), d, 0.5, 10.0);
+        assert!((corner.unwrap() - (18f64.sqrt() - 0.5)).abs() < 1e-12);
+        // Along x at height 0.3 and z = -0.4, towards nothing but the edge z = 0 beside it: the
+        // distance to the edge line is 0.5 = r exactly, so it grazes from x = 0 on (at t = 2).
+        let edge = ball_entry(&t, DVec3::new(-2.0, 0.3, -0.4), DVec3::X, 0.5, 10.0);
+        assert!((edge.unwrap() - 2.0).abs() < 1e-9, "{edge:?}");
+        // And a ball passing farther away than its radius never touches.
+        assert!(ball_entry(&t, DVec3::new(-2.0, 0.3, -0.5), DVec3::X, 0.5, 10.0).is_none());
+    }
+
+    /// A capsule lying along z, moving down onto the face, lands when its axis is a radius above;
+    /// one standing upright moving sideways into the triangle's edge meets it at the distance from
+    /// its axis to the edge minus the radius (elementary geometry).
+    #[test]
+    fn a_capsule_meets_the_face_and_an_edge_where_geometry_says() {
+        let t = floor_triangle();
+        let (s0, s1) = (DVec3::new(1.0, 2.0, 0.5), DVec3::new(1.0, 2.0, 2.0));
+        let down = capsule_entry(&t, s0, s1, -DVec3::Y, 0.25, 10.0);
+        assert!((down.unwrap() - 1.75).abs() < 1e-12);
+        // Upright axis from y = -1 to 1 at (-1, ·, 1), moving +x: the edge x = 0 (from the origin
+        // to (0, 0, 4)) is 1 away, so contact after 1 − r.
+        let (u0, u1) = (DVec3::new(-1.0, -1.0, 1.0), DVec3::new(-1.0, 1.0, 1.0));
+        let side = capsule_entry(&t, u0, u1, DVec3::X, 0.25, 10.0);
+        assert!((side.unwrap() - 0.75).abs() < 1e-12);
+        assert!(capsule_touches(
+            &t,
+            u0 + DVec3::X * 0.8,
+            u1 + DVec3::X * 0.8,
+            0.25
+        ));
+        assert!(!capsule_touches(
+            &t,
+            u0 + DVec3::X * 0.7,
+            u1 + DVec3::X * 0.7,
+            0.25
+        ));
+    }
 }
