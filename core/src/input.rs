@@ -116,6 +116,38 @@ fn leaves_folder(path: &Path) -> bool {
     false
 }
 
+/// `to` named from the folder `from_dir` with forward slashes (`parts/yard.glb`,
+/// `../yard.level.json`), as files name each other; absolute when the two share nothing but the
+/// root. An empty `from_dir` is the current folder.
+pub fn relative_path(from_dir: &Path, to: &Path) -> String {
+    let absolute = |p: &Path| {
+        let p = if p.as_os_str().is_empty() {
+            Path::new(".")
+        } else {
+            p
+        };
+        std::path::absolute(p).unwrap_or_else(|_| p.to_path_buf())
+    };
+    let (from, to) = (absolute(from_dir), absolute(to));
+    let from_parts: Vec<Component> = from.components().collect();
+    let to_parts: Vec<Component> = to.components().collect();
+    let shared = from_parts
+        .iter()
+        .zip(&to_parts)
+        .take_while(|(a, b)| a == b)
+        .count();
+    if shared <= 1 {
+        return to.to_string_lossy().into_owned();
+    }
+    let mut relative: Vec<String> = vec!["..".into(); from_parts.len() - shared];
+    relative.extend(
+        to_parts[shared..]
+            .iter()
+            .map(|c| c.as_os_str().to_string_lossy().into_owned()),
+    );
+    relative.join("/")
+}
+
 /// Refuses outputs that are one of the run's inputs (`check P --out P` would replace the probe set
 /// with its results) or that two outputs share (one would silently win). `outputs` are (what, path)
 /// pairs, e.g. `("results file (--out)", path)`; paths are compared after resolving links.

@@ -480,29 +480,8 @@ pub fn unused_id(probes: &[Probe], base: &str) -> String {
 /// `..` when the level lies outside it, which opening then needs `--allow-outside-paths` for), or the
 /// level's full path when the two share no folder at all.
 fn level_reference(probes_path: &Path, level_path: &Path) -> String {
-    let absolute = |p: &Path| std::path::absolute(p).unwrap_or_else(|_| p.to_path_buf());
-    let level = absolute(level_path);
-    let folder = absolute(probes_path)
-        .parent()
-        .map(Path::to_path_buf)
-        .unwrap_or_default();
-    let level_parts: Vec<_> = level.components().collect();
-    let folder_parts: Vec<_> = folder.components().collect();
-    let shared = level_parts
-        .iter()
-        .zip(&folder_parts)
-        .take_while(|(a, b)| a == b)
-        .count();
-    if shared <= 1 {
-        return level.to_string_lossy().into_owned();
-    }
-    let mut relative: Vec<String> = vec!["..".into(); folder_parts.len() - shared];
-    relative.extend(
-        level_parts[shared..]
-            .iter()
-            .map(|c| c.as_os_str().to_string_lossy().into_owned()),
-    );
-    relative.join("/")
+    let folder = probes_path.parent().unwrap_or(Path::new(""));
+    plumbline_core::input::relative_path(folder, level_path)
 }
 
 /// Modification times of the files a level was read from.

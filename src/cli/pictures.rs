@@ -2,11 +2,13 @@
 //! with a before picture beside it for a probe that changed since the baseline, for the reports.
 
 use std::collections::HashMap;
-use std::path::{Component, Path, PathBuf};
+use std::collections::HashSet;
+use std::path::{Path, PathBuf};
 
 use plumbline::pictures::PictureMaker;
 use plumbline_core::check::{ProbeResult, ResultsFile, Verdict};
 use plumbline_core::error::Error;
+use plumbline_core::input::relative_path;
 use plumbline_core::level::Level;
 use plumbline_core::probe::Probe;
 
@@ -26,6 +28,8 @@ pub struct Pictures<'a> {
     maker: PictureMaker,
     every_probe: bool,
     before: HashMap<&'a str, &'a ProbeResult>,
+    /// File names already given, so two ids that read alike on disk do not share a picture.
+    stems: HashSet<String>,
 }
 
 impl<'a> Pictures<'a> {
@@ -53,6 +57,7 @@ impl<'a> Pictures<'a> {
             maker,
             every_probe,
             before,
+            stems: HashSet::new(),
         })
     }
 
@@ -69,7 +74,15 @@ impl<'a> Pictures<'a> {
         if !wanted {
             return Ok(Vec::new());
         }
-        let stem = result.id.replace('/', "~");
+        // Rule probes are named `<rule>/<object>`: a file name holds no `/`.
+        let plain = result.id.replace('/', "~");
+        let mut stem = plain.clone();
+        for n in 2.. {
+            if self.stems.insert(stem.clone()) {
+                break;
+            }
+            stem = format!("{plain}~{n}");
+        }
         let mut shots = Vec::new();
         if changed && let Some(before) = self.before.get(result.id.as_str()) {
             shots.push((
@@ -105,23 +118,34 @@ impl<'a> Pictures<'a> {
     }
 }
 
-/// A link from a file in the folder `from_dir` to `to`, with forward slashes (for Markdown).
+/// A Markdown link target from a file in the folder `from_dir` to `to`: relative, with the
+/// characters a link target cannot hold as they are (spaces and brackets, common in object names
+/// that rules put into probe ids) percent-encoded (RFC 3986, §2.1).
 pub fn relative_link(from_dir: &Path, to: &Path) -> String {
-    let absolute = |p: &Path| {
-        let p = if p.as_os_str().is_empty() {
-            Path::new(".")
-        } else {
-            p
-        };
-        std::path::absolute(p).unwrap_or_else(|_| p.to_path_buf())
-    };
-    let (from, to) = (absolute(from_dir), absolute(to));
-    let from: Vec<Component> = from.components().collect();
-    let to: Vec<Component> = to.components().collect();
-    let common = from.iter().zip(&to).take_while(|(a, b)| a == b).count();
-    let ups = std::iter::repeat_n("..".to_string(), from.len() - common);
-    let downs = to[common..]
-        .iter()
-        .map(|c| c.as_os_str().to_string_lossy().to_string());
-    ups.chain(downs).collect::<Vec<_>>().join("/")
+    relative_path(from_dir, to)
+        .replace('%', "%25")
+        .replace(' ', "%20")
+        .replace('(', "%28")
+        .replace(')', "%29")
+        .replace('<', "%3C")
+        .replace('>', "%3E")
+}
+
+#[cfg(test)]
+mod tests {
+    use super::relative_link;
+    use std::path::Path;
+
+    #[test]
+    fn links_are_relative_and_hold_names_with_spaces_and_brackets() {
+        let root = std::path::absolute(Path::new("/reports")).unwrap();
+        assert_eq!(
+            relative_link(&root, &root.join("pictures/props-rest~Crate (old) 2.png")),
+            "pictures/props-rest~Crate%20%28old%29%202.png"
+        );
+        assert_eq!(
+            relative_link(&root.join("md"), &root.join("pictures/a.png")),
+            "../pictures/a.png"
+        );
+    }
 }
