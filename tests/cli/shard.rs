@@ -174,3 +174,20 @@ fn a_shard_cannot_be_compared_with_a_baseline() {
     assert_eq!(run.status.code(), Some(2));
     assert!(text(&run.stderr).contains("is not a shard"));
 }
+
+#[test]
+fn a_part_that_claims_a_huge_set_is_refused_without_allocating_for_it() {
+    let (dir, a, b) = lane_parts();
+    for part in [&a, &b] {
+        let text = std::fs::read_to_string(part).unwrap();
+        let claimed = text.replace("\"of_probes\": 7", "\"of_probes\": 1000000000000000");
+        assert_ne!(text, claimed);
+        std::fs::write(part, claimed).unwrap();
+    }
+    let (code, err) = merge(dir.path(), &[&a, &b], "r.json");
+    assert_eq!(code, Some(2));
+    assert!(
+        err.contains("the parts hold 7 results, but their shards say the set has 1000000000000000"),
+        "{err}"
+    );
+}

@@ -125,6 +125,14 @@ pub fn merge(
             missing.join(", ")
         )));
     }
+    // The parts' own results bound the set's size before anything is sized by it, so a part that
+    // claims a set of billions cannot make the merge allocate for it.
+    if summary.probes != total {
+        return Err(Error::Incomplete(format!(
+            "the parts hold {} results, but their shards say the set has {total} probes",
+            summary.probes
+        )));
+    }
     let mut source: Vec<Option<(usize, usize)>> = vec![None; total];
     for (k, raw) in raws.iter().enumerate() {
         for (i, &position) in raw.positions.iter().enumerate() {
@@ -149,7 +157,7 @@ pub fn merge(
             *slot = Some((k, i));
         }
     }
-    if summary.probes != total || source.iter().any(Option::is_none) {
+    if source.iter().any(Option::is_none) {
         return Err(Error::Incomplete(format!(
             "the parts hold {} of the set's {total} probes",
             source.iter().flatten().count()
