@@ -59,10 +59,3 @@ pub fn from_object_str<'a, T: Deserialize<'a>>(text: &'a str) -> serde_json::Res
     de.end()?;
     Ok(value)
 }
-
-/// Converts `value`, which must be a JSON object, into `T`.
-pub fn from_object_value<T: serde::de::DeserializeOwned>(
-    value: serde_json::Value,
-) -> serde_json::Result<T> {
-    object(value)
-}
