@@ -309,25 +309,25 @@ impl Opened {
         progress: &(dyn Fn(usize) + Sync),
     ) -> Result<Vec<ProbeResult>, Error> {
         let mut results = Vec::with_capacity(self.probes.len());
-        self.answer_each(jobs, None, progress, &mut |_, result, _| {
+        self.answer_each(&Runner::new(jobs)?, None, progress, &mut |_, result, _| {
             results.push(result);
             Ok(())
         })?;
         Ok(results)
     }
 
-    /// Answers every probe as [`Opened::answer`] does, handing each probe, its result and the time
-    /// its answer took to `each` in probe order as soon as its chunk is done, so that nothing of the
-    /// run is held beyond one chunk. With `only` (ascending positions in the whole set, as
+    /// Answers every probe as [`Opened::answer`] does, on `runner`'s threads (the check's one pool,
+    /// which also parsed the probe set), handing each probe, its result and the time its answer
+    /// took to `each` in probe order as soon as its chunk is done, so that nothing of the run is
+    /// held beyond one chunk. With `only` (ascending positions in the whole set, as
     /// [`Opened::shard_positions`] gives), answers those probes alone. Returns the counts by verdict.
     pub fn answer_each(
         &self,
-        jobs: Option<usize>,
+        runner: &Runner,
         only: Option<&[usize]>,
         progress: &(dyn Fn(usize) + Sync),
         each: &mut dyn FnMut(&Probe, ProbeResult, std::time::Duration) -> Result<(), Error>,
     ) -> Result<Summary, Error> {
-        let runner = Runner::new(jobs)?;
         let mut summary = Summary::default();
         let total = self.probes.len();
         let mut done = 0;

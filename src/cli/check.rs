@@ -238,7 +238,7 @@ pub fn run_once(
     let mut lines = Lines::new(&progress);
     let mut timings = options.timings.then(Timings::default);
     let summary = opened.answer_each(
-        options.jobs.map(|j| j as usize),
+        &threads,
         positions.as_deref(),
         &|done| progress.update(done),
         &mut |probe, result, took| {

@@ -5,7 +5,7 @@
 
 use std::path::{Path, PathBuf};
 
-use plumbline_core::check::{PartHead, ResultsHead, ResultsWriter, Shard, parse_results};
+use plumbline_core::check::{PartHead, ResultsHead, ResultsWriter, Runner, Shard, parse_results};
 use plumbline_core::input::PathPolicy;
 use plumbline_core::level::load_level;
 use plumbline_core::probe::parse_probe_set;
@@ -97,10 +97,15 @@ fn a_shards_partial_results_validate() {
     let path = dir.path().join("part.json");
     let mut writer = ResultsWriter::create(&path, positions.len()).unwrap();
     let summary = opened
-        .answer_each(Some(1), Some(&positions), &|_| {}, &mut |_, result, _| {
-            writer.push(&result).unwrap();
-            Ok(())
-        })
+        .answer_each(
+            &Runner::new(Some(1)).unwrap(),
+            Some(&positions),
+            &|_| {},
+            &mut |_, result, _| {
+                writer.push(&result).unwrap();
+                Ok(())
+            },
+        )
         .unwrap();
     let head = ResultsHead {
         probes: "saltfen-quay.probes.json".into(),
