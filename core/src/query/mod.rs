@@ -17,6 +17,8 @@ mod jump;
 mod overlap;
 mod progress;
 mod ray;
+mod ray_index;
+mod ray_tree;
 mod reach;
 mod rest;
 mod rounded;

@@ -16,15 +16,13 @@
 //!   open edge is one. The reported hits of a place are its triangles earliest in file order, each
 //!   with its own normal and `back_face`.
 
-use std::cell::Cell;
-
 use glam::DVec3;
 use parry3d_f64::bounding_volume::{Aabb, BoundingVolume};
-use parry3d_f64::partitioning::BvhNode;
 use parry3d_f64::query::{PointQuery, Ray};
 
 use super::body::Body;
-use super::watertight::ShearedRay;
+use super::ray_tree::TreeRay;
+use super::watertight::{ShearedRay, edge_tolerance};
 use super::world::{MaterialId, ObjectId, View, World};
 use super::{QueryError, merge_tolerance};
 
@@ -54,7 +52,6 @@ pub struct RayHit {
 struct Segment {
     from: DVec3,
     dir: DVec3,
-    inv_dir: DVec3,
     len: f64,
 }
 
@@ -68,12 +65,7 @@ impl Segment {
             return Err(QueryError::RayHasNoLength);
         }
         let dir = (to - from) / len;
-        Ok(Segment {
-            from,
-            dir,
-            inv_dir: dir.recip(),
-            len,
-        })
+        Ok(Segment { from, dir, len })
     }
 }
 
@@ -101,27 +93,70 @@ impl View<'_> {
         let seg = Segment::new(from, to)?;
         let ray = Ray::new(seg.from, seg.dir);
         let sheared = ShearedRay::new(seg.from, seg.dir);
-        let best: Cell<Option<Candidate>> = Cell::new(None);
-        // Leaves report the next float above their best distance, so that nodes and triangles met
-        // at exactly that distance are still opened and the tie rule sees them all.
-        self.world.bvh.find_best(
-            seg.len.next_up(),
-            |node, best| node_entry(node, &ray, seg.inv_dir, best),
-            |leaf, best_so_far| {
-                let body = self.body(leaf)?;
-                let reach = best_so_far.min(seg.len);
-                let hit = first_on_body(self.world, body, &seg, &ray, &sheared, reach)?;
-                if best.get().is_none_or(|b| hit.key() < b.key()) {
-                    best.set(Some(hit));
+        let index = self.world.ray_index();
+        let boxes = TreeRay::new(index.frame(), seg.from, seg.dir);
+        let ordinal = |body: &Body, tri: u32| {
+            let number = self
+                .world
+                .triangle_number(body.object, body.triangle_id(tri));
+            self.world.ordinal(body.object, number)
+        };
+        // The best so far: its distance, and the item (or the primitive's worked-out crossing).
+        let mut best: Option<(f64, &Body, Found)> = None;
+        index.nearest_first(&boxes, seg.len, |items, reach| {
+            for item in items {
+                let Some(body) = self.body(item.body) else {
+                    continue;
+                };
+                let Some(tri) = item.triangle() else {
+                    let Some(hit) = primitive_crossings(self.world, body, &seg, &ray)
+                        .into_iter()
+                        .flatten()
+                        .find(|h| h.hit.distance <= reach)
+                    else {
+                        continue;
+                    };
+                    let better = best.as_ref().is_none_or(|(d, other, found)| {
+                        hit.hit.distance < *d
+                            || (hit.hit.distance == *d
+                                && hit.ordinal < found.ordinal(other, &ordinal))
+                    });
+                    if better {
+                        best = Some((hit.hit.distance, body, Found::Primitive(hit)));
+                    }
+                    continue;
+                };
+                let [a, b, c] = item.corners;
+                let Some(distance) = sheared.intersect(a, b, c, reach) else {
+                    continue;
+                };
+                // File order is only asked where two surfaces meet the ray at the same distance.
+                let better = best.as_ref().is_none_or(|(d, other, found)| {
+                    distance < *d
+                        || (distance == *d && ordinal(body, tri) < found.ordinal(other, &ordinal))
+                });
+                if better {
+                    best = Some((distance, body, Found::Triangle(tri, item.corners)));
                 }
-                Some(
-                    best.get()
-                        .map_or(hit.hit.distance, |b| b.hit.distance)
-                        .next_up(),
+            }
+            // The next float above the best, so that ties at its distance are still seen.
+            best.as_ref()
+                .map_or(reach, |(d, _, _)| d.next_up().min(reach))
+        });
+        Ok(best.map(|(distance, body, found)| match found {
+            Found::Triangle(tri, [a, b, c]) => {
+                candidate(
+                    self.world,
+                    body,
+                    &seg,
+                    distance,
+                    triangle_normal(a, b, c),
+                    Some((tri, [a, b, c])),
                 )
-            },
-        );
-        Ok(best.get().map(|c| c.hit))
+                .hit
+            }
+            Found::Primitive(hit) => hit.hit,
+        }))
     }
 
     /// Every surface crossing on the segment `from → to`, sorted by distance (the crossing rules of
@@ -131,15 +166,34 @@ impl View<'_> {
         let ray = Ray::new(seg.from, seg.dir);
         let sheared = ShearedRay::new(seg.from, seg.dir);
         let mut candidates = Vec::new();
-        for leaf in self
-            .world
-            .bvh
-            .leaves(|node| node_entry(node, &ray, seg.inv_dir, seg.len) <= seg.len)
-        {
-            if let Some(body) = self.body(leaf) {
-                all_on_body(self.world, body, &seg, &ray, &sheared, &mut candidates);
+        let index = self.world.ray_index();
+        let boxes = TreeRay::new(index.frame(), seg.from, seg.dir);
+        index.nearest_first(&boxes, seg.len, |items, reach| {
+            for item in items {
+                let Some(body) = self.body(item.body) else {
+                    continue;
+                };
+                let Some(tri) = item.triangle() else {
+                    let crossings = primitive_crossings(self.world, body, &seg, &ray);
+                    candidates.extend(crossings.into_iter().flatten());
+                    continue;
+                };
+                let [a, b, c] = item.corners;
+                if let Some(distance) = sheared.intersect(a, b, c, seg.len) {
+                    let normal = triangle_normal(a, b, c);
+                    let hit = candidate(
+                        self.world,
+                        body,
+                        &seg,
+                        distance,
+                        normal,
+                        Some((tri, [a, b, c])),
+                    );
+                    candidates.push(hit);
+                }
             }
-        }
+            reach
+        });
         candidates.sort_by(|a, b| {
             a.hit.object.cmp(&b.hit.object).then(
                 a.key()
@@ -242,13 +296,6 @@ impl View<'_> {
     }
 }
 
-/// How close to a triangle's edge a hit may lie and still count as on it (where rounding could
-/// decide which of the triangles around it the segment meets): a nanometre near the origin, growing
-/// with the coordinates' size, plus a billionth of the triangle's size. Ours.
-fn edge_tolerance(p: DVec3, size: f64) -> f64 {
-    1e-9 * (1.0 + p.abs().max_element()) + 1e-9 * size
-}
-
 /// True when `p`, a point of triangle `abc`, lies on (or within [`edge_tolerance`] of) its edges.
 fn on_edge(p: DVec3, [a, b, c]: [DVec3; 3]) -> bool {
     let size = a.distance(b).max(b.distance(c)).max(c.distance(a));
@@ -330,105 +377,22 @@ fn candidate(
     }
 }
 
-/// The body's first crossing within `max_distance`, earliest in file order among equal distances.
-fn first_on_body(
-    world: &World,
-    body: &Body,
-    seg: &Segment,
-    ray: &Ray,
-    sheared: &ShearedRay,
-    max_distance: f64,
-) -> Option<Candidate> {
-    let Some(mesh) = body.mesh() else {
-        return primitive_crossings(world, body, seg, ray)
-            .into_iter()
-            .flatten()
-            .find(|h| h.hit.distance <= max_distance);
-    };
-    let best: Cell<Option<(f64, u64, u32)>> = Cell::new(None);
-    mesh.bvh().find_best(
-        max_distance,
-        |node, best| node_entry(node, ray, seg.inv_dir, best),
-        |tri, best_so_far| {
-            let t = mesh.triangle(tri);
-            let distance = sheared.intersect(t.a, t.b, t.c, best_so_far)?;
-            let number = world.triangle_number(body.object, body.triangle_id(tri));
-            let ordinal = world.ordinal(body.object, number);
-            if best
-                .get()
-                .is_none_or(|(d, o, _)| (distance, ordinal) < (d, o))
-            {
-                best.set(Some((distance, ordinal, tri)));
-            }
-            best.get().map(|(d, _, _)| d.next_up())
-        },
-    );
-    let (distance, _, tri) = best.get()?;
-    let t = mesh.triangle(tri);
-    Some(candidate(
-        world,
-        body,
-        seg,
-        distance,
-        triangle_normal(t.a, t.b, t.c),
-        Some((tri, [t.a, t.b, t.c])),
-    ))
+/// What a first-hit search has found on a body; the hit is only worked out for the winner.
+enum Found {
+    /// A mesh triangle (the body's index) and its corners.
+    Triangle(u32, [DVec3; 3]),
+    /// A primitive's crossing, already worked out.
+    Primitive(Candidate),
 }
 
-/// Every crossing of the segment with one body (merged across shared edges by the caller).
-fn all_on_body(
-    world: &World,
-    body: &Body,
-    seg: &Segment,
-    ray: &Ray,
-    sheared: &ShearedRay,
-    out: &mut Vec<Candidate>,
-) {
-    let Some(mesh) = body.mesh() else {
-        out.extend(
-            primitive_crossings(world, body, seg, ray)
-                .into_iter()
-                .flatten(),
-        );
-        return;
-    };
-    out.extend(
-        mesh.bvh()
-            .leaves(|node| node_entry(node, ray, seg.inv_dir, seg.len) <= seg.len)
-            .filter_map(|tri| {
-                let t = mesh.triangle(tri);
-                let distance = sheared.intersect(t.a, t.b, t.c, seg.len)?;
-                Some(candidate(
-                    world,
-                    body,
-                    seg,
-                    distance,
-                    triangle_normal(t.a, t.b, t.c),
-                    Some((tri, [t.a, t.b, t.c])),
-                ))
-            }),
-    );
-}
-
-/// How much BVH boxes are grown for ray tests. The slab test of a box can miss a ray that passes
-/// exactly through a box corner or along a face by one rounding error (Williams et al., "An Efficient
-/// and Robust Ray–Box Intersection Algorithm", JGT 10(1), 2005); and a ray through a mesh vertex passes
-/// through the corners of the boxes of every triangle around it. Growing the boxes by far more than
-/// rounding keeps those triangles in the search; the triangle test itself stays exact.
-const NODE_SLACK: f64 = 1e-7;
-
-/// Where the ray enters a BVH node's box (grown by [`NODE_SLACK`]), or `f64::MAX` when it misses.
-/// The slab test of Williams et al. (2005) with a precomputed inverse direction: a zero direction
-/// component gives infinite slab distances, and the NaN of `0 × ∞` (origin on a slab plane) is
-/// ignored by `min`/`max`, so that axis does not constrain the ray.
-fn node_entry(node: &BvhNode, ray: &Ray, inv_dir: DVec3, max_distance: f64) -> f64 {
-    let lo = (node.mins() - DVec3::splat(NODE_SLACK) - ray.origin) * inv_dir;
-    let hi = (node.maxs() + DVec3::splat(NODE_SLACK) - ray.origin) * inv_dir;
-    let near = lo.min(hi);
-    let far = lo.max(hi);
-    let enter = near.x.max(near.y).max(near.z).max(0.0);
-    let exit = far.x.min(far.y).min(far.z).min(max_distance);
-    if enter <= exit { enter } else { f64::MAX }
+impl Found {
+    /// The place in file order of what was found on `body`, `ordinal` giving a triangle's.
+    fn ordinal(&self, body: &Body, ordinal: &impl Fn(&Body, u32) -> u64) -> u64 {
+        match self {
+            Found::Triangle(tri, _) => ordinal(body, *tri),
+            Found::Primitive(hit) => hit.ordinal,
+        }
+    }
 }
 
 /// The crossings of a convex primitive, in order along the segment: where the segment enters it

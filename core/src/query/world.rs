@@ -2,7 +2,7 @@
 //! views filtered by tags, materials and names.
 
 use std::collections::HashMap;
-use std::sync::Arc;
+use std::sync::{Arc, OnceLock};
 
 use glam::{DQuat, DVec3};
 use parry3d_f64::bounding_volume::Aabb;
@@ -13,6 +13,8 @@ use parry3d_f64::shape::TriMeshBuilderError;
 use parry3d_f64::shape::SharedShape;
 
 use super::body::{Body, MaterialGroup, mesh_bodies};
+use super::ray_index::RayIndex;
+use super::ray_tree::RayFrame;
 use super::shapes::{primitive_shape, solid_shape};
 use crate::level::{
     FacePlace, Geometry, Level, MeshOrigin, Primitive, ShapeError, ShapeSpec, VOLUME_TAG,
@@ -91,6 +93,9 @@ pub struct World {
     /// The box around each object's bodies.
     object_boxes: Vec<Aabb>,
     pub(crate) bvh: Bvh,
+    /// Every triangle and primitive of the bodies in one tree made for rays, built when a ray
+    /// first needs it.
+    ray_index: OnceLock<RayIndex>,
     up: DVec3,
 }
 
@@ -220,7 +225,16 @@ impl World {
             material_tags,
             object_boxes,
             bvh,
+            ray_index: OnceLock::new(),
             up,
+        })
+    }
+
+    /// The world's ray index, built on first use.
+    pub(crate) fn ray_index(&self) -> &RayIndex {
+        self.ray_index.get_or_init(|| {
+            let root = self.bvh.root_aabb();
+            RayIndex::new(RayFrame::around(root.mins, root.maxs), &self.bodies)
         })
     }
 

@@ -1,0 +1,571 @@
+//! Ray trees: BVHs with four children per node whose boxes are stored in `f32`, rounded outwards,
+//! and tested four at a time, a few items to a leaf. Ray probes walk one over every triangle and
+//! primitive of the world ([`super::ray_index`]) instead of parry's general-purpose BVHs (binary
+//! trees of `f64` boxes, one item per leaf, a tree of bodies over a tree per mesh), which their
+//! profile showed spending most of its time in box tests.
+//!
+//! A tree only chooses which items to test; the exact `f64` tests decide. So it must be
+//! conservative: it may offer a triangle the ray misses, never skip one it meets. Boxes are rounded
+//! outwards when stored, and every box test is padded by more than its rounding can lose
+//! ([`TreeRay::new`]): the subtraction, the rounded inverse direction and the product each err by at
+//! most an `f32` ulp of the largest magnitude involved (Ize, "Robust BVH Ray Traversal", JCGT 2(2),
+//! 2013, §3), and the pad is several times that. Coordinates are stored relative to the tree's
+//! centre, so a level far from the origin keeps tight boxes.
+//!
+//! Built by binned surface-area heuristic (Wald, "On fast Construction of SAH-based Bounding Volume
+//! Hierarchies", IEEE Symposium on Interactive Ray Tracing, 2007), each node split twice to give
+//! four children; below [`SAH_DEPTH`] splits it cuts at the median instead, which bounds the depth.
+
+use std::ops::Range;
+
+use glam::DVec3;
+use wide::f32x4;
+
+/// Bins per axis of the surface-area heuristic.
+const BINS: usize = 12;
+
+/// Binary splits by surface-area heuristic before median splits take over: with at most 2³²
+/// items the tree is at most `(SAH_DEPTH + 32) / 2` nodes deep, which sizes the walk's stack.
+const SAH_DEPTH: usize = 40;
+
+/// Room on the walk's stack: each node visited pushes at most four children and pops itself.
+const STACK: usize = 3 * (SAH_DEPTH + 32) / 2 + 4;
+
+/// How much a box test is padded beyond rounding, in metres (as the mesh BVH's box tests).
+const SLACK: f64 = 1e-7;
+
+/// A child slot: [`EMPTY`], a node index, or a leaf ([`LEAF_BIT`] set; its first item in
+/// [`LEAF_START_BITS`] bits, then how many).
+type Child = u32;
+
+/// A slot with nothing in it; its box is a point at +∞, which no ray reaches.
+const EMPTY: Child = u32::MAX;
+
+/// Marks a slot that holds a leaf.
+const LEAF_BIT: u32 = 1 << 31;
+
+/// Bits of a leaf's first item: a tree holds fewer than 2²⁸ items (a mesh body of that many
+/// triangles would need tens of gigabytes).
+const LEAF_START_BITS: u32 = 28;
+
+fn leaf(start: usize, len: usize) -> Child {
+    assert!(start < 1 << LEAF_START_BITS && len < 1 << (31 - LEAF_START_BITS));
+    LEAF_BIT | (len as u32) << LEAF_START_BITS | start as u32
+}
+
+/// Four children's boxes, one coordinate per lane, and what each child holds.
+#[derive(Debug, Clone)]
+struct WideNode {
+    lo: [f32x4; 3],
+    hi: [f32x4; 3],
+    children: [Child; 4],
+}
+
+/// Where a world's ray trees measure their `f32` coordinates from: one frame for the world's tree
+/// and its meshes' trees, so one [`TreeRay`] serves a whole ray.
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct RayFrame {
+    /// The coordinates' origin: the centre of the world's box.
+    center: DVec3,
+    /// The largest magnitude of any coordinate relative to `center`, with a hair to spare.
+    extent: f64,
+}
+
+impl RayFrame {
+    /// The frame of everything in the box `lo ..= hi`.
+    pub fn around(lo: DVec3, hi: DVec3) -> RayFrame {
+        if !(lo.is_finite() && hi.is_finite() && lo.cmple(hi).all()) {
+            return RayFrame {
+                center: DVec3::ZERO,
+                extent: 0.0,
+            };
+        }
+        let center = (lo + hi) * 0.5;
+        let extent = (lo - center).abs().max((hi - center).abs()).max_element();
+        // Stored boxes round outwards, by a hair more than the box.
+        RayFrame {
+            center,
+            extent: extent * (1.0 + 1e-6),
+        }
+    }
+}
+
+/// A ray tree over some items (see the module documentation).
+#[derive(Debug)]
+pub(crate) struct RayTree {
+    frame: RayFrame,
+    nodes: Vec<WideNode>,
+    /// The whole tree: a node, or one leaf when the items fit in one.
+    root: Child,
+}
+
+/// A ray prepared for the trees of one frame: its origin relative to the frame's centre, moved by
+/// the pad, and its inverse direction, in `f32` lanes.
+pub(crate) struct TreeRay {
+    /// Origin + pad on every axis: where the boxes' low sides are measured from.
+    from_lo: [f32x4; 3],
+    /// Origin − pad on every axis: where the boxes' high sides are measured from.
+    from_hi: [f32x4; 3],
+    inv_dir: [f32x4; 3],
+}
+
+impl TreeRay {
+    /// Prepares the ray `from + t * dir` (`dir` a unit vector) for box tests in `frame`.
+    ///
+    /// Every `f32` step errs by at most one ulp of `m`, the largest magnitude involved (a stored
+    /// coordinate, the origin, or their difference is at most `extent + |origin|`): the rounded
+    /// origin and pad half an ulp, the subtraction one, the rounded inverse and the product one each
+    /// relative to a slab distance no larger than `m / |dir|`. Padding every box by `2⁻¹⁹ m` (16
+    /// ulps of `m`) and [`SLACK`] covers them with room to spare. A direction component too small
+    /// for an `f32` inverse is given a huge finite one, which moves the ray sideways by less than
+    /// the pad over any distance a level holds, and keeps `0 × ∞` (NaN) out of the lanes.
+    pub fn new(frame: RayFrame, from: DVec3, dir: DVec3) -> TreeRay {
+        let origin = from - frame.center;
+        let m = frame.extent + origin.abs().max_element();
+        let pad = m * (1.0 / 524_288.0) + SLACK;
+        let inv = |d: f64| {
+            let inv = 1.0 / d;
+            (if inv.abs() <= 1e30 {
+                inv
+            } else {
+                1e30f64.copysign(d)
+            }) as f32
+        };
+        let (lo, hi) = (origin + pad, origin - pad);
+        TreeRay {
+            from_lo: [lo.x, lo.y, lo.z].map(|x| f32x4::splat(x as f32)),
+            from_hi: [hi.x, hi.y, hi.z].map(|x| f32x4::splat(x as f32)),
+            inv_dir: [dir.x, dir.y, dir.z].map(|d| f32x4::splat(inv(d))),
+        }
+    }
+
+    /// Which of the node's four boxes the ray meets within `0 ..= reach` (bit `k` for child `k`),
+    /// and where it enters each.
+    #[inline(always)]
+    fn entries(&self, node: &WideNode, reach: f32) -> (u32, [f32; 4]) {
+        let mut near = f32x4::splat(0.0);
+        let mut far = f32x4::splat(reach);
+        for k in 0..3 {
+            let a = (node.lo[k] - self.from_lo[k]) * self.inv_dir[k];
+            let b = (node.hi[k] - self.from_hi[k]) * self.inv_dir[k];
+            near = near.fast_max(a.fast_min(b));
+            far = far.fast_min(a.fast_max(b));
+        }
+        (near.simd_le(far).to_bitmask(), near.to_array())
+    }
+}
+
+/// `x` as an `f32` no greater than it.
+fn down(x: f64) -> f32 {
+    let y = x as f32;
+    if f64::from(y) > x { y.next_down() } else { y }
+}
+
+/// `x` as an `f32` no less than it.
+fn up(x: f64) -> f32 {
+    let y = x as f32;
+    if f64::from(y) < x { y.next_up() } else { y }
+}
+
+/// A box in `f64` during building.
+#[derive(Debug, Clone, Copy)]
+struct Bounds {
+    lo: DVec3,
+    hi: DVec3,
+}
+
+impl Bounds {
+    const EMPTY: Bounds = Bounds {
+        lo: DVec3::splat(f64::INFINITY),
+        hi: DVec3::splat(f64::NEG_INFINITY),
+    };
+
+    fn grow(self, other: Bounds) -> Bounds {
+        Bounds {
+            lo: self.lo.min(other.lo),
+            hi: self.hi.max(other.hi),
+        }
+    }
+
+    fn add(self, p: DVec3) -> Bounds {
+        Bounds {
+            lo: self.lo.min(p),
+            hi: self.hi.max(p),
+        }
+    }
+
+    /// Half the surface area (0 for an empty box).
+    fn half_area(self) -> f64 {
+        let d = (self.hi - self.lo).max(DVec3::ZERO);
+        d.x * d.y + d.y * d.z + d.z * d.x
+    }
+}
+
+impl RayTree {
+    /// Builds the tree of `count` items in `frame`, item `i` inside the box `bounds(i)` (low and
+    /// high corners), at most `leaf_size` items to a leaf. Leaves refer to positions in the
+    /// returned leaf order of the items.
+    pub fn new(
+        frame: RayFrame,
+        count: usize,
+        leaf_size: usize,
+        bounds: impl Fn(u32) -> (DVec3, DVec3),
+    ) -> (RayTree, Vec<u32>) {
+        let boxes: Vec<Bounds> = (0..count as u32)
+            .map(|i| {
+                let (lo, hi) = bounds(i);
+                Bounds { lo, hi }
+            })
+            .collect();
+        let mut builder = Builder {
+            boxes: &boxes,
+            centroids: boxes.iter().map(|b| (b.lo + b.hi) * 0.5).collect(),
+            center: frame.center,
+            leaf_size,
+            nodes: Vec::new(),
+        };
+        let mut order: Vec<u32> = (0..count as u32).collect();
+        let root = builder.subtree(&mut order, 0, 0);
+        let tree = RayTree {
+            frame,
+            nodes: builder.nodes,
+            root,
+        };
+        (tree, order)
+    }
+
+    /// The frame the tree's coordinates are measured in.
+    pub fn frame(&self) -> RayFrame {
+        self.frame
+    }
+
+    /// Calls `leaf(positions, reach)` on every leaf the ray may meet within `reach`, nearest box
+    /// first, with the leaf's positions in the leaf order; `leaf` returns the new reach (a
+    /// first-hit search shortens it as it finds hits; a leaf whose box starts exactly at the reach
+    /// is still visited, so ties are seen).
+    pub fn nearest_first(
+        &self,
+        ray: &TreeRay,
+        reach: f64,
+        mut leaf: impl FnMut(Range<usize>, f64) -> f64,
+    ) {
+        let mut reach = reach;
+        let mut stack = [(EMPTY, 0f32); STACK];
+        stack[0] = (self.root, 0.0);
+        let mut len = 1;
+        while len > 0 {
+            len -= 1;
+            let (child, entry) = stack[len];
+            if f64::from(entry) > reach {
+                continue;
+            }
+            if child & LEAF_BIT != 0 {
+                let start = (child & ((1 << LEAF_START_BITS) - 1)) as usize;
+                let count = ((child & !LEAF_BIT) >> LEAF_START_BITS) as usize;
+                reach = leaf(start..start + count, reach);
+                continue;
+            }
+            let node = &self.nodes[child as usize];
+            let (mut met, entries) = ray.entries(node, up(reach));
+            // Pushed farthest first, so the nearest is popped next.
+            let from = len;
+            while met != 0 {
+                let k = met.trailing_zeros() as usize;
+                met &= met - 1;
+                let item = (node.children[k], entries[k]);
+                let mut at = len;
+                while at > from && stack[at - 1].1 < item.1 {
+                    stack[at] = stack[at - 1];
+                    at -= 1;
+                }
+                stack[at] = item;
+                len += 1;
+            }
+        }
+    }
+}
+
+/// The state of one build: every triangle's box and centroid, and the nodes made so far.
+struct Builder<'a> {
+    boxes: &'a [Bounds],
+    centroids: Vec<DVec3>,
+    center: DVec3,
+    leaf_size: usize,
+    nodes: Vec<WideNode>,
+}
+
+impl Builder<'_> {
+    /// The subtree of the items `order` (which it reorders), whose first one sits at `start` in
+    /// the tree's leaf order, `depth` binary splits below the root.
+    fn subtree(&mut self, order: &mut [u32], start: usize, depth: usize) -> Child {
+        if order.len() <= self.leaf_size {
+            return leaf(start, order.len());
+        }
+        // Split in two, then each half in two again: up to four children.
+        let mut groups: Vec<(usize, usize)> = Vec::with_capacity(4);
+        let half = self.split(order, depth);
+        for (from, to) in [(0, half), (half, order.len())] {
+            if to - from <= self.leaf_size {
+                groups.push((from, to));
+            } else {
+                let cut = from + self.split(&mut order[from..to], depth + 1);
+                groups.push((from, cut));
+                groups.push((cut, to));
+            }
+        }
+        let index = self.nodes.len();
+        let mut lo = [[f32::INFINITY; 4]; 3];
+        let mut hi = [[f32::INFINITY; 4]; 3];
+        let mut children = [EMPTY; 4];
+        self.nodes.push(WideNode {
+            lo: lo.map(f32x4::from),
+            hi: hi.map(f32x4::from),
+            children,
+        });
+        for (slot, &(from, to)) in groups.iter().enumerate() {
+            let bounds = order[from..to]
+                .iter()
+                .fold(Bounds::EMPTY, |acc, &t| acc.grow(self.boxes[t as usize]));
+            for k in 0..3 {
+                lo[k][slot] = down(bounds.lo[k] - self.center[k]);
+                hi[k][slot] = up(bounds.hi[k] - self.center[k]);
+            }
+            children[slot] = self.subtree(&mut order[from..to], start + from, depth + 2);
+        }
+        self.nodes[index] = WideNode {
+            lo: lo.map(f32x4::from),
+            hi: hi.map(f32x4::from),
+            children,
+        };
+        index as Child
+    }
+
+    /// Reorders `order` into two non-empty groups, `depth` binary splits below the root: by the
+    /// binned surface-area heuristic over the three axes, or below [`SAH_DEPTH`] (or where the
+    /// centroids coincide) at the median of the widest axis; returns the size of the first.
+    fn split(&self, order: &mut [u32], depth: usize) -> usize {
+        let span = order
+            .iter()
+            .fold(Bounds::EMPTY, |acc, &t| acc.add(self.centroids[t as usize]));
+        if depth >= SAH_DEPTH {
+            return self.median_split(order, span);
+        }
+        let bin_of = |axis: usize, t: u32| {
+            let (lo, hi) = (span.lo[axis], span.hi[axis]);
+            let bin = (self.centroids[t as usize][axis] - lo) * (BINS as f64 / (hi - lo));
+            (bin as usize).min(BINS - 1)
+        };
+        // (cost, axis, last bin of the first group)
+        let mut best: Option<(f64, usize, usize)> = None;
+        for axis in 0..3 {
+            if span.hi[axis] <= span.lo[axis] {
+                continue;
+            }
+            let mut bins = [(Bounds::EMPTY, 0usize); BINS];
+            for &t in order.iter() {
+                let bin = &mut bins[bin_of(axis, t)];
+                bin.0 = bin.0.grow(self.boxes[t as usize]);
+                bin.1 += 1;
+            }
+            // Cost of cutting after bin `k`: area × count on each side.
+            let mut right = [(0.0, 0usize); BINS];
+            let mut acc = (Bounds::EMPTY, 0);
+            for k in (1..BINS).rev() {
+                acc = (acc.0.grow(bins[k].0), acc.1 + bins[k].1);
+                right[k] = (acc.0.half_area(), acc.1);
+            }
+            let mut left = (Bounds::EMPTY, 0);
+            for k in 0..BINS - 1 {
+                left = (left.0.grow(bins[k].0), left.1 + bins[k].1);
+                let (right_area, right_count) = right[k + 1];
+                if left.1 == 0 || right_count == 0 {
+                    continue;
+                }
+                let cost = left.0.half_area() * left.1 as f64 + right_area * right_count as f64;
+                if best.is_none_or(|(c, _, _)| cost < c) {
+                    best = Some((cost, axis, k));
+                }
+            }
+        }
+        let Some((_, axis, last)) = best else {
+            return self.median_split(order, span);
+        };
+        let mut cut = 0;
+        for k in 0..order.len() {
+            if bin_of(axis, order[k]) <= last {
+                order.swap(cut, k);
+                cut += 1;
+            }
+        }
+        cut
+    }
+
+    /// Cuts `order` at the median of its centroids along the widest axis of their `span`.
+    fn median_split(&self, order: &mut [u32], span: Bounds) -> usize {
+        let axis = (span.hi - span.lo).max_position();
+        let half = order.len() / 2;
+        order.select_nth_unstable_by(half, |&x, &y| {
+            self.centroids[x as usize][axis]
+                .total_cmp(&self.centroids[y as usize][axis])
+                .then(x.cmp(&y))
+        });
+        half
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    //! The tree must offer every triangle the exact test meets (common practice for conservative
+    //! traversal; the padding argument is Ize 2013, §3): checked against a loop over every triangle,
+    //! on grids where rays run exactly along box faces and edges and through shared vertices, near
+    //! the origin and a thousand kilometres from it.
+
+    use proptest::prelude::*;
+
+    use super::*;
+    use crate::query::ShearedRay;
+
+    /// Triangles with corners on an integer grid (so faces and edges line up with box faces and
+    /// with each other), scaled and moved; and the grid's points, for rays to start and end at.
+    fn grid_soup() -> impl Strategy<Value = (Vec<[DVec3; 3]>, Vec<DVec3>)> {
+        let corner = (0..5i32, 0..5i32, 0..5i32);
+        (
+            prop::collection::vec((corner.clone(), corner.clone(), corner), 1..120),
+            prop::sample::select(vec![0.0, 1e6, -3.7e4]),
+            prop::sample::select(vec![1.0, 0.25, 3.0]),
+        )
+            .prop_map(|(corners, offset, scale)| {
+                let place = |(x, y, z): (i32, i32, i32)| {
+                    DVec3::new(x as f64, y as f64, z as f64) * scale + DVec3::splat(offset)
+                };
+                let triangles = corners
+                    .into_iter()
+                    .map(|(a, b, c)| [place(a), place(b), place(c)])
+                    .collect();
+                let points = (0..125)
+                    .map(|k| place((k % 5, k / 5 % 5, k / 25)))
+                    .collect();
+                (triangles, points)
+            })
+    }
+
+    fn tree_of(triangles: &[[DVec3; 3]], leaf_size: usize) -> (RayTree, Vec<u32>) {
+        let lo = triangles
+            .iter()
+            .flatten()
+            .fold(DVec3::MAX, |a, &b| a.min(b));
+        let hi = triangles
+            .iter()
+            .flatten()
+            .fold(DVec3::MIN, |a, &b| a.max(b));
+        RayTree::new(RayFrame::around(lo, hi), triangles.len(), leaf_size, |i| {
+            let [a, b, c] = triangles[i as usize];
+            (a.min(b).min(c), a.max(b).max(c))
+        })
+    }
+
+    proptest! {
+        #![proptest_config(ProptestConfig::with_cases(300))]
+
+        #[test]
+        fn the_tree_offers_every_triangle_a_ray_meets(
+            (triangles, points) in grid_soup(),
+            leaf_size in 1usize..5,
+            ends in prop::collection::vec((0usize..125, 0usize..125, 0.0..1.5f64), 12),
+        ) {
+            let (tree, order) = tree_of(&triangles, leaf_size);
+            for (from, to, stretch) in ends {
+                let (from, to) = (points[from], points[to]);
+                if from == to {
+                    continue;
+                }
+                // Rays from grid point to grid point (along faces and edges, through vertices),
+                // some stopped short of or carried past the second point.
+                let len = from.distance(to) * stretch.max(0.5);
+                let dir = (to - from).normalize();
+                let exact = ShearedRay::new(from, dir);
+                let boxes = TreeRay::new(tree.frame(), from, dir);
+                let mut offered = vec![false; triangles.len()];
+                tree.nearest_first(&boxes, len, |range, reach| {
+                    for &i in &order[range] {
+                        offered[i as usize] = true;
+                    }
+                    reach
+                });
+                for (i, &[a, b, c]) in triangles.iter().enumerate() {
+                    if exact.intersect(a, b, c, len).is_some() {
+                        prop_assert!(offered[i], "triangle {i} met by {from} -> {to} but not offered");
+                    }
+                }
+                // The first-hit search (reach shrinking to just past the best) finds the same
+                // nearest distance as the loop over every triangle, and every triangle there.
+                let nearest = triangles
+                    .iter()
+                    .filter_map(|&[a, b, c]| exact.intersect(a, b, c, len))
+                    .fold(None, |m: Option<f64>, d| Some(m.map_or(d, |m| m.min(d))));
+                let mut best: Option<f64> = None;
+                let mut at_best = Vec::new();
+                tree.nearest_first(&boxes, len, |range, reach| {
+                    for &i in &order[range] {
+                        let [a, b, c] = triangles[i as usize];
+                        if let Some(d) = exact.intersect(a, b, c, reach) {
+                            if best.is_none_or(|b| d < b) {
+                                at_best.clear();
+                            }
+                            if best.is_none_or(|b| d <= b) {
+                                best = Some(d);
+                                at_best.push(i);
+                            }
+                        }
+                    }
+                    best.map_or(reach, |d| d.next_up().min(reach))
+                });
+                prop_assert_eq!(best, nearest);
+                if let Some(d) = nearest {
+                    let mut everywhere: Vec<u32> = (0..triangles.len() as u32)
+                        .filter(|&i| {
+                            let [a, b, c] = triangles[i as usize];
+                            exact.intersect(a, b, c, len) == Some(d)
+                        })
+                        .collect();
+                    at_best.sort_unstable();
+                    at_best.dedup();
+                    everywhere.sort_unstable();
+                    prop_assert_eq!(at_best, everywhere);
+                }
+            }
+        }
+    }
+
+    #[test]
+    fn a_ray_along_an_axis_through_shared_corners_is_offered_every_face_there() {
+        // Eight triangles fanned around the vertex (1, 1, 0) of a flat grid; a ray straight down the
+        // z axis through that vertex meets all of them (Woop et al. 2013: a vertex hit counts for
+        // every triangle that has it), and must be offered all of them.
+        let v = |x: f64, y: f64| DVec3::new(x, y, 0.0);
+        let centre = v(1.0, 1.0);
+        let ring = [
+            v(0.0, 0.0),
+            v(1.0, 0.0),
+            v(2.0, 0.0),
+            v(2.0, 1.0),
+            v(2.0, 2.0),
+            v(1.0, 2.0),
+            v(0.0, 2.0),
+            v(0.0, 1.0),
+        ];
+        let triangles: Vec<[DVec3; 3]> = (0..8)
+            .map(|k| [centre, ring[k], ring[(k + 1) % 8]])
+            .collect();
+        let (tree, order) = tree_of(&triangles, 1);
+        let dir = DVec3::NEG_Z;
+        let boxes = TreeRay::new(tree.frame(), DVec3::new(1.0, 1.0, 5.0), dir);
+        let mut offered = Vec::new();
+        tree.nearest_first(&boxes, 10.0, |range, reach| {
+            offered.extend_from_slice(&order[range]);
+            reach
+        });
+        offered.sort_unstable();
+        assert_eq!(offered, (0..8).collect::<Vec<u32>>());
+    }
+}
