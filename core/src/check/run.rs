@@ -45,6 +45,9 @@ impl Runner {
     ) -> Vec<(ProbeResult, Duration)> {
         let done = std::sync::atomic::AtomicUsize::new(done_before);
         self.pool.install(|| {
+            if probes.iter().any(|p| p.query.kind().casts_rays()) {
+                world.prepare_rays();
+            }
             probes
                 .par_iter()
                 .map(|probe| {

@@ -76,6 +76,19 @@ pub enum ProbeKind {
 }
 
 impl ProbeKind {
+    /// True for the kinds whose answers cast rays (ray probes, and sightlines, coverage, walks
+    /// and reach maps, which look for ground, walls and lines of sight with them).
+    pub fn casts_rays(self) -> bool {
+        matches!(
+            self,
+            ProbeKind::Ray
+                | ProbeKind::Sightlines
+                | ProbeKind::Coverage
+                | ProbeKind::Walk
+                | ProbeKind::Reach
+        )
+    }
+
     /// Every kind, in the order the documentation lists them.
     pub const ALL: [ProbeKind; 11] = [
         ProbeKind::Ray,

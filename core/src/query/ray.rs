@@ -77,8 +77,6 @@ struct Candidate {
     ordinal: u64,
     /// The triangle's corners (meshes only), to merge duplicates and count crossings.
     corners: Option<[DVec3; 3]>,
-    /// The hit lies on (or within a hair of) an edge or vertex of its triangle.
-    on_edge: bool,
 }
 
 impl Candidate {
@@ -215,7 +213,8 @@ impl View<'_> {
                     })
                     .count();
             let place = &candidates[start..end];
-            if place.len() == 1 && !place[0].on_edge {
+            let on_an_edge = |c: &Candidate| c.corners.is_some_and(|k| on_edge(c.hit.point, k));
+            if place.len() == 1 && !on_an_edge(&place[0]) {
                 hits.push(place[0].hit);
             } else {
                 self.crossings_at(place, &seg, &mut hits);
@@ -373,7 +372,6 @@ fn candidate(
         },
         ordinal: world.ordinal(body.object, number.unwrap_or(0)),
         corners: triangle.map(|(_, corners)| corners),
-        on_edge: triangle.is_some_and(|(_, corners)| on_edge(point, corners)),
     }
 }
 

@@ -4,6 +4,7 @@
 //! item). Built when a ray first needs it.
 
 use glam::DVec3;
+use rayon::prelude::*;
 
 use super::body::Body;
 use super::ray_tree::{RayFrame, RayTree, TreeRay};
@@ -42,27 +43,38 @@ pub(crate) struct RayIndex {
 impl RayIndex {
     /// The index of `bodies`, with coordinates measured in `frame`.
     pub fn new(frame: RayFrame, bodies: &[Body]) -> RayIndex {
-        let mut items = Vec::new();
-        for (index, body) in bodies.iter().enumerate() {
-            let body_index = index as u32;
+        // Item `i` belongs to the last body whose first item is at or before it.
+        let mut firsts = Vec::with_capacity(bodies.len());
+        let mut count = 0usize;
+        for body in bodies {
+            firsts.push(count);
+            count += body.mesh().map_or(1, |mesh| mesh.num_triangles());
+        }
+        let item = |i: u32| {
+            let index = firsts.partition_point(|&first| first <= i as usize) - 1;
+            let body = &bodies[index];
             match body.mesh() {
-                Some(mesh) => items.extend(mesh.triangles().enumerate().map(|(k, t)| RayItem {
-                    body: body_index,
-                    triangle: k as u32,
-                    corners: [t.a, t.b, t.c],
-                })),
-                None => items.push(RayItem {
-                    body: body_index,
+                Some(mesh) => {
+                    let triangle = (i as usize - firsts[index]) as u32;
+                    let t = mesh.triangle(triangle);
+                    RayItem {
+                        body: index as u32,
+                        triangle,
+                        corners: [t.a, t.b, t.c],
+                    }
+                }
+                None => RayItem {
+                    body: index as u32,
                     triangle: PRIMITIVE,
                     corners: [body.aabb.mins, body.aabb.maxs, body.aabb.mins],
-                }),
+                },
             }
-        }
-        let (tree, order) = RayTree::new(frame, items.len(), LEAF_ITEMS, |i| {
-            let [a, b, c] = items[i as usize].corners;
+        };
+        let (tree, order) = RayTree::new(frame, count, LEAF_ITEMS, |i| {
+            let [a, b, c] = item(i).corners;
             (a.min(b).min(c), a.max(b).max(c))
         });
-        let items = order.iter().map(|&i| items[i as usize]).collect();
+        let items = order.par_iter().map(|&i| item(i)).collect();
         RayIndex { tree, items }
     }
 

@@ -19,6 +19,7 @@
 use std::ops::Range;
 
 use glam::DVec3;
+use rayon::prelude::*;
 use wide::f32x4;
 
 /// Bins per axis of the surface-area heuristic.
@@ -30,6 +31,12 @@ const SAH_DEPTH: usize = 40;
 
 /// Room on the walk's stack: each node visited pushes at most four children and pops itself.
 const STACK: usize = 3 * (SAH_DEPTH + 32) / 2 + 4;
+
+/// Groups of more items than this are binned along one axis only.
+const ONE_AXIS_ITEMS: usize = 256;
+
+/// Subtrees of at least this many items are built on the thread pool, in parallel.
+const PARALLEL_ITEMS: usize = 1 << 15;
 
 /// How much a box test is padded beyond rounding, in metres (as the mesh BVH's box tests).
 const SLACK: f64 = 1e-7;
@@ -48,6 +55,16 @@ const LEAF_BIT: u32 = 1 << 31;
 /// triangles would need tens of gigabytes).
 const LEAF_START_BITS: u32 = 28;
 
+/// `child` of a subtree built on its own, once its nodes are appended `offset` places on.
+fn moved(child: Child, offset: u32) -> Child {
+    if child == EMPTY || child & LEAF_BIT != 0 {
+        child
+    } else {
+        child + offset
+    }
+}
+
+/// A leaf of `len` items from position `start` of the leaf order.
 fn leaf(start: usize, len: usize) -> Child {
     assert!(start < 1 << LEAF_START_BITS && len < 1 << (31 - LEAF_START_BITS));
     LEAF_BIT | (len as u32) << LEAF_START_BITS | start as u32
@@ -132,10 +149,21 @@ impl TreeRay {
             }) as f32
         };
         let (lo, hi) = (origin + pad, origin - pad);
+        let lanes = |v: DVec3| {
+            [
+                f32x4::splat(v.x as f32),
+                f32x4::splat(v.y as f32),
+                f32x4::splat(v.z as f32),
+            ]
+        };
         TreeRay {
-            from_lo: [lo.x, lo.y, lo.z].map(|x| f32x4::splat(x as f32)),
-            from_hi: [hi.x, hi.y, hi.z].map(|x| f32x4::splat(x as f32)),
-            inv_dir: [dir.x, dir.y, dir.z].map(|d| f32x4::splat(inv(d))),
+            from_lo: lanes(lo),
+            from_hi: lanes(hi),
+            inv_dir: [
+                f32x4::splat(inv(dir.x)),
+                f32x4::splat(inv(dir.y)),
+                f32x4::splat(inv(dir.z)),
+            ],
         }
     }
 
@@ -209,28 +237,25 @@ impl RayTree {
         frame: RayFrame,
         count: usize,
         leaf_size: usize,
-        bounds: impl Fn(u32) -> (DVec3, DVec3),
+        bounds: impl Fn(u32) -> (DVec3, DVec3) + Sync,
     ) -> (RayTree, Vec<u32>) {
         let boxes: Vec<Bounds> = (0..count as u32)
+            .into_par_iter()
             .map(|i| {
                 let (lo, hi) = bounds(i);
                 Bounds { lo, hi }
             })
             .collect();
-        let mut builder = Builder {
+        let builder = Builder {
             boxes: &boxes,
-            centroids: boxes.iter().map(|b| (b.lo + b.hi) * 0.5).collect(),
+            centroids: boxes.par_iter().map(|b| (b.lo + b.hi) * 0.5).collect(),
             center: frame.center,
             leaf_size,
-            nodes: Vec::new(),
         };
         let mut order: Vec<u32> = (0..count as u32).collect();
-        let root = builder.subtree(&mut order, 0, 0);
-        let tree = RayTree {
-            frame,
-            nodes: builder.nodes,
-            root,
-        };
+        let mut nodes = Vec::new();
+        let root = builder.subtree(&mut order, 0, 0, &mut nodes);
+        let tree = RayTree { frame, nodes, root };
         (tree, order)
     }
 
@@ -250,23 +275,26 @@ impl RayTree {
         mut leaf: impl FnMut(Range<usize>, f64) -> f64,
     ) {
         let mut reach = reach;
+        // The reach rounded up to `f32`: a box entered beyond it is entered beyond the reach.
+        let mut limit = up(reach);
         let mut stack = [(EMPTY, 0f32); STACK];
         stack[0] = (self.root, 0.0);
         let mut len = 1;
         while len > 0 {
             len -= 1;
             let (child, entry) = stack[len];
-            if f64::from(entry) > reach {
+            if entry > limit {
                 continue;
             }
             if child & LEAF_BIT != 0 {
                 let start = (child & ((1 << LEAF_START_BITS) - 1)) as usize;
                 let count = ((child & !LEAF_BIT) >> LEAF_START_BITS) as usize;
                 reach = leaf(start..start + count, reach);
+                limit = up(reach);
                 continue;
             }
             let node = &self.nodes[child as usize];
-            let (mut met, entries) = ray.entries(node, up(reach));
+            let (mut met, entries) = ray.entries(node, limit);
             // Pushed farthest first, so the nearest is popped next.
             let from = len;
             while met != 0 {
@@ -291,13 +319,18 @@ struct Builder<'a> {
     centroids: Vec<DVec3>,
     center: DVec3,
     leaf_size: usize,
-    nodes: Vec<WideNode>,
 }
 
 impl Builder<'_> {
     /// The subtree of the items `order` (which it reorders), whose first one sits at `start` in
     /// the tree's leaf order, `depth` binary splits below the root.
-    fn subtree(&mut self, order: &mut [u32], start: usize, depth: usize) -> Child {
+    fn subtree(
+        &self,
+        order: &mut [u32],
+        start: usize,
+        depth: usize,
+        nodes: &mut Vec<WideNode>,
+    ) -> Child {
         if order.len() <= self.leaf_size {
             return leaf(start, order.len());
         }
@@ -313,15 +346,8 @@ impl Builder<'_> {
                 groups.push((cut, to));
             }
         }
-        let index = self.nodes.len();
         let mut lo = [[f32::INFINITY; 4]; 3];
         let mut hi = [[f32::INFINITY; 4]; 3];
-        let mut children = [EMPTY; 4];
-        self.nodes.push(WideNode {
-            lo: lo.map(f32x4::from),
-            hi: hi.map(f32x4::from),
-            children,
-        });
         for (slot, &(from, to)) in groups.iter().enumerate() {
             let bounds = order[from..to]
                 .iter()
@@ -330,13 +356,48 @@ impl Builder<'_> {
                 lo[k][slot] = down(bounds.lo[k] - self.center[k]);
                 hi[k][slot] = up(bounds.hi[k] - self.center[k]);
             }
-            children[slot] = self.subtree(&mut order[from..to], start + from, depth + 2);
         }
-        self.nodes[index] = WideNode {
+        let index = nodes.len();
+        nodes.push(WideNode {
             lo: lo.map(f32x4::from),
             hi: hi.map(f32x4::from),
-            children,
-        };
+            children: [EMPTY; 4],
+        });
+        let parallel = order.len() >= PARALLEL_ITEMS;
+        // The groups as disjoint slices of `order`, with where each starts in the leaf order.
+        let mut parts: Vec<(&mut [u32], usize)> = Vec::with_capacity(4);
+        let mut rest = order;
+        for &(from, to) in &groups {
+            let (part, tail) = rest.split_at_mut(to - from);
+            parts.push((part, start + from));
+            rest = tail;
+        }
+        let mut children = [EMPTY; 4];
+        if parallel {
+            // Large subtrees are built on the pool's threads, each into its own nodes, then
+            // appended with their node indices moved.
+            let built: Vec<(Vec<WideNode>, Child)> = parts
+                .into_par_iter()
+                .map(|(part, at)| {
+                    let mut own = Vec::new();
+                    let root = self.subtree(part, at, depth + 2, &mut own);
+                    (own, root)
+                })
+                .collect();
+            for (slot, (own, root)) in built.into_iter().enumerate() {
+                let offset = nodes.len() as u32;
+                children[slot] = moved(root, offset);
+                nodes.extend(own.into_iter().map(|mut node| {
+                    node.children = node.children.map(|child| moved(child, offset));
+                    node
+                }));
+            }
+        } else {
+            for (slot, (part, at)) in parts.into_iter().enumerate() {
+                children[slot] = self.subtree(part, at, depth + 2, nodes);
+            }
+        }
+        nodes[index].children = children;
         index as Child
     }
 
@@ -357,7 +418,15 @@ impl Builder<'_> {
         };
         // (cost, axis, last bin of the first group)
         let mut best: Option<(f64, usize, usize)> = None;
-        for axis in 0..3 {
+        // Large groups are binned along their widest axis only, small ones along all three: the
+        // build time lies in the many items near the root, the tree's quality near its leaves.
+        let widest = (span.hi - span.lo).max_position();
+        let axes = if order.len() > ONE_AXIS_ITEMS {
+            widest..widest + 1
+        } else {
+            0..3
+        };
+        for axis in axes {
             if span.hi[axis] <= span.lo[axis] {
                 continue;
             }
@@ -532,6 +601,52 @@ mod tests {
                     at_best.dedup();
                     everywhere.sort_unstable();
                     prop_assert_eq!(at_best, everywhere);
+                }
+            }
+        }
+    }
+
+    #[test]
+    fn a_tree_built_in_parallel_offers_every_triangle_a_ray_meets() {
+        // Enough triangles that the top of the tree is built on the thread pool
+        // (PARALLEL_ITEMS), on a grid so that rays graze shared edges and vertices.
+        let mut state = 12345u64;
+        let mut next = |n: u64| {
+            state = state
+                .wrapping_mul(6364136223846793005)
+                .wrapping_add(1442695040888963407);
+            (state >> 33) % n
+        };
+        let mut corner = || DVec3::new(next(40) as f64, next(40) as f64, next(8) as f64) * 0.5;
+        let triangles: Vec<[DVec3; 3]> = (0..3 * PARALLEL_ITEMS)
+            .map(|_| [corner(), corner(), corner()])
+            .collect();
+        let (tree, order) = tree_of(&triangles, 4);
+        for _ in 0..200 {
+            let (from, to) = (corner(), corner());
+            if from == to {
+                continue;
+            }
+            let len = from.distance(to);
+            let dir = (to - from) / len;
+            let exact = ShearedRay::new(from, dir);
+            let mut offered = vec![false; triangles.len()];
+            tree.nearest_first(
+                &TreeRay::new(tree.frame(), from, dir),
+                len,
+                |range, reach| {
+                    for &i in &order[range] {
+                        offered[i as usize] = true;
+                    }
+                    reach
+                },
+            );
+            for (i, &[a, b, c]) in triangles.iter().enumerate() {
+                if exact.intersect(a, b, c, len).is_some() {
+                    assert!(
+                        offered[i],
+                        "triangle {i} met by {from} -> {to} but not offered"
+                    );
                 }
             }
         }

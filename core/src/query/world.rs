@@ -230,6 +230,13 @@ impl World {
         })
     }
 
+    /// Builds what rays walk (done anyway by the first ray that needs it): call it on the thread
+    /// pool that will answer, before answering rays in parallel, so that the build uses the pool's
+    /// threads rather than one while the others wait for it.
+    pub fn prepare_rays(&self) {
+        self.ray_index();
+    }
+
     /// The world's ray index, built on first use.
     pub(crate) fn ray_index(&self) -> &RayIndex {
         self.ray_index.get_or_init(|| {
