@@ -434,6 +434,8 @@ impl Answered {
         };
         let opened = open(path, &options)?;
         let results = opened.answer(None, &|_| {})?;
+        // The pointer picks with rays: build their index here, off the frame that first hovers.
+        opened.level.world.prepare_rays();
         let written = opened.probes.to_set()?;
         // The document lists every probe, the rules' included (they are not saved: their rules are).
         let probes = ProbeSet {
