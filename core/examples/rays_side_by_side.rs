@@ -1,8 +1,8 @@
 //! The rays of the side-by-side benchmark (`benches/side-by-side`): writes a level's triangles and
-//! 200,000 first-hit rays for the anchor (Embree, through `benches/anchor_rays.py`), answers the same
-//! rays with Plumbline on one and two threads (fastest of five runs each, after building the ray
-//! index, as the anchor's first call builds its BVH), and writes its answers
-//! so the script can compare them ray by ray.
+//! 200,000 rays for the anchor (Embree, through `benches/anchor_rays.py`), answers the same rays
+//! with Plumbline, first hits then every hit, on one and two threads (fastest of five runs each,
+//! after building the ray index, as the anchor's first call builds its BVH), and writes its
+//! answers so the script can compare them ray by ray.
 //!
 //! `cargo run --release -p plumbline-core --example rays_side_by_side -- OUT_DIR [demo|1m]`
 
@@ -54,12 +54,19 @@ fn main() {
     }
     let world = World::new(&level).expect("the world");
     let view = world.everything();
-    let answer = |(from, to): &(glam::DVec3, glam::DVec3)| {
+    let first = |(from, to): &(glam::DVec3, glam::DVec3)| {
         view.ray_first(*from, *to)
             .unwrap()
             .map_or(f64::NAN, |h| h.distance)
     };
-    let timed = |threads: usize| {
+    let every =
+        |(from, to): &(glam::DVec3, glam::DVec3)| view.ray_all(*from, *to).unwrap().len() as u32;
+    // The fastest of five runs on `threads` threads, and the answers.
+    fn timed<T: Send>(
+        threads: usize,
+        rays: &[(glam::DVec3, glam::DVec3)],
+        answer: &(dyn Fn(&(glam::DVec3, glam::DVec3)) -> T + Sync),
+    ) -> (f64, Vec<T>) {
         let pool = rayon::ThreadPoolBuilder::new()
             .num_threads(threads)
             .build()
@@ -68,12 +75,12 @@ fn main() {
         let mut answers = Vec::new();
         for _ in 0..5 {
             let started = Instant::now();
-            answers = pool.install(|| rays.par_iter().map(answer).collect::<Vec<f64>>());
+            answers = pool.install(|| rays.par_iter().map(answer).collect::<Vec<T>>());
             seconds.push(started.elapsed().as_secs_f64());
         }
         seconds.sort_by(f64::total_cmp);
         (seconds[0], answers)
-    };
+    }
     // The ray index is built once, before the first ray (as the anchor's first call builds its
     // BVH); timed here on one thread.
     let started = Instant::now();
@@ -83,23 +90,34 @@ fn main() {
         .unwrap()
         .install(|| world.prepare_rays());
     let build = started.elapsed().as_secs_f64();
-    let (one, answers) = timed(1);
-    let (two, _) = timed(2);
+    let (one, answers) = timed(1, &rays, &first);
+    let (two, _) = timed(2, &rays, &first);
+    let (all_one, counts) = timed(1, &rays, &every);
+    let (all_two, _) = timed(2, &rays, &every);
     let mut file = std::fs::File::create(out.join("plumbline.f64")).unwrap();
     for d in &answers {
         file.write_all(&d.to_le_bytes()).unwrap();
     }
+    let mut file = std::fs::File::create(out.join("plumbline_all.u32")).unwrap();
+    for n in &counts {
+        file.write_all(&n.to_le_bytes()).unwrap();
+    }
     let summary = serde_json::json!({
         "level": which, "triangles": triangles, "rays": RAYS,
         "seconds_1_thread": one, "seconds_2_threads": two, "index_seconds": build,
+        "all_seconds_1_thread": all_one, "all_seconds_2_threads": all_two,
     });
     std::fs::write(out.join("plumbline.json"), summary.to_string()).unwrap();
+    let rate = |seconds: f64| RAYS as f64 / seconds / 1e6;
     println!(
-        "Plumbline: {triangles} triangles, {RAYS} first-hit rays: {:.2} M rays/s on one thread, \
-         {:.2} M rays/s on two ({:.2}x); ray index built in {build:.2} s on one thread",
-        RAYS as f64 / one / 1e6,
-        RAYS as f64 / two / 1e6,
-        one / two
+        "Plumbline: {triangles} triangles, {RAYS} rays; first hit {:.2} M rays/s on one thread, \
+         {:.2} on two ({:.2}x); all hits {:.2} on one, {:.2} on two; ray index built in \
+         {build:.2} s on one thread",
+        rate(one),
+        rate(two),
+        one / two,
+        rate(all_one),
+        rate(all_two),
     );
 }
 
