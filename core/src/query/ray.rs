@@ -103,38 +103,41 @@ impl View<'_> {
         let mut best: Option<(f64, &Body, Found)> = None;
         index.nearest_first(&boxes, seg.len, |items, reach| {
             for item in items {
-                let Some(body) = self.body(item.body) else {
-                    continue;
-                };
-                let Some(tri) = item.triangle() else {
-                    let Some(hit) = primitive_crossings(self.world, body, &seg, &ray)
-                        .into_iter()
-                        .flatten()
-                        .find(|h| h.hit.distance <= reach)
-                    else {
-                        continue;
-                    };
-                    let better = best.as_ref().is_none_or(|(d, other, found)| {
-                        hit.hit.distance < *d
-                            || (hit.hit.distance == *d
-                                && hit.ordinal < found.ordinal(other, &ordinal))
-                    });
-                    if better {
-                        best = Some((hit.hit.distance, body, Found::Primitive(hit)));
+                // The triangle test first: most items are missed, and need no body.
+                let (distance, body, found) = match item.triangle() {
+                    Some(tri) => {
+                        let [a, b, c] = item.corners;
+                        let Some(distance) = sheared.intersect(a, b, c, reach) else {
+                            continue;
+                        };
+                        let Some(body) = self.body(item.body) else {
+                            continue;
+                        };
+                        (distance, body, Found::Triangle(tri, item.corners))
                     }
-                    continue;
-                };
-                let [a, b, c] = item.corners;
-                let Some(distance) = sheared.intersect(a, b, c, reach) else {
-                    continue;
+                    None => {
+                        let Some(body) = self.body(item.body) else {
+                            continue;
+                        };
+                        let crossings = primitive_crossings(self.world, body, &seg, &ray);
+                        let Some(hit) = crossings
+                            .into_iter()
+                            .flatten()
+                            .find(|h| h.hit.distance <= reach)
+                        else {
+                            continue;
+                        };
+                        (hit.hit.distance, body, Found::Primitive(hit))
+                    }
                 };
                 // File order is only asked where two surfaces meet the ray at the same distance.
-                let better = best.as_ref().is_none_or(|(d, other, found)| {
+                let better = best.as_ref().is_none_or(|(d, other, old)| {
                     distance < *d
-                        || (distance == *d && ordinal(body, tri) < found.ordinal(other, &ordinal))
+                        || (distance == *d
+                            && found.ordinal(body, &ordinal) < old.ordinal(other, &ordinal))
                 });
                 if better {
-                    best = Some((distance, body, Found::Triangle(tri, item.corners)));
+                    best = Some((distance, body, found));
                 }
             }
             // The next float above the best, so that ties at its distance are still seen.
