@@ -51,8 +51,8 @@ const EMPTY: Child = u32::MAX;
 /// Marks a slot that holds a leaf.
 const LEAF_BIT: u32 = 1 << 31;
 
-/// Bits of a leaf's first item: a tree holds fewer than 2²⁸ items (a mesh body of that many
-/// triangles would need tens of gigabytes).
+/// Bits of a leaf's first item: a tree holds fewer than 2²⁸ items (the loaders refuse levels of
+/// more than [`crate::input::MAX_TRIANGLES`], twenty million, triangles).
 const LEAF_START_BITS: u32 = 28;
 
 /// `child` of a subtree built on its own, once its nodes are appended `offset` places on.
