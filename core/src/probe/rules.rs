@@ -94,9 +94,9 @@ pub enum Template {
     /// The object, let go as a rigid body where it is, comes to rest at most `max_move` metres away
     /// and turned at most `max_turn` degrees.
     Settles {
-        /// Metres (default [`SETTLE_MOVE`]).
+        /// Metres (default `SETTLE_MOVE`).
         max_move: f64,
-        /// Degrees (default [`SETTLE_TURN`]).
+        /// Degrees (default `SETTLE_TURN`).
         max_turn: f64,
     },
     /// Any probe, with anchors for points.
@@ -104,7 +104,7 @@ pub enum Template {
         /// The template parsed with every anchor at the origin.
         probe: Box<Probe>,
         /// Which of the probe's points are anchored (by their index in
-        /// [`ProbeQuery::points`]), and how.
+        /// [`ProbeQuery::points`](super::model::ProbeQuery::points)), and how.
         anchors: Vec<(usize, Anchor)>,
     },
 }
