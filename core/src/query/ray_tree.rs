@@ -195,37 +195,48 @@ fn up(x: f64) -> f32 {
     if f64::from(y) < x { y.next_up() } else { y }
 }
 
-/// A box in `f64` during building.
+/// A box during building: `f32` lanes x, y, z (the fourth kept at 0) measured from the frame's
+/// centre, rounded outwards, so that a union of item boxes holds everything the items hold.
 #[derive(Debug, Clone, Copy)]
 struct Bounds {
-    lo: DVec3,
-    hi: DVec3,
+    lo: f32x4,
+    hi: f32x4,
 }
 
 impl Bounds {
     const EMPTY: Bounds = Bounds {
-        lo: DVec3::splat(f64::INFINITY),
-        hi: DVec3::splat(f64::NEG_INFINITY),
+        lo: f32x4::new([f32::INFINITY, f32::INFINITY, f32::INFINITY, 0.0]),
+        hi: f32x4::new([f32::NEG_INFINITY, f32::NEG_INFINITY, f32::NEG_INFINITY, 0.0]),
     };
 
-    fn grow(self, other: Bounds) -> Bounds {
+    /// The box `lo ..= hi` (in level coordinates) measured from `center`, rounded outwards.
+    fn around(lo: DVec3, hi: DVec3, center: DVec3) -> Bounds {
+        let (lo, hi) = (lo - center, hi - center);
         Bounds {
-            lo: self.lo.min(other.lo),
-            hi: self.hi.max(other.hi),
+            lo: f32x4::new([down(lo.x), down(lo.y), down(lo.z), 0.0]),
+            hi: f32x4::new([up(hi.x), up(hi.y), up(hi.z), 0.0]),
         }
     }
 
-    fn add(self, p: DVec3) -> Bounds {
+    fn grow(self, other: Bounds) -> Bounds {
         Bounds {
-            lo: self.lo.min(p),
-            hi: self.hi.max(p),
+            lo: self.lo.fast_min(other.lo),
+            hi: self.hi.fast_max(other.hi),
+        }
+    }
+
+    fn add(self, p: f32x4) -> Bounds {
+        Bounds {
+            lo: self.lo.fast_min(p),
+            hi: self.hi.fast_max(p),
         }
     }
 
     /// Half the surface area (0 for an empty box).
     fn half_area(self) -> f64 {
-        let d = (self.hi - self.lo).max(DVec3::ZERO);
-        d.x * d.y + d.y * d.z + d.z * d.x
+        let [x, y, z, _] = (self.hi - self.lo).fast_max(f32x4::ZERO).to_array();
+        let (x, y, z) = (f64::from(x), f64::from(y), f64::from(z));
+        x * y + y * z + z * x
     }
 }
 
@@ -243,13 +254,12 @@ impl RayTree {
             .into_par_iter()
             .map(|i| {
                 let (lo, hi) = bounds(i);
-                Bounds { lo, hi }
+                Bounds::around(lo, hi, frame.center)
             })
             .collect();
         let builder = Builder {
             boxes: &boxes,
             centroids: boxes.par_iter().map(|b| (b.lo + b.hi) * 0.5).collect(),
-            center: frame.center,
             leaf_size,
         };
         let mut order: Vec<u32> = (0..count as u32).collect();
@@ -316,8 +326,7 @@ impl RayTree {
 /// The state of one build: every triangle's box and centroid, and the nodes made so far.
 struct Builder<'a> {
     boxes: &'a [Bounds],
-    centroids: Vec<DVec3>,
-    center: DVec3,
+    centroids: Vec<f32x4>,
     leaf_size: usize,
 }
 
@@ -352,9 +361,10 @@ impl Builder<'_> {
             let bounds = order[from..to]
                 .iter()
                 .fold(Bounds::EMPTY, |acc, &t| acc.grow(self.boxes[t as usize]));
+            let (bounds_lo, bounds_hi) = (bounds.lo.to_array(), bounds.hi.to_array());
             for k in 0..3 {
-                lo[k][slot] = down(bounds.lo[k] - self.center[k]);
-                hi[k][slot] = up(bounds.hi[k] - self.center[k]);
+                lo[k][slot] = bounds_lo[k];
+                hi[k][slot] = bounds_hi[k];
             }
         }
         let index = nodes.len();
@@ -411,31 +421,50 @@ impl Builder<'_> {
         if depth >= SAH_DEPTH {
             return self.median_split(order, span);
         }
-        let bin_of = |axis: usize, t: u32| {
-            let (lo, hi) = (span.lo[axis], span.hi[axis]);
-            let bin = (self.centroids[t as usize][axis] - lo) * (BINS as f64 / (hi - lo));
-            (bin as usize).min(BINS - 1)
+        let (span_lo, span_hi) = (span.lo.to_array(), span.hi.to_array());
+        let scale = f32x4::new([0, 1, 2, 3].map(|k| {
+            if k < 3 && span_hi[k] > span_lo[k] {
+                BINS as f32 / (span_hi[k] - span_lo[k])
+            } else {
+                0.0
+            }
+        }));
+        // Every axis's bin of item `t` (the same arithmetic for binning and for partitioning).
+        let last_bin = f32x4::splat((BINS - 1) as f32);
+        let bins_of = |t: u32| {
+            let at = (self.centroids[t as usize] - span.lo) * scale;
+            // In 0 ..= BINS - 1 (a centroid is never below the span), so truncation is exact.
+            at.fast_min(last_bin).fast_trunc_int().to_array()
         };
-        // (cost, axis, last bin of the first group)
-        let mut best: Option<(f64, usize, usize)> = None;
+        let bin = |x: i32| x as usize;
         // Large groups are binned along their widest axis only, small ones along all three: the
         // build time lies in the many items near the root, the tree's quality near its leaves.
-        let widest = (span.hi - span.lo).max_position();
-        let axes = if order.len() > ONE_AXIS_ITEMS {
-            widest..widest + 1
+        let extent = (span.hi - span.lo).to_array();
+        let widest = (0..3)
+            .max_by(|&a, &b| extent[a].total_cmp(&extent[b]).then(b.cmp(&a)))
+            .unwrap_or(0);
+        let axes: &[usize] = if order.len() > ONE_AXIS_ITEMS {
+            &[widest]
         } else {
-            0..3
+            &[0, 1, 2]
         };
-        for axis in axes {
-            if span.hi[axis] <= span.lo[axis] {
+        let mut bins = [[(Bounds::EMPTY, 0usize); BINS]; 3];
+        for &t in order.iter() {
+            let at = bins_of(t);
+            let item = self.boxes[t as usize];
+            for &axis in axes {
+                let slot = &mut bins[axis][bin(at[axis])];
+                slot.0 = slot.0.grow(item);
+                slot.1 += 1;
+            }
+        }
+        // (cost, axis, last bin of the first group)
+        let mut best: Option<(f64, usize, usize)> = None;
+        for &axis in axes {
+            if span_hi[axis] <= span_lo[axis] {
                 continue;
             }
-            let mut bins = [(Bounds::EMPTY, 0usize); BINS];
-            for &t in order.iter() {
-                let bin = &mut bins[bin_of(axis, t)];
-                bin.0 = bin.0.grow(self.boxes[t as usize]);
-                bin.1 += 1;
-            }
+            let bins = &bins[axis];
             // Cost of cutting after bin `k`: area × count on each side.
             let mut right = [(0.0, 0usize); BINS];
             let mut acc = (Bounds::EMPTY, 0);
@@ -461,7 +490,7 @@ impl Builder<'_> {
         };
         let mut cut = 0;
         for k in 0..order.len() {
-            if bin_of(axis, order[k]) <= last {
+            if bin(bins_of(order[k])[axis]) <= last {
                 order.swap(cut, k);
                 cut += 1;
             }
@@ -471,13 +500,13 @@ impl Builder<'_> {
 
     /// Cuts `order` at the median of its centroids along the widest axis of their `span`.
     fn median_split(&self, order: &mut [u32], span: Bounds) -> usize {
-        let axis = (span.hi - span.lo).max_position();
+        let extent = (span.hi - span.lo).to_array();
+        let axis = (0..3)
+            .max_by(|&a, &b| extent[a].total_cmp(&extent[b]).then(b.cmp(&a)))
+            .unwrap_or(0);
         let half = order.len() / 2;
-        order.select_nth_unstable_by(half, |&x, &y| {
-            self.centroids[x as usize][axis]
-                .total_cmp(&self.centroids[y as usize][axis])
-                .then(x.cmp(&y))
-        });
+        let key = |t: u32| self.centroids[t as usize].to_array()[axis];
+        order.select_nth_unstable_by(half, |&x, &y| key(x).total_cmp(&key(y)).then(x.cmp(&y)));
         half
     }
 }
