@@ -250,23 +250,24 @@ impl RayTree {
         leaf_size: usize,
         bounds: impl Fn(u32) -> (DVec3, DVec3) + Sync,
     ) -> (RayTree, Vec<u32>) {
-        let boxes: Vec<Bounds> = (0..count as u32)
+        // Records, not indices, are partitioned: the build then reads memory in order.
+        let mut items: Vec<BuildItem> = (0..count as u32)
             .into_par_iter()
-            .map(|i| {
-                let (lo, hi) = bounds(i);
-                Bounds::around(lo, hi, frame.center)
+            .map(|id| {
+                let (lo, hi) = bounds(id);
+                let bounds = Bounds::around(lo, hi, frame.center);
+                BuildItem {
+                    bounds,
+                    centroid: (bounds.lo + bounds.hi) * 0.5,
+                    id,
+                }
             })
             .collect();
-        let builder = Builder {
-            boxes: &boxes,
-            centroids: boxes.par_iter().map(|b| (b.lo + b.hi) * 0.5).collect(),
-            leaf_size,
-        };
-        let mut order: Vec<u32> = (0..count as u32).collect();
+        let builder = Builder { leaf_size };
         let mut nodes = Vec::new();
-        let root = builder.subtree(&mut order, 0, 0, &mut nodes);
+        let root = builder.subtree(&mut items, 0, 0, &mut nodes);
         let tree = RayTree { frame, nodes, root };
-        (tree, order)
+        (tree, items.into_iter().map(|item| item.id).collect())
     }
 
     /// The frame the tree's coordinates are measured in.
@@ -323,19 +324,25 @@ impl RayTree {
     }
 }
 
-/// The state of one build: every triangle's box and centroid, and the nodes made so far.
-struct Builder<'a> {
-    boxes: &'a [Bounds],
-    centroids: Vec<f32x4>,
+/// One item during a build: its box, its centroid, and its index.
+#[derive(Debug, Clone, Copy)]
+struct BuildItem {
+    bounds: Bounds,
+    centroid: f32x4,
+    id: u32,
+}
+
+/// How a build makes leaves.
+struct Builder {
     leaf_size: usize,
 }
 
-impl Builder<'_> {
+impl Builder {
     /// The subtree of the items `order` (which it reorders), whose first one sits at `start` in
     /// the tree's leaf order, `depth` binary splits below the root.
     fn subtree(
         &self,
-        order: &mut [u32],
+        order: &mut [BuildItem],
         start: usize,
         depth: usize,
         nodes: &mut Vec<WideNode>,
@@ -360,7 +367,7 @@ impl Builder<'_> {
         for (slot, &(from, to)) in groups.iter().enumerate() {
             let bounds = order[from..to]
                 .iter()
-                .fold(Bounds::EMPTY, |acc, &t| acc.grow(self.boxes[t as usize]));
+                .fold(Bounds::EMPTY, |acc, item| acc.grow(item.bounds));
             let (bounds_lo, bounds_hi) = (bounds.lo.to_array(), bounds.hi.to_array());
             for k in 0..3 {
                 lo[k][slot] = bounds_lo[k];
@@ -375,7 +382,7 @@ impl Builder<'_> {
         });
         let parallel = order.len() >= PARALLEL_ITEMS;
         // The groups as disjoint slices of `order`, with where each starts in the leaf order.
-        let mut parts: Vec<(&mut [u32], usize)> = Vec::with_capacity(4);
+        let mut parts: Vec<(&mut [BuildItem], usize)> = Vec::with_capacity(4);
         let mut rest = order;
         for &(from, to) in &groups {
             let (part, tail) = rest.split_at_mut(to - from);
@@ -414,10 +421,10 @@ impl Builder<'_> {
     /// Reorders `order` into two non-empty groups, `depth` binary splits below the root: by the
     /// binned surface-area heuristic over the three axes, or below [`SAH_DEPTH`] (or where the
     /// centroids coincide) at the median of the widest axis; returns the size of the first.
-    fn split(&self, order: &mut [u32], depth: usize) -> usize {
+    fn split(&self, order: &mut [BuildItem], depth: usize) -> usize {
         let span = order
             .iter()
-            .fold(Bounds::EMPTY, |acc, &t| acc.add(self.centroids[t as usize]));
+            .fold(Bounds::EMPTY, |acc, item| acc.add(item.centroid));
         if depth >= SAH_DEPTH {
             return self.median_split(order, span);
         }
@@ -431,8 +438,8 @@ impl Builder<'_> {
         }));
         // Every axis's bin of item `t` (the same arithmetic for binning and for partitioning).
         let last_bin = f32x4::splat((BINS - 1) as f32);
-        let bins_of = |t: u32| {
-            let at = (self.centroids[t as usize] - span.lo) * scale;
+        let bins_of = |item: &BuildItem| {
+            let at = (item.centroid - span.lo) * scale;
             // In 0 ..= BINS - 1 (a centroid is never below the span), so truncation is exact.
             at.fast_min(last_bin).fast_trunc_int().to_array()
         };
@@ -449,12 +456,11 @@ impl Builder<'_> {
             &[0, 1, 2]
         };
         let mut bins = [[(Bounds::EMPTY, 0usize); BINS]; 3];
-        for &t in order.iter() {
-            let at = bins_of(t);
-            let item = self.boxes[t as usize];
+        for item in order.iter() {
+            let at = bins_of(item);
             for &axis in axes {
                 let slot = &mut bins[axis][bin(at[axis])];
-                slot.0 = slot.0.grow(item);
+                slot.0 = slot.0.grow(item.bounds);
                 slot.1 += 1;
             }
         }
@@ -490,7 +496,7 @@ impl Builder<'_> {
         };
         let mut cut = 0;
         for k in 0..order.len() {
-            if bin(bins_of(order[k])[axis]) <= last {
+            if bin(bins_of(&order[k])[axis]) <= last {
                 order.swap(cut, k);
                 cut += 1;
             }
@@ -499,14 +505,14 @@ impl Builder<'_> {
     }
 
     /// Cuts `order` at the median of its centroids along the widest axis of their `span`.
-    fn median_split(&self, order: &mut [u32], span: Bounds) -> usize {
+    fn median_split(&self, order: &mut [BuildItem], span: Bounds) -> usize {
         let extent = (span.hi - span.lo).to_array();
         let axis = (0..3)
             .max_by(|&a, &b| extent[a].total_cmp(&extent[b]).then(b.cmp(&a)))
             .unwrap_or(0);
         let half = order.len() / 2;
-        let key = |t: u32| self.centroids[t as usize].to_array()[axis];
-        order.select_nth_unstable_by(half, |&x, &y| key(x).total_cmp(&key(y)).then(x.cmp(&y)));
+        let key = |item: &BuildItem| item.centroid.to_array()[axis];
+        order.select_nth_unstable_by(half, |x, y| key(x).total_cmp(&key(y)).then(x.id.cmp(&y.id)));
         half
     }
 }
