@@ -114,6 +114,8 @@ pub(crate) struct RayTree {
     nodes: Vec<WideNode>,
     /// The whole tree: a node, or one leaf when the items fit in one.
     root: Child,
+    /// How many items it holds.
+    count: usize,
 }
 
 /// A ray prepared for the trees of one frame: its origin relative to the frame's centre, moved by
@@ -124,6 +126,9 @@ pub(crate) struct TreeRay {
     /// Origin − pad on every axis: where the boxes' high sides are measured from.
     from_hi: [f32x4; 3],
     inv_dir: [f32x4; 3],
+    /// The ray starts too far away for finite `f32` box tests (beyond ~1e30 m), which the padding
+    /// argument needs: every item is offered instead.
+    beyond_f32: bool,
 }
 
 impl TreeRay {
@@ -139,6 +144,7 @@ impl TreeRay {
     pub fn new(frame: RayFrame, from: DVec3, dir: DVec3) -> TreeRay {
         let origin = from - frame.center;
         let m = frame.extent + origin.abs().max_element();
+        let beyond_f32 = m.is_nan() || m >= 1e30;
         let pad = m * (1.0 / 524_288.0) + SLACK;
         let inv = |d: f64| {
             let inv = 1.0 / d;
@@ -164,6 +170,7 @@ impl TreeRay {
                 f32x4::splat(inv(dir.y)),
                 f32x4::splat(inv(dir.z)),
             ],
+            beyond_f32,
         }
     }
 
@@ -266,7 +273,12 @@ impl RayTree {
         let builder = Builder { leaf_size };
         let mut nodes = Vec::new();
         let root = builder.subtree(&mut items, 0, 0, &mut nodes);
-        let tree = RayTree { frame, nodes, root };
+        let tree = RayTree {
+            frame,
+            nodes,
+            root,
+            count,
+        };
         (tree, items.into_iter().map(|item| item.id).collect())
     }
 
@@ -285,6 +297,10 @@ impl RayTree {
         reach: f64,
         mut leaf: impl FnMut(Range<usize>, f64) -> f64,
     ) {
+        if ray.beyond_f32 {
+            leaf(0..self.count, reach);
+            return;
+        }
         let mut reach = reach;
         // The reach rounded up to `f32`: a box entered beyond it is entered beyond the reach.
         let mut limit = up(reach);
@@ -685,6 +701,28 @@ mod tests {
                 }
             }
         }
+    }
+
+    #[test]
+    fn a_ray_from_beyond_f32_range_is_offered_every_triangle() {
+        // From 1e40 m away the ray's origin is beyond f32 (the f64 triangle test still works):
+        // the padding argument needs finite lanes, so the tree offers every item instead.
+        let triangles = vec![[DVec3::ZERO, DVec3::X, DVec3::Y]; 5];
+        let (tree, order) = tree_of(&triangles, 4);
+        let from = DVec3::new(0.25, 0.25, 1e40);
+        let boxes = TreeRay::new(tree.frame(), from, DVec3::NEG_Z);
+        let mut offered = Vec::new();
+        tree.nearest_first(&boxes, 2e40, |range, reach| {
+            offered.extend_from_slice(&order[range]);
+            reach
+        });
+        offered.sort_unstable();
+        assert_eq!(offered, (0..5).collect::<Vec<u32>>());
+        assert!(
+            ShearedRay::new(from, DVec3::NEG_Z)
+                .intersect(DVec3::ZERO, DVec3::X, DVec3::Y, 2e40)
+                .is_some()
+        );
     }
 
     #[test]
