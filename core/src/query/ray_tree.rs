@@ -38,7 +38,8 @@ const ONE_AXIS_ITEMS: usize = 256;
 /// Subtrees of at least this many items are built on the thread pool, in parallel.
 const PARALLEL_ITEMS: usize = 1 << 15;
 
-/// How much a box test is padded beyond rounding, in metres (as the mesh BVH's box tests).
+/// How much a box test is padded beyond rounding, in metres (a tenth of a micrometre, far below
+/// any modelled detail).
 const SLACK: f64 = 1e-7;
 
 /// A child slot: [`EMPTY`], a node index, or a leaf ([`LEAF_BIT`] set; its first item in
@@ -78,11 +79,11 @@ struct WideNode {
     children: [Child; 4],
 }
 
-/// Where a world's ray trees measure their `f32` coordinates from: one frame for the world's tree
-/// and its meshes' trees, so one [`TreeRay`] serves a whole ray.
+/// Where a ray tree measures its `f32` coordinates from: the centre of what it holds, and how far
+/// from it anything lies (which sizes the box tests' padding).
 #[derive(Debug, Clone, Copy)]
 pub(crate) struct RayFrame {
-    /// The coordinates' origin: the centre of the world's box.
+    /// The coordinates' origin: the centre of the items' box.
     center: DVec3,
     /// The largest magnitude of any coordinate relative to `center`, with a hair to spare.
     extent: f64,
@@ -118,8 +119,8 @@ pub(crate) struct RayTree {
     count: usize,
 }
 
-/// A ray prepared for the trees of one frame: its origin relative to the frame's centre, moved by
-/// the pad, and its inverse direction, in `f32` lanes.
+/// A ray prepared for a tree's frame: its origin relative to the frame's centre, moved by the pad,
+/// and its inverse direction, in `f32` lanes.
 pub(crate) struct TreeRay {
     /// Origin + pad on every axis: where the boxes' low sides are measured from.
     from_lo: [f32x4; 3],
