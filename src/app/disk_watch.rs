@@ -39,9 +39,13 @@ impl DiskWatch {
     /// True when the files should be looked at now: a watched file was touched since the last call,
     /// or, without a watcher, [`POLL`] has passed. Watches `files` (again when they are not those
     /// watched), waking `ctx` when one changes.
-    pub fn due(&mut self, ctx: &egui::Context, files: &[PathBuf]) -> bool {
-        if self.files != files {
-            self.start(ctx, files);
+    pub fn due<'a>(
+        &mut self,
+        ctx: &egui::Context,
+        files: impl Iterator<Item = &'a Path> + Clone,
+    ) -> bool {
+        if !self.files.iter().map(PathBuf::as_path).eq(files.clone()) {
+            self.start(ctx, files.map(Path::to_path_buf).collect());
         }
         if self.watcher.is_some() {
             return self.touched.swap(false, Ordering::Relaxed);
@@ -54,8 +58,7 @@ impl DiskWatch {
         false
     }
 
-    fn start(&mut self, ctx: &egui::Context, files: &[PathBuf]) {
-        self.files = files.to_vec();
+    fn start(&mut self, ctx: &egui::Context, files: Vec<PathBuf>) {
         let touched = self.touched.clone();
         let wake = ctx.clone();
         let wanted: Vec<PathBuf> = files.iter().map(|f| absolute(f)).collect();
@@ -76,6 +79,7 @@ impl DiskWatch {
                 .all(|folder| w.watch(folder, RecursiveMode::NonRecursive).is_ok())
                 .then_some(w)
         });
+        self.files = files;
     }
 }
 

@@ -368,15 +368,14 @@ impl Document {
     }
 
     /// The files the level was read from.
-    pub fn level_files(&self) -> Vec<PathBuf> {
-        self.stamps.iter().map(|(p, _)| p.clone()).collect()
+    pub fn level_files(&self) -> impl Iterator<Item = &Path> + Clone {
+        self.stamps.iter().map(|(p, _)| p.as_path())
     }
 
     /// True when the level file, or a geometry file beside it, changed on disk since it was loaded
     /// (so the answers on screen may no longer hold).
     pub fn level_changed_on_disk(&self) -> bool {
-        let files: Vec<PathBuf> = self.stamps.iter().map(|(p, _)| p.clone()).collect();
-        stamps(&files) != self.stamps
+        self.stamps.iter().any(|(p, stamp)| modified(p) != *stamp)
     }
 
     /// The three corners of a triangle of an object's mesh, by object name and the triangle's number
@@ -488,15 +487,12 @@ fn level_reference(probes_path: &Path, level_path: &Path) -> String {
 
 /// Modification times of the files a level was read from.
 fn stamps(files: &[PathBuf]) -> Vec<(PathBuf, Option<SystemTime>)> {
-    files
-        .iter()
-        .map(|p| {
-            (
-                p.clone(),
-                std::fs::metadata(p).and_then(|m| m.modified()).ok(),
-            )
-        })
-        .collect()
+    files.iter().map(|p| (p.clone(), modified(p))).collect()
+}
+
+/// When a file was last modified (`None` when it cannot be read).
+fn modified(path: &Path) -> Option<SystemTime> {
+    std::fs::metadata(path).and_then(|m| m.modified()).ok()
 }
 
 #[cfg(test)]

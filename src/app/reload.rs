@@ -21,7 +21,7 @@ impl Workbench {
                 Err(e) => self.reload_error = Some(e),
             }
         } else if !self.reload.is_running()
-            && self.disk.due(ctx, &self.document.level_files())
+            && self.disk.due(ctx, self.document.level_files())
             && self.document.level_changed_on_disk()
         {
             // Loading a big level takes seconds: in the background, saying so meanwhile.
