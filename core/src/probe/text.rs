@@ -126,16 +126,14 @@ impl ProbeText {
             }
         }
         // A batch at a time, parsed on the current thread pool; the first error in file order wins.
-        for batch in (0..self.spans.len())
-            .collect::<Vec<_>>()
-            .chunks(PARSE_BATCH)
-        {
-            for (k, parsed) in batch.iter().zip(self.parse_each(batch)) {
+        for start in (0..self.spans.len()).step_by(PARSE_BATCH) {
+            let batch = start..(start + PARSE_BATCH).min(self.spans.len());
+            for (k, parsed) in batch.clone().zip(self.parse_each(batch)) {
                 let id = parsed?.id;
                 longest = longest.max(id.chars().count());
                 if !ids.insert(id) {
-                    let (start, end) = self.spans[*k];
-                    let id = self.probe(*k)?.id;
+                    let (start, end) = self.spans[k];
+                    let id = self.probe(k)?.id;
                     return Err(InputError::at_fragment(
                         &self.path,
                         &self.text,
@@ -148,10 +146,10 @@ impl ProbeText {
         Ok(longest)
     }
 
-    /// The probes at `indices`, each parsed, in parallel on the current thread pool.
-    fn parse_each(&self, indices: &[usize]) -> Vec<Result<Probe, InputError>> {
+    /// The probes in `range` (of file order), each parsed, in parallel on the current thread pool.
+    fn parse_each(&self, range: Range<usize>) -> Vec<Result<Probe, InputError>> {
         use rayon::prelude::*;
-        indices.par_iter().map(|&k| self.probe(k)).collect()
+        range.into_par_iter().map(|k| self.probe(k)).collect()
     }
 
     fn probe(&self, k: usize) -> Result<Probe, InputError> {
@@ -176,8 +174,7 @@ impl ProbeText {
 
     /// The probes in `range` (of file order), parsed.
     pub fn probes(&self, range: Range<usize>) -> Result<Vec<Probe>, InputError> {
-        let indices: Vec<usize> = range.collect();
-        self.parse_each(&indices).into_iter().collect()
+        self.parse_each(range).into_iter().collect()
     }
 
     /// The whole set, parsed.
