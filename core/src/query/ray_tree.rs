@@ -585,6 +585,40 @@ mod tests {
         })
     }
 
+    /// Which of the tree's items the ray `from + t * dir` (`t` in `0..=reach`) is offered.
+    fn offered(tree: &RayTree, order: &[u32], from: DVec3, dir: DVec3, reach: f64) -> Vec<bool> {
+        let mut offered = vec![false; order.len()];
+        tree.nearest_first(
+            &TreeRay::new(tree.frame(), from, dir),
+            reach,
+            |range, reach| {
+                for &i in &order[range] {
+                    offered[i as usize] = true;
+                }
+                reach
+            },
+        );
+        offered
+    }
+
+    /// The triangles the exact test meets on `from → from + dir * len` that the tree does not offer.
+    fn missed(
+        triangles: &[[DVec3; 3]],
+        (tree, order): &(RayTree, Vec<u32>),
+        from: DVec3,
+        dir: DVec3,
+        len: f64,
+    ) -> Vec<usize> {
+        let exact = ShearedRay::new(from, dir);
+        let offered = offered(tree, order, from, dir, len);
+        (0..triangles.len())
+            .filter(|&i| {
+                let [a, b, c] = triangles[i];
+                exact.intersect(a, b, c, len).is_some() && !offered[i]
+            })
+            .collect()
+    }
+
     proptest! {
         #![proptest_config(ProptestConfig::with_cases(300))]
 
@@ -594,7 +628,8 @@ mod tests {
             leaf_size in 1usize..5,
             ends in prop::collection::vec((0usize..125, 0usize..125, 0.0..1.5f64), 12),
         ) {
-            let (tree, order) = tree_of(&triangles, leaf_size);
+            let built = tree_of(&triangles, leaf_size);
+            let (tree, order) = &built;
             for (from, to, stretch) in ends {
                 let (from, to) = (points[from], points[to]);
                 if from == to {
@@ -606,18 +641,8 @@ mod tests {
                 let dir = (to - from).normalize();
                 let exact = ShearedRay::new(from, dir);
                 let boxes = TreeRay::new(tree.frame(), from, dir);
-                let mut offered = vec![false; triangles.len()];
-                tree.nearest_first(&boxes, len, |range, reach| {
-                    for &i in &order[range] {
-                        offered[i as usize] = true;
-                    }
-                    reach
-                });
-                for (i, &[a, b, c]) in triangles.iter().enumerate() {
-                    if exact.intersect(a, b, c, len).is_some() {
-                        prop_assert!(offered[i], "triangle {i} met by {from} -> {to} but not offered");
-                    }
-                }
+                let missed = missed(&triangles, &built, from, dir, len);
+                prop_assert!(missed.is_empty(), "{missed:?} met by {from} -> {to} but not offered");
                 // The first-hit search (reach shrinking to just past the best) finds the same
                 // nearest distance as the loop over every triangle, and every triangle there.
                 let nearest = triangles
@@ -673,34 +698,18 @@ mod tests {
         let triangles: Vec<[DVec3; 3]> = (0..3 * PARALLEL_ITEMS)
             .map(|_| [corner(), corner(), corner()])
             .collect();
-        let (tree, order) = tree_of(&triangles, 4);
+        let built = tree_of(&triangles, 4);
         for _ in 0..200 {
             let (from, to) = (corner(), corner());
             if from == to {
                 continue;
             }
             let len = from.distance(to);
-            let dir = (to - from) / len;
-            let exact = ShearedRay::new(from, dir);
-            let mut offered = vec![false; triangles.len()];
-            tree.nearest_first(
-                &TreeRay::new(tree.frame(), from, dir),
-                len,
-                |range, reach| {
-                    for &i in &order[range] {
-                        offered[i as usize] = true;
-                    }
-                    reach
-                },
+            let missed = missed(&triangles, &built, from, (to - from) / len, len);
+            assert!(
+                missed.is_empty(),
+                "{missed:?} met by {from} -> {to} but not offered"
             );
-            for (i, &[a, b, c]) in triangles.iter().enumerate() {
-                if exact.intersect(a, b, c, len).is_some() {
-                    assert!(
-                        offered[i],
-                        "triangle {i} met by {from} -> {to} but not offered"
-                    );
-                }
-            }
         }
     }
 
@@ -711,14 +720,8 @@ mod tests {
         let triangles = vec![[DVec3::ZERO, DVec3::X, DVec3::Y]; 5];
         let (tree, order) = tree_of(&triangles, 4);
         let from = DVec3::new(0.25, 0.25, 1e40);
-        let boxes = TreeRay::new(tree.frame(), from, DVec3::NEG_Z);
-        let mut offered = Vec::new();
-        tree.nearest_first(&boxes, 2e40, |range, reach| {
-            offered.extend_from_slice(&order[range]);
-            reach
-        });
-        offered.sort_unstable();
-        assert_eq!(offered, (0..5).collect::<Vec<u32>>());
+        let offered = offered(&tree, &order, from, DVec3::NEG_Z, 2e40);
+        assert_eq!(offered, vec![true; 5]);
         assert!(
             ShearedRay::new(from, DVec3::NEG_Z)
                 .intersect(DVec3::ZERO, DVec3::X, DVec3::Y, 2e40)
@@ -747,14 +750,7 @@ mod tests {
             .map(|k| [centre, ring[k], ring[(k + 1) % 8]])
             .collect();
         let (tree, order) = tree_of(&triangles, 1);
-        let dir = DVec3::NEG_Z;
-        let boxes = TreeRay::new(tree.frame(), DVec3::new(1.0, 1.0, 5.0), dir);
-        let mut offered = Vec::new();
-        tree.nearest_first(&boxes, 10.0, |range, reach| {
-            offered.extend_from_slice(&order[range]);
-            reach
-        });
-        offered.sort_unstable();
-        assert_eq!(offered, (0..8).collect::<Vec<u32>>());
+        let offered = offered(&tree, &order, DVec3::new(1.0, 1.0, 5.0), DVec3::NEG_Z, 10.0);
+        assert_eq!(offered, vec![true; 8]);
     }
 }
