@@ -53,7 +53,8 @@ const EMPTY: Child = u32::MAX;
 const LEAF_BIT: u32 = 1 << 31;
 
 /// Bits of a leaf's first item: a tree holds fewer than 2²⁸ items (the loaders refuse levels of
-/// more than [`crate::input::MAX_TRIANGLES`], twenty million, triangles).
+/// more than [`crate::input::MAX_TRIANGLES`], twenty million, triangles, and a level file of more
+/// than [`crate::input::MAX_FILE_BYTES`], which holds far fewer primitives than that).
 const LEAF_START_BITS: u32 = 28;
 
 /// `child` of a subtree built on its own, once its nodes are appended `offset` places on.
