@@ -197,7 +197,7 @@ fn mesh_approach(a: &TriMesh, b: &TriMesh, reach: f64) -> Option<Approach> {
 /// A primitive against a body: one contact query; a primitive inside a closed mesh is as deep as
 /// its centre is from the mesh's nearest wall (at least).
 fn primitive_approach(a: &Body, b: &Body, reach: f64) -> Option<Approach> {
-    let c = contact(&a.pose, &*a.shape, &b.pose, &*b.shape, reach)
+    let c = contact(&a.pose, &**a.shape(), &b.pose, &**b.shape(), reach)
         .ok()
         .flatten();
     let on_mesh = |body: &Body, point: DVec3| {
@@ -213,7 +213,7 @@ fn primitive_approach(a: &Body, b: &Body, reach: f64) -> Option<Approach> {
     });
     for (outer, inner) in [(a, b), (b, a)] {
         let centre = inner.pose.translation;
-        if inner.mesh().is_none() && outer.encloses(centre) {
+        if !inner.is_mesh() && outer.encloses(centre) {
             let depth = outer.nearest_wall(centre).distance(centre);
             if found.is_none_or(|f| -depth < f.distance) {
                 found = Some(Approach {

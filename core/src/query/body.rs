@@ -2,14 +2,16 @@
 //! (so a filter can leave a material out), and a large open mesh is further split into parts of at
 //! most [`PART_TRIANGLES`] triangles, grouped in space, so that building their BVHs stays within the
 //! memory target. A closed mesh keeps its whole surface as a solid for inside tests, whatever its
-//! bodies.
+//! bodies. A mesh's parry `TriMesh` (and its BVH, the costly part of loading a level) is built the
+//! first time a query needs it: rays walk the world's ray index instead, so a check of rays alone
+//! never builds one.
 
-use std::sync::Arc;
+use std::sync::{Arc, Mutex, OnceLock, PoisonError};
 
 use glam::DVec3;
 use parry3d_f64::bounding_volume::Aabb;
 use parry3d_f64::math::Pose;
-use parry3d_f64::shape::{SharedShape, TriMesh, TriMeshFlags};
+use parry3d_f64::shape::{SharedShape, TriMesh, TriMeshBuilderError, TriMeshFlags};
 
 use super::world::{BuildCause, MaterialId, ObjectId};
 use crate::level::Mesh;
@@ -20,7 +22,7 @@ pub const PART_TRIANGLES: usize = 1 << 18;
 
 /// One convex primitive, or one mesh or part of a mesh, ready for queries.
 pub(crate) struct Body {
-    pub shape: SharedShape,
+    shape: Arc<LazyShape>,
     pub pose: Pose,
     pub aabb: Aabb,
     /// The object this body belongs to.
@@ -31,7 +33,7 @@ pub(crate) struct Body {
     pub tags: Arc<[String]>,
     /// The whole closed surface of the body's object, for inside tests (`None` when the object is
     /// open or a primitive). For a closed mesh of one material it is the body's own shape.
-    solid: Option<(SharedShape, Aabb)>,
+    solid: Option<Arc<LazyShape>>,
     /// For a body that holds only some of its object's triangles: the object's (kept) triangle index
     /// of each of the body's triangles.
     triangle_ids: Option<Box<[u32]>>,
@@ -47,7 +49,7 @@ impl Body {
     ) -> Body {
         let aabb = shape.compute_aabb(&pose);
         Body {
-            shape,
+            shape: Arc::new(LazyShape::ready(shape, aabb)),
             pose,
             aabb,
             object,
@@ -58,25 +60,62 @@ impl Body {
         }
     }
 
-    /// The triangle mesh of this body, when it is one.
+    /// A mesh body of `group`'s material: `shape`, within the closed `solid` it belongs to (if
+    /// any), holding the object's triangles `triangle_ids` (all of them when `None`).
+    fn of_mesh(
+        object: ObjectId,
+        group: &MaterialGroup,
+        shape: Arc<LazyShape>,
+        solid: Option<Arc<LazyShape>>,
+        triangle_ids: Option<Box<[u32]>>,
+    ) -> Body {
+        Body {
+            aabb: shape.aabb,
+            shape,
+            pose: Pose::IDENTITY,
+            object,
+            material: group.material,
+            tags: group.tags.clone(),
+            solid,
+            triangle_ids,
+        }
+    }
+
+    /// The parry shape of this body (a mesh's is built on first use).
+    pub fn shape(&self) -> &SharedShape {
+        self.shape.get()
+    }
+
+    /// The triangle mesh of this body, when it is one (built on first use).
     pub fn mesh(&self) -> Option<&TriMesh> {
-        self.shape.as_trimesh()
+        self.is_mesh().then(|| self.shape().as_trimesh()).flatten()
+    }
+
+    /// True when this body is a triangle mesh (nothing is built to tell).
+    pub fn is_mesh(&self) -> bool {
+        self.shape.is_mesh
+    }
+
+    /// `read(vertices, triangles)` on this body's mesh, when it is one, built or not (nothing is
+    /// built to read it).
+    pub fn with_triangles<R>(&self, read: impl FnOnce(&[DVec3], &[[u32; 3]]) -> R) -> Option<R> {
+        self.shape.with_triangles(read)
     }
 
     /// The nearest point to `p` on the whole surface of the closed mesh the body belongs to (on the
     /// body itself for an open mesh or a primitive).
     pub fn nearest_wall(&self, p: DVec3) -> DVec3 {
         match &self.solid {
-            Some((solid, _)) => solid.project_point(&Pose::IDENTITY, p, false).point,
-            None => self.shape.project_point(&self.pose, p, false).point,
+            Some(solid) => solid.get().project_point(&Pose::IDENTITY, p, false).point,
+            None => self.shape().project_point(&self.pose, p, false).point,
         }
     }
 
     /// True when `p` is inside the closed mesh the body belongs to (never for open meshes or
     /// primitives). The box test first: most points are far outside.
     pub fn encloses(&self, p: DVec3) -> bool {
-        self.solid.as_ref().is_some_and(|(solid, aabb)| {
-            aabb.contains_local_point(p) && solid.contains_point(&Pose::IDENTITY, p)
+        self.solid.as_ref().is_some_and(|solid| {
+            solid.aabb.contains_local_point(p) && solid.get().contains_point(&Pose::IDENTITY, p)
         })
     }
 
@@ -85,6 +124,94 @@ impl Body {
         self.triangle_ids
             .as_ref()
             .map_or(local, |ids| ids[local as usize])
+    }
+}
+
+/// A mesh's vertices, and its triangles as indices into them.
+type MeshData = (Box<[DVec3]>, Box<[[u32; 3]]>);
+
+/// A body's parry shape. A mesh keeps its triangles as loaded and hands them to its `TriMesh` the
+/// first time a query asks for it: building the BVH is most of the cost of loading a level, and
+/// the queries that never ask (rays, which walk the world's ray index) never pay it.
+struct LazyShape {
+    /// True for a mesh, false for a primitive.
+    is_mesh: bool,
+    /// A mesh's vertices and triangles until it is built (then they are the `TriMesh`'s).
+    pending: Mutex<Option<MeshData>>,
+    /// The flags the mesh is built with.
+    flags: TriMeshFlags,
+    /// The bounds of the shape where it stands: the least box around a mesh's triangles.
+    aabb: Aabb,
+    /// The shape, once built.
+    built: OnceLock<SharedShape>,
+}
+
+impl LazyShape {
+    /// A shape built already (a primitive), whose bounds where it stands are `aabb`.
+    fn ready(shape: SharedShape, aabb: Aabb) -> LazyShape {
+        LazyShape {
+            is_mesh: false,
+            pending: Mutex::new(None),
+            flags: TriMeshFlags::empty(),
+            aabb,
+            built: OnceLock::from(shape),
+        }
+    }
+
+    /// A mesh of these triangles, to be built with `flags` when first asked for. Fails as parry
+    /// would when it is built: without triangles.
+    fn mesh(
+        vertices: Vec<DVec3>,
+        triangles: Vec<[u32; 3]>,
+        flags: TriMeshFlags,
+    ) -> Result<LazyShape, BuildCause> {
+        if triangles.is_empty() {
+            return Err(BuildCause::Mesh(TriMeshBuilderError::EmptyIndices));
+        }
+        let mut aabb = Aabb::new_invalid();
+        for t in &triangles {
+            for v in t {
+                aabb.take_point(vertices[*v as usize]);
+            }
+        }
+        Ok(LazyShape {
+            is_mesh: true,
+            pending: Mutex::new(Some((vertices.into(), triangles.into()))),
+            flags,
+            aabb,
+            built: OnceLock::new(),
+        })
+    }
+
+    /// The shape, built on first use.
+    fn get(&self) -> &SharedShape {
+        self.built.get_or_init(|| {
+            let (vertices, triangles) = self
+                .pending
+                .lock()
+                .unwrap_or_else(PoisonError::into_inner)
+                .take()
+                .expect("a mesh's triangles are pending until it is built");
+            let mesh = TriMesh::with_flags(vertices.into_vec(), triangles.into_vec(), self.flags)
+                .expect("a mesh has triangles (checked when it was made)");
+            SharedShape::new(mesh)
+        })
+    }
+
+    /// `read(vertices, triangles)` on a mesh, from where they are: pending, or in the built mesh.
+    fn with_triangles<R>(&self, read: impl FnOnce(&[DVec3], &[[u32; 3]]) -> R) -> Option<R> {
+        if !self.is_mesh {
+            return None;
+        }
+        if self.built.get().is_none() {
+            let pending = self.pending.lock().unwrap_or_else(PoisonError::into_inner);
+            if let Some((vertices, triangles)) = pending.as_ref() {
+                return Some(read(vertices, triangles));
+            }
+        }
+        // Built, or being built on another thread (which `get` waits for).
+        let mesh = self.get().as_trimesh().expect("a mesh");
+        Some(read(mesh.vertices(), mesh.indices()))
     }
 }
 
@@ -120,64 +247,40 @@ pub(crate) fn mesh_bodies(
     let whole = groups.len() == 1;
     if facts.closed {
         drop((vertices, triangles));
-        // Bodies by material share the welded surface with the solid; a whole mesh is the solid.
-        let surface = (!whole).then(|| (welded.clone(), indices.clone()));
-        let solid = SharedShape::new(
-            TriMesh::with_flags(welded, indices, TriMeshFlags::ORIENTED)
-                .map_err(BuildCause::Mesh)?,
-        );
-        let solid_aabb = solid.compute_aabb(&Pose::IDENTITY);
-        let solid = Some((solid, solid_aabb));
+        // Bodies by material are parts of the welded surface the solid keeps; a whole mesh is the
+        // solid.
+        let solid = Arc::new(LazyShape::mesh(welded, indices, TriMeshFlags::ORIENTED)?);
         if whole {
             let group = groups.into_iter().next().expect("one group");
-            let (shape, aabb) = solid.clone().expect("closed");
             return Ok((
-                vec![Body {
-                    shape,
-                    pose: Pose::IDENTITY,
-                    aabb,
+                vec![Body::of_mesh(
                     object,
-                    material: group.material,
-                    tags: group.tags,
-                    solid,
-                    triangle_ids: None,
-                }],
+                    &group,
+                    solid.clone(),
+                    Some(solid),
+                    None,
+                )],
                 facts,
             ));
         }
-        let (welded, indices) = surface.expect("kept for the groups");
         let mut bodies = Vec::new();
-        for group in groups {
-            bodies.extend(group_bodies(
-                object,
-                &welded,
-                &indices,
-                group,
-                solid.clone(),
-            )?);
-        }
+        solid
+            .with_triangles(|welded, indices| {
+                for group in groups {
+                    bodies.extend(group_bodies(object, welded, indices, group, Some(&solid))?);
+                }
+                Ok(())
+            })
+            .expect("a mesh")?;
         return Ok((bodies, facts));
     }
-    // Open: the welded copy was only needed to tell; free it before any BVH is built.
+    // Open: the welded copy was only needed to tell.
     drop((welded, indices));
     if whole && triangles.len() <= PART_TRIANGLES {
         let group = groups.into_iter().next().expect("one group");
-        let shape = SharedShape::new(
-            TriMesh::with_flags(vertices, triangles, TriMeshFlags::empty())
-                .map_err(BuildCause::Mesh)?,
-        );
-        let aabb = shape.compute_aabb(&Pose::IDENTITY);
+        let shape = LazyShape::mesh(vertices, triangles, TriMeshFlags::empty())?;
         return Ok((
-            vec![Body {
-                shape,
-                pose: Pose::IDENTITY,
-                aabb,
-                object,
-                material: group.material,
-                tags: group.tags,
-                solid: None,
-                triangle_ids: None,
-            }],
+            vec![Body::of_mesh(object, &group, Arc::new(shape), None, None)],
             facts,
         ));
     }
@@ -189,23 +292,19 @@ pub(crate) fn mesh_bodies(
 }
 
 /// The bodies of one material group: parts of at most [`PART_TRIANGLES`] triangles, compact in
-/// space. Every part is copied out before any BVH is built, to bound peak memory.
+/// space, each with its own copy of its triangles and the vertices they use.
 fn group_bodies(
     object: ObjectId,
     vertices: &[DVec3],
     triangles: &[[u32; 3]],
-    group: MaterialGroup,
-    solid: Option<(SharedShape, Aabb)>,
+    mut group: MaterialGroup,
+    solid: Option<&Arc<LazyShape>>,
 ) -> Result<Vec<Body>, BuildCause> {
-    let MaterialGroup {
-        material,
-        tags,
-        triangles: mut order,
-    } = group;
+    let mut order = std::mem::take(&mut group.triangles);
     let mut parts = Vec::new();
     split_in_space(vertices, triangles, &mut order, &mut parts);
     let mut local_of = vec![u32::MAX; vertices.len()];
-    let mut pieces = Vec::with_capacity(parts.len());
+    let mut bodies = Vec::with_capacity(parts.len());
     for part in parts.iter().map(|r| &order[r.clone()]) {
         let mut part_vertices = Vec::new();
         let mut part_indices = Vec::with_capacity(part.len());
@@ -223,27 +322,14 @@ fn group_bodies(
                 local_of[v as usize] = u32::MAX;
             }
         }
-        part_vertices.shrink_to_fit();
-        pieces.push((part_vertices, part_indices, Box::<[u32]>::from(part)));
-    }
-    drop((order, local_of));
-    let mut bodies = Vec::with_capacity(pieces.len());
-    for (part_vertices, part_indices, ids) in pieces {
-        let shape = SharedShape::new(
-            TriMesh::with_flags(part_vertices, part_indices, TriMeshFlags::empty())
-                .map_err(BuildCause::Mesh)?,
-        );
-        let aabb = shape.compute_aabb(&Pose::IDENTITY);
-        bodies.push(Body {
-            shape,
-            pose: Pose::IDENTITY,
-            aabb,
+        let shape = LazyShape::mesh(part_vertices, part_indices, TriMeshFlags::empty())?;
+        bodies.push(Body::of_mesh(
             object,
-            material,
-            tags: tags.clone(),
-            solid: solid.clone(),
-            triangle_ids: Some(ids),
-        });
+            &group,
+            Arc::new(shape),
+            solid.cloned(),
+            Some(Box::from(part)),
+        ));
     }
     Ok(bodies)
 }
@@ -356,5 +442,58 @@ fn surface_facts(triangles: &[[u32; 3]]) -> MeshFacts {
     MeshFacts {
         closed,
         winding_faults,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::demo::large_level;
+    use crate::query::{ClosestProbe, World};
+
+    /// How many of the world's mesh bodies have their parry mesh built.
+    fn built(world: &World) -> usize {
+        world
+            .bodies
+            .iter()
+            .filter(|b| b.is_mesh() && b.shape.built.get().is_some())
+            .count()
+    }
+
+    #[test]
+    fn rays_build_no_mesh_and_a_closest_point_builds_the_bodies_it_reaches() {
+        // Large enough that the ground is split into parts.
+        let world = World::from_level(large_level(600_000)).expect("builds");
+        assert!(world.bodies.iter().filter(|b| b.is_mesh()).count() > 2);
+        let view = world.everything();
+        let mut hits = 0;
+        for k in 0..200 {
+            let x = -40.0 + 0.4 * f64::from(k);
+            let from = DVec3::new(x, 30.0, 0.5 * x);
+            hits += usize::from(
+                view.ray_first(from, from - DVec3::Y * 60.0)
+                    .unwrap()
+                    .is_some(),
+            );
+            hits += view.ray_all(from, from - DVec3::Y * 60.0).unwrap().len();
+        }
+        assert!(hits > 200, "the rays meet the level ({hits} hits)");
+        assert_eq!(built(&world), 0, "rays walk the ray index alone");
+        let at = DVec3::new(1.0, 40.0, 2.0);
+        let hit = view.closest(ClosestProbe::Point, at, 100.0).unwrap();
+        assert!(hit.is_some());
+        let meshes = world.bodies.iter().filter(|b| b.is_mesh()).count();
+        assert!((1..meshes).contains(&built(&world)), "only what it reached");
+    }
+
+    #[test]
+    fn a_mesh_body_box_is_the_least_box_around_its_triangles() {
+        // Reference: parry3d-f64's own BVH root box over the same triangles (the union of each
+        // triangle's exact bounds), built here only to compare.
+        let world = World::from_level(large_level(300_000)).expect("builds");
+        for body in world.bodies.iter().filter(|b| b.is_mesh()) {
+            let reference = body.mesh().expect("a mesh").local_aabb();
+            assert_eq!(body.aabb, reference);
+        }
     }
 }

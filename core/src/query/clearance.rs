@@ -185,7 +185,7 @@ impl Piece {
             Piece::Triangle(t) => (Pose::IDENTITY, t),
             Piece::Body(index) => {
                 let body = &view.world.bodies[*index];
-                (body.pose, &*body.shape)
+                (body.pose, &**body.shape())
             }
         }
     }

@@ -81,23 +81,24 @@ impl View<'_> {
         match probe {
             ClosestProbe::Point => {
                 let proj = match body
-                    .shape
+                    .shape()
                     .project_point_with_max_dist(&body.pose, at, false, limit)
                 {
                     Some(proj) => proj,
                     // Farther than `limit` from the surface, but possibly inside a solid.
                     None if body.encloses(at)
-                        || (body.mesh().is_none() && body.shape.contains_point(&body.pose, at)) =>
+                        || (!body.is_mesh() && body.shape().contains_point(&body.pose, at)) =>
                     {
-                        body.shape.project_point(&body.pose, at, false)
+                        body.shape().project_point(&body.pose, at, false)
                     }
                     None => return None,
                 };
                 // A point on the surface is at distance 0 but not inside.
                 let inside = proj.point != at
-                    && match body.mesh() {
-                        None => body.shape.contains_point(&body.pose, at),
-                        Some(_) => body.encloses(at),
+                    && if body.is_mesh() {
+                        body.encloses(at)
+                    } else {
+                        body.shape().contains_point(&body.pose, at)
                     };
                 let distance = if inside { 0.0 } else { proj.point.distance(at) };
                 if distance > limit {
@@ -129,7 +130,9 @@ impl View<'_> {
                         material: body.material,
                     });
                 }
-                match closest_points(&body.pose, &*body.shape, &pose, &*shape.shape, limit).ok()? {
+                match closest_points(&body.pose, &**body.shape(), &pose, &*shape.shape, limit)
+                    .ok()?
+                {
                     ClosestPoints::Intersecting => {
                         let (point, normal) = contact_geometry(body, &pose, shape, self.world.up());
                         Some(ClosestHit {

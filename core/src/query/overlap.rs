@@ -42,7 +42,7 @@ impl View<'_> {
                 continue;
             };
             let id = body.object;
-            let touching = contact(&body.pose, &*body.shape, &pose, &*shape.shape, 0.0)
+            let touching = contact(&body.pose, &**body.shape(), &pose, &*shape.shape, 0.0)
                 .ok()
                 .flatten();
             if body.encloses(at) {

@@ -17,8 +17,8 @@
 //!   with its own normal and `back_face`.
 
 use glam::DVec3;
-use parry3d_f64::bounding_volume::{Aabb, BoundingVolume};
 use parry3d_f64::query::{PointQuery, Ray};
+use parry3d_f64::shape::Triangle;
 
 use super::body::Body;
 use super::ray_tree::TreeRay;
@@ -255,31 +255,34 @@ impl View<'_> {
     fn faces_at(&self, at: Candidate, seg: &Segment) -> Vec<Candidate> {
         let p = at.hit.point;
         let reach = edge_tolerance(p, 0.0);
-        let around = Aabb::from_points([p]).loosened(reach);
         let mut faces: Vec<Candidate> = Vec::new();
-        for leaf in self.world.bvh.intersect_aabb(&around) {
-            let Some(body) = self.body(leaf) else {
-                continue;
-            };
-            let Some(mesh) = body.mesh().filter(|_| body.object == at.hit.object) else {
-                continue;
-            };
-            for tri in mesh.bvh().intersect_aabb(&around) {
-                let t = mesh.triangle(tri);
-                if t.project_local_point(p, false).point.distance(p) <= reach {
-                    let mut face = candidate(
-                        self.world,
-                        body,
-                        seg,
-                        at.hit.distance,
-                        triangle_normal(t.a, t.b, t.c),
-                        Some((tri, [t.a, t.b, t.c])),
-                    );
-                    face.hit.point = p;
-                    faces.push(face);
+        let corner = DVec3::splat(reach);
+        self.world
+            .ray_index()
+            .overlapping(p - corner, p + corner, |items| {
+                for item in items {
+                    let (Some(body), Some(tri)) = (self.body(item.body), item.triangle()) else {
+                        continue;
+                    };
+                    if body.object != at.hit.object {
+                        continue;
+                    }
+                    let [a, b, c] = item.corners;
+                    let t = Triangle::new(a, b, c);
+                    if t.project_local_point(p, false).point.distance(p) <= reach {
+                        let mut face = candidate(
+                            self.world,
+                            body,
+                            seg,
+                            at.hit.distance,
+                            triangle_normal(a, b, c),
+                            Some((tri, [a, b, c])),
+                        );
+                        face.hit.point = p;
+                        faces.push(face);
+                    }
                 }
-            }
-        }
+            });
         faces.sort_by_key(|f| f.ordinal);
         let mut kept: Vec<Candidate> = Vec::with_capacity(faces.len());
         for face in faces {
@@ -404,7 +407,7 @@ fn primitive_crossings(
     seg: &Segment,
     ray: &Ray,
 ) -> [Option<Candidate>; 2] {
-    let shape = &*body.shape;
+    let shape = &**body.shape();
     let to = seg.from + seg.dir * seg.len;
     let strictly_inside = |p: DVec3| {
         let proj = shape.project_point(&body.pose, p, false);

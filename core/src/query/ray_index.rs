@@ -4,10 +4,9 @@
 //! item). Built when a ray first needs it.
 
 use glam::DVec3;
-use rayon::prelude::*;
 
 use super::body::Body;
-use super::ray_tree::{RayFrame, RayTree, TreeRay};
+use super::ray_tree::{RayFrame, RayTree, TreeItems, TreeRay};
 
 /// Most items in one leaf.
 const LEAF_ITEMS: usize = 4;
@@ -43,39 +42,29 @@ pub(crate) struct RayIndex {
 impl RayIndex {
     /// The index of `bodies`, with coordinates measured in `frame`.
     pub fn new(frame: RayFrame, bodies: &[Body]) -> RayIndex {
-        // Item `i` belongs to the last body whose first item is at or before it.
-        let mut firsts = Vec::with_capacity(bodies.len());
-        let mut count = 0usize;
-        for body in bodies {
-            firsts.push(count);
-            count += body.mesh().map_or(1, |mesh| mesh.num_triangles());
-        }
-        let item = |i: u32| {
-            let index = firsts.partition_point(|&first| first <= i as usize) - 1;
-            let body = &bodies[index];
-            match body.mesh() {
-                Some(mesh) => {
-                    let triangle = (i as usize - firsts[index]) as u32;
-                    let t = mesh.triangle(triangle);
-                    RayItem {
-                        body: index as u32,
-                        triangle,
-                        corners: [t.a, t.b, t.c],
-                    }
-                }
-                None => RayItem {
-                    body: index as u32,
-                    triangle: PRIMITIVE,
-                    corners: [body.aabb.mins, body.aabb.maxs, body.aabb.mins],
-                },
-            }
-        };
-        let (tree, order) = RayTree::new(frame, count, LEAF_ITEMS, |i| {
-            let [a, b, c] = item(i).corners;
-            (a.min(b).min(c), a.max(b).max(c))
+        let count = bodies
+            .iter()
+            .map(|body| {
+                body.with_triangles(|_, triangles| triangles.len())
+                    .unwrap_or(1)
+            })
+            .sum();
+        // The tree from the items' boxes; then the items in body order, put in the tree's leaf
+        // order in place. Each body's mesh is read where it is held, twice, so the build never
+        // holds the boxes and the items at once, nor two copies of the items.
+        let mut boxes = TreeItems::with_capacity(frame, count);
+        for_each_item(bodies, |item| {
+            let [a, b, c] = item.corners;
+            boxes.push(a.min(b).min(c), a.max(b).max(c));
         });
-        let items = order.par_iter().map(|&i| item(i)).collect();
-        RayIndex { tree, items }
+        let (tree, order) = boxes.build(LEAF_ITEMS);
+        let mut items = Vec::with_capacity(count);
+        for_each_item(bodies, |item| items.push(item));
+        put_in_order(&mut items, &order);
+        RayIndex {
+            tree,
+            items: items.into_boxed_slice(),
+        }
     }
 
     /// The frame of the tree's coordinates.
@@ -93,5 +82,82 @@ impl RayIndex {
     ) {
         self.tree
             .nearest_first(ray, reach, |range, reach| leaf(&self.items[range], reach));
+    }
+
+    /// Calls `leaf(items)` on every leaf whose box may overlap the box `lo ..= hi`: every item
+    /// whose own box does is among them.
+    pub fn overlapping(&self, lo: DVec3, hi: DVec3, mut leaf: impl FnMut(&[RayItem])) {
+        self.tree
+            .overlapping(lo, hi, |range| leaf(&self.items[range]));
+    }
+}
+
+/// Calls `each` on every item of `bodies`, in body order: a mesh's triangles in order, or the
+/// primitive whole (its box standing in for corners).
+fn for_each_item(bodies: &[Body], mut each: impl FnMut(RayItem)) {
+    for (index, body) in bodies.iter().enumerate() {
+        let body_id = index as u32;
+        let mesh = body.with_triangles(|vertices, triangles| {
+            for (t, corners) in triangles.iter().enumerate() {
+                each(RayItem {
+                    body: body_id,
+                    triangle: t as u32,
+                    corners: corners.map(|v| vertices[v as usize]),
+                });
+            }
+        });
+        if mesh.is_none() {
+            each(RayItem {
+                body: body_id,
+                triangle: PRIMITIVE,
+                corners: [body.aabb.mins, body.aabb.maxs, body.aabb.mins],
+            });
+        }
+    }
+}
+
+/// Rearranges `items` so that position `p` holds what was at `order[p]` (`order` is a permutation),
+/// in place: each cycle of the permutation is followed once, keeping one item aside.
+fn put_in_order<T: Copy>(items: &mut [T], order: &[u32]) {
+    let mut placed = vec![false; items.len()];
+    for start in 0..items.len() {
+        if placed[start] {
+            continue;
+        }
+        let aside = items[start];
+        let mut at = start;
+        loop {
+            placed[at] = true;
+            let from = order[at] as usize;
+            if from == start {
+                items[at] = aside;
+                break;
+            }
+            items[at] = items[from];
+            at = from;
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn items_are_put_in_the_order_asked() {
+        // Against the plain way: a new array that reads each position's item from `order`.
+        let mut state = 7u64;
+        for len in [0usize, 1, 2, 5, 64, 1000] {
+            let mut order: Vec<u32> = (0..len as u32).collect();
+            for k in (1..len).rev() {
+                state = state.wrapping_mul(6364136223846793005).wrapping_add(1);
+                order.swap(k, (state >> 33) as usize % (k + 1));
+            }
+            let original: Vec<u64> = (0..len as u64).map(|x| x * 10 + 3).collect();
+            let expected: Vec<u64> = order.iter().map(|&i| original[i as usize]).collect();
+            let mut items = original.clone();
+            put_in_order(&mut items, &order);
+            assert_eq!(items, expected, "{len} items");
+        }
     }
 }

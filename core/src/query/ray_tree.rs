@@ -249,29 +249,36 @@ impl Bounds {
     }
 }
 
-impl RayTree {
-    /// Builds the tree of `count` items in `frame`, item `i` inside the box `bounds(i)` (low and
-    /// high corners), at most `leaf_size` items to a leaf. Leaves refer to positions in the
-    /// returned leaf order of the items.
-    pub fn new(
-        frame: RayFrame,
-        count: usize,
-        leaf_size: usize,
-        bounds: impl Fn(u32) -> (DVec3, DVec3) + Sync,
-    ) -> (RayTree, Vec<u32>) {
+/// The items of a tree to be built, by their boxes, in the order that numbers them.
+pub(crate) struct TreeItems {
+    frame: RayFrame,
+    items: Vec<BuildItem>,
+}
+
+impl TreeItems {
+    /// Room for `count` items, measured in `frame`.
+    pub fn with_capacity(frame: RayFrame, count: usize) -> TreeItems {
+        TreeItems {
+            frame,
+            items: Vec::with_capacity(count),
+        }
+    }
+
+    /// Adds the next item, inside the box `lo ..= hi`.
+    pub fn push(&mut self, lo: DVec3, hi: DVec3) {
+        let bounds = Bounds::around(lo, hi, self.frame.center);
+        self.items.push(BuildItem {
+            bounds,
+            centroid: (bounds.lo + bounds.hi) * 0.5,
+            id: self.items.len() as u32,
+        });
+    }
+
+    /// Builds the tree, at most `leaf_size` items to a leaf. Leaves refer to positions in the
+    /// returned leaf order of the items (item numbers in the order they were pushed).
+    pub fn build(self, leaf_size: usize) -> (RayTree, Vec<u32>) {
         // Records, not indices, are partitioned: the build then reads memory in order.
-        let mut items: Vec<BuildItem> = (0..count as u32)
-            .into_par_iter()
-            .map(|id| {
-                let (lo, hi) = bounds(id);
-                let bounds = Bounds::around(lo, hi, frame.center);
-                BuildItem {
-                    bounds,
-                    centroid: (bounds.lo + bounds.hi) * 0.5,
-                    id,
-                }
-            })
-            .collect();
+        let TreeItems { frame, mut items } = self;
         let builder = Builder { leaf_size };
         let mut nodes = Vec::new();
         let root = builder.subtree(&mut items, 0, 0, &mut nodes);
@@ -279,11 +286,13 @@ impl RayTree {
             frame,
             nodes,
             root,
-            count,
+            count: items.len(),
         };
         (tree, items.into_iter().map(|item| item.id).collect())
     }
+}
 
+impl RayTree {
     /// The frame the tree's coordinates are measured in.
     pub fn frame(&self) -> RayFrame {
         self.frame
@@ -337,6 +346,38 @@ impl RayTree {
                 }
                 stack[at] = item;
                 len += 1;
+            }
+        }
+    }
+
+    /// Calls `leaf(positions)` on every leaf whose box may overlap the box `lo ..= hi` (level
+    /// coordinates), with the leaf's positions in the leaf order. Conservative as the walk of a
+    /// ray is: the query box is rounded outwards just as the items' boxes were, and rounding is
+    /// monotonic, so boxes that overlap still overlap in `f32`.
+    pub fn overlapping(&self, lo: DVec3, hi: DVec3, mut leaf: impl FnMut(Range<usize>)) {
+        let query = Bounds::around(lo, hi, self.frame.center);
+        let (q_lo, q_hi) = (query.lo.to_array(), query.hi.to_array());
+        let mut stack = vec![self.root];
+        while let Some(child) = stack.pop() {
+            if child == EMPTY {
+                continue;
+            }
+            if child & LEAF_BIT != 0 {
+                let start = (child & ((1 << LEAF_START_BITS) - 1)) as usize;
+                let count = ((child & !LEAF_BIT) >> LEAF_START_BITS) as usize;
+                leaf(start..start + count);
+                continue;
+            }
+            let node = &self.nodes[child as usize];
+            let mut met = (0..3).fold(u32::MAX, |met, k| {
+                let below = node.lo[k].simd_le(f32x4::splat(q_hi[k]));
+                let above = node.hi[k].simd_ge(f32x4::splat(q_lo[k]));
+                met & (below & above).to_bitmask()
+            });
+            while met != 0 {
+                let k = met.trailing_zeros() as usize;
+                met &= met - 1;
+                stack.push(node.children[k]);
             }
         }
     }
@@ -580,10 +621,11 @@ mod tests {
             .iter()
             .flatten()
             .fold(DVec3::MIN, |a, &b| a.max(b));
-        RayTree::new(RayFrame::around(lo, hi), triangles.len(), leaf_size, |i| {
-            let [a, b, c] = triangles[i as usize];
-            (a.min(b).min(c), a.max(b).max(c))
-        })
+        let mut items = TreeItems::with_capacity(RayFrame::around(lo, hi), triangles.len());
+        for [a, b, c] in triangles {
+            items.push(a.min(*b).min(*c), a.max(*b).max(*c));
+        }
+        items.build(leaf_size)
     }
 
     /// Which of the tree's items the ray `from + t * dir` (`t` in `0..=reach`) is offered.
@@ -680,6 +722,38 @@ mod tests {
                     everywhere.sort_unstable();
                     prop_assert_eq!(at_best, everywhere);
                 }
+            }
+        }
+    }
+
+    proptest! {
+        #![proptest_config(ProptestConfig::with_cases(300))]
+
+        #[test]
+        fn a_box_query_offers_every_triangle_whose_box_overlaps_it(
+            (triangles, points) in grid_soup(),
+            leaf_size in 1usize..5,
+            boxes in prop::collection::vec((0usize..125, 0usize..125), 12),
+        ) {
+            // Query boxes with corners on the grid: many only touch a triangle's box at a face,
+            // an edge or a corner, which still counts as overlapping.
+            let (tree, order) = tree_of(&triangles, leaf_size);
+            for (a, b) in boxes {
+                let (lo, hi) = (points[a].min(points[b]), points[a].max(points[b]));
+                let mut offered = vec![false; triangles.len()];
+                tree.overlapping(lo, hi, |range| {
+                    for &i in &order[range] {
+                        offered[i as usize] = true;
+                    }
+                });
+                let missed: Vec<usize> = (0..triangles.len())
+                    .filter(|&i| {
+                        let [p, q, r] = triangles[i];
+                        let (t_lo, t_hi) = (p.min(q).min(r), p.max(q).max(r));
+                        t_lo.cmple(hi).all() && t_hi.cmpge(lo).all() && !offered[i]
+                    })
+                    .collect();
+                prop_assert!(missed.is_empty(), "{missed:?} overlap {lo}..{hi} but not offered");
             }
         }
     }

@@ -121,6 +121,8 @@ impl View<'_> {
         let (ni, nj) = (steps(i), steps(j));
         // About as many cells as columns, until the columns are searched.
         progress.plan(2 * ni * nj);
+        // Before the parallel work: a first build inside it could be re-entered by a job it steals.
+        self.world.prepare_rays();
         let below = shape.extent_along(-up) + SKIN;
         let height = below + shape.extent_along(up);
         let cos_limit = gait.max_slope.to_radians().cos();

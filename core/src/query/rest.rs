@@ -90,7 +90,7 @@ impl View<'_> {
             .bodies
             .iter()
             .filter(|b| b.object == object)
-            .map(|b| b.shape.project_point(&b.pose, probe, false).point)
+            .map(|b| b.shape().project_point(&b.pose, probe, false).point)
             .min_by(|a, b| a.distance(probe).total_cmp(&b.distance(probe)))
             .and_then(|on| (probe - on).try_normalize())
             .unwrap_or(up)

@@ -86,7 +86,7 @@ impl View<'_> {
             let Some(body) = self.body(leaf) else {
                 continue;
             };
-            let collider = ColliderBuilder::new(body.shape.clone())
+            let collider = ColliderBuilder::new(body.shape().clone())
                 .position(body.pose)
                 .friction(material.friction)
                 .restitution(material.restitution)

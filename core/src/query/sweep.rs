@@ -203,7 +203,7 @@ impl View<'_> {
                     })
                 }
                 Some(_) => None,
-                None => part_contact(&*body.shape, &body.pose, &pose, shape),
+                None => part_contact(&**body.shape(), &body.pose, &pose, shape),
             };
             let (point, normal) =
                 part.unwrap_or_else(|| contact_geometry(body, &pose, shape, -dir));
@@ -261,7 +261,7 @@ fn time_of_impact(
     let cast = cast_shapes(
         &body.pose,
         DVec3::ZERO,
-        &*body.shape,
+        &**body.shape(),
         &start,
         dir,
         &*shape.shape,
@@ -406,7 +406,7 @@ fn refine_ball_impact(
                 })
                 .min_by(|x, y| x.0.total_cmp(&y.0))
         }
-        None => refine(&|p| body.shape.project_point(&body.pose, p, false).point),
+        None => refine(&|p| body.shape().project_point(&body.pose, p, false).point),
     }
 }
 
@@ -517,13 +517,13 @@ pub(crate) fn contact_geometry(
     // A hair before impact the gap is at most the back-off (the gap shrinks no faster than the
     // shape moves); twice that finds the contact without gathering far-away triangles.
     let prediction = 2.0 * RECONTACT_BACKOFF;
-    match contact(&body.pose, &*body.shape, pose, &*shape.shape, prediction) {
+    match contact(&body.pose, &**body.shape(), pose, &*shape.shape, prediction) {
         Ok(Some(c)) if c.normal1.length_squared() > 0.0 => (c.point1, c.normal1.normalize()),
         Ok(Some(c)) => (c.point1, fallback),
         _ => {
             let centre = pose.translation;
             let p = parry3d_f64::query::PointQuery::project_point(
-                &*body.shape,
+                &**body.shape(),
                 &body.pose,
                 centre,
                 false,

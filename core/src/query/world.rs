@@ -232,7 +232,9 @@ impl World {
 
     /// Builds what rays walk (done anyway by the first ray that needs it): call it on the thread
     /// pool that will answer, before answering rays in parallel, so that the build uses the pool's
-    /// threads rather than one while the others wait for it.
+    /// threads rather than one while the others wait for it. Required before rays are cast from
+    /// rayon jobs: the build runs in parallel itself, and a job it steals while building would
+    /// wait for the build it is part of.
     pub fn prepare_rays(&self) {
         self.ray_index();
     }
@@ -372,8 +374,15 @@ impl World {
             .bodies
             .iter()
             .filter(|b| b.object == id)
-            .filter_map(|b| b.mesh())
-            .flat_map(|m| m.vertices().iter().map(move |v| (*v - centre).to_array()))
+            .filter_map(|b| {
+                b.with_triangles(|vertices, _| {
+                    vertices
+                        .iter()
+                        .map(|v| (*v - centre).to_array())
+                        .collect::<Vec<_>>()
+                })
+            })
+            .flatten()
             .collect();
         ShapeSpec::Convex { points }
     }
