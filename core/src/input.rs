@@ -190,8 +190,8 @@ fn resolved(path: &Path) -> PathBuf {
 }
 
 /// Checks a name (object, probe id, tag, material) against [`MAX_NAME_CHARS`]; the error says what
-/// the name is for.
-pub fn check_name(what: &str, name: &str) -> Result<(), String> {
+/// the name is for (formatted only when the name is too long).
+pub fn check_name(what: impl std::fmt::Display, name: &str) -> Result<(), String> {
     let chars = name.chars().count();
     if chars > MAX_NAME_CHARS {
         Err(format!(

@@ -69,10 +69,15 @@ pub fn to_pretty(value: &Value) -> String {
 
 /// Writes a value laid out as [`to_pretty`] does, as if it stood `depth` levels deep (no newline).
 pub fn write_pretty(value: &Json, depth: usize, out: &mut String) {
-    if nests_within(value, 2) && inline_len(value, INLINE_WIDTH.saturating_sub(depth * 2)).is_some()
-    {
-        write_inline(value, out);
-        return;
+    if nests_within(value, 2) {
+        // Written on one line, then taken back if it runs past the width: each number is
+        // formatted once for values that fit, and at most a line's worth is wasted for those
+        // that do not.
+        let start = out.len();
+        if write_inline_within(value, out, start + INLINE_WIDTH.saturating_sub(depth * 2)) {
+            return;
+        }
+        out.truncate(start);
     }
     let pad = indent(depth + 1);
     match value {
@@ -104,6 +109,12 @@ pub fn write_pretty(value: &Json, depth: usize, out: &mut String) {
 
 /// Writes a value on one line, with a space after each `,` and `:`.
 fn write_inline(value: &Json, out: &mut String) {
+    write_inline_within(value, out, usize::MAX);
+}
+
+/// Writes a value as [`write_inline`] does while `out` stays at most `limit` bytes long; returns
+/// false (with `out` part written) as soon as it is longer.
+fn write_inline_within(value: &Json, out: &mut String, limit: usize) -> bool {
     use std::fmt::Write;
     match value {
         Json::Arr(items) => {
@@ -112,7 +123,9 @@ fn write_inline(value: &Json, out: &mut String) {
                 if k > 0 {
                     out.push_str(", ");
                 }
-                write_inline(item, out);
+                if !write_inline_within(item, out, limit) {
+                    return false;
+                }
             }
             out.push(']');
         }
@@ -124,7 +137,9 @@ fn write_inline(value: &Json, out: &mut String) {
                 }
                 write_string(key, out);
                 out.push_str(": ");
-                write_inline(item, out);
+                if !write_inline_within(item, out, limit) {
+                    return false;
+                }
             }
             out.push('}');
         }
@@ -135,6 +150,7 @@ fn write_inline(value: &Json, out: &mut String) {
         Json::Bool(b) => out.push_str(if *b { "true" } else { "false" }),
         Json::Null => out.push_str("null"),
     }
+    out.len() <= limit
 }
 
 fn write_string(s: &str, out: &mut String) {
@@ -154,52 +170,6 @@ fn indent(depth: usize) -> std::borrow::Cow<'static, str> {
         Some(s) => std::borrow::Cow::Borrowed(s),
         None => std::borrow::Cow::Owned("  ".repeat(depth)),
     }
-}
-
-/// The one-line length of a value when it is at most `budget` characters, else `None` (stops early).
-fn inline_len(value: &Json, budget: usize) -> Option<usize> {
-    let len = match value {
-        Json::Arr(items) => {
-            let mut len = 2 + 2 * items.len().saturating_sub(1);
-            for item in items {
-                len += inline_len(item, budget.checked_sub(len)?)?;
-            }
-            len
-        }
-        Json::Obj(fields) => {
-            let mut len = 2 + 2 * fields.len().saturating_sub(1);
-            for (key, item) in fields {
-                len += key.len() + 4;
-                len += inline_len(item, budget.checked_sub(len)?)?;
-            }
-            len
-        }
-        Json::Str(s) => s.len() + 2,
-        Json::Num(n) => number_len(n),
-        Json::Bool(b) => {
-            if *b {
-                4
-            } else {
-                5
-            }
-        }
-        Json::Null => 4,
-    };
-    (len <= budget).then_some(len)
-}
-
-/// The length of a number as JSON writes it, without allocating.
-fn number_len(n: &Number) -> usize {
-    struct Count(usize);
-    impl std::fmt::Write for Count {
-        fn write_str(&mut self, s: &str) -> std::fmt::Result {
-            self.0 += s.len();
-            Ok(())
-        }
-    }
-    let mut count = Count(0);
-    let _ = std::fmt::Write::write_fmt(&mut count, format_args!("{n}"));
-    count.0
 }
 
 /// True when arrays and objects nest at most `levels` deep (`[1, 2]` is 1, `[[1], [2]]` is 2);

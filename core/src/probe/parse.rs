@@ -563,7 +563,7 @@ fn positive(field: &str, value: f64, unit: &str) -> Result<f64, String> {
 
 /// Checks an id of a probe or rule (`what`): a name of `[A-Za-z0-9._-]+`.
 pub(super) fn check_id(what: &str, id: &str) -> Result<(), String> {
-    check_name(&format!("the {what}'s id"), id)?;
+    check_name(format_args!("the {what}'s id"), id)?;
     if id.is_empty()
         || !id
             .chars()
