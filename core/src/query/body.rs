@@ -12,6 +12,7 @@ use glam::DVec3;
 use parry3d_f64::bounding_volume::Aabb;
 use parry3d_f64::math::Pose;
 use parry3d_f64::shape::{SharedShape, TriMesh, TriMeshBuilderError, TriMeshFlags};
+use rayon::slice::ParallelSliceMut;
 
 use super::world::{BuildCause, MaterialId, ObjectId};
 use crate::level::Mesh;
@@ -386,7 +387,8 @@ fn weld(vertices: &[DVec3], triangles: &[[u32; 3]]) -> (Vec<DVec3>, Vec<[u32; 3]
             .map(|c| if c == 0.0 { 0u64 } else { c.to_bits() })
     };
     let mut order: Vec<u32> = (0..vertices.len() as u32).collect();
-    order.sort_unstable_by_key(|&i| (key(vertices[i as usize]), i));
+    // Keys are unique (the index breaks ties), so the parallel sort's order is the only one.
+    order.par_sort_unstable_by_key(|&i| (key(vertices[i as usize]), i));
     let mut remap = vec![0u32; vertices.len()];
     let mut first_of_run = vec![false; vertices.len()];
     for (k, &i) in order.iter().enumerate() {
@@ -426,7 +428,7 @@ fn surface_facts(triangles: &[[u32; 3]]) -> MeshFacts {
             edges.push((u64::from(t[k]) << 32) | u64::from(t[(k + 1) % 3]));
         }
     }
-    edges.sort_unstable();
+    edges.par_sort_unstable();
     let repeated = edges.windows(2).filter(|w| w[0] == w[1]).count();
     let closed = repeated == 0
         && edges
