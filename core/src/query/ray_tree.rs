@@ -724,10 +724,6 @@ mod tests {
                 }
             }
         }
-    }
-
-    proptest! {
-        #![proptest_config(ProptestConfig::with_cases(300))]
 
         #[test]
         fn a_box_query_offers_every_triangle_whose_box_overlaps_it(
