@@ -45,7 +45,7 @@ impl View<'_> {
         let (vertical, i, j) = level_axes(self.world.up());
         let steps = |k: usize| ((max[k] - min[k]) / spacing).floor() as usize + 1;
         let (ni, nj) = (steps(i), steps(j));
-        // Before the parallel work: a first build inside it could be re-entered by a job it steals.
+        // Before the parallel work, so that its first rays do not each build the index.
         self.world.prepare_rays();
         let columns: Vec<Vec<DVec3>> = (0..ni * nj)
             .into_par_iter()

@@ -121,7 +121,7 @@ impl View<'_> {
         let (ni, nj) = (steps(i), steps(j));
         // About as many cells as columns, until the columns are searched.
         progress.plan(2 * ni * nj);
-        // Before the parallel work: a first build inside it could be re-entered by a job it steals.
+        // Before the parallel work, so that its first rays do not each build the index.
         self.world.prepare_rays();
         let below = shape.extent_along(-up) + SKIN;
         let height = below + shape.extent_along(up);

@@ -231,20 +231,23 @@ impl World {
     }
 
     /// Builds what rays walk (done anyway by the first ray that needs it): call it on the thread
-    /// pool that will answer, before answering rays in parallel, so that the build uses the pool's
-    /// threads rather than one while the others wait for it. Required before rays are cast from
-    /// rayon jobs: the build runs in parallel itself, and a job it steals while building would
-    /// wait for the build it is part of.
+    /// pool that will answer, before answering rays in parallel, so that one build uses the pool's
+    /// threads rather than each of the first rays building its own.
     pub fn prepare_rays(&self) {
         self.ray_index();
     }
 
-    /// The world's ray index, built on first use.
+    /// The world's ray index, built on first use. Not built inside the cell's own initialisation:
+    /// the build runs on the thread pool, and a ray job the pool hands this thread while it waits
+    /// would otherwise wait for the build it interrupted. Such a job builds its own instead; the
+    /// first finished is kept (all are the same).
     pub(crate) fn ray_index(&self) -> &RayIndex {
-        self.ray_index.get_or_init(|| {
-            let root = self.bvh.root_aabb();
-            RayIndex::new(RayFrame::around(root.mins, root.maxs), &self.bodies)
-        })
+        if let Some(index) = self.ray_index.get() {
+            return index;
+        }
+        let root = self.bvh.root_aabb();
+        let index = RayIndex::new(RayFrame::around(root.mins, root.maxs), &self.bodies);
+        self.ray_index.get_or_init(|| index)
     }
 
     /// Number of objects.
