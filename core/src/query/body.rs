@@ -50,7 +50,7 @@ impl Body {
     ) -> Body {
         let aabb = shape.compute_aabb(&pose);
         Body {
-            shape: Arc::new(LazyShape::ready(shape, aabb)),
+            shape: Arc::new(LazyShape::Ready(shape, aabb)),
             pose,
             aabb,
             object,
@@ -71,7 +71,7 @@ impl Body {
         triangle_ids: Option<Box<[u32]>>,
     ) -> Body {
         Body {
-            aabb: shape.aabb,
+            aabb: shape.aabb(),
             shape,
             pose: Pose::IDENTITY,
             object,
@@ -94,7 +94,7 @@ impl Body {
 
     /// True when this body is a triangle mesh (nothing is built to tell).
     pub fn is_mesh(&self) -> bool {
-        self.shape.is_mesh
+        matches!(*self.shape, LazyShape::Mesh { .. })
     }
 
     /// `read(vertices, triangles)` on this body's mesh, when it is one, built or not (nothing is
@@ -116,7 +116,7 @@ impl Body {
     /// primitives). The box test first: most points are far outside.
     pub fn encloses(&self, p: DVec3) -> bool {
         self.solid.as_ref().is_some_and(|solid| {
-            solid.aabb.contains_local_point(p) && solid.get().contains_point(&Pose::IDENTITY, p)
+            solid.aabb().contains_local_point(p) && solid.get().contains_point(&Pose::IDENTITY, p)
         })
     }
 
@@ -134,31 +134,23 @@ type MeshData = (Box<[DVec3]>, Box<[[u32; 3]]>);
 /// A body's parry shape. A mesh keeps its triangles as loaded and hands them to its `TriMesh` the
 /// first time a query asks for it: building the BVH is most of the cost of loading a level, and
 /// the queries that never ask (rays, which walk the world's ray index) never pay it.
-struct LazyShape {
-    /// True for a mesh, false for a primitive.
-    is_mesh: bool,
-    /// A mesh's vertices and triangles until it is built (then they are the `TriMesh`'s).
-    pending: Mutex<Option<MeshData>>,
-    /// The flags the mesh is built with.
-    flags: TriMeshFlags,
-    /// The bounds of the shape where it stands: the least box around a mesh's triangles.
-    aabb: Aabb,
-    /// The shape, once built.
-    built: OnceLock<SharedShape>,
+enum LazyShape {
+    /// A shape built already (a primitive), and its bounds where it stands.
+    Ready(SharedShape, Aabb),
+    /// A triangle mesh.
+    Mesh {
+        /// Its vertices and triangles until it is built (then they are the `TriMesh`'s).
+        pending: Mutex<Option<MeshData>>,
+        /// The flags it is built with.
+        flags: TriMeshFlags,
+        /// The least box around its triangles.
+        aabb: Aabb,
+        /// The mesh, once built.
+        built: OnceLock<SharedShape>,
+    },
 }
 
 impl LazyShape {
-    /// A shape built already (a primitive), whose bounds where it stands are `aabb`.
-    fn ready(shape: SharedShape, aabb: Aabb) -> LazyShape {
-        LazyShape {
-            is_mesh: false,
-            pending: Mutex::new(None),
-            flags: TriMeshFlags::empty(),
-            aabb,
-            built: OnceLock::from(shape),
-        }
-    }
-
     /// A mesh of these triangles, to be built with `flags` when first asked for. Fails as parry
     /// would when it is built: without triangles.
     fn mesh(
@@ -175,8 +167,7 @@ impl LazyShape {
                 aabb.take_point(vertices[*v as usize]);
             }
         }
-        Ok(LazyShape {
-            is_mesh: true,
+        Ok(LazyShape::Mesh {
             pending: Mutex::new(Some((vertices.into(), triangles.into()))),
             flags,
             aabb,
@@ -184,28 +175,42 @@ impl LazyShape {
         })
     }
 
-    /// The shape, built on first use.
+    /// The bounds of the shape where it stands.
+    fn aabb(&self) -> Aabb {
+        match self {
+            LazyShape::Ready(_, aabb) | LazyShape::Mesh { aabb, .. } => *aabb,
+        }
+    }
+
+    /// The shape, a mesh built on first use.
     fn get(&self) -> &SharedShape {
-        self.built.get_or_init(|| {
-            let (vertices, triangles) = self
-                .pending
-                .lock()
-                .unwrap_or_else(PoisonError::into_inner)
-                .take()
-                .expect("a mesh's triangles are pending until it is built");
-            let mesh = TriMesh::with_flags(vertices.into_vec(), triangles.into_vec(), self.flags)
-                .expect("a mesh has triangles (checked when it was made)");
-            SharedShape::new(mesh)
-        })
+        match self {
+            LazyShape::Ready(shape, _) => shape,
+            LazyShape::Mesh {
+                pending,
+                flags,
+                built,
+                ..
+            } => built.get_or_init(|| {
+                let (vertices, triangles) = pending
+                    .lock()
+                    .unwrap_or_else(PoisonError::into_inner)
+                    .take()
+                    .expect("a mesh's triangles are pending until it is built");
+                let mesh = TriMesh::with_flags(vertices.into_vec(), triangles.into_vec(), *flags)
+                    .expect("a mesh has triangles (checked when it was made)");
+                SharedShape::new(mesh)
+            }),
+        }
     }
 
     /// `read(vertices, triangles)` on a mesh, from where they are: pending, or in the built mesh.
     fn with_triangles<R>(&self, read: impl FnOnce(&[DVec3], &[[u32; 3]]) -> R) -> Option<R> {
-        if !self.is_mesh {
+        let LazyShape::Mesh { pending, built, .. } = self else {
             return None;
-        }
-        if self.built.get().is_none() {
-            let pending = self.pending.lock().unwrap_or_else(PoisonError::into_inner);
+        };
+        if built.get().is_none() {
+            let pending = pending.lock().unwrap_or_else(PoisonError::into_inner);
             if let Some((vertices, triangles)) = pending.as_ref() {
                 return Some(read(vertices, triangles));
             }
@@ -213,6 +218,15 @@ impl LazyShape {
         // Built, or being built on another thread (which `get` waits for).
         let mesh = self.get().as_trimesh().expect("a mesh");
         Some(read(mesh.vertices(), mesh.indices()))
+    }
+
+    /// True once a mesh is built (a primitive always is).
+    #[cfg(test)]
+    fn is_built(&self) -> bool {
+        match self {
+            LazyShape::Ready(..) => true,
+            LazyShape::Mesh { built, .. } => built.get().is_some(),
+        }
     }
 }
 
@@ -458,7 +472,7 @@ mod tests {
         world
             .bodies
             .iter()
-            .filter(|b| b.is_mesh() && b.shape.built.get().is_some())
+            .filter(|b| b.is_mesh() && b.shape.is_built())
             .count()
     }
 
