@@ -312,26 +312,59 @@ fn on_edge(p: DVec3, [a, b, c]: [DVec3; 3]) -> bool {
     })
 }
 
-/// The most crossings of the faces by copies of the segment moved sideways a hair (a ten-thousandth
-/// of the faces' shortest edge) in eight directions.
+/// The most crossings of the faces by copies of the segment moved sideways, by less than any
+/// distance in the level, in eight directions. Seen along the segment, each face holding the point
+/// covers a sector of directions around it (a half-plane when the point is on one of its edges, the
+/// angle between two edges at a corner, every direction inside it), and a copy moved towards `w`
+/// crosses the faces whose sector holds `w`. Counting sectors rather than moving copies by a finite
+/// amount keeps the count right however closely the segment grazes a face or passes a corner
+/// (common practice: the "simulation of simplicity" idea of Edelsbrunner & Mücke, ACM TOG 9(1),
+/// 1990, from memory). A face the segment runs along covers no direction.
 fn crossings_nearby(faces: &[Candidate], seg: &Segment) -> usize {
-    let corners: Vec<[DVec3; 3]> = faces.iter().filter_map(|f| f.corners).collect();
-    let shortest = corners
-        .iter()
-        .flat_map(|[a, b, c]| [a.distance(*b), b.distance(*c), c.distance(*a)])
-        .fold(f64::INFINITY, f64::min);
     let point = faces[0].hit.point;
-    let shift = (1e-4 * shortest).max(1e3 * edge_tolerance(point, 0.0));
     let (u, v) = seg.dir.any_orthonormal_pair();
-    // Angles away from multiples of 45°, so no copy runs along an axis-aligned edge.
+    let flat = |q: DVec3| {
+        let d = q - point;
+        glam::DVec2::new(d.dot(u), d.dot(v))
+    };
+    // Each face as the edges that pass through the point, each with the side the face lies on.
+    let sectors: Vec<Vec<(glam::DVec2, f64)>> = faces
+        .iter()
+        .filter_map(|f| f.corners)
+        .filter_map(|corners| {
+            let size = corners[0]
+                .distance(corners[1])
+                .max(corners[1].distance(corners[2]))
+                .max(corners[2].distance(corners[0]));
+            let [a, b, c] = corners.map(flat);
+            let area = (b - a).perp_dot(c - a);
+            if area.abs() <= 1e-12 * size * size {
+                return None;
+            }
+            let reach = edge_tolerance(point, size);
+            let through = [(a, b), (b, c), (c, a)]
+                .into_iter()
+                .filter(|&(p, q)| {
+                    let edge = q - p;
+                    edge.length() > reach && edge.perp_dot(-p).abs() <= reach * edge.length()
+                })
+                .map(|(p, q)| (q - p, area.signum()))
+                .collect();
+            Some(through)
+        })
+        .collect();
+    // Angles away from multiples of 45°, so no direction runs along an axis-aligned edge.
     (0..8)
         .map(|k| {
             let angle = 0.371 + k as f64 * std::f64::consts::FRAC_PI_4;
-            let origin = seg.from + (u * angle.cos() + v * angle.sin()) * shift;
-            let moved = ShearedRay::new(origin, seg.dir);
-            corners
+            let w = glam::DVec2::new(angle.cos(), angle.sin());
+            sectors
                 .iter()
-                .filter(|[a, b, c]| moved.intersect(*a, *b, *c, seg.len).is_some())
+                .filter(|edges| {
+                    edges
+                        .iter()
+                        .all(|(edge, side)| side * edge.perp_dot(w) > 0.0)
+                })
                 .count()
         })
         .max()
