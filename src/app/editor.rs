@@ -13,8 +13,8 @@ use crate::view::palette;
 use plumbline_core::check::trajectory;
 use plumbline_core::level::ShapeSpec;
 use plumbline_core::probe::{
-    Conditions, Expect, ExpectWord, HitsMode, JUMP_TIME, Launch, MAX_STEP, MAX_WALKABLE_SLOPE,
-    Probe, ProbeQuery, Range, Region, STANDARD_GRAVITY, Spots, Turns,
+    Expect, ExpectWord, HitsMode, JUMP_TIME, Launch, MAX_STEP, MAX_WALKABLE_SLOPE, Probe,
+    ProbeQuery, Range, Region, STANDARD_GRAVITY, Spots, Turns,
 };
 
 /// An edit made in the inspector.
@@ -693,9 +693,9 @@ fn expect_editor(
             "nothing" => None,
             "clear" => Some(Expect::Word(ExpectWord::Clear)),
             "blocked" => Some(Expect::Word(ExpectWord::Blocked)),
-            _ => Some(Expect::Conditions(
+            _ => Some(Expect::Conditions(Box::new(
                 expect.map(Expect::conditions).unwrap_or_default(),
-            )),
+            ))),
         });
     }
     let Some(Expect::Conditions(conditions)) = expect else {
@@ -718,7 +718,7 @@ fn expect_editor(
             optional_number(ui, "depth at most", &mut c.max_depth);
         }
     });
-    (c != *conditions).then_some(Some(Expect::Conditions(Conditions { ..c })))
+    (c != *conditions).then_some(Some(Expect::Conditions(c)))
 }
 
 fn optional_text(ui: &mut egui::Ui, name: &str, value: &mut Option<String>) {

@@ -28,21 +28,21 @@ pub fn expectation_from(result: &ProbeResult) -> Option<Expect> {
         max: Some(((distance + SLACK) * 1000.0).ceil() / 1000.0),
     };
     Some(match (&result.hits, first) {
-        (Hits::Closest(_), Some((object, distance))) => Expect::Conditions(Conditions {
+        (Hits::Closest(_), Some((object, distance))) => Expect::Conditions(Box::new(Conditions {
             first_object: Some(object),
             distance: Some(around(distance, 0.0)),
             ..Conditions::default()
-        }),
-        (Hits::Rest(_), Some((object, gap))) => Expect::Conditions(Conditions {
+        })),
+        (Hits::Rest(_), Some((object, gap))) => Expect::Conditions(Box::new(Conditions {
             first_object: Some(object),
             distance: Some(around(gap, f64::NEG_INFINITY)),
             ..Conditions::default()
-        }),
-        (Hits::Jump(h), Some((object, _))) => Expect::Conditions(Conditions {
+        })),
+        (Hits::Jump(h), Some((object, _))) => Expect::Conditions(Box::new(Conditions {
             first_object: Some(object),
             walkable: h.first().map(|x| x.walkable),
             ..Conditions::default()
-        }),
+        })),
         (Hits::Reach(h), _) => {
             let list = |reached: bool| {
                 let names: Vec<String> = h
@@ -53,24 +53,24 @@ pub fn expectation_from(result: &ProbeResult) -> Option<Expect> {
                     .collect();
                 (!names.is_empty()).then_some(names)
             };
-            Expect::Conditions(Conditions {
+            Expect::Conditions(Box::new(Conditions {
                 reachable: list(true),
                 unreachable: list(false),
                 ..Conditions::default()
-            })
+            }))
         }
         (Hits::Settle(h), _) if h.first().is_some_and(|x| x.rests()) => {
             let x = &h[0];
-            Expect::Conditions(Conditions {
+            Expect::Conditions(Box::new(Conditions {
                 max_move: Some(((x.moved + SLACK) * 100.0).ceil() / 100.0),
                 max_turn: Some((x.turned + 1.0).ceil().min(180.0)),
                 ..Conditions::default()
-            })
+            }))
         }
-        (Hits::Walk(h), _) => Expect::Conditions(Conditions {
+        (Hits::Walk(h), _) => Expect::Conditions(Box::new(Conditions {
             reaches: h.first().map(|w| w.reached),
             ..Conditions::default()
-        }),
+        })),
         (Hits::Sightlines(pairs), _) => {
             let list = |sees: bool| {
                 let chosen: Vec<[String; 2]> = pairs
@@ -80,13 +80,13 @@ pub fn expectation_from(result: &ProbeResult) -> Option<Expect> {
                     .collect();
                 (!chosen.is_empty()).then_some(chosen)
             };
-            Expect::Conditions(Conditions {
+            Expect::Conditions(Box::new(Conditions {
                 see: list(true),
                 blind: list(false),
                 ..Conditions::default()
-            })
+            }))
         }
-        (Hits::Coverage(c), _) => Expect::Conditions(Conditions {
+        (Hits::Coverage(c), _) => Expect::Conditions(Box::new(Conditions {
             seen: Some(Range {
                 min: Some(
                     c.first()
@@ -95,18 +95,18 @@ pub fn expectation_from(result: &ProbeResult) -> Option<Expect> {
                 max: None,
             }),
             ..Conditions::default()
-        }),
-        (_, Some((object, _))) => Expect::Conditions(Conditions {
+        })),
+        (_, Some((object, _))) => Expect::Conditions(Box::new(Conditions {
             blocked: Some(true),
             first_object: Some(object),
             ..Conditions::default()
-        }),
+        })),
         (_, None) => match &result.clearance {
-            Some(c) if c.distance >= SLACK => Expect::Conditions(Conditions {
+            Some(c) if c.distance >= SLACK => Expect::Conditions(Box::new(Conditions {
                 blocked: Some(false),
                 min_clearance: Some((c.distance * 100.0).floor() / 100.0),
                 ..Conditions::default()
-            }),
+            })),
             _ => Expect::Word(ExpectWord::Clear),
         },
     })

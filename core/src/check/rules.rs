@@ -97,11 +97,11 @@ fn template_probe(rule: &Rule, world: &World, object: Option<ObjectId>) -> Probe
                     restitution: None,
                     max_time: None,
                 },
-                Some(Expect::Conditions(crate::probe::Conditions {
+                Some(Expect::Conditions(Box::new(crate::probe::Conditions {
                     max_move: Some(*max_move),
                     max_turn: Some(*max_turn),
                     ..Default::default()
-                })),
+                }))),
             )
         }
         Template::Probe { probe, anchors } => {

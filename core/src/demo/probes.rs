@@ -49,7 +49,7 @@ fn blocked() -> Option<Expect> {
 }
 
 fn when(c: Conditions) -> Option<Expect> {
-    Some(Expect::Conditions(c))
+    Some(Expect::Conditions(Box::new(c)))
 }
 
 fn ray(from: DVec3, to: DVec3) -> ProbeQuery {

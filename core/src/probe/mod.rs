@@ -6,6 +6,7 @@
 
 mod model;
 mod parse;
+mod plain_read;
 mod rules;
 mod text;
 mod write;

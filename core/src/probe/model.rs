@@ -516,13 +516,11 @@ fn spot_points(spots: &Spots) -> Vec<DVec3> {
 /// What a probe expects: `"clear"`, `"blocked"`, or a set of conditions that must all hold.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(untagged)]
-// Conditions are the common case; boxing them would cost an allocation per probe for nothing.
-#[allow(clippy::large_enum_variant)]
 pub enum Expect {
     /// `"clear"` or `"blocked"`.
     Word(ExpectWord),
     /// Conditions that must all hold.
-    Conditions(Conditions),
+    Conditions(Box<Conditions>),
 }
 
 /// The one-word expectations.
@@ -640,7 +638,7 @@ impl Expect {
                 blocked: Some(true),
                 ..Conditions::default()
             },
-            Expect::Conditions(c) => c.clone(),
+            Expect::Conditions(c) => (**c).clone(),
         }
     }
 }

@@ -5,69 +5,22 @@
 use std::path::Path;
 
 use glam::{DQuat, DVec3};
-use serde::Deserialize;
-use serde_json::value::RawValue;
 
 use super::model::{
-    Conditions, Expect, ExpectWord, HitsMode, Launch, MAX_SETTLE_TIME, Probe, ProbeKind,
-    ProbeQuery, Region, Spot, Spots, Turns,
+    Conditions, Expect, ExpectWord, Launch, MAX_SETTLE_TIME, Probe, ProbeKind, ProbeQuery, Region,
+    Spot, Spots, Turns,
 };
+use super::plain_read::{ProbeFields, plain_string};
 use crate::error::InputError;
 use crate::input::{MAX_NAME_CHARS, check_name, number, one_line};
 use crate::level::ShapeSpec;
 use crate::query::{Filter, ProbeShape};
 
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawProbe<'a> {
-    id: String,
-    label: Option<String>,
-    kind: String,
-    from: Option<[f64; 3]>,
-    to: Option<[f64; 3]>,
-    hits: Option<HitsMode>,
-    #[serde(default, deserialize_with = "crate::json_object::optional_object")]
-    shape: Option<ShapeSpec>,
-    rotation: Option<[f64; 4]>,
-    path: Option<Vec<[f64; 3]>>,
-    duration: Option<f64>,
-    clearance: Option<bool>,
-    at: Option<[f64; 3]>,
-    max_distance: Option<f64>,
-    search: Option<f64>,
-    #[serde(default, deserialize_with = "crate::json_object::optional_objects")]
-    spots: Option<Vec<Spot>>,
-    spot_tags: Option<Vec<String>>,
-    eye: Option<f64>,
-    #[serde(default, deserialize_with = "crate::json_object::optional_object")]
-    region: Option<Region>,
-    spacing: Option<f64>,
-    velocity: Option<[f64; 3]>,
-    turns: Option<Vec<[f64; 4]>>,
-    yaw: Option<Vec<f64>>,
-    apex: Option<f64>,
-    gravity: Option<f64>,
-    max_slope: Option<f64>,
-    max_step: Option<f64>,
-    #[serde(default, deserialize_with = "crate::json_object::optional_objects")]
-    targets: Option<Vec<Spot>>,
-    target_tags: Option<Vec<String>>,
-    max_time: Option<f64>,
-    density: Option<f64>,
-    friction: Option<f64>,
-    restitution: Option<f64>,
-    ignore_tags: Option<Vec<String>>,
-    only_tags: Option<Vec<String>>,
-    ignore_objects: Option<Vec<String>>,
-    #[serde(borrow)]
-    expect: Option<&'a RawValue>,
-}
-
 /// The longest label, in characters (a sentence or two). Ours.
 const MAX_LABEL_CHARS: usize = 4 * MAX_NAME_CHARS;
 
 /// Labels, tags and object names within their limits.
-fn check_names(raw: &RawProbe) -> Result<(), String> {
+fn check_names(raw: &ProbeFields) -> Result<(), String> {
     if let Some(label) = &raw.label
         && label.chars().count() > MAX_LABEL_CHARS
     {
@@ -84,8 +37,8 @@ fn check_names(raw: &RawProbe) -> Result<(), String> {
 
 /// Parses probe `fragment`, a slice of the file's `text`.
 pub(super) fn parse_probe(path: &Path, text: &str, fragment: &str) -> Result<Probe, InputError> {
-    let raw: RawProbe = crate::json_object::from_object_str(fragment)
-        .map_err(|e| InputError::json_in(path, text, fragment, &e))?;
+    let raw =
+        ProbeFields::read(fragment).map_err(|e| InputError::json_in(path, text, fragment, &e))?;
     let here = |message: String| InputError::at_fragment(path, text, fragment, message);
     check_id("probe", &raw.id).map_err(here)?;
     let fail = |message: String| here(format!("probe \"{}\": {message}", raw.id));
@@ -94,20 +47,20 @@ pub(super) fn parse_probe(path: &Path, text: &str, fragment: &str) -> Result<Pro
     let expect = match raw.expect {
         None => None,
         Some(e) => Some(
-            parse_expect(path, text, e.get(), &query).map_err(|err| match err {
+            parse_expect(path, text, e, &query).map_err(|err| match err {
                 ExpectError::Json(e) => e,
                 ExpectError::Value(m) => fail(m),
             })?,
         ),
     };
     let filter = Filter {
-        ignore_tags: raw.ignore_tags.clone().unwrap_or_default(),
-        only_tags: raw.only_tags.clone(),
-        ignore_objects: raw.ignore_objects.clone().unwrap_or_default(),
+        ignore_tags: raw.ignore_tags.unwrap_or_default(),
+        only_tags: raw.only_tags,
+        ignore_objects: raw.ignore_objects.unwrap_or_default(),
     };
     Ok(Probe {
-        id: raw.id.clone(),
-        label: raw.label.clone(),
+        id: raw.id,
+        label: raw.label,
         filter,
         query,
         expect,
@@ -115,7 +68,7 @@ pub(super) fn parse_probe(path: &Path, text: &str, fragment: &str) -> Result<Pro
     })
 }
 
-fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
+fn parse_query(raw: &ProbeFields) -> Result<ProbeQuery, String> {
     let kind = ProbeKind::from_name(&raw.kind).ok_or_else(|| {
         let known: Vec<&str> = ProbeKind::ALL.iter().map(|k| k.name()).collect();
         format!(
@@ -437,7 +390,7 @@ fn parse_query(raw: &RawProbe) -> Result<ProbeQuery, String> {
 
 /// A sweep's turns along its path: `turns` (quaternions) or `yaw` (degrees), one per path point, and
 /// never with a constant `rotation`.
-fn parse_turns(raw: &RawProbe, points: usize) -> Result<Option<Turns>, String> {
+fn parse_turns(raw: &ProbeFields, points: usize) -> Result<Option<Turns>, String> {
     let turns = match (&raw.turns, &raw.yaw) {
         (None, None) => return Ok(None),
         (Some(_), Some(_)) => return Err("a sweep takes \"turns\" or \"yaw\", not both".into()),
@@ -484,7 +437,7 @@ fn slope_limit(degrees: f64) -> Result<f64, String> {
 }
 
 /// A sweep's or walk's `path`: two or more finite points.
-fn path_points(raw: &RawProbe, need: &dyn Fn(&str) -> String) -> Result<Vec<DVec3>, String> {
+fn path_points(raw: &ProbeFields, need: &dyn Fn(&str) -> String) -> Result<Vec<DVec3>, String> {
     let path: Vec<DVec3> = raw
         .path
         .as_ref()
@@ -500,7 +453,7 @@ fn path_points(raw: &RawProbe, need: &dyn Fn(&str) -> String) -> Result<Vec<DVec
 }
 
 /// A walk's waypoints: a path whose points are not all one.
-fn waypoints(raw: &RawProbe, need: &dyn Fn(&str) -> String) -> Result<Vec<DVec3>, String> {
+fn waypoints(raw: &ProbeFields, need: &dyn Fn(&str) -> String) -> Result<Vec<DVec3>, String> {
     let path = path_points(raw, need)?;
     if path.windows(2).all(|w| w[0] == w[1]) {
         return Err("the walk's waypoints are all one point".into());
@@ -509,7 +462,7 @@ fn waypoints(raw: &RawProbe, need: &dyn Fn(&str) -> String) -> Result<Vec<DVec3>
 }
 
 /// A jump's launch: `velocity`, or `to` with `apex` (one or the other).
-fn parse_launch(raw: &RawProbe) -> Result<Launch, String> {
+fn parse_launch(raw: &ProbeFields) -> Result<Launch, String> {
     match (raw.velocity, raw.to, raw.apex) {
         (Some(v), None, None) => {
             let v = finite_point("velocity", v)?;
@@ -585,7 +538,7 @@ pub const MAX_REACH_CELLS: usize = 250_000;
 pub const MAX_COVERAGE_POINTS: usize = 4_000_000;
 
 /// A coverage or sightlines probe's spots: named points (names unique) and tagged objects.
-fn parse_spots(raw: &RawProbe) -> Result<Spots, String> {
+fn parse_spots(raw: &ProbeFields) -> Result<Spots, String> {
     let points = raw.spots.clone().unwrap_or_default();
     let tags = raw.spot_tags.clone().unwrap_or_default();
     if points.is_empty() && tags.is_empty() {
@@ -688,9 +641,13 @@ fn parse_expect(
     query: &ProbeQuery,
 ) -> Result<Expect, ExpectError> {
     let expect = if fragment.trim_start().starts_with('"') {
-        let word: String = serde_json::from_str(fragment)
-            .map_err(|e| ExpectError::Json(InputError::json_in(path, text, fragment, &e)))?;
-        match word.as_str() {
+        let word: std::borrow::Cow<str> = match plain_string(fragment) {
+            Some(word) => word.into(),
+            None => serde_json::from_str::<String>(fragment)
+                .map_err(|e| ExpectError::Json(InputError::json_in(path, text, fragment, &e)))?
+                .into(),
+        };
+        match &*word {
             "clear" => Expect::Word(ExpectWord::Clear),
             "blocked" => Expect::Word(ExpectWord::Blocked),
             other => {
@@ -703,7 +660,7 @@ fn parse_expect(
         let c: Conditions = crate::json_object::from_object_str(fragment)
             .map_err(|e| ExpectError::Json(InputError::json_in(path, text, fragment, &e)))?;
         check_conditions(&c, query).map_err(ExpectError::Value)?;
-        Expect::Conditions(c)
+        Expect::Conditions(Box::new(c))
     };
     Ok(expect)
 }

@@ -391,13 +391,13 @@ impl Rule {
     /// The probe a `rests` rule gives an object: its own shape at its own pose, expecting a gap
     /// between `-max_sink` and `max_gap`.
     pub fn rests_expectation(max_gap: f64, max_sink: f64) -> Expect {
-        Expect::Conditions(super::model::Conditions {
+        Expect::Conditions(Box::new(super::model::Conditions {
             distance: Some(Range {
                 min: Some(-max_sink),
                 max: Some(max_gap),
             }),
             ..Default::default()
-        })
+        }))
     }
 }
 

@@ -7,11 +7,9 @@ use std::collections::HashSet;
 use std::ops::Range;
 use std::path::{Path, PathBuf};
 
-use serde::Deserialize;
-use serde_json::value::RawValue;
-
 use super::model::{Probe, ProbeSet};
 use super::parse::parse_probe;
+use super::plain_read::SetFields;
 use super::rules::{Rule, parse_rule};
 use crate::error::{InputError, check_header};
 use crate::input::{MAX_PROBES, read_input};
@@ -19,20 +17,6 @@ use crate::input::{MAX_PROBES, read_input};
 /// Probes parsed at a time while checking a file: enough to keep every core busy, few enough that
 /// what a batch holds stays small. Ours.
 const PARSE_BATCH: usize = 8192;
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawSet<'a> {
-    #[serde(rename = "$schema")]
-    schema: Option<String>,
-    plumbline: String,
-    version: u32,
-    level: String,
-    #[serde(borrow)]
-    probes: Vec<&'a RawValue>,
-    #[serde(default, borrow)]
-    rules: Vec<&'a RawValue>,
-}
 
 /// A checked probe-set file: every probe in it is valid and ids are unique.
 #[derive(Debug, Clone)]
@@ -62,8 +46,7 @@ impl ProbeText {
     /// Checks probe-set text; `path` is named in errors.
     pub fn parse(path: &Path, text: String) -> Result<ProbeText, InputError> {
         let level = {
-            let raw: RawSet = crate::json_object::from_object_str(&text)
-                .map_err(|e| InputError::json(path, &e))?;
+            let raw = SetFields::read(&text).map_err(|e| InputError::json(path, &e))?;
             check_header(path, &raw.plumbline, raw.version, "probes", "a probe set")?;
             if raw.probes.len() > MAX_PROBES {
                 return Err(InputError::at(
@@ -72,28 +55,26 @@ impl ProbeText {
                     format!("{} probes; at most {MAX_PROBES} are read", raw.probes.len()),
                 ));
             }
+            // Where each fragment lies in the text.
             let base = text.as_ptr() as usize;
-            let spans: Vec<(usize, usize)> = raw
-                .probes
-                .iter()
-                .map(|p| {
-                    let start = p.get().as_ptr() as usize - base;
-                    (start, start + p.get().len())
-                })
-                .collect();
+            let spans_of = |fragments: &[&str]| -> Vec<(usize, usize)> {
+                fragments
+                    .iter()
+                    .map(|f| {
+                        (
+                            f.as_ptr() as usize - base,
+                            f.as_ptr() as usize - base + f.len(),
+                        )
+                    })
+                    .collect()
+            };
+            let spans = spans_of(&raw.probes);
             let rules = raw
                 .rules
                 .iter()
-                .map(|r| parse_rule(path, &text, r.get()))
+                .map(|r| parse_rule(path, &text, r))
                 .collect::<Result<Vec<Rule>, _>>()?;
-            let rule_spans: Vec<(usize, usize)> = raw
-                .rules
-                .iter()
-                .map(|r| {
-                    let start = r.get().as_ptr() as usize - base;
-                    (start, start + r.get().len())
-                })
-                .collect();
+            let rule_spans = spans_of(&raw.rules);
             (raw.schema, raw.level, spans, rules, rule_spans)
         };
         let (schema, level, spans, rules, rule_spans) = level;
