@@ -249,10 +249,37 @@ impl Bounds {
     }
 }
 
+/// What a group of build items spans: the union of their boxes, and the box around their
+/// centroids (which the splits bin).
+#[derive(Debug, Clone, Copy)]
+struct Extent {
+    bounds: Bounds,
+    centroids: Bounds,
+}
+
+impl Extent {
+    const EMPTY: Extent = Extent {
+        bounds: Bounds::EMPTY,
+        centroids: Bounds::EMPTY,
+    };
+
+    fn add(self, item: &BuildItem) -> Extent {
+        Extent {
+            bounds: self.bounds.grow(item.bounds),
+            centroids: self.centroids.add(item.centroid()),
+        }
+    }
+
+    fn of(items: &[BuildItem]) -> Extent {
+        items.iter().fold(Extent::EMPTY, Extent::add)
+    }
+}
+
 /// The items of a tree to be built, by their boxes, in the order that numbers them.
 pub(crate) struct TreeItems {
     frame: RayFrame,
     items: Vec<BuildItem>,
+    extent: Extent,
 }
 
 impl TreeItems {
@@ -261,27 +288,32 @@ impl TreeItems {
         TreeItems {
             frame,
             items: Vec::with_capacity(count),
+            extent: Extent::EMPTY,
         }
     }
 
     /// Adds the next item, inside the box `lo ..= hi`.
     pub fn push(&mut self, lo: DVec3, hi: DVec3) {
-        let bounds = Bounds::around(lo, hi, self.frame.center);
-        self.items.push(BuildItem {
-            bounds,
-            centroid: (bounds.lo + bounds.hi) * 0.5,
+        let item = BuildItem {
+            bounds: Bounds::around(lo, hi, self.frame.center),
             id: self.items.len() as u32,
-        });
+        };
+        self.extent = self.extent.add(&item);
+        self.items.push(item);
     }
 
     /// Builds the tree, at most `leaf_size` items to a leaf. Leaves refer to positions in the
     /// returned leaf order of the items (item numbers in the order they were pushed).
     pub fn build(self, leaf_size: usize) -> (RayTree, Vec<u32>) {
         // Records, not indices, are partitioned: the build then reads memory in order.
-        let TreeItems { frame, mut items } = self;
+        let TreeItems {
+            frame,
+            mut items,
+            extent,
+        } = self;
         let builder = Builder { leaf_size };
         let mut nodes = Vec::new();
-        let root = builder.subtree(&mut items, 0, 0, &mut nodes);
+        let root = builder.subtree(&mut items, extent, 0, 0, &mut nodes);
         let tree = RayTree {
             frame,
             nodes,
@@ -383,12 +415,18 @@ impl RayTree {
     }
 }
 
-/// One item during a build: its box, its centroid, and its index.
+/// One item during a build: its box and its index.
 #[derive(Debug, Clone, Copy)]
 struct BuildItem {
     bounds: Bounds,
-    centroid: f32x4,
     id: u32,
+}
+
+impl BuildItem {
+    /// The centre of its box.
+    fn centroid(&self) -> f32x4 {
+        (self.bounds.lo + self.bounds.hi) * 0.5
+    }
 }
 
 /// How a build makes leaves.
@@ -397,11 +435,12 @@ struct Builder {
 }
 
 impl Builder {
-    /// The subtree of the items `order` (which it reorders), whose first one sits at `start` in
-    /// the tree's leaf order, `depth` binary splits below the root.
+    /// The subtree of the items `order` (which it reorders) spanning `extent`, whose first one
+    /// sits at `start` in the tree's leaf order, `depth` binary splits below the root.
     fn subtree(
         &self,
         order: &mut [BuildItem],
+        extent: Extent,
         start: usize,
         depth: usize,
         nodes: &mut Vec<WideNode>,
@@ -410,23 +449,21 @@ impl Builder {
             return leaf(start, order.len());
         }
         // Split in two, then each half in two again: up to four children.
-        let mut groups: Vec<(usize, usize)> = Vec::with_capacity(4);
-        let half = self.split(order, depth);
-        for (from, to) in [(0, half), (half, order.len())] {
+        let mut groups: Vec<(usize, usize, Extent)> = Vec::with_capacity(4);
+        let (half, halves) = self.split(order, extent, depth);
+        for ((from, to), extent) in [(0, half), (half, order.len())].into_iter().zip(halves) {
             if to - from <= self.leaf_size {
-                groups.push((from, to));
+                groups.push((from, to, extent));
             } else {
-                let cut = from + self.split(&mut order[from..to], depth + 1);
-                groups.push((from, cut));
-                groups.push((cut, to));
+                let (cut, quarters) = self.split(&mut order[from..to], extent, depth + 1);
+                groups.push((from, from + cut, quarters[0]));
+                groups.push((from + cut, to, quarters[1]));
             }
         }
         let mut lo = [[f32::INFINITY; 4]; 3];
         let mut hi = [[f32::INFINITY; 4]; 3];
-        for (slot, &(from, to)) in groups.iter().enumerate() {
-            let bounds = order[from..to]
-                .iter()
-                .fold(Bounds::EMPTY, |acc, item| acc.grow(item.bounds));
+        for (slot, &(_, _, extent)) in groups.iter().enumerate() {
+            let bounds = extent.bounds;
             let (bounds_lo, bounds_hi) = (bounds.lo.to_array(), bounds.hi.to_array());
             for k in 0..3 {
                 lo[k][slot] = bounds_lo[k];
@@ -440,12 +477,13 @@ impl Builder {
             children: [EMPTY; 4],
         });
         let parallel = order.len() >= PARALLEL_ITEMS;
-        // The groups as disjoint slices of `order`, with where each starts in the leaf order.
-        let mut parts: Vec<(&mut [BuildItem], usize)> = Vec::with_capacity(4);
+        // The groups as disjoint slices of `order`, with their extents and where each starts in
+        // the leaf order.
+        let mut parts: Vec<(&mut [BuildItem], Extent, usize)> = Vec::with_capacity(4);
         let mut rest = order;
-        for &(from, to) in &groups {
+        for &(from, to, extent) in &groups {
             let (part, tail) = rest.split_at_mut(to - from);
-            parts.push((part, start + from));
+            parts.push((part, extent, start + from));
             rest = tail;
         }
         let mut children = [EMPTY; 4];
@@ -454,9 +492,9 @@ impl Builder {
             // appended with their node indices moved.
             let built: Vec<(Vec<WideNode>, Child)> = parts
                 .into_par_iter()
-                .map(|(part, at)| {
+                .map(|(part, extent, at)| {
                     let mut own = Vec::new();
-                    let root = self.subtree(part, at, depth + 2, &mut own);
+                    let root = self.subtree(part, extent, at, depth + 2, &mut own);
                     (own, root)
                 })
                 .collect();
@@ -469,21 +507,20 @@ impl Builder {
                 }));
             }
         } else {
-            for (slot, (part, at)) in parts.into_iter().enumerate() {
-                children[slot] = self.subtree(part, at, depth + 2, nodes);
+            for (slot, (part, extent, at)) in parts.into_iter().enumerate() {
+                children[slot] = self.subtree(part, extent, at, depth + 2, nodes);
             }
         }
         nodes[index].children = children;
         index as Child
     }
 
-    /// Reorders `order` into two non-empty groups, `depth` binary splits below the root: by the
-    /// binned surface-area heuristic over the three axes, or below [`SAH_DEPTH`] (or where the
-    /// centroids coincide) at the median of the widest axis; returns the size of the first.
-    fn split(&self, order: &mut [BuildItem], depth: usize) -> usize {
-        let span = order
-            .iter()
-            .fold(Bounds::EMPTY, |acc, item| acc.add(item.centroid));
+    /// Reorders `order` (spanning `extent`) into two non-empty groups, `depth` binary splits below
+    /// the root: by the binned surface-area heuristic over the three axes, or below [`SAH_DEPTH`]
+    /// (or where the centroids coincide) at the median of the widest axis; returns the size of
+    /// the first and the extents of both.
+    fn split(&self, order: &mut [BuildItem], extent: Extent, depth: usize) -> (usize, [Extent; 2]) {
+        let span = extent.centroids;
         if depth >= SAH_DEPTH {
             return self.median_split(order, span);
         }
@@ -498,16 +535,20 @@ impl Builder {
         // Every axis's bin of item `t` (the same arithmetic for binning and for partitioning).
         let last_bin = f32x4::splat((BINS - 1) as f32);
         let bins_of = |item: &BuildItem| {
-            let at = (item.centroid - span.lo) * scale;
+            let at = (item.centroid() - span.lo) * scale;
             // In 0 ..= BINS - 1 (a centroid is never below the span), so truncation is exact.
             at.fast_min(last_bin).fast_trunc_int().to_array()
         };
         let bin = |x: i32| x as usize;
         // Large groups are binned along their widest axis only, small ones along all three: the
         // build time lies in the many items near the root, the tree's quality near its leaves.
-        let extent = (span.hi - span.lo).to_array();
+        let extent_of_span = (span.hi - span.lo).to_array();
         let widest = (0..3)
-            .max_by(|&a, &b| extent[a].total_cmp(&extent[b]).then(b.cmp(&a)))
+            .max_by(|&a, &b| {
+                extent_of_span[a]
+                    .total_cmp(&extent_of_span[b])
+                    .then(b.cmp(&a))
+            })
             .unwrap_or(0);
         let axes: &[usize] = if order.len() > ONE_AXIS_ITEMS {
             &[widest]
@@ -553,26 +594,33 @@ impl Builder {
         let Some((_, axis, last)) = best else {
             return self.median_split(order, span);
         };
+        // Partitioned in one pass that also measures both sides, for the splits below.
         let mut cut = 0;
+        let mut sides = [Extent::EMPTY; 2];
         for k in 0..order.len() {
-            if bin(bins_of(&order[k])[axis]) <= last {
+            let item = order[k];
+            if bin(bins_of(&item)[axis]) <= last {
+                sides[0] = sides[0].add(&item);
                 order.swap(cut, k);
                 cut += 1;
+            } else {
+                sides[1] = sides[1].add(&item);
             }
         }
-        cut
+        (cut, sides)
     }
 
     /// Cuts `order` at the median of its centroids along the widest axis of their `span`.
-    fn median_split(&self, order: &mut [BuildItem], span: Bounds) -> usize {
+    fn median_split(&self, order: &mut [BuildItem], span: Bounds) -> (usize, [Extent; 2]) {
         let extent = (span.hi - span.lo).to_array();
         let axis = (0..3)
             .max_by(|&a, &b| extent[a].total_cmp(&extent[b]).then(b.cmp(&a)))
             .unwrap_or(0);
         let half = order.len() / 2;
-        let key = |item: &BuildItem| item.centroid.to_array()[axis];
+        let key = |item: &BuildItem| item.centroid().to_array()[axis];
         order.select_nth_unstable_by(half, |x, y| key(x).total_cmp(&key(y)).then(x.id.cmp(&y.id)));
-        half
+        let (first, second) = order.split_at(half);
+        (half, [Extent::of(first), Extent::of(second)])
     }
 }
 
