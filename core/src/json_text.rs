@@ -69,12 +69,13 @@ pub fn to_pretty(value: &Value) -> String {
 
 /// Writes a value laid out as [`to_pretty`] does, as if it stood `depth` levels deep (no newline).
 pub fn write_pretty(value: &Json, depth: usize, out: &mut String) {
-    if nests_within(value, 2) {
+    let width = INLINE_WIDTH.saturating_sub(depth * 2);
+    if nests_within(value, 2) && inline_may_fit(value, width) {
         // Written on one line, then taken back if it runs past the width: each number is
         // formatted once for values that fit, and at most a line's worth is wasted for those
         // that do not.
         let start = out.len();
-        if write_inline_within(value, out, start + INLINE_WIDTH.saturating_sub(depth * 2)) {
+        if write_inline_within(value, out, start + width) {
             return;
         }
         out.truncate(start);
@@ -115,7 +116,6 @@ fn write_inline(value: &Json, out: &mut String) {
 /// Writes a value as [`write_inline`] does while `out` stays at most `limit` bytes long; returns
 /// false (with `out` part written) as soon as it is longer.
 fn write_inline_within(value: &Json, out: &mut String, limit: usize) -> bool {
-    use std::fmt::Write;
     match value {
         Json::Arr(items) => {
             out.push('[');
@@ -144,13 +144,58 @@ fn write_inline_within(value: &Json, out: &mut String, limit: usize) -> bool {
             out.push('}');
         }
         Json::Str(s) => write_string(s, out),
-        Json::Num(n) => {
-            let _ = write!(out, "{n}");
-        }
+        Json::Num(n) => write_number(n, out),
         Json::Bool(b) => out.push_str(if *b { "true" } else { "false" }),
         Json::Null => out.push_str("null"),
     }
     out.len() <= limit
+}
+
+/// A number as serde_json writes it (the same formatters, without `core::fmt`).
+fn write_number(n: &Number, out: &mut String) {
+    if let Some(x) = n.as_f64().filter(|_| n.is_f64()) {
+        out.push_str(zmij::Buffer::new().format_finite(x));
+    } else if let Some(u) = n.as_u64() {
+        out.push_str(itoa::Buffer::new().format(u));
+    } else if let Some(i) = n.as_i64() {
+        out.push_str(itoa::Buffer::new().format(i));
+    }
+}
+
+/// False when `value` on one line is surely longer than `width` bytes, by a lower bound that
+/// formats no number (each is at least one digit); stops counting past the width.
+fn inline_may_fit(value: &Json, width: usize) -> bool {
+    inline_at_least(value, width) <= width
+}
+
+/// A lower bound on the length of `value` on one line, exact until it passes `width`.
+fn inline_at_least(value: &Json, width: usize) -> usize {
+    match value {
+        Json::Null | Json::Bool(true) => 4,
+        Json::Bool(false) => 5,
+        Json::Num(_) => 1,
+        Json::Str(s) => s.len() + 2,
+        Json::Arr(items) => {
+            let mut length = items.len().max(1) * 2;
+            for item in items {
+                length += inline_at_least(item, width);
+                if length > width {
+                    break;
+                }
+            }
+            length
+        }
+        Json::Obj(fields) => {
+            let mut length = fields.len().max(1) * 2;
+            for (key, item) in fields {
+                length += key.len() + 4 + inline_at_least(item, width);
+                if length > width {
+                    break;
+                }
+            }
+            length
+        }
+    }
 }
 
 fn write_string(s: &str, out: &mut String) {
@@ -212,6 +257,52 @@ mod tests {
             "{\n  \"a\": [1.0, 2.5, 3.0],\n  \"b\": {\"type\": \"sphere\", \"radius\": 0.3},\n  \"c\": [{\"x\": 1}, {\"y\": \"a,b\"}]\n}\n"
         );
         assert_eq!(serde_json::from_str::<Value>(&text).unwrap(), v);
+    }
+
+    /// Random JSON values: scalars of every kind, and arrays and objects of them.
+    fn json_value() -> impl proptest::strategy::Strategy<Value = Value> {
+        use proptest::prelude::*;
+        let scalar = prop_oneof![
+            Just(Value::Null),
+            any::<bool>().prop_map(Value::Bool),
+            any::<u64>().prop_map(Value::from),
+            any::<i64>().prop_map(Value::from),
+            any::<f64>().prop_map(Value::from),
+            "[a-z\\\"é ]{0,12}".prop_map(Value::from),
+        ];
+        scalar.prop_recursive(3, 40, 6, |inner| {
+            prop_oneof![
+                prop::collection::vec(inner.clone(), 0..6).prop_map(Value::Array),
+                prop::collection::vec(("[a-z_]{1,10}", inner), 0..6)
+                    .prop_map(|fields| Value::Object(fields.into_iter().collect())),
+            ]
+        })
+    }
+
+    proptest::proptest! {
+        /// Numbers are written byte for byte as serde_json (the reference writer) writes them.
+        #[test]
+        fn numbers_are_written_as_serde_json_writes_them(bits in proptest::prelude::any::<u64>(), i in proptest::prelude::any::<i64>()) {
+            for n in [Number::from_f64(f64::from_bits(bits)), Some(Number::from(bits)), Some(Number::from(i))]
+                .into_iter()
+                .flatten()
+            {
+                let mut out = String::new();
+                write_number(&n, &mut out);
+                proptest::prop_assert_eq!(out, n.to_string());
+            }
+        }
+
+        /// The bound that skips one-line attempts never exceeds a value's one-line length, so no
+        /// value that fits is broken up.
+        #[test]
+        fn the_one_line_bound_never_exceeds_the_length(value in json_value()) {
+            let json = Json::from(&value);
+            let mut line = String::new();
+            write_inline(&json, &mut line);
+            proptest::prop_assert!(inline_at_least(&json, usize::MAX) <= line.len(), "{}", line);
+            proptest::prop_assert_eq!(serde_json::from_str::<Value>(&to_pretty(&value)).unwrap(), value);
+        }
     }
 
     #[test]
