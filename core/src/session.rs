@@ -166,6 +166,12 @@ impl Probes {
 /// of any size holds little (README, "Limits"). Ours.
 const CHUNK: usize = 8192;
 
+/// A chunk of probes and their answers, in probe order, with the time each took.
+struct Answered<'a> {
+    probes: Cow<'a, [Probe]>,
+    results: Vec<(ProbeResult, std::time::Duration)>,
+}
+
 /// The level of an opened probe set: where it came from, what it holds, and its query world.
 pub struct OpenLevel {
     /// The level file.
@@ -199,16 +205,22 @@ pub fn is_probe_set(path: &Path) -> bool {
 /// validates the probes, loads the level (the set's own, or [`OpenOptions::level`]) and builds its
 /// query world. Nothing is answered yet: see [`Opened::answer`].
 pub fn open(path: &Path, options: &OpenOptions) -> Result<Opened, Error> {
-    let (probes_path, probes_digest, mut probes, level_path) = if is_probe_set(path) {
-        let text = ProbeText::read(path)?;
+    let (probes_path, probes_digest, mut probes, level) = if is_probe_set(path) {
+        // The level loads while the probes are checked; the probes' errors come first.
+        let (text, level) = ProbeText::read_alongside(path, |named| {
+            let level_path = match &options.level {
+                Some(given) => given.clone(),
+                None => resolve_named(path, named, options.paths)
+                    .map_err(|m| InputError::at(path, "field \"level\"", m))?,
+            };
+            open_level(&level_path, options)
+        })?;
         let digest = text_digest(text.text().as_bytes());
-        let beside = resolve_named(path, text.level(), options.paths)
-            .map_err(|m| InputError::at(path, "field \"level\"", m))?;
         (
             Some(path.to_path_buf()),
             Some(digest),
             Source::File(text),
-            beside,
+            level?,
         )
     } else {
         let name = path.file_name().and_then(|n| n.to_str()).unwrap_or("");
@@ -218,7 +230,13 @@ pub fn open(path: &Path, options: &OpenOptions) -> Result<Opened, Error> {
             probes: Vec::new(),
             rules: Vec::new(),
         };
-        (None, None, Source::Given(set), path.to_path_buf())
+        let level_path = options.level.clone().unwrap_or_else(|| path.to_path_buf());
+        (
+            None,
+            None,
+            Source::Given(set),
+            open_level(&level_path, options)?,
+        )
     };
     if let Some(edited) = &options.probes {
         let (schema, level, rules) = match &probes {
@@ -236,8 +254,6 @@ pub fn open(path: &Path, options: &OpenOptions) -> Result<Opened, Error> {
             rules: edited.rules.clone().unwrap_or(rules),
         });
     }
-    let level_path = options.level.clone().unwrap_or(level_path);
-    let level = open_level(&level_path, options)?;
     let rules = match &probes {
         Source::File(text) => text.rules(),
         Source::Given(set) => &set.rules,
@@ -319,7 +335,8 @@ impl Opened {
     /// Answers every probe as [`Opened::answer`] does, on `runner`'s threads (the check's one pool,
     /// which also parsed the probe set), handing each probe, its result and the time its answer
     /// took to `each` in probe order as soon as its chunk is done, so that nothing of the run is
-    /// held beyond one chunk. With `only` (ascending positions in the whole set, as
+    /// held beyond two chunks. With two threads or more, this thread hands out one chunk while the
+    /// pool answers the next. With `only` (ascending positions in the whole set, as
     /// [`Opened::shard_positions`] gives), answers those probes alone. Returns the counts by verdict.
     pub fn answer_each(
         &self,
@@ -329,37 +346,74 @@ impl Opened {
         each: &mut dyn FnMut(&Probe, ProbeResult, std::time::Duration) -> Result<(), Error>,
     ) -> Result<Summary, Error> {
         let mut summary = Summary::default();
-        let total = self.probes.len();
-        let mut done = 0;
-        let mut start = 0;
-        while start < total {
-            let range = start..(start + CHUNK).min(total);
-            start = range.end;
-            let chunk = match only {
-                None => runner.install(|| self.probes.chunk(range))?,
-                Some(positions) => {
-                    let wanted = &positions[positions.partition_point(|&p| p < range.start)
-                        ..positions.partition_point(|&p| p < range.end)];
-                    if wanted.is_empty() {
-                        continue;
-                    }
-                    let all = runner.install(|| self.probes.chunk(range.clone()))?;
-                    Cow::Owned(
-                        wanted
-                            .iter()
-                            .map(|&p| all[p - range.start].clone())
-                            .collect(),
-                    )
-                }
-            };
-            let results = runner.answer(&self.level.world, &chunk, done, progress);
-            done += chunk.len();
-            for (probe, (result, took)) in chunk.iter().zip(results) {
+        let mut hand_out = |answered: Answered| -> Result<(), Error> {
+            for (probe, (result, took)) in answered.probes.iter().zip(answered.results) {
                 summary.count(result.verdict);
                 each(probe, result, took)?;
             }
+            Ok(())
+        };
+        let overlap = runner.threads() > 1;
+        let mut waiting: Option<Answered> = None;
+        let mut done = 0;
+        for range in (0..self.probes.len()).step_by(CHUNK) {
+            let range = range..(range + CHUNK).min(self.probes.len());
+            let answer = || -> Result<Option<Answered>, Error> {
+                let Some(probes) = self.chunk_of(runner, range, only)? else {
+                    return Ok(None);
+                };
+                let results = runner.answer(&self.level.world, &probes, done, progress);
+                Ok(Some(Answered { probes, results }))
+            };
+            let answered = if overlap {
+                std::thread::scope(|scope| {
+                    let answering = scope.spawn(answer);
+                    let handed = waiting.take().map_or(Ok(()), &mut hand_out);
+                    let answered = answering
+                        .join()
+                        .unwrap_or_else(|panic| std::panic::resume_unwind(panic));
+                    handed.and(answered)
+                })?
+            } else {
+                answer()?
+            };
+            if let Some(answered) = answered {
+                done += answered.probes.len();
+                if let Some(previous) = waiting.replace(answered) {
+                    hand_out(previous)?;
+                }
+            }
+        }
+        if let Some(last) = waiting {
+            hand_out(last)?;
         }
         Ok(summary)
+    }
+
+    /// The probes of `range` (of the whole set) parsed on `runner`'s threads; with `only`, those
+    /// of them it lists (`None` when it lists none).
+    fn chunk_of(
+        &self,
+        runner: &Runner,
+        range: Range<usize>,
+        only: Option<&[usize]>,
+    ) -> Result<Option<Cow<'_, [Probe]>>, Error> {
+        let parse = || runner.install(|| self.probes.chunk(range.clone()));
+        let Some(positions) = only else {
+            return parse().map(Some);
+        };
+        let wanted = &positions[positions.partition_point(|&p| p < range.start)
+            ..positions.partition_point(|&p| p < range.end)];
+        if wanted.is_empty() {
+            return Ok(None);
+        }
+        let all = parse()?;
+        Ok(Some(Cow::Owned(
+            wanted
+                .iter()
+                .map(|&p| all[p - range.start].clone())
+                .collect(),
+        )))
     }
 
     /// The positions (in the whole set, ascending) of the probes shard `shard` answers: every probe's

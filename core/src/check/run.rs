@@ -28,6 +28,11 @@ impl Runner {
         })
     }
 
+    /// How many threads the pool has.
+    pub fn threads(&self) -> usize {
+        self.pool.current_num_threads()
+    }
+
     /// Runs `work` on this pool's threads (so that what it does in parallel uses them alone).
     pub fn install<R: Send>(&self, work: impl FnOnce() -> R + Send) -> R {
         self.pool.install(work)

@@ -37,48 +37,66 @@ pub struct ProbeText {
 impl ProbeText {
     /// Reads and checks a probe-set file.
     pub fn read(path: &Path) -> Result<ProbeText, InputError> {
+        ProbeText::read_alongside(path, |_| ()).map(|(text, ())| text)
+    }
+
+    /// Reads and checks a probe-set file as [`ProbeText::read`] does; once the file's top is read,
+    /// runs `alongside` on the level it names, in parallel (on the current thread pool) with
+    /// checking every probe: a check loads its level meanwhile. The probes' errors come first.
+    pub fn read_alongside<R: Send>(
+        path: &Path,
+        alongside: impl FnOnce(&str) -> R + Send,
+    ) -> Result<(ProbeText, R), InputError> {
         let bytes = read_input(path)?;
         let text = String::from_utf8(bytes)
             .map_err(|e| InputError::file(path, format!("not UTF-8 text: {}", e.utf8_error())))?;
-        ProbeText::parse(path, text)
+        let (unchecked, rule_spans) = ProbeText::read_top(path, text)?;
+        let level = unchecked.level.clone();
+        let (checked, also) = rayon::join(
+            move || unchecked.checked(&rule_spans),
+            move || alongside(&level),
+        );
+        Ok((checked?, also))
     }
 
     /// Checks probe-set text; `path` is named in errors.
     pub fn parse(path: &Path, text: String) -> Result<ProbeText, InputError> {
-        let level = {
-            let raw = SetFields::read(&text).map_err(|e| InputError::json(path, &e))?;
-            check_header(path, &raw.plumbline, raw.version, "probes", "a probe set")?;
-            if raw.probes.len() > MAX_PROBES {
-                return Err(InputError::at(
-                    path,
-                    "field \"probes\"",
-                    format!("{} probes; at most {MAX_PROBES} are read", raw.probes.len()),
-                ));
-            }
-            // Where each fragment lies in the text.
-            let base = text.as_ptr() as usize;
-            let spans_of = |fragments: &[&str]| -> Vec<(usize, usize)> {
-                fragments
-                    .iter()
-                    .map(|f| {
-                        (
-                            f.as_ptr() as usize - base,
-                            f.as_ptr() as usize - base + f.len(),
-                        )
-                    })
-                    .collect()
-            };
-            let spans = spans_of(&raw.probes);
-            let rules = raw
-                .rules
+        let (unchecked, rule_spans) = ProbeText::read_top(path, text)?;
+        unchecked.checked(&rule_spans)
+    }
+
+    /// The file's top: its header, its rules parsed, where each probe and rule lies; the probes
+    /// are not checked yet (see [`ProbeText::checked`]).
+    fn read_top(path: &Path, text: String) -> Result<(ProbeText, Vec<(usize, usize)>), InputError> {
+        let raw = SetFields::read(&text).map_err(|e| InputError::json(path, &e))?;
+        check_header(path, &raw.plumbline, raw.version, "probes", "a probe set")?;
+        if raw.probes.len() > MAX_PROBES {
+            return Err(InputError::at(
+                path,
+                "field \"probes\"",
+                format!("{} probes; at most {MAX_PROBES} are read", raw.probes.len()),
+            ));
+        }
+        // Where each fragment lies in the text.
+        let base = text.as_ptr() as usize;
+        let spans_of = |fragments: &[&str]| -> Vec<(usize, usize)> {
+            fragments
                 .iter()
-                .map(|r| parse_rule(path, &text, r))
-                .collect::<Result<Vec<Rule>, _>>()?;
-            let rule_spans = spans_of(&raw.rules);
-            (raw.schema, raw.level, spans, rules, rule_spans)
+                .map(|f| {
+                    let start = f.as_ptr() as usize - base;
+                    (start, start + f.len())
+                })
+                .collect()
         };
-        let (schema, level, spans, rules, rule_spans) = level;
-        let mut checked = ProbeText {
+        let spans = spans_of(&raw.probes);
+        let rules = raw
+            .rules
+            .iter()
+            .map(|r| parse_rule(path, &text, r))
+            .collect::<Result<Vec<Rule>, _>>()?;
+        let rule_spans = spans_of(&raw.rules);
+        let (schema, level) = (raw.schema, raw.level);
+        let unchecked = ProbeText {
             path: path.to_path_buf(),
             text,
             schema,
@@ -87,8 +105,13 @@ impl ProbeText {
             longest_id: 0,
             rules,
         };
-        checked.longest_id = checked.check_every_probe(&rule_spans)?;
-        Ok(checked)
+        Ok((unchecked, rule_spans))
+    }
+
+    /// This text once every probe is checked (`rule_spans`: where each rule lies).
+    fn checked(mut self, rule_spans: &[(usize, usize)]) -> Result<ProbeText, InputError> {
+        self.longest_id = self.check_every_probe(rule_spans)?;
+        Ok(self)
     }
 
     /// Parses every probe once (each valid, ids unique among probes and rules), keeping nothing but

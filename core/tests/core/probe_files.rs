@@ -76,3 +76,64 @@ fn of_many_bad_probes_the_first_in_the_file_is_named() {
         );
     }
 }
+
+#[test]
+fn a_set_of_many_chunks_is_answered_in_order_for_any_thread_count() {
+    // A check answers a chunk of probes while it hands out the one before (with two threads or
+    // more): results must still come out in file order, the same as on one thread, whole and in
+    // shards. Common practice for a streaming pipeline; the reference is the one-thread run.
+    use plumbline_core::check::{Runner, Shard};
+    use plumbline_core::session::{OpenOptions, open};
+    let root = Path::new(concat!(env!("CARGO_MANIFEST_DIR"), "/.."));
+    let probes: Vec<String> = (0..20_000)
+        .map(|k| {
+            let (x, z) = ((k % 200) as f64 * 0.7 - 70.0, (k / 200) as f64 * 1.3 - 60.0);
+            format!(
+                r#"{{"id": "r{k}", "kind": "ray", "from": [{x}, 6.0, {z}], "to": [{}, -1.0, {}], "expect": "clear"}}"#,
+                x + 3.0,
+                z - 2.0
+            )
+        })
+        .collect();
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("many.probes.json");
+    let text = format!(
+        "{{\"plumbline\": \"probes\", \"version\": 1, \"level\": \"l.level.json\", \"probes\": [\n{}\n]}}",
+        probes.join(",\n")
+    );
+    std::fs::write(&path, text).unwrap();
+    let options = OpenOptions {
+        level: Some(root.join("scenes/saltfen-quay.level.json")),
+        ..OpenOptions::default()
+    };
+    let opened = open(&path, &options).unwrap();
+    let answers = |jobs: usize, only: Option<&[usize]>| {
+        let mut found = Vec::new();
+        opened
+            .answer_each(
+                &Runner::new(Some(jobs)).unwrap(),
+                only,
+                &|_| {},
+                &mut |probe, result, _| {
+                    assert_eq!(probe.id, result.id);
+                    found.push(result);
+                    Ok(())
+                },
+            )
+            .unwrap();
+        found
+    };
+    let one = answers(1, None);
+    let ids: Vec<String> = (0..20_000).map(|k| format!("r{k}")).collect();
+    assert_eq!(one.iter().map(|r| r.id.clone()).collect::<Vec<_>>(), ids);
+    assert!(
+        one.iter().any(|r| !r.hits.is_empty()),
+        "some rays hit the level"
+    );
+    assert_eq!(answers(2, None), one);
+    let shard = opened
+        .shard_positions(Shard { index: 2, count: 3 })
+        .unwrap();
+    let expected: Vec<_> = shard.iter().map(|&p| one[p].clone()).collect();
+    assert_eq!(answers(2, Some(&shard)), expected);
+}
