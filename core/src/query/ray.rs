@@ -93,12 +93,7 @@ impl View<'_> {
         let sheared = ShearedRay::new(seg.from, seg.dir);
         let index = self.world.ray_index();
         let boxes = TreeRay::new(index.frame(), seg.from, seg.dir);
-        let ordinal = |body: &Body, tri: u32| {
-            let number = self
-                .world
-                .triangle_number(body.object, body.triangle_id(tri));
-            self.world.ordinal(body.object, number)
-        };
+        let ordinal = |body: &Body, number: u32| self.world.ordinal(body.object, number);
         // The best so far: its distance, and the item (or the primitive's worked-out crossing).
         let mut best: Option<(f64, &Body, Found)> = None;
         index.nearest_first(&boxes, seg.len, |items, reach| {
@@ -391,8 +386,7 @@ fn candidate(
     triangle: Option<(u32, [DVec3; 3])>,
 ) -> Candidate {
     let back_face = outward_normal.dot(seg.dir) > 0.0;
-    let number =
-        triangle.map(|(local, _)| world.triangle_number(body.object, body.triangle_id(local)));
+    let number = triangle.map(|(number, _)| number);
     let point = seg.from + seg.dir * distance;
     Candidate {
         hit: RayHit {
@@ -416,7 +410,7 @@ fn candidate(
 
 /// What a first-hit search has found on a body; the hit is only worked out for the winner.
 enum Found {
-    /// A mesh triangle (the body's index) and its corners.
+    /// A mesh triangle (its number in the object, as the file numbers it) and its corners.
     Triangle(u32, [DVec3; 3]),
     /// A primitive's crossing, already worked out.
     Primitive(Candidate),

@@ -19,14 +19,15 @@ const PRIMITIVE: u32 = u32::MAX;
 pub(crate) struct RayItem {
     /// The body, by index into the world's bodies.
     pub body: u32,
-    /// The body's triangle, or [`PRIMITIVE`].
+    /// The triangle's number in its object (as the level's file numbers it), or [`PRIMITIVE`].
     triangle: u32,
     /// The triangle's corners (unused for a primitive).
     pub corners: [DVec3; 3],
 }
 
 impl RayItem {
-    /// The body's triangle, or `None` for a primitive.
+    /// The triangle's number in its object (as the level's file numbers it: what a hit reports),
+    /// or `None` for a primitive.
     pub fn triangle(&self) -> Option<u32> {
         (self.triangle != PRIMITIVE).then_some(self.triangle)
     }
@@ -40,8 +41,13 @@ pub(crate) struct RayIndex {
 }
 
 impl RayIndex {
-    /// The index of `bodies`, with coordinates measured in `frame`.
-    pub fn new(frame: RayFrame, bodies: &[Body]) -> RayIndex {
+    /// The index of `bodies`, with coordinates measured in `frame`; `number(body, k)` is the
+    /// file's number of the body's triangle `k`, kept with the item so a hit needs no look-ups.
+    pub fn new(
+        frame: RayFrame,
+        bodies: &[Body],
+        number: impl Fn(&Body, u32) -> u32 + Copy,
+    ) -> RayIndex {
         let count = bodies
             .iter()
             .map(|body| {
@@ -53,13 +59,13 @@ impl RayIndex {
         // order in place. Each body's mesh is read where it is held, twice, so the build never
         // holds the boxes and the items at once, nor two copies of the items.
         let mut boxes = TreeItems::with_capacity(frame, count);
-        for_each_item(bodies, |item| {
+        for_each_item(bodies, number, |item| {
             let [a, b, c] = item.corners;
             boxes.push(a.min(b).min(c), a.max(b).max(c));
         });
         let (tree, order) = boxes.build(LEAF_ITEMS);
         let mut items = Vec::with_capacity(count);
-        for_each_item(bodies, |item| items.push(item));
+        for_each_item(bodies, number, |item| items.push(item));
         put_in_order(&mut items, &order);
         RayIndex {
             tree,
@@ -92,16 +98,20 @@ impl RayIndex {
     }
 }
 
-/// Calls `each` on every item of `bodies`, in body order: a mesh's triangles in order, or the
-/// primitive whole (its box standing in for corners).
-fn for_each_item(bodies: &[Body], mut each: impl FnMut(RayItem)) {
+/// Calls `each` on every item of `bodies`, in body order: a mesh's triangles in order (numbered by
+/// `number`), or the primitive whole (its box standing in for corners).
+fn for_each_item(
+    bodies: &[Body],
+    number: impl Fn(&Body, u32) -> u32,
+    mut each: impl FnMut(RayItem),
+) {
     for (index, body) in bodies.iter().enumerate() {
         let body_id = index as u32;
         let mesh = body.with_triangles(|vertices, triangles| {
             for (t, corners) in triangles.iter().enumerate() {
                 each(RayItem {
                     body: body_id,
-                    triangle: t as u32,
+                    triangle: number(body, t as u32),
                     corners: corners.map(|v| vertices[v as usize]),
                 });
             }

@@ -246,7 +246,8 @@ impl World {
             return index;
         }
         let root = self.bvh.root_aabb();
-        let index = RayIndex::new(RayFrame::around(root.mins, root.maxs), &self.bodies);
+        let number = |body: &Body, k: u32| self.triangle_number(body.object, body.triangle_id(k));
+        let index = RayIndex::new(RayFrame::around(root.mins, root.maxs), &self.bodies, number);
         self.ray_index.get_or_init(|| index)
     }
 
