@@ -8,11 +8,12 @@ use std::sync::{Arc, Mutex};
 use eframe::egui;
 
 use super::Workbench;
-use super::viewport::paint::FrameLog;
+use super::viewport::paint::{self, FrameLog};
 use crate::view::renderer::FrameKind;
 
-/// Frames drawn before the screenshot is asked for: the first lays the panels out, the second draws
-/// the level into its cache and the overlays on top.
+/// Frames drawn at least before the screenshot is asked for or the benchmark starts: the first lays
+/// the panels out, the second draws the level into its cache and the overlays on top (a big level
+/// then takes a few more, a part each, until [`paint::drawing_in_parts`] says it is whole).
 const SETTLE_FRAMES: usize = 3;
 
 /// What an unattended run reports back once the window has closed.
@@ -56,6 +57,12 @@ pub struct Capture {
     /// Start of the previous frame and its phase, for whole-frame times.
     previous: Option<(std::time::Instant, Phase)>,
     whole_frames: Vec<(Phase, f64)>,
+    /// The frame after which the benchmark's phases start (the level drawn whole).
+    settled: Option<usize>,
+    /// When the camera last moved in the redraw phase, and the times from then until the full
+    /// level was on screen.
+    redraw_started: Option<std::time::Instant>,
+    full_level_after: Vec<f64>,
     log: Arc<Mutex<FrameLog>>,
     outcome: Outcome,
 }
@@ -72,6 +79,9 @@ impl Capture {
             done: false,
             previous: None,
             whole_frames: Vec::new(),
+            settled: None,
+            redraw_started: None,
+            full_level_after: Vec::new(),
             log: Arc::default(),
             outcome: Outcome::default(),
         }
@@ -100,7 +110,11 @@ impl Capture {
         let Some(path) = self.screenshot.clone() else {
             return;
         };
-        if self.frame >= SETTLE_FRAMES && !self.requested && !workbench.is_busy() {
+        if self.frame >= SETTLE_FRAMES
+            && !self.requested
+            && !workbench.is_busy()
+            && !paint::drawing_in_parts()
+        {
             self.requested = true;
             let slot = self.image.clone();
             let wake = ctx.clone();
@@ -133,15 +147,21 @@ impl Capture {
         if self.frame == 1 {
             workbench.viewport.frame_log = Some(self.log.clone());
         }
-        // Frame 1 lays out, frame 2 draws the level once; timing starts after.
-        let step = self.frame.saturating_sub(SETTLE_FRAMES);
+        // Frame 1 lays out, frame 2 draws the level once (a big one over a few more frames);
+        // timing starts after.
+        if self.settled.is_none() && self.frame > SETTLE_FRAMES && !paint::drawing_in_parts() {
+            self.settled = Some(self.frame);
+        }
+        let Some(settled) = self.settled else {
+            return;
+        };
+        let step = self.frame - settled;
         let now = std::time::Instant::now();
         if let Some((started, phase)) = self.previous.take() {
             self.whole_frames
                 .push((phase, (now - started).as_secs_f64()));
         }
         let phase = match step / n.max(1) {
-            _ if self.frame <= SETTLE_FRAMES => None,
             0 => Some(Phase::Idle),
             1 => Some(Phase::Marks),
             2 => Some(Phase::Motion),
@@ -176,8 +196,16 @@ impl Capture {
                 workbench.viewport.camera.orbit(0.02, 0.0);
             }
             Phase::Redraw => {
+                // The camera moves once the full level of the last view is on screen; the frames
+                // between draw its proxy, then its parts.
                 workbench.viewport.force_moving = Some(false);
-                workbench.viewport.camera.orbit(0.02, 0.0);
+                if !paint::drawing_in_parts() {
+                    if let Some(started) = self.redraw_started.take() {
+                        self.full_level_after.push((now - started).as_secs_f64());
+                    }
+                    workbench.viewport.camera.orbit(0.02, 0.0);
+                    self.redraw_started = Some(now);
+                }
             }
         }
     }
@@ -208,15 +236,25 @@ impl Capture {
                 FrameKind::MarksOnly,
                 "overlay or selection change (level from its cache)",
             ),
-            (FrameKind::Proxy, "camera moving (level proxy)"),
-            (FrameKind::Level, "full level drawn"),
+            (
+                FrameKind::Proxy,
+                "level proxy drawn (camera moving or just moved)",
+            ),
+            (
+                FrameKind::LevelPart,
+                "a part of the full level drawn (the proxy on screen)",
+            ),
+            (
+                FrameKind::Level,
+                "full level drawn (whole, or its last part)",
+            ),
         ] {
             let times: Vec<f64> = log
                 .iter()
                 .filter(|(k, _)| *k == kind)
                 .map(|(_, t)| *t)
                 .collect();
-            out.push_str(&figures(words, times));
+            out.push_str(&figures(words, "frames", times));
         }
         out.push_str("whole frames (egui, marks and the 3D view, start to start):\n");
         for (phase, words) in [
@@ -226,7 +264,10 @@ impl Capture {
             ),
             (Phase::Marks, "selection changes every frame"),
             (Phase::Motion, "camera orbits every frame, drawn as moving"),
-            (Phase::Redraw, "camera orbits every frame, full level"),
+            (
+                Phase::Redraw,
+                "camera moves, then rests until the full level is on screen",
+            ),
         ] {
             let times: Vec<f64> = self
                 .whole_frames
@@ -234,21 +275,26 @@ impl Capture {
                 .filter(|(p, _)| *p == phase)
                 .map(|(_, t)| *t)
                 .collect();
-            out.push_str(&figures(words, times));
+            out.push_str(&figures(words, "frames", times));
         }
+        out.push_str(&figures(
+            "from a camera move to the full level on screen",
+            "moves",
+            self.full_level_after.clone(),
+        ));
         out
     }
 }
 
-/// One line of figures: count, median, 90th percentile and maximum, in milliseconds.
-fn figures(words: &str, mut seconds: Vec<f64>) -> String {
+/// One line of figures: how many `things`, median, 90th percentile and maximum, in milliseconds.
+fn figures(words: &str, things: &str, mut seconds: Vec<f64>) -> String {
     if seconds.is_empty() {
         return String::new();
     }
     seconds.sort_by(f64::total_cmp);
     let at = |q: f64| seconds[((seconds.len() - 1) as f64 * q).round() as usize] * 1e3;
     format!(
-        "  {words}: {} frames, median {:.1} ms, 90th percentile {:.1} ms, max {:.1} ms\n",
+        "  {words}: {} {things}, median {:.1} ms, 90th percentile {:.1} ms, max {:.1} ms\n",
         seconds.len(),
         at(0.5),
         at(0.9),

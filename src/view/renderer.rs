@@ -3,8 +3,11 @@
 //! The level is drawn into an offscreen colour + depth target only when the level, the camera or the
 //! viewport size changed; every other frame copies that target and draws the overlay marks over it with
 //! depth testing, so selecting or editing a probe never redraws the level. While the camera moves, big
-//! levels are drawn from their proxy. Marks hidden behind the level show through faintly.
+//! levels are drawn from their proxy; once it rests, a window draws the full level a part per frame
+//! into a second target while the proxy's image stays on screen, so no frame waits for the whole
+//! level and input stays live. Marks hidden behind the level show through faintly.
 
+use std::ops::Range;
 use std::sync::Arc;
 
 use three_d::{
@@ -14,7 +17,7 @@ use three_d::{
 
 use super::camera::{FIELD_OF_VIEW, OrbitCamera};
 use super::framebuffer::{DepthFormat, Offscreen, block_copy};
-use super::level_drawing::LevelDrawing;
+use super::level_drawing::{LevelDrawing, PROXY_ABOVE};
 use super::marks::MarkSurfaces;
 use super::surface::Surface;
 
@@ -47,9 +50,42 @@ struct CacheKey {
     proxy: bool,
 }
 
+impl CacheKey {
+    /// The same view drawn from the proxy.
+    fn as_proxy(self) -> CacheKey {
+        CacheKey {
+            proxy: true,
+            ..self
+        }
+    }
+}
+
 struct LevelCache {
     key: CacheKey,
     buffer: Offscreen,
+}
+
+/// A full level being drawn a part per frame, not yet shown.
+struct PartlyDrawn {
+    key: CacheKey,
+    buffer: Offscreen,
+    /// How many of the level's parts are in `buffer`.
+    parts: usize,
+}
+
+/// Triangles of the full level drawn in one frame of a window's progressive drawing: on Mesa's
+/// CPU rasteriser about 30 ms at a desktop's size, leaving the frame well under 100 ms.
+const PART_TRIANGLES: usize = PROXY_ABOVE + PROXY_ABOVE / 2;
+
+/// How a big level at rest is drawn after the camera moved.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Pace {
+    /// Whole, in the frame that asks for it (pictures).
+    AtOnce,
+    /// A part per frame into a second target while the proxy's image stays on screen (a window:
+    /// no frame waits for the whole level); the caller asks for frames while
+    /// [`Renderer::drawing_in_parts`].
+    PartPerFrame,
 }
 
 /// Where a frame is drawn.
@@ -67,7 +103,8 @@ pub enum Target<'a> {
 
 struct GpuLevel {
     revision: u64,
-    surface: Gm<Mesh, ColorMaterial>,
+    /// The level's triangles in parts of at most [`PART_TRIANGLES`].
+    parts: Vec<Gm<Mesh, ColorMaterial>>,
     proxy: Option<Gm<Mesh, ColorMaterial>>,
     grid: Gm<Mesh, ColorMaterial>,
 }
@@ -81,8 +118,10 @@ struct GpuMarks {
 /// How the last frame was drawn, for the frame-time figures.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum FrameKind {
-    /// The level was drawn in full.
+    /// The level was drawn in full, or its last part (the full level is now on screen).
     Level,
+    /// A part of the full level was drawn, not the last; the proxy's image is on screen.
+    LevelPart,
     /// The level proxy was drawn (camera moving).
     Proxy,
     /// Only the marks were drawn over the cached level.
@@ -95,6 +134,9 @@ pub struct Renderer {
     level: Option<GpuLevel>,
     marks: Option<GpuMarks>,
     cache: Option<LevelCache>,
+    partly_drawn: Option<PartlyDrawn>,
+    /// A target of the view's size no longer in use, kept to draw the next level into.
+    spare: Option<Offscreen>,
     window_depth: Option<DepthFormat>,
     depth_copy_refused: bool,
 }
@@ -107,6 +149,8 @@ impl Renderer {
             level: None,
             marks: None,
             cache: None,
+            partly_drawn: None,
+            spare: None,
             window_depth: None,
             depth_copy_refused: false,
         }
@@ -125,13 +169,20 @@ impl Renderer {
         unsafe { self.context.finish() }
     }
 
-    /// Draws a frame into `viewport` of `target` (pixels from the bottom left). Returns how it was
-    /// drawn.
+    /// True while the full level is being drawn a part per frame: the caller should ask for
+    /// another frame.
+    pub fn drawing_in_parts(&self) -> bool {
+        self.partly_drawn.is_some()
+    }
+
+    /// Draws a frame into `viewport` of `target` (pixels from the bottom left), a big level at rest
+    /// at `pace`. Returns how it was drawn.
     pub fn render(
         &mut self,
         target: Target,
         viewport: Viewport,
         frame: &FrameInput,
+        pace: Pace,
     ) -> Result<FrameKind, String> {
         self.upload(frame);
         let depth_format = match target {
@@ -140,7 +191,7 @@ impl Renderer {
                 .get_or_insert_with(|| DepthFormat::of_window(&self.context)),
             Target::Offscreen(buffer) => buffer.depth_format,
         };
-        let kind = self.draw_level(viewport, depth_format, frame)?;
+        let kind = self.draw_level(viewport, depth_format, frame, pace)?;
         let Some(cache) = &self.cache else {
             return Ok(kind);
         };
@@ -187,6 +238,7 @@ impl Renderer {
             Target::Offscreen(&buffer),
             Viewport::new_at_origo(width, height),
             frame,
+            Pace::AtOnce,
         )?;
         let bottom_up = buffer.read_colour();
         let row = width as usize * 4;
@@ -198,63 +250,133 @@ impl Renderer {
             .collect())
     }
 
-    /// Draws the level into the cache unless the cache already holds this view of it.
+    /// Draws the level into the cache unless the cache already holds this view of it; at
+    /// [`Pace::PartPerFrame`], a big level at rest goes a part per call into a second target,
+    /// shown once whole.
     fn draw_level(
         &mut self,
         viewport: Viewport,
         depth_format: DepthFormat,
         frame: &FrameInput,
+        pace: Pace,
     ) -> Result<FrameKind, String> {
         let Some(level) = &self.level else {
             return Ok(FrameKind::MarksOnly);
         };
-        let proxy = frame.moving && level.proxy.is_some();
+        let has_proxy = level.proxy.is_some();
+        let parts = level.parts.len();
         let key = CacheKey {
             level_revision: frame.level_revision,
             camera: frame.camera,
             size: (viewport.width, viewport.height),
-            proxy,
+            proxy: frame.moving && has_proxy,
         };
-        if self
-            .cache
-            .as_ref()
-            .is_some_and(|c| c.key == key && c.buffer.depth_format == depth_format)
-        {
+        let cached = |key: CacheKey| {
+            self.cache
+                .as_ref()
+                .is_some_and(|c| c.key == key && c.buffer.depth_format == depth_format)
+        };
+        if cached(key) {
+            self.partly_drawn = None;
             return Ok(FrameKind::MarksOnly);
         }
-        let buffer = match self.cache.take() {
-            Some(c) if c.key.size == key.size && c.buffer.depth_format == depth_format => c.buffer,
-            _ => Offscreen::new(&self.context, viewport.width, viewport.height, depth_format)?,
+        if key.proxy || pace == Pace::AtOnce || parts <= 1 {
+            self.partly_drawn = None;
+            let buffer = self.target(key, depth_format)?;
+            self.draw_into(&buffer, viewport, frame, 0..parts, key.proxy);
+            self.keep(key, buffer);
+            return Ok(if key.proxy {
+                FrameKind::Proxy
+            } else {
+                FrameKind::Level
+            });
+        }
+        if has_proxy && !cached(key.as_proxy()) {
+            // Nothing of this view on screen yet: its proxy first, the parts from the next frame.
+            let buffer = self.target(key.as_proxy(), depth_format)?;
+            self.draw_into(&buffer, viewport, frame, 0..0, true);
+            self.keep(key.as_proxy(), buffer);
+            self.partly_drawn = Some(PartlyDrawn {
+                key,
+                buffer: self.target(key, depth_format)?,
+                parts: 0,
+            });
+            return Ok(FrameKind::Proxy);
+        }
+        let mut partly = match self.partly_drawn.take() {
+            Some(p) if p.key == key && p.buffer.depth_format == depth_format => p,
+            _ => PartlyDrawn {
+                key,
+                buffer: self.target(key, depth_format)?,
+                parts: 0,
+            },
+        };
+        let next = partly.parts;
+        self.draw_into(&partly.buffer, viewport, frame, next..next + 1, false);
+        partly.parts += 1;
+        if partly.parts < parts {
+            self.partly_drawn = Some(partly);
+            return Ok(FrameKind::LevelPart);
+        }
+        self.keep(key, partly.buffer);
+        Ok(FrameKind::Level)
+    }
+
+    /// A target of the view's size for drawing `key` into: the spare one, or a new one.
+    fn target(&mut self, key: CacheKey, depth_format: DepthFormat) -> Result<Offscreen, String> {
+        match self.spare.take() {
+            Some(b) if (b.width, b.height) == key.size && b.depth_format == depth_format => Ok(b),
+            _ => Offscreen::new(&self.context, key.size.0, key.size.1, depth_format),
+        }
+    }
+
+    /// Makes `buffer` the cache of `key`; the old cache's target becomes the spare.
+    fn keep(&mut self, key: CacheKey, buffer: Offscreen) {
+        if let Some(old) = self.cache.replace(LevelCache { key, buffer }) {
+            self.spare = Some(old.buffer);
+        }
+    }
+
+    /// Draws into `buffer` the level's parts `parts` (clearing it first when they start at the
+    /// first part, which brings the grid), or with `proxy` the proxy and the grid.
+    fn draw_into(
+        &self,
+        buffer: &Offscreen,
+        viewport: Viewport,
+        frame: &FrameInput,
+        parts: Range<usize>,
+        proxy: bool,
+    ) {
+        let Some(level) = &self.level else {
+            return;
         };
         let local = Viewport::new_at_origo(viewport.width, viewport.height);
         let camera = three_d_camera(&frame.camera, &frame.level, local);
-        let [r, g, b] = BACKGROUND;
         let offscreen = RenderTarget::from_framebuffer(
             &self.context,
             viewport.width,
             viewport.height,
             buffer.framebuffer,
         );
-        offscreen.clear(ClearState::color_and_depth(
-            r as f32 / 255.0,
-            g as f32 / 255.0,
-            b as f32 / 255.0,
-            1.0,
-            1.0,
-        ));
-        let surface = if proxy {
-            level.proxy.as_ref().unwrap_or(&level.surface)
+        if proxy || parts.start == 0 {
+            let [r, g, b] = BACKGROUND;
+            offscreen.clear(ClearState::color_and_depth(
+                r as f32 / 255.0,
+                g as f32 / 255.0,
+                b as f32 / 255.0,
+                1.0,
+                1.0,
+            ));
+            offscreen.render(&camera, [&level.grid], &[]);
+        }
+        if let Some(surface) = level.proxy.as_ref().filter(|_| proxy) {
+            offscreen.render(&camera, [surface], &[]);
         } else {
-            &level.surface
-        };
-        offscreen.render(&camera, [surface, &level.grid], &[]);
+            let end = parts.end.min(level.parts.len());
+            let start = parts.start.min(end);
+            offscreen.render(&camera, &level.parts[start..end], &[]);
+        }
         let _ = offscreen.into_framebuffer();
-        self.cache = Some(LevelCache { key, buffer });
-        Ok(if proxy {
-            FrameKind::Proxy
-        } else {
-            FrameKind::Level
-        })
     }
 
     /// Draws the marks over the copied level: first faintly where the level hides them (while the
@@ -281,23 +403,35 @@ impl Renderer {
     fn upload(&mut self, frame: &FrameInput) {
         if self.level.as_ref().map(|l| l.revision) != Some(frame.level_revision) {
             let level = &frame.level;
-            let opaque = |surface: &Surface| {
+            let opaque = |surface: &Surface, triangles: Range<usize>| {
                 Gm::new(
-                    Mesh::new(&self.context, &cpu_mesh(surface)),
+                    Mesh::new(&self.context, &cpu_mesh(surface, triangles)),
                     level_material(),
                 )
             };
+            let whole = |surface: &Surface| opaque(surface, 0..surface.triangle_count());
+            let part =
+                |k: usize| opaque(&level.surface, k * PART_TRIANGLES..(k + 1) * PART_TRIANGLES);
+            let count = level
+                .surface
+                .triangle_count()
+                .div_ceil(PART_TRIANGLES)
+                .max(1);
             self.level = Some(GpuLevel {
                 revision: frame.level_revision,
-                surface: opaque(&level.surface),
-                proxy: level.proxy.as_ref().map(opaque),
-                grid: opaque(&level.grid),
+                parts: (0..count).map(part).collect(),
+                proxy: level.proxy.as_ref().map(whole),
+                grid: whole(&level.grid),
             });
             self.cache = None;
+            self.partly_drawn = None;
         }
         if self.marks.as_ref().map(|m| m.revision) != Some(frame.marks_revision) {
             let mesh = |surface: &Surface| {
-                (!surface.is_empty()).then(|| Mesh::new(&self.context, &cpu_mesh(surface)))
+                (!surface.is_empty()).then(|| {
+                    let triangles = 0..surface.triangle_count();
+                    Mesh::new(&self.context, &cpu_mesh(surface, triangles))
+                })
             };
             self.marks = Some(GpuMarks {
                 revision: frame.marks_revision,
@@ -323,19 +457,20 @@ pub fn three_d_camera(camera: &OrbitCamera, level: &LevelDrawing, viewport: View
     )
 }
 
-fn cpu_mesh(surface: &Surface) -> CpuMesh {
+/// The GPU mesh of `surface`'s triangles `triangles` (numbered in order; cut short at its end).
+fn cpu_mesh(surface: &Surface, triangles: Range<usize>) -> CpuMesh {
+    let end = (triangles.end * 3).min(surface.positions.len());
+    let start = (triangles.start * 3).min(end);
     CpuMesh {
         positions: Positions::F32(
-            surface
-                .positions
+            surface.positions[start..end]
                 .iter()
                 .map(|p| vec3(p[0], p[1], p[2]))
                 .collect(),
         ),
         indices: Indices::None,
         colors: Some(
-            surface
-                .colours
+            surface.colours[start..end]
                 .iter()
                 .map(|c| Srgba::new(c[0], c[1], c[2], c[3]))
                 .collect(),

@@ -14,15 +14,17 @@ use plumbline::pictures::Headless;
 
 use glam::{DQuat, DVec2, DVec3};
 use plumbline::view::camera::OrbitCamera;
+use plumbline::view::framebuffer::{DepthFormat, Offscreen};
 use plumbline::view::level_drawing::LevelDrawing;
 use plumbline::view::marks::{MarkSurfaces, Sizing, mark_surfaces};
 use plumbline::view::probe_marks::{Emphasis, probe_marks};
-use plumbline::view::renderer::{BACKGROUND, FrameInput};
+use plumbline::view::renderer::{BACKGROUND, FrameInput, FrameKind, Pace, Target};
 use plumbline::view::surface::Surface;
 use plumbline_core::check::answer_probe;
 use plumbline_core::level::{Geometry, Level, LevelObject, Primitive};
 use plumbline_core::probe::{Probe, ProbeQuery};
 use plumbline_core::query::{Filter, World};
+use three_d::Viewport;
 
 const WIDTH: u32 = 320;
 const HEIGHT: u32 = 240;
@@ -382,5 +384,105 @@ fn the_selected_ray_is_the_widest_and_most_vivid_line_and_the_others_step_back()
     assert!(
         selected_width >= plain_width + 4,
         "selection widens the ray by its halo"
+    );
+}
+
+#[test]
+fn a_big_level_at_rest_is_drawn_a_part_per_frame_and_ends_as_if_drawn_whole() {
+    // Common practice for progressive drawing: while parts are pending the last complete image
+    // (the proxy's) stays on screen, and the parts, drawn in order into one depth buffer, leave
+    // exactly the image one draw of the whole level gives.
+    let mut gl = headless();
+    let level = plumbline_core::demo::large_level(420_000);
+    let drawing = LevelDrawing::new(&level);
+    assert!(drawing.proxy.is_some(), "a level this big has a proxy");
+    let camera = OrbitCamera {
+        target: (drawing.min + drawing.max) * 0.5,
+        distance: drawing.radius() * 1.6,
+        yaw: 0.7,
+        pitch: 0.5,
+        up: drawing.up,
+    };
+    let still = frame(drawing, camera, MarkSurfaces::default());
+    let whole = gl
+        .renderer
+        .render_image(WIDTH, HEIGHT, &still)
+        .expect("the whole level");
+    let moving = FrameInput {
+        moving: true,
+        ..still.clone()
+    };
+    let proxy = gl
+        .renderer
+        .render_image(WIDTH, HEIGHT, &moving)
+        .expect("the proxy");
+    assert_ne!(whole, proxy, "the proxy is not the full level");
+
+    let target = Offscreen::new(gl.renderer.context(), WIDTH, HEIGHT, DepthFormat::Depth24)
+        .expect("an offscreen target");
+    // A new revision: the level is uploaded afresh, with nothing of it drawn yet.
+    let input = FrameInput {
+        level_revision: 2,
+        ..still
+    };
+    let top_down = |bottom_up: Vec<u8>| -> Vec<u8> {
+        let row = WIDTH as usize * 4;
+        bottom_up
+            .chunks_exact(row)
+            .rev()
+            .flatten()
+            .copied()
+            .collect()
+    };
+    let mut kinds = Vec::new();
+    let last = loop {
+        let kind = gl
+            .renderer
+            .render(
+                Target::Offscreen(&target),
+                Viewport::new_at_origo(WIDTH, HEIGHT),
+                &input,
+                Pace::PartPerFrame,
+            )
+            .expect("a frame");
+        kinds.push(kind);
+        let image = top_down(target.read_colour());
+        if !gl.renderer.drawing_in_parts() {
+            break image;
+        }
+        assert_eq!(
+            image,
+            proxy,
+            "frame {}: the proxy's image is shown while parts are drawn",
+            kinds.len()
+        );
+        assert!(kinds.len() < 10, "the parts end: {kinds:?}");
+    };
+    assert_eq!(kinds[0], FrameKind::Proxy, "{kinds:?}");
+    assert_eq!(kinds.last(), Some(&FrameKind::Level), "{kinds:?}");
+    assert!(
+        kinds.len() >= 3
+            && kinds[1..kinds.len() - 1]
+                .iter()
+                .all(|k| *k == FrameKind::LevelPart),
+        "the proxy, then at least two parts: {kinds:?}"
+    );
+    assert!(
+        last == whole,
+        "the parts drawn in turn give the whole level's image"
+    );
+    let again = gl
+        .renderer
+        .render(
+            Target::Offscreen(&target),
+            Viewport::new_at_origo(WIDTH, HEIGHT),
+            &input,
+            Pace::PartPerFrame,
+        )
+        .expect("a frame");
+    assert_eq!(
+        again,
+        FrameKind::MarksOnly,
+        "then the level comes from its cache"
     );
 }

@@ -308,8 +308,12 @@ impl Viewport {
             marks_revision: self.marks_revision,
             moving,
         };
-        ui.painter()
-            .add(paint::level_and_marks(rect, frame, self.frame_log.clone()));
+        ui.painter().add(paint::level_and_marks(
+            ui.ctx().clone(),
+            rect,
+            frame,
+            self.frame_log.clone(),
+        ));
         self.paint_labels(ui, document, shown, selection, changes, rect);
         self.paint_hit_numbers(ui, document, selection, rect);
         if self.legend {

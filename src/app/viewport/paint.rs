@@ -7,7 +7,7 @@ use std::time::Instant;
 
 use eframe::{egui, egui_glow};
 
-use crate::view::renderer::{FrameInput, FrameKind, Renderer, Target};
+use crate::view::renderer::{FrameInput, FrameKind, Pace, Renderer, Target};
 
 thread_local! {
     /// The GPU scene. three-d objects are not `Send`, and the paint callback runs on the UI thread.
@@ -23,9 +23,20 @@ pub struct FrameLog {
     pub view_size: [u32; 2],
 }
 
-/// The paint callback that draws `frame` into `rect`; with a `log`, every frame's draw time is
-/// recorded (the drawing is then finished with `glFinish` to be timed).
+/// True while the 3D view is drawing the full level a part per frame (its image is not final yet).
+pub fn drawing_in_parts() -> bool {
+    RENDERER.with(|cell| {
+        cell.borrow()
+            .as_ref()
+            .is_some_and(Renderer::drawing_in_parts)
+    })
+}
+
+/// The paint callback that draws `frame` into `rect`, asking `ctx` for the next frame while the
+/// level is drawn in parts; with a `log`, every frame's draw time is recorded (the drawing is then
+/// finished with `glFinish` to be timed).
 pub fn level_and_marks(
+    ctx: egui::Context,
     rect: egui::Rect,
     frame: FrameInput,
     log: Option<Arc<Mutex<FrameLog>>>,
@@ -58,13 +69,16 @@ pub fn level_and_marks(
                     width: w,
                     height: h,
                 };
-                let kind = match renderer.render(target, viewport, &frame) {
+                let kind = match renderer.render(target, viewport, &frame, Pace::PartPerFrame) {
                     Ok(kind) => kind,
                     Err(e) => {
                         eprintln!("plumbline: cannot draw the 3D view: {e}");
                         return;
                     }
                 };
+                if renderer.drawing_in_parts() {
+                    ctx.request_repaint();
+                }
                 if let Some(log) = &log {
                     renderer.finish();
                     if let Ok(mut log) = log.lock() {
