@@ -25,6 +25,9 @@ use super::shapes::ProbeShape;
 use super::turning::TurningPath;
 use super::world::{ObjectId, View, Volume};
 
+/// What the culling of volumes far from a path adds to the boxes compared, in metres.
+const CULL_MARGIN: f64 = 0.01;
+
 /// Most advancement steps along one motion before giving up (a shape grazing a volume's face).
 const MAX_ARC_STEPS: usize = 100_000;
 
@@ -62,6 +65,32 @@ pub enum Mover<'a> {
 }
 
 impl Mover<'_> {
+    /// How far from its centre the mover reaches.
+    fn reach(self) -> f64 {
+        match self {
+            Mover::Point => 0.0,
+            Mover::Shape(s) => s.bounding_radius,
+        }
+    }
+
+    /// False when the mover, anywhere on the straight segments between the points of `path`,
+    /// cannot touch the volume: the box around the path, grown by the mover's reach and a margin,
+    /// misses the volume's box (the mover's ball around each segment lies inside that box).
+    /// Broad-phase culling, common practice; the margin (a centimetre, far above the tolerances of
+    /// the exact tests it spares) keeps it conservative.
+    pub(crate) fn may_touch(self, volume: &Volume, path: &[DVec3]) -> bool {
+        let Some(&first) = path.first() else {
+            return false;
+        };
+        let (lo, hi) = path
+            .iter()
+            .fold((first, first), |(lo, hi), p| (lo.min(*p), hi.max(*p)));
+        let grow = self.reach() + CULL_MARGIN;
+        let (lo, hi) = (lo - DVec3::splat(grow), hi + DVec3::splat(grow));
+        let (v_lo, v_hi) = (volume.aabb.mins, volume.aabb.maxs);
+        lo.cmple(v_hi).all() && v_lo.cmple(hi).all()
+    }
+
     /// True when the mover placed at `at` touches or overlaps the volume.
     fn touches(self, volume: &Volume, at: DVec3) -> bool {
         match self {
@@ -113,7 +142,7 @@ impl View<'_> {
         }
         Ok(self
             .volumes()
-            .filter(|v| mover.touches(v, at))
+            .filter(|v| mover.may_touch(v, &[at]) && mover.touches(v, at))
             .map(|v| v.object)
             .collect())
     }
@@ -132,7 +161,7 @@ impl View<'_> {
             return Ok(Vec::new());
         };
         let mut events = Vec::new();
-        for volume in self.volumes() {
+        for volume in self.volumes().filter(|v| mover.may_touch(v, path)) {
             let mut inside = mover.touches(volume, start);
             if inside {
                 events.push(event(volume, Crossing::Inside, 0.0, start));
@@ -325,4 +354,84 @@ fn sort_events(events: &mut [VolumeEvent]) {
             .then(a.crossing.cmp(&b.crossing))
             .then(a.volume.cmp(&b.volume))
     });
+}
+
+#[cfg(test)]
+mod tests {
+    //! The culling of far volumes must be conservative: wherever it says a mover cannot touch a
+    //! volume, parry3d-f64's exact tests (the reference library the queries use) find no touch at
+    //! either end and no entry along the way.
+
+    use proptest::prelude::*;
+
+    use super::*;
+    use crate::level::{Primitive, ShapeSpec};
+    use crate::query::shapes::solid_shape;
+
+    fn primitive(kind: usize, size: [f64; 3]) -> Primitive {
+        let [a, b, c] = size;
+        match kind {
+            0 => Primitive::Box {
+                half_extents: DVec3::new(a, b, c),
+            },
+            1 => Primitive::Sphere { radius: a },
+            2 => Primitive::Capsule {
+                radius: a,
+                half_height: b,
+            },
+            _ => Primitive::Cylinder {
+                radius: a,
+                half_height: b,
+            },
+        }
+    }
+
+    fn mover_shape(kind: usize, size: f64, turn: DQuat) -> Option<ProbeShape> {
+        let spec = match kind {
+            0 => return None,
+            1 => ShapeSpec::Sphere { radius: size },
+            2 => ShapeSpec::Capsule {
+                radius: size,
+                half_height: size * 2.0,
+            },
+            _ => ShapeSpec::Box {
+                half_extents: [size, size * 0.5, size * 3.0],
+            },
+        };
+        Some(ProbeShape::new(&spec, turn).expect("a valid shape"))
+    }
+
+    proptest! {
+        #![proptest_config(ProptestConfig::with_cases(2000))]
+
+        #[test]
+        fn a_culled_volume_is_one_the_exact_tests_never_touch(
+            kind in 0usize..4,
+            size in prop::array::uniform3(0.05f64..3.0),
+            axis in prop::array::uniform3(-1.0f64..1.0),
+            angle in 0.0f64..6.3,
+            centre in prop::array::uniform3(-1e3f64..1e3),
+            mover in 0usize..4,
+            mover_size in 0.01f64..1.5,
+            // Segment ends around the volume's box, some just beyond the culling's reach.
+            ends in prop::array::uniform2(prop::array::uniform3(-1.0f64..1.0)),
+            spread in 0.5f64..3.0,
+        ) {
+            let axis = DVec3::from_array(axis).try_normalize().unwrap_or(DVec3::Y);
+            let turn = DQuat::from_axis_angle(axis, angle);
+            let shape = solid_shape(&primitive(kind, size)).expect("a valid primitive");
+            let pose = Pose::from_parts(DVec3::from_array(centre), turn);
+            let volume = Volume { object: 0, aabb: shape.compute_aabb(&pose), shape, pose };
+            let moving = mover_shape(mover, mover_size, turn.inverse());
+            let mover = moving.as_ref().map_or(Mover::Point, Mover::Shape);
+            let (mid, half) = (volume.aabb.center(), volume.aabb.half_extents());
+            let reach = half + DVec3::splat(mover.reach() + CULL_MARGIN);
+            let [a, b] = ends.map(|e| mid + DVec3::from_array(e) * reach * spread);
+            if !mover.may_touch(&volume, &[a, b]) {
+                prop_assert!(!mover.touches(&volume, a), "touches at the start");
+                prop_assert!(!mover.touches(&volume, b), "touches at the end");
+                prop_assert!(mover.first_touch(&volume, a, b).is_none(), "enters on the way");
+            }
+        }
+    }
 }
