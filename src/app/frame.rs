@@ -66,71 +66,84 @@ impl Workbench {
         // Before the view: a finding picked now is framed and drawn in this frame.
         self.lint_window(&ctx);
 
-        egui::Panel::top("menus").show(ui, |ui| self.menu_bar(ui));
-        egui::Panel::top("toolbar").show(ui, |ui| self.toolbar(ui));
-        egui::Panel::bottom("summary").show(ui, |ui| self.summary_bar(ui));
+        let frame = bare_panel(ui.style());
+        egui::Panel::top("menus")
+            .frame(frame)
+            .show(ui, |ui| self.menu_bar(ui));
+        egui::Panel::top("toolbar")
+            .frame(frame)
+            .show(ui, |ui| self.toolbar(ui));
+        egui::Panel::bottom("summary")
+            .frame(frame)
+            .show(ui, |ui| self.summary_bar(ui));
         egui::Panel::left("probes")
+            .frame(frame)
             .resizable(true)
             .default_size(310.0)
             .min_size(220.0)
             .show(ui, |ui| {
-                ui.add_space(4.0);
-                ui.heading("Probes");
-                let scroll = std::mem::take(&mut self.scroll_list);
-                let picked = probe_list_ui(
-                    ui,
-                    &mut self.filter,
-                    &self.document,
-                    &shown,
-                    &mut self.selection,
-                    &self.changes,
-                    scroll,
-                );
-                if picked {
-                    self.after_selection(self.selection.others.is_empty());
-                }
+                ui.scope_builder(panel_colour_known(ui.style()), |ui| {
+                    ui.add_space(4.0);
+                    ui.heading("Probes");
+                    let scroll = std::mem::take(&mut self.scroll_list);
+                    let picked = probe_list_ui(
+                        ui,
+                        &mut self.filter,
+                        &self.document,
+                        &shown,
+                        &mut self.selection,
+                        &self.changes,
+                        scroll,
+                    );
+                    if picked {
+                        self.after_selection(self.selection.others.is_empty());
+                    }
+                });
             });
         egui::Panel::right("inspector")
+            .frame(frame)
             .resizable(true)
             .default_size(400.0)
             .min_size(280.0)
             .show(ui, |ui| {
-                ui.add_space(4.0);
-                let mut action = None;
-                egui::ScrollArea::vertical()
-                    .auto_shrink([false, false])
-                    .show(ui, |ui| {
-                        action = inspector_ui(
-                            ui,
-                            &self.document,
-                            &mut self.selection,
-                            &mut self.editor,
-                            self.plots.plot(),
-                            &self.changes,
-                            self.highlight_tag.as_deref(),
-                        );
-                    });
-                match action {
-                    Some(InspectorAction::Edit(index, edit)) => {
-                        let Edit { field, probe } = *edit;
-                        self.edit_probe(index, &field, probe)
+                ui.scope_builder(panel_colour_known(ui.style()), |ui| {
+                    ui.add_space(4.0);
+                    let mut action = None;
+                    egui::ScrollArea::vertical()
+                        .auto_shrink([false, false])
+                        .show(ui, |ui| {
+                            action = inspector_ui(
+                                ui,
+                                &self.document,
+                                &mut self.selection,
+                                &mut self.editor,
+                                self.plots.plot(),
+                                &self.changes,
+                                self.highlight_tag.as_deref(),
+                            );
+                        });
+                    match action {
+                        Some(InspectorAction::Edit(index, edit)) => {
+                            let Edit { field, probe } = *edit;
+                            self.edit_probe(index, &field, probe)
+                        }
+                        Some(InspectorAction::Run(command)) => self.perform(command, &ctx),
+                        Some(InspectorAction::Bulk(what, probes)) => {
+                            self.replace_probes("bulk", &what, probes);
+                            self.history.seal();
+                        }
+                        Some(InspectorAction::Select(index)) => {
+                            self.select_probe(Some(index));
+                            self.scroll_list = true;
+                        }
+                        Some(InspectorAction::Highlight(tag)) => self.highlight_tag = tag,
+                        Some(InspectorAction::AnswerAgain(index)) => {
+                            self.document.answer_again(index);
+                            self.results_revision += 1;
+                        }
+                        None => {}
                     }
-                    Some(InspectorAction::Run(command)) => self.perform(command, &ctx),
-                    Some(InspectorAction::Bulk(what, probes)) => {
-                        self.replace_probes("bulk", &what, probes);
-                        self.history.seal();
-                    }
-                    Some(InspectorAction::Select(index)) => {
-                        self.select_probe(Some(index));
-                        self.scroll_list = true;
-                    }
-                    Some(InspectorAction::Highlight(tag)) => self.highlight_tag = tag,
-                    Some(InspectorAction::AnswerAgain(index)) => {
-                        self.document.answer_again(index);
-                        self.results_revision += 1;
-                    }
-                    None => {}
-                }
+                });
             });
         egui::CentralPanel::no_frame().show(ui, |ui| {
             let authoring = Authoring {
@@ -218,4 +231,17 @@ impl Workbench {
             }
         }
     }
+}
+
+/// A panel's frame without its fill: the window is cleared to the panels' colour
+/// (`WorkbenchApp::clear_color`), so on a CPU rasteriser the panels' pixels are not filled a second time.
+fn bare_panel(style: &egui::Style) -> egui::Frame {
+    egui::Frame::side_top_panel(style).fill(egui::Color32::TRANSPARENT)
+}
+
+/// A child Ui that knows it stands on the panels' colour without painting it, so that what reads
+/// the background from the Ui stack (the fades at a scroll area's ends) finds it.
+fn panel_colour_known(style: &egui::Style) -> egui::UiBuilder {
+    let frame = egui::Frame::new().fill(style.visuals.panel_fill);
+    egui::UiBuilder::new().ui_stack_info(egui::UiStackInfo::default().with_frame(frame))
 }

@@ -44,6 +44,12 @@ impl eframe::App for WorkbenchApp {
         self.workbench.ui(ui);
     }
 
+    /// The panels' colour: the panels are drawn without a fill of their own (see
+    /// `frame::bare_panel`), so what shows through them is this clear.
+    fn clear_color(&self, visuals: &egui::Visuals) -> [f32; 4] {
+        visuals.panel_fill.to_normalized_gamma_f32()
+    }
+
     fn save(&mut self, storage: &mut dyn eframe::Storage) {
         if let Ok(text) = serde_json::to_string(&self.workbench.recent) {
             storage.set_string(RECENT_KEY, text);
