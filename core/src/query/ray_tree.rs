@@ -348,11 +348,18 @@ impl RayTree {
         // The reach rounded up to `f32`: a box entered beyond it is entered beyond the reach.
         let mut limit = up(reach);
         let mut stack = [(EMPTY, 0f32); STACK];
-        stack[0] = (self.root, 0.0);
-        let mut len = 1;
-        while len > 0 {
-            len -= 1;
-            let (child, entry) = stack[len];
+        let mut len = 0;
+        // The next child to visit when a node met only one (most do): it skips the stack.
+        let mut next = Some((self.root, 0f32));
+        loop {
+            let (child, entry) = match next.take() {
+                Some(only) => only,
+                None if len > 0 => {
+                    len -= 1;
+                    stack[len]
+                }
+                None => break,
+            };
             if entry > limit {
                 continue;
             }
@@ -365,6 +372,11 @@ impl RayTree {
             }
             let node = &self.nodes[child as usize];
             let (mut met, entries) = ray.entries(node, limit);
+            if met != 0 && met & (met - 1) == 0 {
+                let k = met.trailing_zeros() as usize;
+                next = Some((node.children[k], entries[k]));
+                continue;
+            }
             // Pushed farthest first, so the nearest is popped next.
             let from = len;
             while met != 0 {

@@ -51,6 +51,27 @@ impl ShearedRay {
     /// Hits on an edge or a vertex count for every triangle that has it.
     #[inline]
     pub fn intersect(&self, a: DVec3, b: DVec3, c: DVec3, t_max: f64) -> Option<f64> {
+        // The axes as constants: the same arithmetic as indexing by `kx`, `ky`, `kz`, without a
+        // bounds check and a load at every use.
+        match (self.kx, self.ky, self.kz) {
+            (1, 2, 0) => self.intersect_on::<1, 2, 0>(a, b, c, t_max),
+            (2, 1, 0) => self.intersect_on::<2, 1, 0>(a, b, c, t_max),
+            (2, 0, 1) => self.intersect_on::<2, 0, 1>(a, b, c, t_max),
+            (0, 2, 1) => self.intersect_on::<0, 2, 1>(a, b, c, t_max),
+            (0, 1, 2) => self.intersect_on::<0, 1, 2>(a, b, c, t_max),
+            _ => self.intersect_on::<1, 0, 2>(a, b, c, t_max),
+        }
+    }
+
+    /// [`ShearedRay::intersect`] with the ray's axes `KX`, `KY`, `KZ` (those of `self`).
+    #[inline(always)]
+    fn intersect_on<const KX: usize, const KY: usize, const KZ: usize>(
+        &self,
+        a: DVec3,
+        b: DVec3,
+        c: DVec3,
+        t_max: f64,
+    ) -> Option<f64> {
         let corners = (a, b, c);
         // Arrays rather than `DVec3` indexing, which matches on the index at every use.
         let (a, b, c) = (
@@ -58,18 +79,9 @@ impl ShearedRay {
             (b - self.origin).to_array(),
             (c - self.origin).to_array(),
         );
-        let (ax, ay) = (
-            a[self.kx] - self.sx * a[self.kz],
-            a[self.ky] - self.sy * a[self.kz],
-        );
-        let (bx, by) = (
-            b[self.kx] - self.sx * b[self.kz],
-            b[self.ky] - self.sy * b[self.kz],
-        );
-        let (cx, cy) = (
-            c[self.kx] - self.sx * c[self.kz],
-            c[self.ky] - self.sy * c[self.kz],
-        );
+        let (ax, ay) = (a[KX] - self.sx * a[KZ], a[KY] - self.sy * a[KZ]);
+        let (bx, by) = (b[KX] - self.sx * b[KZ], b[KY] - self.sy * b[KZ]);
+        let (cx, cy) = (c[KX] - self.sx * c[KZ], c[KY] - self.sy * c[KZ]);
         let u = cx * by - cy * bx;
         let v = ax * cy - ay * cx;
         let w = bx * ay - by * ax;
@@ -80,11 +92,7 @@ impl ShearedRay {
         if det == 0.0 {
             return None;
         }
-        let (az, bz, cz) = (
-            self.sz * a[self.kz],
-            self.sz * b[self.kz],
-            self.sz * c[self.kz],
-        );
+        let (az, bz, cz) = (self.sz * a[KZ], self.sz * b[KZ], self.sz * c[KZ]);
         let t_scaled = u * az + v * bz + w * cz;
         let t = t_scaled / det;
         if !(t >= 0.0 && t <= t_max) {
