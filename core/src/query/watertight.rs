@@ -49,7 +49,7 @@ impl ShearedRay {
 
     /// The ray parameter `t` where it crosses triangle `abc` with `0 <= t <= t_max`, if it does.
     /// Hits on an edge or a vertex count for every triangle that has it.
-    #[inline]
+    #[inline(always)]
     pub fn intersect(&self, a: DVec3, b: DVec3, c: DVec3, t_max: f64) -> Option<f64> {
         // The axes as constants: the same arithmetic as indexing by `kx`, `ky`, `kz`, without a
         // bounds check and a load at every use.
