@@ -16,6 +16,10 @@ use crate::view::renderer::FrameKind;
 /// then takes a few more, a part each, until [`paint::drawing_in_parts`] says it is whole).
 const SETTLE_FRAMES: usize = 3;
 
+/// Frames after which an unattended run goes on even if the view still says it is drawing in
+/// parts (a driver that fails mid-way must not keep the run waiting for ever).
+const MAX_SETTLE_FRAMES: usize = 120;
+
 /// What an unattended run reports back once the window has closed.
 #[derive(Clone, Default)]
 pub struct Outcome(Arc<Mutex<Option<Result<(), String>>>>);
@@ -113,7 +117,7 @@ impl Capture {
         if self.frame >= SETTLE_FRAMES
             && !self.requested
             && !workbench.is_busy()
-            && !paint::drawing_in_parts()
+            && self.view_whole()
         {
             self.requested = true;
             let slot = self.image.clone();
@@ -143,13 +147,18 @@ impl Capture {
         }
     }
 
+    /// True once the view's level is drawn whole (or the run has waited long enough).
+    fn view_whole(&self) -> bool {
+        !paint::drawing_in_parts() || self.frame > MAX_SETTLE_FRAMES
+    }
+
     fn bench_step(&mut self, ctx: &egui::Context, workbench: &mut Workbench, n: usize) {
         if self.frame == 1 {
             workbench.viewport.frame_log = Some(self.log.clone());
         }
         // Frame 1 lays out, frame 2 draws the level once (a big one over a few more frames);
         // timing starts after.
-        if self.settled.is_none() && self.frame > SETTLE_FRAMES && !paint::drawing_in_parts() {
+        if self.settled.is_none() && self.frame > SETTLE_FRAMES && self.view_whole() {
             self.settled = Some(self.frame);
         }
         let Some(settled) = self.settled else {
