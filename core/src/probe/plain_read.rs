@@ -371,8 +371,8 @@ fn put<T>(slot: &mut Option<T>, value: T) -> Option<()> {
     }
 }
 
-/// The fields of one probe, as the probe file names them (`RawProbe` in parse.rs, which serde
-/// reads the same way).
+/// The fields of one probe, as the probe file names them: read by [`ProbeFields::read_plain`], or
+/// by serde (the derived reader below) when the probe is not plain.
 #[derive(Debug, Default, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub(super) struct ProbeFields<'a> {

@@ -14,6 +14,7 @@
 //! a path that grazes a volume enters and leaves it at the same place.
 
 use glam::{DQuat, DVec3};
+use parry3d_f64::bounding_volume::{Aabb, BoundingVolume};
 use parry3d_f64::math::Pose;
 use parry3d_f64::query::{
     Ray, ShapeCastOptions, cast_shapes, contact, distance, intersection_test,
@@ -79,16 +80,10 @@ impl Mover<'_> {
     /// Broad-phase culling, common practice; the margin (a centimetre, far above the tolerances of
     /// the exact tests it spares) keeps it conservative.
     pub(crate) fn may_touch(self, volume: &Volume, path: &[DVec3]) -> bool {
-        let Some(&first) = path.first() else {
-            return false;
-        };
-        let (lo, hi) = path
-            .iter()
-            .fold((first, first), |(lo, hi), p| (lo.min(*p), hi.max(*p)));
-        let grow = self.reach() + CULL_MARGIN;
-        let (lo, hi) = (lo - DVec3::splat(grow), hi + DVec3::splat(grow));
-        let (v_lo, v_hi) = (volume.aabb.mins, volume.aabb.maxs);
-        lo.cmple(v_hi).all() && v_lo.cmple(hi).all()
+        !path.is_empty()
+            && Aabb::from_points_ref(path)
+                .loosened(self.reach() + CULL_MARGIN)
+                .intersects(&volume.aabb)
     }
 
     /// True when the mover placed at `at` touches or overlaps the volume.
