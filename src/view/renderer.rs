@@ -280,6 +280,7 @@ impl Renderer {
             self.partly_drawn = None;
             return Ok(FrameKind::MarksOnly);
         }
+        let proxy_shown = cached(key.as_proxy());
         if key.proxy || pace == Pace::AtOnce || parts <= 1 {
             self.partly_drawn = None;
             let buffer = self.target(key, depth_format)?;
@@ -291,26 +292,32 @@ impl Renderer {
                 FrameKind::Level
             });
         }
-        if has_proxy && !cached(key.as_proxy()) {
-            // Nothing of this view on screen yet: its proxy first, the parts from the next frame.
-            let buffer = self.target(key.as_proxy(), depth_format)?;
-            self.draw_into(&buffer, viewport, frame, 0..0, true);
-            self.keep(key.as_proxy(), buffer);
-            self.partly_drawn = Some(PartlyDrawn {
-                key,
-                buffer: self.target(key, depth_format)?,
-                parts: 0,
-            });
-            return Ok(FrameKind::Proxy);
-        }
-        let mut partly = match self.partly_drawn.take() {
-            Some(p) if p.key == key && p.buffer.depth_format == depth_format => p,
-            _ => PartlyDrawn {
+        // Parts drawn for another view are of no use now; their target may be.
+        let partly = match self.partly_drawn.take() {
+            Some(p) if p.key == key && p.buffer.depth_format == depth_format => Some(p),
+            stale => {
+                if let Some(p) = stale {
+                    self.spare.get_or_insert(p.buffer);
+                }
+                None
+            }
+        };
+        let mut partly = match partly {
+            Some(p) => p,
+            None => PartlyDrawn {
                 key,
                 buffer: self.target(key, depth_format)?,
                 parts: 0,
             },
         };
+        if has_proxy && partly.parts == 0 && !proxy_shown {
+            // Nothing of this view on screen yet: its proxy first, the parts from the next frame.
+            let buffer = self.target(key.as_proxy(), depth_format)?;
+            self.draw_into(&buffer, viewport, frame, 0..0, true);
+            self.keep(key.as_proxy(), buffer);
+            self.partly_drawn = Some(partly);
+            return Ok(FrameKind::Proxy);
+        }
         let next = partly.parts;
         self.draw_into(&partly.buffer, viewport, frame, next..next + 1, false);
         partly.parts += 1;
