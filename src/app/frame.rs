@@ -234,7 +234,8 @@ impl Workbench {
 }
 
 /// A panel's frame without its fill: the window is cleared to the panels' colour
-/// (`WorkbenchApp::clear_color`), so on a CPU rasteriser the panels' pixels are not filled a second time.
+/// (`WorkbenchApp::clear_color`), so on a CPU rasteriser the panels' pixels are not filled a
+/// second time.
 fn bare_panel(style: &egui::Style) -> egui::Frame {
     egui::Frame::side_top_panel(style).fill(egui::Color32::TRANSPARENT)
 }
