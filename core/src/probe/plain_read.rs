@@ -378,7 +378,9 @@ fn put<T>(slot: &mut Option<T>, value: T) -> Option<()> {
 pub(super) struct ProbeFields<'a> {
     pub id: String,
     pub label: Option<String>,
-    pub kind: String,
+    /// Borrowed from the text when it holds no escapes (nearly always): no allocation a probe.
+    #[serde(borrow)]
+    pub kind: std::borrow::Cow<'a, str>,
     pub from: Option<[f64; 3]>,
     pub to: Option<[f64; 3]>,
     pub hits: Option<HitsMode>,
@@ -443,7 +445,7 @@ impl<'a> ProbeFields<'a> {
                 match key {
                     "id" => put(&mut id, s.read()?)?,
                     "label" => put(&mut f.label, s.read()?)?,
-                    "kind" => put(&mut kind, s.read()?)?,
+                    "kind" => put(&mut kind, s.string()?.into())?,
                     "from" => put(&mut f.from, s.read()?)?,
                     "to" => put(&mut f.to, s.read()?)?,
                     "hits" => put(&mut f.hits, s.read()?)?,
