@@ -23,6 +23,9 @@ pub enum Json<'a> {
     Arr(Vec<Json<'a>>),
     /// An object, keys in order.
     Obj(Vec<(&'a str, Json<'a>)>),
+    /// Three floats, an array written as [`Json::vec3`] describes (no allocation: records hold
+    /// many points and normals).
+    Vec3([f64; 3]),
 }
 
 impl Json<'_> {
@@ -36,9 +39,9 @@ impl Json<'_> {
         Json::Num(Number::from(x))
     }
 
-    /// Three floats, a vector.
+    /// Three floats, a vector: an array of three numbers, each `null` when not finite.
     pub fn vec3(v: [f64; 3]) -> Json<'static> {
-        Json::Arr(v.iter().map(|x| Json::float(*x)).collect())
+        Json::Vec3(v)
     }
 }
 
@@ -69,6 +72,11 @@ pub fn to_pretty(value: &Value) -> String {
 
 /// Writes a value laid out as [`to_pretty`] does, as if it stood `depth` levels deep (no newline).
 pub fn write_pretty(value: &Json, depth: usize, out: &mut String) {
+    if let Json::Null | Json::Bool(_) | Json::Num(_) | Json::Str(_) = value {
+        // A scalar stands on one line however long it is.
+        write_inline(value, out);
+        return;
+    }
     let width = INLINE_WIDTH.saturating_sub(depth * 2);
     if nests_within(value, 2) && inline_may_fit(value, width) {
         // Written on one line, then taken back if it runs past the width: each number is
@@ -104,6 +112,7 @@ pub fn write_pretty(value: &Json, depth: usize, out: &mut String) {
             out.push_str(&indent(depth));
             out.push('}');
         }
+        Json::Vec3(v) => write_pretty(&Json::Arr(v.map(Json::float).to_vec()), depth, out),
         scalar => write_inline(scalar, out),
     }
 }
@@ -143,6 +152,16 @@ fn write_inline_within(value: &Json, out: &mut String, limit: usize) -> bool {
             }
             out.push('}');
         }
+        Json::Vec3(v) => {
+            out.push('[');
+            for (k, x) in v.iter().enumerate() {
+                if k > 0 {
+                    out.push_str(", ");
+                }
+                write_float(*x, out);
+            }
+            out.push(']');
+        }
         Json::Str(s) => write_string(s, out),
         Json::Num(n) => write_number(n, out),
         Json::Bool(b) => out.push_str(if *b { "true" } else { "false" }),
@@ -151,10 +170,19 @@ fn write_inline_within(value: &Json, out: &mut String, limit: usize) -> bool {
     out.len() <= limit
 }
 
+/// A float as [`Json::float`] and [`write_number`] write it: `null` when not finite.
+fn write_float(x: f64, out: &mut String) {
+    if x.is_finite() {
+        out.push_str(zmij::Buffer::new().format_finite(x));
+    } else {
+        out.push_str("null");
+    }
+}
+
 /// A number as serde_json writes it (the same formatters, without `core::fmt`).
 fn write_number(n: &Number, out: &mut String) {
     if let Some(x) = n.as_f64().filter(|_| n.is_f64()) {
-        out.push_str(zmij::Buffer::new().format_finite(x));
+        write_float(x, out);
     } else if let Some(u) = n.as_u64() {
         out.push_str(itoa::Buffer::new().format(u));
     } else if let Some(i) = n.as_i64() {
@@ -174,6 +202,7 @@ fn inline_at_least(value: &Json, width: usize) -> usize {
         Json::Null | Json::Bool(true) => 4,
         Json::Bool(false) => 5,
         Json::Num(_) => 1,
+        Json::Vec3(_) => 9,
         Json::Str(s) => s.len() + 2,
         Json::Arr(items) => {
             let mut length = items.len().max(1) * 2;
@@ -199,14 +228,28 @@ fn inline_at_least(value: &Json, width: usize) -> usize {
 }
 
 fn write_string(s: &str, out: &mut String) {
-    if s.bytes().any(|b| b < 0x20 || b == b'"' || b == b'\\') {
+    if s.bytes().any(|b| ESCAPED[usize::from(b)]) {
         out.push_str(&serde_json::to_string(s).expect("strings serialise"));
     } else {
+        out.reserve(s.len() + 2);
         out.push('"');
         out.push_str(s);
         out.push('"');
     }
 }
+
+/// The bytes a JSON string cannot hold as they are (RFC 8259 §7): control characters, `"` and `\`.
+const ESCAPED: [bool; 256] = {
+    let mut table = [false; 256];
+    let mut b = 0;
+    while b < 0x20 {
+        table[b] = true;
+        b += 1;
+    }
+    table[b'"' as usize] = true;
+    table[b'\\' as usize] = true;
+    table
+};
 
 /// Two spaces per level.
 fn indent(depth: usize) -> std::borrow::Cow<'static, str> {
@@ -223,6 +266,7 @@ fn nests_within(value: &Json, levels: usize) -> bool {
     match value {
         Json::Arr(items) => levels > 0 && items.iter().all(|i| nests_within(i, levels - 1)),
         Json::Obj(fields) => levels > 0 && fields.iter().all(|(_, v)| nests_within(v, levels - 1)),
+        Json::Vec3(_) => levels > 0,
         _ => true,
     }
 }
@@ -302,6 +346,28 @@ mod tests {
             write_inline(&json, &mut line);
             proptest::prop_assert!(inline_at_least(&json, usize::MAX) <= line.len(), "{}", line);
             proptest::prop_assert_eq!(serde_json::from_str::<Value>(&to_pretty(&value)).unwrap(), value);
+        }
+    }
+
+    proptest::proptest! {
+        /// A vector is written exactly as the array of its three numbers, on one line or broken
+        /// up (deep enough that it no longer fits), alone or inside objects (nested too deep for
+        /// one line at two levels).
+        #[test]
+        fn vectors_are_written_as_arrays_of_numbers(bits in proptest::prelude::any::<[u64; 3]>(), depth in 0usize..60) {
+            let v = bits.map(f64::from_bits);
+            let as_array = Json::Arr(v.iter().map(|x| Json::float(*x)).collect());
+            let within = |inner| Json::Obj(vec![("p", inner)]);
+            for (vector, array) in [
+                (Json::vec3(v), as_array.clone()),
+                (within(Json::vec3(v)), within(as_array.clone())),
+                (within(within(Json::vec3(v))), within(within(as_array))),
+            ] {
+                let (mut a, mut b) = (String::new(), String::new());
+                write_pretty(&vector, depth, &mut a);
+                write_pretty(&array, depth, &mut b);
+                proptest::prop_assert_eq!(a, b);
+            }
         }
     }
 

@@ -469,7 +469,7 @@ mod layout {
             f.push(("triangle", Json::int(u64::from(t))));
         }
         if let Some(s) = source {
-            let mut fields = Vec::new();
+            let mut fields = Vec::with_capacity(7);
             if let Some(file) = &s.file {
                 fields.push(("file", Json::Str(file)));
             }
@@ -495,14 +495,16 @@ mod layout {
     impl RayHitRecord {
         /// This record as laid out in results files.
         pub fn to_json(&self) -> Json<'_> {
-            let mut f = vec![
+            // Room for every field a ray hit may have, so that none is added by reallocating.
+            let mut f = Vec::with_capacity(10);
+            f.extend([
                 ("object", Json::Str(&self.object)),
                 ("tags", tags(&self.tags)),
                 ("distance", Json::float(self.distance)),
                 ("t", Json::float(self.t)),
                 ("point", Json::vec3(self.point)),
                 ("normal", Json::vec3(self.normal)),
-            ];
+            ]);
             face_fields(self.triangle, &self.source, &self.material, &mut f);
             if self.back_face {
                 f.push(("back_face", Json::Bool(true)));
