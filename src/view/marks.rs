@@ -1,7 +1,11 @@
 //! Overlay marks (lines, points, arrows, translucent shapes) and their triangles. Widths and sizes are
 //! in screen pixels, so marks are rebuilt when the camera moves; they stay readable at any distance.
 
+use std::fmt;
+use std::sync::Arc;
+
 use glam::{DVec2, DVec3};
+use plumbline_core::query::{ProbeShape, ROUND_SEGMENTS};
 
 use super::camera::OrbitCamera;
 use super::palette::{Rgb, StateMark};
@@ -59,6 +63,18 @@ pub enum Mark {
         /// Shaft width in pixels.
         width: f64,
     },
+    /// A probe's shape placed in the world, drawn see-through with as many segments as its size
+    /// on screen needs.
+    Shape {
+        /// The shape, turned.
+        shape: SharedShape,
+        /// Where its centre is.
+        at: DVec3,
+        /// Colour.
+        colour: Rgb,
+        /// Opacity, 0–255.
+        alpha: u8,
+    },
     /// A shape surface placed in the world, drawn see-through.
     Ghost {
         /// Vertices, world coordinates.
@@ -70,6 +86,36 @@ pub enum Mark {
         /// Opacity, 0–255.
         alpha: u8,
     },
+}
+
+/// A probe shape that several marks may place (equal when it is the same shape).
+#[derive(Clone)]
+pub struct SharedShape(pub Arc<ProbeShape>);
+
+impl PartialEq for SharedShape {
+    fn eq(&self, other: &SharedShape) -> bool {
+        Arc::ptr_eq(&self.0, &other.0)
+    }
+}
+
+impl fmt::Debug for SharedShape {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        write!(f, "shape within {} m", self.0.bounding_radius())
+    }
+}
+
+/// The longest a round shape's facet edge may be on screen, in pixels, before it gets more
+/// segments (up to [`ROUND_SEGMENTS`]): small and distant shapes take few triangles. Ours.
+const FACET_PIXELS: f64 = 4.0;
+
+/// Segments around a round shape whose bounding radius spans `radius_pixels` on screen.
+fn segments_for(radius_pixels: f64) -> u32 {
+    let needed = (std::f64::consts::TAU * radius_pixels / FACET_PIXELS).ceil();
+    if needed.is_finite() {
+        needed.clamp(0.0, f64::from(ROUND_SEGMENTS)) as u32
+    } else {
+        ROUND_SEGMENTS
+    }
 }
 
 /// The triangles of a set of marks: solid ones, and see-through ones drawn after them.
@@ -157,20 +203,55 @@ pub fn mark_surfaces(marks: &[Mark], sizing: &Sizing) -> MarkSurfaces {
                 let along = *direction * sizing.metres_per_pixel(*from) * *length;
                 arrow(&mut out.solid, *from, along, *colour, *width, sizing)
             }
+            Mark::Shape {
+                shape,
+                at,
+                colour,
+                alpha,
+            } => {
+                let radius = shape.0.bounding_radius() / sizing.metres_per_pixel(*at);
+                let (vertices, triangles) = shape.0.surface(segments_for(radius));
+                let placed: Vec<DVec3> = vertices.iter().map(|v| *at + *v).collect();
+                see_through(
+                    &mut out.see_through,
+                    &placed,
+                    &triangles,
+                    *colour,
+                    *alpha,
+                    sizing,
+                );
+            }
             Mark::Ghost {
                 vertices,
                 triangles,
                 colour,
                 alpha,
-            } => {
-                for t in triangles {
-                    let corners = t.map(|i| vertices[i as usize]);
-                    push_lit(&mut out.see_through, corners, *colour, *alpha, sizing);
-                }
-            }
+            } => see_through(
+                &mut out.see_through,
+                vertices,
+                triangles,
+                *colour,
+                *alpha,
+                sizing,
+            ),
         }
     }
     out
+}
+
+/// Adds a see-through surface's triangles.
+fn see_through(
+    surface: &mut Surface,
+    vertices: &[DVec3],
+    triangles: &[[u32; 3]],
+    colour: Rgb,
+    alpha: u8,
+    sizing: &Sizing,
+) {
+    for t in triangles {
+        let corners = t.map(|i| vertices[i as usize]);
+        push_lit(surface, corners, colour, alpha, sizing);
+    }
 }
 
 /// Adds a triangle lit by a light at the eye (marks are shaded so their shape reads).
@@ -193,20 +274,28 @@ fn across(dir: DVec3) -> (DVec3, DVec3) {
     (u, dir.cross(u))
 }
 
-/// A six-sided tube whose width is `width` pixels at both ends.
+/// The front half of a six-sided tube whose width is `width` pixels at both ends: three faces
+/// turned to the eye (the middle one facing it), so every line is shaded alike and no triangle is
+/// spent on faces the front hides.
 fn tube(surface: &mut Surface, from: DVec3, to: DVec3, colour: Rgb, width: f64, sizing: &Sizing) {
     let Some(dir) = (to - from).try_normalize() else {
         return;
     };
-    let (u, v) = across(dir);
+    let eye = sizing.camera.eye() - (from + to) * 0.5;
+    let (toward, side) = match eye.reject_from_normalized(dir).try_normalize() {
+        Some(toward) => (toward, dir.cross(toward)),
+        // Seen end on: any two directions across it.
+        None => across(dir),
+    };
     let r0 = sizing.metres_per_pixel(from) * width * 0.5;
     let r1 = sizing.metres_per_pixel(to) * width * 0.5;
-    const SIDES: usize = 6;
+    // The hexagon's corners from one side of the silhouette to the other, 60° apart.
+    const CORNERS: [f64; 4] = [-90.0, -30.0, 30.0, 90.0];
     let ring = |centre: DVec3, r: f64, k: usize| {
-        let angle = k as f64 * std::f64::consts::TAU / SIDES as f64;
-        centre + (u * angle.cos() + v * angle.sin()) * r
+        let angle = CORNERS[k].to_radians();
+        centre + (toward * angle.cos() + side * angle.sin()) * r
     };
-    for k in 0..SIDES {
+    for k in 0..CORNERS.len() - 1 {
         let (a0, a1) = (ring(from, r0, k), ring(from, r0, k + 1));
         let (b0, b1) = (ring(to, r1, k), ring(to, r1, k + 1));
         push_lit(surface, [a0, a1, b1], colour, 255, sizing);
@@ -285,24 +374,24 @@ fn marker(
     let (x, y, z) = (camera.right(), camera.screen_up(), camera.backward());
     let to_world = |p: DVec3| at + (x * p.x + y * p.y + z * p.z) * r;
     match mark {
-        StateMark::Round | StateMark::Square => {
-            let (vertices, triangles) = if mark == StateMark::Round {
-                unit_ball()
-            } else {
-                plumbline_core::query::box_surface(DVec3::splat(0.8))
-            };
-            for t in triangles {
-                let corners = t.map(|i| to_world(vertices[i as usize]));
-                push_lit(surface, corners, colour, 255, sizing);
+        StateMark::Round => {
+            for corners in front_of_unit_ball() {
+                push_lit(surface, corners.map(&to_world), colour, 255, sizing);
             }
         }
+        StateMark::Square => {
+            // The face of a screen-aligned cube that the eye sees.
+            let quad = [(-1.0, -1.0), (1.0, -1.0), (1.0, 1.0), (-1.0, 1.0)]
+                .map(|(x, y)| to_world(DVec3::new(x, y, 1.0) * 0.8));
+            push_lit(surface, [quad[0], quad[1], quad[2]], colour, 255, sizing);
+            push_lit(surface, [quad[0], quad[2], quad[3]], colour, 255, sizing);
+        }
         StateMark::Diamond => {
+            // The half of an octahedron turned to the eye.
             let tips = [DVec3::X, DVec3::Y, -DVec3::X, -DVec3::Y];
             for k in 0..4 {
-                for z in [DVec3::Z, -DVec3::Z] {
-                    let corners = [tips[k], tips[(k + 1) % 4], z * 0.7].map(&to_world);
-                    push_lit(surface, corners, colour, 255, sizing);
-                }
+                let corners = [tips[k], tips[(k + 1) % 4], DVec3::Z * 0.7].map(&to_world);
+                push_lit(surface, corners, colour, 255, sizing);
             }
         }
         StateMark::Cross => {
@@ -325,27 +414,22 @@ fn marker(
     }
 }
 
-/// A unit ball: an octahedron split once and pushed out to the sphere.
-fn unit_ball() -> (Vec<DVec3>, Vec<[u32; 3]>) {
+/// The half of a unit ball turned to +z (the eye, in a marker's frame): the upper half of an
+/// octahedron split once and pushed out to the sphere. A marker's back half is always hidden by its
+/// front, so it is not drawn.
+fn front_of_unit_ball() -> Vec<[DVec3; 3]> {
     let tips = [DVec3::X, DVec3::Y, -DVec3::X, -DVec3::Y];
-    let mut vertices = Vec::new();
-    let mut triangles = Vec::new();
+    let mut triangles = Vec::with_capacity(16);
     for k in 0..4 {
-        for z in [DVec3::Z, -DVec3::Z] {
-            let (a, b, c) = (tips[k], tips[(k + 1) % 4], z);
-            let (ab, bc, ca) = (
-                (a + b).normalize(),
-                (b + c).normalize(),
-                (c + a).normalize(),
-            );
-            for t in [[a, ab, ca], [ab, b, bc], [ca, bc, c], [ab, bc, ca]] {
-                let base = vertices.len() as u32;
-                vertices.extend(t);
-                triangles.push([base, base + 1, base + 2]);
-            }
-        }
+        let (a, b, c) = (tips[k], tips[(k + 1) % 4], DVec3::Z);
+        let (ab, bc, ca) = (
+            (a + b).normalize(),
+            (b + c).normalize(),
+            (c + a).normalize(),
+        );
+        triangles.extend([[a, ab, ca], [ab, b, bc], [ca, bc, c], [ab, bc, ca]]);
     }
-    (vertices, triangles)
+    triangles
 }
 
 #[cfg(test)]
@@ -372,9 +456,9 @@ mod tests {
             dashed: false,
         }];
         let out = mark_surfaces(&marks, &sizing);
-        assert_eq!(out.solid.triangle_count(), 12);
-        // The ring at `from` spans 4 pixels on screen: its farthest corner is 2 pixels from the centre
-        // line's end (1.7 pixels or more for a corner of the hexagon).
+        assert_eq!(out.solid.triangle_count(), 6);
+        // The ring at `from` spans 4 pixels on screen: its farthest corners, the silhouette's, are 2
+        // pixels from the centre line's end.
         let size = DVec2::new(800.0, 600.0);
         let end = sizing.camera.project(from, size, 10.0).unwrap();
         let farthest = out
@@ -386,7 +470,41 @@ mod tests {
             .filter_map(|p| sizing.camera.project(p, size, 10.0))
             .map(|q| (q - end).length())
             .fold(0.0, f64::max);
-        assert!((1.7..=2.05).contains(&farthest), "{farthest}");
+        assert!((1.95..=2.05).contains(&farthest), "{farthest}");
+    }
+
+    #[test]
+    fn shapes_take_more_segments_the_larger_they_are_on_screen() {
+        let sizing = sizing();
+        let spec: plumbline_core::level::ShapeSpec =
+            serde_json::from_str(r#"{"type": "capsule", "radius": 0.4, "half_height": 0.5}"#)
+                .unwrap();
+        let shape = SharedShape(Arc::new(
+            ProbeShape::new(&spec, glam::DQuat::IDENTITY).unwrap(),
+        ));
+        let triangles_at = |at: DVec3| {
+            let marks = [Mark::Shape {
+                shape: shape.clone(),
+                at,
+                colour: [9, 9, 9],
+                alpha: 90,
+            }];
+            mark_surfaces(&marks, &sizing).see_through.triangle_count()
+        };
+        let near = triangles_at(sizing.camera.target);
+        let far = triangles_at(sizing.camera.eye() - sizing.camera.backward() * 2000.0);
+        let (_, full) = shape.0.surface(ROUND_SEGMENTS);
+        let (_, least) = shape.0.surface(0);
+        assert!(least.len() < full.len() / 4);
+        assert_eq!(
+            near,
+            full.len(),
+            "a capsule at the centre of view is large on screen"
+        );
+        assert_eq!(far, least.len(), "2 km away it is a few pixels");
+        assert_eq!(segments_for(0.5), 1);
+        assert_eq!(segments_for(1e9), ROUND_SEGMENTS);
+        assert_eq!(segments_for(f64::INFINITY), ROUND_SEGMENTS);
     }
 
     #[test]

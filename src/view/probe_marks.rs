@@ -5,9 +5,11 @@
 //! probes show the segment between the two nearest points; overlaps show the shape, the deepest points
 //! and the way out.
 
+use std::sync::Arc;
+
 use glam::{DQuat, DVec3};
 
-use super::marks::Mark;
+use super::marks::{Mark, SharedShape};
 use super::palette::{BACKING, HIT, NORMAL, SELECTED, verdict_colour, verdict_mark};
 use plumbline_core::check::{Hits, ProbeResult, trajectory};
 use plumbline_core::level::ShapeSpec;
@@ -659,24 +661,24 @@ fn hit_marks(point: DVec3, normal: DVec3, index: usize, emphasis: Emphasis, out:
     }
 }
 
-/// A probe shape's surface, ready to be placed as see-through ghosts.
+/// A probe's shape, ready to be placed as see-through ghosts.
 struct ShapeGhost {
-    surface: Option<(Vec<DVec3>, Vec<[u32; 3]>)>,
+    shape: Option<SharedShape>,
 }
 
 impl ShapeGhost {
     fn new(spec: &ShapeSpec, rotation: Option<DQuat>) -> ShapeGhost {
-        let surface = ProbeShape::new(spec, rotation.unwrap_or(DQuat::IDENTITY))
+        let shape = ProbeShape::new(spec, rotation.unwrap_or(DQuat::IDENTITY))
             .ok()
-            .map(|shape| shape.surface());
-        ShapeGhost { surface }
+            .map(|shape| SharedShape(Arc::new(shape)));
+        ShapeGhost { shape }
     }
 
     fn place(&self, at: DVec3, colour: [u8; 3], alpha: u8, out: &mut Vec<Mark>) {
-        if let Some((vertices, triangles)) = &self.surface {
-            out.push(Mark::Ghost {
-                vertices: vertices.iter().map(|v| at + *v).collect(),
-                triangles: triangles.clone(),
+        if let Some(shape) = &self.shape {
+            out.push(Mark::Shape {
+                shape: shape.clone(),
+                at,
                 colour,
                 alpha,
             });

@@ -47,7 +47,7 @@ pub use reach::{Cell, Reach};
 pub use rest::RestHit;
 pub use settle::{Material, REST_HOLD, REST_SPEED, REST_SPIN, SETTLE_STEP, SettleEnd, Settled};
 pub use shapes::{
-    ProbeShape, box_surface, placed_primitive_surface, primitive_shape, shape_surface,
+    ProbeShape, ROUND_SEGMENTS, placed_primitive_surface, primitive_shape, shape_surface,
 };
 pub use sightlines::{END_GAP, Sightline, SpotAt};
 pub use sweep::SweepHit;

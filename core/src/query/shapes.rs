@@ -52,19 +52,23 @@ pub fn solid_shape(primitive: &Primitive) -> Result<SharedShape, ShapeError> {
     }
 }
 
+/// Segments around a round shape's surface when drawn at full detail.
+pub const ROUND_SEGMENTS: u32 = 24;
+
 /// A triangulated surface of a primitive's parry shape in its own frame, for drawing: vertices and
-/// triangles with outward winding.
-pub fn shape_surface(shape: &SharedShape) -> (Vec<DVec3>, Vec<[u32; 3]>) {
-    const AROUND: u32 = 24;
-    const ALONG: u32 = 12;
+/// triangles with outward winding; round shapes with `around` segments around (at least 8) and
+/// half as many along.
+pub fn shape_surface(shape: &SharedShape, around: u32) -> (Vec<DVec3>, Vec<[u32; 3]>) {
+    let around = around.max(8);
+    let along = around / 2;
     if let Some(ball) = shape.as_ball() {
-        ball.to_trimesh(AROUND, ALONG)
+        ball.to_trimesh(around, along)
     } else if let Some(cuboid) = shape.as_cuboid() {
         cuboid.to_trimesh()
     } else if let Some(capsule) = shape.as_capsule() {
-        capsule.to_trimesh(AROUND, ALONG)
+        capsule.to_trimesh(around, along)
     } else if let Some(cylinder) = shape.as_cylinder() {
-        cylinder.to_trimesh(AROUND)
+        cylinder.to_trimesh(around)
     } else if let Some(convex) = shape.as_convex_polyhedron() {
         convex.to_trimesh()
     } else {
@@ -82,21 +86,12 @@ pub fn placed_primitive_surface(
     let Ok(shape) = primitive_shape(primitive) else {
         return (Vec::new(), Vec::new());
     };
-    let (vertices, triangles) = shape_surface(&shape);
+    let (vertices, triangles) = shape_surface(&shape, ROUND_SEGMENTS);
     let placed = vertices
         .into_iter()
         .map(|v| translation + rotation * v)
         .collect();
     (placed, triangles)
-}
-
-/// The surface of a box with the given half extents, centred on the origin.
-pub fn box_surface(half_extents: DVec3) -> (Vec<DVec3>, Vec<[u32; 3]>) {
-    shape_surface(&SharedShape::cuboid(
-        half_extents.x,
-        half_extents.y,
-        half_extents.z,
-    ))
 }
 
 /// A convex shape a probe places or moves, with its turn.
@@ -135,11 +130,17 @@ impl ProbeShape {
         }
     }
 
-    /// The shape's surface with its turn applied, centred on the origin (for drawing).
-    pub fn surface(&self) -> (Vec<DVec3>, Vec<[u32; 3]>) {
-        let (vertices, triangles) = shape_surface(&self.shape);
+    /// The shape's surface with its turn applied, centred on the origin (for drawing), round
+    /// shapes with `around` segments around (see [`shape_surface`]).
+    pub fn surface(&self, around: u32) -> (Vec<DVec3>, Vec<[u32; 3]>) {
+        let (vertices, triangles) = shape_surface(&self.shape, around);
         let turned = vertices.into_iter().map(|v| self.rotation * v).collect();
         (turned, triangles)
+    }
+
+    /// The radius of a ball around the shape's centre that holds the whole shape.
+    pub fn bounding_radius(&self) -> f64 {
+        self.bounding_radius
     }
 
     /// The radius when the shape is a ball.
