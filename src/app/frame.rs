@@ -109,7 +109,10 @@ impl Workbench {
                 ui.scope_builder(panel_colour_known(ui.style()), |ui| {
                     ui.add_space(4.0);
                     let mut action = None;
-                    egui::ScrollArea::vertical()
+                    // Both ways: text wraps to the panel, and a table wider than it scrolls
+                    // instead of widening the panel (which would resize the 3D view and redraw the
+                    // whole level whenever the inspected probe changes).
+                    egui::ScrollArea::both()
                         .auto_shrink([false, false])
                         .show(ui, |ui| {
                             action = inspector_ui(

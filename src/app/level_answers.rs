@@ -54,7 +54,7 @@ pub fn answer_ui(ui: &mut egui::Ui, result: &ProbeResult, selection: &mut Select
                     ui.label(format!("{:.1} m²", c.area_unseen));
                     ui.end_row();
                     ui.label("spots");
-                    ui.label(c.spots.join(", "));
+                    ui.add(egui::Label::new(c.spots.join(", ")).wrap());
                     ui.end_row();
                 });
                 ui.horizontal(|ui| {

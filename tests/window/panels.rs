@@ -216,3 +216,19 @@ fn an_idle_window_asks_for_no_frames() {
     harness.step();
     assert!(!harness.ctx.has_requested_repaint());
 }
+
+/// The 3D view keeps its size whichever probe is inspected: a long answer in the inspector wraps
+/// instead of widening its panel (which would shrink the view and redraw the whole level).
+#[test]
+fn inspecting_any_probe_leaves_the_view_its_size() {
+    let mut harness = harness();
+    harness.state_mut().selection.probe = Some(0);
+    harness.run_steps(2);
+    let view = harness.state().viewport.last_rect;
+    for index in 0..harness.state().document.probes.probes.len() {
+        harness.state_mut().selection.probe = Some(index);
+        harness.run_steps(2);
+        let id = harness.state().document.probes.probes[index].id.clone();
+        assert_eq!(harness.state().viewport.last_rect, view, "inspecting {id}");
+    }
+}
