@@ -18,6 +18,14 @@ use plumbline_core::query::placed_primitive_surface;
 /// draw than it tells). Ours.
 pub const HIGHLIGHT_TRIANGLES: usize = 20_000;
 
+/// A highlighted object with more triangles than this shows only its triangles within
+/// [`NEAR_METRES`] of the point it is highlighted for (where an overlap is deepest, where a lint
+/// finding is): the part that matters, at a cost a frame can bear. Ours.
+const WHOLE_TRIANGLES: usize = 2_000;
+
+/// How near that point a big object's triangles are shown, metres. Ours: a few character heights.
+const NEAR_METRES: f64 = 4.0;
+
 /// How far a highlighted object's copy is pushed out from its centre, metres, so that it does not
 /// fight the object's own surface for depth. Ours.
 const HIGHLIGHT_PUSH: f64 = 0.02;
@@ -84,8 +92,11 @@ pub fn scene_marks(scene: &SceneMarks) -> Vec<Mark> {
         probe_marks(probe, result, emphasis, scene.level.up, &mut marks);
         if emphasis.selected {
             if let Hits::Overlap(hits) = &result.hits {
-                let names: Vec<&str> = hits.iter().map(|h| &*h.object).collect();
-                highlight_objects(scene.level, &names, &mut marks);
+                let objects: Vec<(&str, Option<DVec3>)> = hits
+                    .iter()
+                    .map(|h| (&*h.object, Some(DVec3::from_array(h.point))))
+                    .collect();
+                highlight_objects(scene.level, &objects, &mut marks);
             }
             volume_event_marks(result, &mut marks);
         }
@@ -94,14 +105,14 @@ pub fn scene_marks(scene: &SceneMarks) -> Vec<Mark> {
         finding_marks(scene.level, finding, &mut marks);
     }
     if let Some(tag) = scene.highlight_tag {
-        let names: Vec<&str> = scene
+        let tagged: Vec<(&str, Option<DVec3>)> = scene
             .level
             .objects
             .iter()
             .filter(|o| o.tags.iter().any(|t| t == tag))
-            .map(|o| o.name.as_str())
+            .map(|o| (o.name.as_str(), None))
             .collect();
-        highlight_objects(scene.level, &names, &mut marks);
+        highlight_objects(scene.level, &tagged, &mut marks);
     }
     for h in scene.handles {
         marks.push(Mark::Point {
@@ -180,8 +191,12 @@ fn volume_event_marks(result: &ProbeResult, marks: &mut Vec<Mark>) {
 /// A lint finding: its objects highlighted, its edges in thick lines, and a large marker at its
 /// point.
 fn finding_marks(level: &Level, finding: &Finding, marks: &mut Vec<Mark>) {
-    let names: Vec<&str> = finding.objects.iter().map(|o| &**o).collect();
-    highlight_objects(level, &names, marks);
+    let objects: Vec<(&str, Option<DVec3>)> = finding
+        .objects
+        .iter()
+        .map(|o| (&**o, Some(finding.point)))
+        .collect();
+    highlight_objects(level, &objects, marks);
     for [a, b] in &finding.edges {
         marks.push(Mark::Line {
             from: *a,
@@ -200,15 +215,22 @@ fn finding_marks(level: &Level, finding: &Finding, marks: &mut Vec<Mark>) {
 }
 
 /// Highlights objects by name (see-through copies of their surfaces): what an overlap probe
-/// overlaps, what a lint finding is about.
-fn highlight_objects(level: &Level, names: &[&str], marks: &mut Vec<Mark>) {
-    for name in names {
+/// overlaps, what a lint finding is about, what carries a tag. An object given with a point and
+/// more than [`WHOLE_TRIANGLES`] triangles shows only those near the point.
+fn highlight_objects(level: &Level, objects: &[(&str, Option<DVec3>)], marks: &mut Vec<Mark>) {
+    for (name, near) in objects {
         let Some(object) = level.objects.iter().find(|o| o.name == *name) else {
             continue;
         };
-        let Some((vertices, triangles)) = object_surface(object) else {
+        let Some((vertices, mut triangles)) = object_surface(object) else {
             continue;
         };
+        if let Some(point) = near.filter(|_| triangles.len() > WHOLE_TRIANGLES) {
+            triangles.retain(|t| {
+                t.iter()
+                    .any(|&i| vertices[i as usize].distance(point) <= NEAR_METRES)
+            });
+        }
         let centre = vertices.iter().copied().sum::<DVec3>() / vertices.len().max(1) as f64;
         let vertices = vertices
             .iter()
@@ -289,6 +311,89 @@ mod tests {
             volumes: Vec::new(),
         };
         (level, probe, result)
+    }
+
+    #[test]
+    fn a_big_overlapped_mesh_is_highlighted_only_near_the_overlap() {
+        let (mut level, probe, mut result) = overlap_probe();
+        // A flat ground of 40 × 40 one-metre squares (3,200 triangles) beside the drum.
+        let n = 40u32;
+        let vertices = (0..=n)
+            .flat_map(|i| (0..=n).map(move |j| DVec3::new(f64::from(i), -1.0, f64::from(j))))
+            .collect();
+        let at = |i: u32, j: u32| i * (n + 1) + j;
+        let triangles = (0..n)
+            .flat_map(|i| (0..n).map(move |j| (i, j)))
+            .flat_map(|(i, j)| {
+                [
+                    [at(i, j), at(i, j + 1), at(i + 1, j)],
+                    [at(i + 1, j), at(i, j + 1), at(i + 1, j + 1)],
+                ]
+            })
+            .collect();
+        level.objects.push(LevelObject {
+            name: "ground".into(),
+            tags: Vec::new(),
+            geometry: Geometry::Mesh(plumbline_core::level::Mesh {
+                vertices,
+                triangles,
+                origin: Default::default(),
+            }),
+        });
+        let Hits::Overlap(hits) = &mut result.hits else {
+            unreachable!("an overlap");
+        };
+        let point = DVec3::new(4.0, -1.0, 0.0);
+        hits.push(OverlapRecord {
+            object: "ground".into(),
+            point: point.to_array(),
+            ..hits[0].clone()
+        });
+        let (probes, results) = ([probe], [result]);
+        let scene = SceneMarks {
+            level: &level,
+            probes: &probes,
+            results: &results,
+            shown: &[0],
+            selected: Some(0),
+            selected_all: &[0],
+            hit: None,
+            handles: &[],
+            preview: &[],
+            hover_triangle: None,
+            finding: None,
+            highlight_tag: None,
+            dim_others: false,
+        };
+        let highlighted: Vec<(Vec<DVec3>, Vec<[u32; 3]>)> = scene_marks(&scene)
+            .into_iter()
+            .filter_map(|m| match m {
+                Mark::Ghost {
+                    vertices,
+                    triangles,
+                    colour,
+                    ..
+                } if colour == okabe_ito::ORANGE => Some((vertices, triangles)),
+                _ => None,
+            })
+            .collect();
+        let [(_, drum), (ground_vertices, ground)] = highlighted.as_slice() else {
+            panic!("the drum and the ground are highlighted");
+        };
+        let (_, whole_drum) = object_surface(&level.objects[0]).unwrap();
+        assert_eq!(drum.len(), whole_drum.len(), "a small object whole");
+        assert!(
+            !ground.is_empty() && ground.len() < 200,
+            "{} triangles",
+            ground.len()
+        );
+        for t in ground {
+            let nearest = t
+                .iter()
+                .map(|&i| ground_vertices[i as usize].distance(point))
+                .fold(f64::INFINITY, f64::min);
+            assert!(nearest <= NEAR_METRES + 2.0 * HIGHLIGHT_PUSH, "{nearest}");
+        }
     }
 
     #[test]
