@@ -375,7 +375,7 @@ fn marker(
     let to_world = |p: DVec3| at + (x * p.x + y * p.y + z * p.z) * r;
     match mark {
         StateMark::Round => {
-            for corners in front_of_unit_ball() {
+            for corners in front_of_unit_ball(size <= SMALL_MARKER) {
                 push_lit(surface, corners.map(&to_world), colour, 255, sizing);
             }
         }
@@ -414,10 +414,15 @@ fn marker(
     }
 }
 
-/// The half of a unit ball turned to +z (the eye, in a marker's frame): the upper half of an
-/// octahedron split once and pushed out to the sphere. A marker's back half is always hidden by its
-/// front, so it is not drawn.
-fn front_of_unit_ball() -> Vec<[DVec3; 3]> {
+/// Markers at most this many pixels across are drawn with fewer faces (a reach map or a coverage
+/// draws thousands of them). Ours.
+const SMALL_MARKER: f64 = 6.0;
+
+/// The half of a unit ball turned to +z (the eye, in a marker's frame), its outline an octagon: for
+/// a small marker a fan of eight faces from the tip, otherwise the upper half of an octahedron
+/// split once and pushed out to the sphere (16 faces). A marker's back half is always hidden by
+/// its front, so it is not drawn.
+fn front_of_unit_ball(small: bool) -> Vec<[DVec3; 3]> {
     let tips = [DVec3::X, DVec3::Y, -DVec3::X, -DVec3::Y];
     let mut triangles = Vec::with_capacity(16);
     for k in 0..4 {
@@ -427,7 +432,11 @@ fn front_of_unit_ball() -> Vec<[DVec3; 3]> {
             (b + c).normalize(),
             (c + a).normalize(),
         );
-        triangles.extend([[a, ab, ca], [ab, b, bc], [ca, bc, c], [ab, bc, ca]]);
+        if small {
+            triangles.extend([[a, ab, c], [ab, b, c]]);
+        } else {
+            triangles.extend([[a, ab, ca], [ab, b, bc], [ca, bc, c], [ab, bc, ca]]);
+        }
     }
     triangles
 }
@@ -505,6 +514,21 @@ mod tests {
         assert_eq!(segments_for(0.5), 1);
         assert_eq!(segments_for(1e9), ROUND_SEGMENTS);
         assert_eq!(segments_for(f64::INFINITY), ROUND_SEGMENTS);
+    }
+
+    #[test]
+    fn small_round_markers_take_fewer_faces() {
+        let faces = |size: f64| {
+            let marks = [Mark::Point {
+                at: DVec3::ZERO,
+                colour: [1, 2, 3],
+                size,
+                mark: StateMark::Round,
+            }];
+            mark_surfaces(&marks, &sizing()).solid.triangle_count()
+        };
+        assert_eq!(faces(4.0), 8);
+        assert_eq!(faces(12.0), 16);
     }
 
     #[test]
