@@ -68,6 +68,33 @@ pub struct SceneMarks<'a> {
     pub dim_others: bool,
 }
 
+impl<'a> SceneMarks<'a> {
+    /// The `shown` probes of a set as they stand: nothing selected, placed, hovered or highlighted,
+    /// the others fading once something is selected (set the fields to change that).
+    pub fn of(
+        level: &'a Level,
+        probes: &'a [Probe],
+        results: &'a [ProbeResult],
+        shown: &'a [usize],
+    ) -> SceneMarks<'a> {
+        SceneMarks {
+            level,
+            probes,
+            results,
+            shown,
+            selected: None,
+            selected_all: &[],
+            hit: None,
+            handles: &[],
+            preview: &[],
+            hover_triangle: None,
+            finding: None,
+            highlight_tag: None,
+            dim_others: true,
+        }
+    }
+}
+
 /// The marks of a frame, in drawing order.
 pub fn scene_marks(scene: &SceneMarks) -> Vec<Mark> {
     let mut marks = Vec::new();
@@ -351,19 +378,9 @@ mod tests {
         });
         let (probes, results) = ([probe], [result]);
         let scene = SceneMarks {
-            level: &level,
-            probes: &probes,
-            results: &results,
-            shown: &[0],
             selected: Some(0),
             selected_all: &[0],
-            hit: None,
-            handles: &[],
-            preview: &[],
-            hover_triangle: None,
-            finding: None,
-            highlight_tag: None,
-            dim_others: false,
+            ..SceneMarks::of(&level, &probes, &results, &[0])
         };
         let highlighted: Vec<(Vec<DVec3>, Vec<[u32; 3]>)> = scene_marks(&scene)
             .into_iter()
@@ -401,21 +418,7 @@ mod tests {
         let (level, probe, result) = overlap_probe();
         let (probes, results) = ([probe], [result]);
         let handles = [DVec3::new(4.0, 0.0, 0.0)];
-        let mut scene = SceneMarks {
-            level: &level,
-            probes: &probes,
-            results: &results,
-            shown: &[0],
-            selected: None,
-            selected_all: &[],
-            hit: None,
-            handles: &[],
-            preview: &[],
-            hover_triangle: None,
-            finding: None,
-            highlight_tag: None,
-            dim_others: true,
-        };
+        let mut scene = SceneMarks::of(&level, &probes, &results, &[0]);
         let highlights = |marks: &[Mark]| {
             marks
                 .iter()
@@ -481,19 +484,8 @@ mod tests {
         let probes = [probe];
         let results = [result];
         let scene = |selected: Option<usize>| SceneMarks {
-            level: &level,
-            probes: &probes,
-            results: &results,
-            shown: &[0],
             selected,
-            selected_all: &[],
-            hit: None,
-            handles: &[],
-            preview: &[],
-            hover_triangle: None,
-            finding: None,
-            highlight_tag: None,
-            dim_others: true,
+            ..SceneMarks::of(&level, &probes, &results, &[0])
         };
         let volume_ghosts = |marks: &[Mark]| {
             marks

@@ -307,19 +307,9 @@ fn the_selected_ray_is_the_widest_and_most_vivid_line_and_the_others_step_back()
         revision += 1;
         let selected_all: Vec<usize> = selected.into_iter().collect();
         let marks = scene_marks(&SceneMarks {
-            level: &level,
-            probes: &probes,
-            results: &results,
-            shown,
             selected,
             selected_all: &selected_all,
-            hit: None,
-            handles: &[],
-            preview: &[],
-            hover_triangle: None,
-            finding: None,
-            highlight_tag: None,
-            dim_others: true,
+            ..SceneMarks::of(&level, &probes, &results, shown)
         });
         let mut drawing = LevelDrawing::new(&level);
         drawing.grid = Surface::default();
