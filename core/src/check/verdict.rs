@@ -1,5 +1,7 @@
 //! Judging an answer against a probe's expectation, with one sentence a designer can read.
 
+use std::fmt;
+
 use glam::DVec3;
 
 use super::records::{ClearanceRecord, Hits, Verdict, VolumeRecord};
@@ -123,14 +125,14 @@ fn describe(hits: &Hits, clearance: Option<&ClearanceRecord>) -> String {
     let found = match hits {
         Hits::Ray(h) => h.first().map(|x| {
             let what = named(&x.object, &x.material);
-            format!("blocked by {what} at {}{more}", metres(x.distance))
+            format!("blocked by {what} at {}{more}", Metres(x.distance))
         }),
         Hits::Sweep(h) => h.first().map(|x| {
             let what = named(&x.object, &x.material);
             if x.started_inside {
                 format!("starts inside {what}{more}")
             } else {
-                format!("hits {what} after {}{more}", metres(x.distance))
+                format!("hits {what} after {}{more}", Metres(x.distance))
             }
         }),
         Hits::Closest(h) => h.first().map(|x| {
@@ -138,13 +140,13 @@ fn describe(hits: &Hits, clearance: Option<&ClearanceRecord>) -> String {
             if x.overlapping {
                 format!("overlaps {what}")
             } else {
-                format!("nearest is {what} at {}", metres(x.distance))
+                format!("nearest is {what} at {}", Metres(x.distance))
             }
         }),
         Hits::Overlap(h) => h.first().map(|x| {
             let how = if x.enclosed { "is inside" } else { "overlaps" };
             let what = named(&x.object, &x.material);
-            format!("{how} {what} by {}{more}", metres(x.depth))
+            format!("{how} {what} by {}{more}", Metres(x.depth))
         }),
         Hits::Rest(_) | Hits::Sightlines(_) | Hits::Coverage(_) => {
             return super::level_verdict::describe(hits);
@@ -170,21 +172,134 @@ fn describe(hits: &Hits, clearance: Option<&ClearanceRecord>) -> String {
 }
 
 /// An object as a reason names it, with the material of the surface when the file names one.
-pub(super) fn named(object: &str, material: &Option<std::sync::Arc<str>>) -> String {
-    match material {
-        Some(m) => format!("{object} ({m})"),
-        None => object.to_string(),
+pub(super) fn named<'a>(object: &'a str, material: &'a Option<std::sync::Arc<str>>) -> Named<'a> {
+    Named { object, material }
+}
+
+/// An object's name as a reason writes it (see [`named`]); nothing is copied until it is written.
+pub(super) struct Named<'a> {
+    object: &'a str,
+    material: &'a Option<std::sync::Arc<str>>,
+}
+
+impl fmt::Display for Named<'_> {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self.material {
+            Some(m) => write!(f, "{} ({m})", self.object),
+            None => f.write_str(self.object),
+        }
     }
 }
 
-/// Metres with millimetre precision, as designers read them.
+/// Metres with millimetre precision, as designers read them: what `format!("{x:.3} m")` writes.
 pub fn metres(x: f64) -> String {
-    format!("{x:.3} m")
+    Metres(x).to_string()
+}
+
+/// A length as [`metres`] writes it, for sentences built with `format!` (no string of its own).
+pub(super) struct Metres(pub f64);
+
+impl fmt::Display for Metres {
+    /// `x` with three decimals as `{x:.3}` writes it, without the float formatter where that is
+    /// sure to give the same digits (a check words a distance for every ray that hits). The
+    /// product `|x| · 1000` is within half an ulp of the exact one, so when it is farther than
+    /// that from a half, both round to the same whole number of millimetres; halves, near-halves,
+    /// huge and non-finite values go to the formatter.
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        let x = self.0;
+        let scaled = x.abs() * 1000.0;
+        if scaled < 1e15 {
+            let whole = scaled.floor();
+            let fraction = scaled - whole;
+            if (fraction - 0.5).abs() > scaled * f64::EPSILON {
+                let millimetres = (whole as u64) + u64::from(fraction > 0.5);
+                if x.is_sign_negative() {
+                    f.write_str("-")?;
+                }
+                f.write_str(itoa::Buffer::new().format(millimetres / 1000))?;
+                let thousandths = millimetres % 1000;
+                let digit = |d: u64| b'0' + d as u8;
+                let digits = [
+                    b'.',
+                    digit(thousandths / 100),
+                    digit(thousandths / 10 % 10),
+                    digit(thousandths % 10),
+                ];
+                f.write_str(std::str::from_utf8(&digits).expect("ASCII digits"))?;
+                return f.write_str(" m");
+            }
+        }
+        write!(f, "{x:.3} m")
+    }
 }
 
 fn capitalise(s: &str) -> String {
     let mut c = s.chars();
     c.next().map_or_else(String::new, |f| {
-        f.to_uppercase().collect::<String>() + c.as_str()
+        let mut out = String::with_capacity(s.len() + 2);
+        out.extend(f.to_uppercase());
+        out.push_str(c.as_str());
+        out
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The reference: the standard library's exact formatting.
+    fn formatted(x: f64) -> String {
+        format!("{x:.3} m")
+    }
+
+    #[test]
+    fn millimetres_are_written_as_the_formatter_writes_them() {
+        // Halves of a millimetre that binary holds exactly (x = q/16, q odd: x · 1000 = 62.5 q),
+        // either sign, zeros, the fast path's edges and the values it leaves to the formatter.
+        let mut cases: Vec<f64> = (1..2000).map(|q| f64::from(2 * q - 1) / 16.0).collect();
+        cases.extend([
+            0.0,
+            -0.0,
+            1e-4,
+            -1e-4,
+            0.0005,
+            0.0015,
+            2.0005,
+            999.9995,
+            1e11,
+            1e12,
+            1e13,
+            1e18,
+            f64::MIN_POSITIVE,
+            f64::MAX,
+            f64::INFINITY,
+            f64::NEG_INFINITY,
+            f64::NAN,
+            1.869,
+            0.9995,
+            0.9995f64.next_down(),
+            123.4565,
+            5e-324,
+        ]);
+        for x in cases
+            .clone()
+            .into_iter()
+            .chain(cases.into_iter().map(|x| -x))
+        {
+            assert_eq!(metres(x), formatted(x), "{x:e}");
+        }
+    }
+
+    proptest::proptest! {
+        /// Random doubles of every size, and random distances as a check meets them.
+        #[test]
+        fn random_millimetres_are_written_as_the_formatter_writes_them(
+            bits in proptest::prelude::any::<u64>(),
+            metres_away in -1e6f64..1e6,
+        ) {
+            for x in [f64::from_bits(bits), metres_away] {
+                proptest::prop_assert_eq!(metres(x), formatted(x), "{:e}", x);
+            }
+        }
+    }
 }
