@@ -133,11 +133,7 @@ impl<'a> Scanner<'a> {
                     i += 1;
                 }
                 // Inside brackets only strings and brackets matter for finding the end.
-                _ if depth > 0 => {
-                    i += b[i..]
-                        .iter()
-                        .position(|c| matches!(c, b'"' | b'{' | b'}' | b'[' | b']'))?
-                }
+                _ if depth > 0 => i += b[i..].iter().position(|&c| NESTING[usize::from(c)])?,
                 b',' | b':' => return None,
                 // A number or a literal: up to the next delimiter.
                 _ => {
@@ -212,6 +208,17 @@ impl<'a> Scanner<'a> {
         self.at == self.text.len()
     }
 }
+
+/// The bytes that matter while finding where a nested value ends: quotes and brackets.
+const NESTING: [bool; 256] = {
+    let mut table = [false; 256];
+    table[b'"' as usize] = true;
+    table[b'{' as usize] = true;
+    table[b'}' as usize] = true;
+    table[b'[' as usize] = true;
+    table[b']' as usize] = true;
+    table
+};
 
 /// Where the string whose text starts at `i` ends (its closing quote), stepping over escapes.
 fn string_end(b: &[u8], mut i: usize) -> Option<usize> {
