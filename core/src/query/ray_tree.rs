@@ -350,19 +350,22 @@ impl RayTree {
         let mut stack = [(EMPTY, 0f32); STACK];
         let mut len = 0;
         // The next child to visit when a node met only one (most do): it skips the stack.
-        let mut next = Some((self.root, 0f32));
+        let mut next = Some(self.root);
         loop {
-            let (child, entry) = match next.take() {
+            let child = match next.take() {
+                // Entered within the limit it was met under, which is still the limit.
                 Some(only) => only,
                 None if len > 0 => {
                     len -= 1;
-                    stack[len]
+                    let (child, entry) = stack[len];
+                    // The limit may have shrunk since it was pushed.
+                    if entry > limit {
+                        continue;
+                    }
+                    child
                 }
                 None => break,
             };
-            if entry > limit {
-                continue;
-            }
             if child & LEAF_BIT != 0 {
                 let start = (child & ((1 << LEAF_START_BITS) - 1)) as usize;
                 let count = ((child & !LEAF_BIT) >> LEAF_START_BITS) as usize;
@@ -374,10 +377,10 @@ impl RayTree {
             let (mut met, entries) = ray.entries(node, limit);
             if met != 0 && met & (met - 1) == 0 {
                 let k = met.trailing_zeros() as usize;
-                next = Some((node.children[k], entries[k]));
+                next = Some(node.children[k]);
                 continue;
             }
-            // Pushed farthest first, so the nearest is popped next.
+            // Pushed farthest first; the nearest is taken straight back as the next to visit.
             let from = len;
             while met != 0 {
                 let k = met.trailing_zeros() as usize;
@@ -390,6 +393,10 @@ impl RayTree {
                 }
                 stack[at] = item;
                 len += 1;
+            }
+            if len > from {
+                len -= 1;
+                next = Some(stack[len].0);
             }
         }
     }
