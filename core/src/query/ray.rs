@@ -108,7 +108,7 @@ impl View<'_> {
                         let Some(body) = self.body(item.body) else {
                             continue;
                         };
-                        (distance, body, Found::Triangle(tri, item.corners))
+                        (distance, body, Found::Triangle(tri, &item.corners))
                     }
                     None => {
                         let Some(body) = self.body(item.body) else {
@@ -140,7 +140,7 @@ impl View<'_> {
                 .map_or(reach, |(d, _, _)| d.next_up().min(reach))
         });
         Ok(best.map(|(distance, body, found)| match found {
-            Found::Triangle(tri, [a, b, c]) => {
+            Found::Triangle(tri, &[a, b, c]) => {
                 candidate(
                     self.world,
                     body,
@@ -409,14 +409,15 @@ fn candidate(
 }
 
 /// What a first-hit search has found on a body; the hit is only worked out for the winner.
-enum Found {
-    /// A mesh triangle (its number in the object, as the file numbers it) and its corners.
-    Triangle(u32, [DVec3; 3]),
+enum Found<'a> {
+    /// A mesh triangle (its number in the object, as the file numbers it) and its corners (in
+    /// the ray index: a hit that a nearer one replaces copies nothing).
+    Triangle(u32, &'a [DVec3; 3]),
     /// A primitive's crossing, already worked out.
     Primitive(Candidate),
 }
 
-impl Found {
+impl Found<'_> {
     /// The place in file order of what was found on `body`, `ordinal` giving a triangle's.
     fn ordinal(&self, body: &Body, ordinal: &impl Fn(&Body, u32) -> u64) -> u64 {
         match self {

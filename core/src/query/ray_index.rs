@@ -80,11 +80,11 @@ impl RayIndex {
 
     /// Calls `leaf(items, reach)` on every leaf the ray may meet within `reach`, nearest box first;
     /// `leaf` returns the new reach (see [`RayTree::nearest_first`]).
-    pub fn nearest_first(
-        &self,
+    pub fn nearest_first<'s>(
+        &'s self,
         ray: &TreeRay,
         reach: f64,
-        mut leaf: impl FnMut(&[RayItem], f64) -> f64,
+        mut leaf: impl FnMut(&'s [RayItem], f64) -> f64,
     ) {
         self.tree
             .nearest_first(ray, reach, |range, reach| leaf(&self.items[range], reach));

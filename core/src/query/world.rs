@@ -241,10 +241,17 @@ impl World {
     /// the build runs on the thread pool, and a ray job the pool hands this thread while it waits
     /// would otherwise wait for the build it interrupted. Such a job builds its own instead; the
     /// first finished is kept (all are the same).
+    #[inline]
     pub(crate) fn ray_index(&self) -> &RayIndex {
-        if let Some(index) = self.ray_index.get() {
-            return index;
+        match self.ray_index.get() {
+            Some(index) => index,
+            None => self.build_ray_index(),
         }
+    }
+
+    /// Builds the ray index (see [`World::ray_index`]): once a world, out of every ray's way.
+    #[cold]
+    fn build_ray_index(&self) -> &RayIndex {
         let root = self.bvh.root_aabb();
         let number = |body: &Body, k: u32| self.triangle_number(body.object, body.triangle_id(k));
         let index = RayIndex::new(RayFrame::around(root.mins, root.maxs), &self.bodies, number);
