@@ -37,8 +37,9 @@ fn check_names(raw: &ProbeFields) -> Result<(), String> {
 
 /// Parses probe `fragment`, a slice of the file's `text`.
 pub(super) fn parse_probe(path: &Path, text: &str, fragment: &str) -> Result<Probe, InputError> {
-    let raw =
-        ProbeFields::read(fragment).map_err(|e| InputError::json_in(path, text, fragment, &e))?;
+    let mut raw = ProbeFields::default();
+    ProbeFields::read_into(fragment, &mut raw)
+        .map_err(|e| InputError::json_in(path, text, fragment, &e))?;
     let here = |message: String| InputError::at_fragment(path, text, fragment, message);
     check_id("probe", &raw.id).map_err(here)?;
     let fail = |message: String| here(format!("probe \"{}\": {message}", raw.id));
