@@ -125,26 +125,8 @@ impl Workbench {
                                 self.highlight_tag.as_deref(),
                             );
                         });
-                    match action {
-                        Some(InspectorAction::Edit(index, edit)) => {
-                            let Edit { field, probe } = *edit;
-                            self.edit_probe(index, &field, probe)
-                        }
-                        Some(InspectorAction::Run(command)) => self.perform(command, &ctx),
-                        Some(InspectorAction::Bulk(what, probes)) => {
-                            self.replace_probes("bulk", &what, probes);
-                            self.history.seal();
-                        }
-                        Some(InspectorAction::Select(index)) => {
-                            self.select_probe(Some(index));
-                            self.scroll_list = true;
-                        }
-                        Some(InspectorAction::Highlight(tag)) => self.highlight_tag = tag,
-                        Some(InspectorAction::AnswerAgain(index)) => {
-                            self.document.answer_again(index);
-                            self.results_revision += 1;
-                        }
-                        None => {}
+                    if let Some(action) = action {
+                        self.inspector_action(action, &ctx);
                     }
                 });
             });
@@ -231,6 +213,30 @@ impl Workbench {
             };
             if ctx.input_mut(|i| i.consume_shortcut(&shortcut)) {
                 self.perform(command, ctx);
+            }
+        }
+    }
+
+    /// Does what the inspector asked for this frame.
+    fn inspector_action(&mut self, action: InspectorAction, ctx: &egui::Context) {
+        match action {
+            InspectorAction::Edit(index, edit) => {
+                let Edit { field, probe } = *edit;
+                self.edit_probe(index, &field, probe)
+            }
+            InspectorAction::Run(command) => self.perform(command, ctx),
+            InspectorAction::Bulk(what, probes) => {
+                self.replace_probes("bulk", &what, probes);
+                self.history.seal();
+            }
+            InspectorAction::Select(index) => {
+                self.select_probe(Some(index));
+                self.scroll_list = true;
+            }
+            InspectorAction::Highlight(tag) => self.highlight_tag = tag,
+            InspectorAction::AnswerAgain(index) => {
+                self.document.answer_again(index);
+                self.results_revision += 1;
             }
         }
     }
