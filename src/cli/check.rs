@@ -177,7 +177,7 @@ pub fn run_once(
     style: Style,
 ) -> Result<Outcome, Error> {
     // Reading and checking the probe set runs on the threads the answers will use (--jobs).
-    let threads = Runner::new(options.jobs.map(|j| j as usize))?;
+    let threads = Runner::new(options.jobs.map(|j| j as usize))?.timing(options.timings);
     let opened = threads.install(|| {
         open(
             &options.probes,

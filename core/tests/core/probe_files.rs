@@ -136,4 +136,21 @@ fn a_set_of_many_chunks_is_answered_in_order_for_any_thread_count() {
         .unwrap();
     let expected: Vec<_> = shard.iter().map(|&p| one[p].clone()).collect();
     assert_eq!(answers(2, Some(&shard)), expected);
+    // Answers are timed (for `--timings`) only when the runner is asked to time them.
+    let times = |runner: Runner| {
+        let mut took = Vec::new();
+        let first: Vec<usize> = (0..200).collect();
+        opened
+            .answer_each(&runner, Some(&first), &|_| {}, &mut |_, _, t| {
+                took.push(t);
+                Ok(())
+            })
+            .unwrap();
+        took
+    };
+    let untimed = times(Runner::new(Some(1)).unwrap());
+    assert!(untimed.iter().all(|t| t.is_zero()), "{untimed:?}");
+    let timed = times(Runner::new(Some(1)).unwrap().timing(true));
+    assert_eq!(timed.len(), 200);
+    assert!(timed.iter().all(|t| !t.is_zero()), "{timed:?}");
 }
