@@ -26,6 +26,8 @@ pub enum Json<'a> {
     /// Three floats, an array written as [`Json::vec3`] describes (no allocation: records hold
     /// many points and normals).
     Vec3([f64; 3]),
+    /// A list of strings (tags, names), an array of them (no allocation).
+    Strs(&'a [String]),
 }
 
 impl Json<'_> {
@@ -78,7 +80,7 @@ pub fn write_pretty(value: &Json, depth: usize, out: &mut String) {
         return;
     }
     let width = INLINE_WIDTH.saturating_sub(depth * 2);
-    if nests_within(value, 2) && inline_may_fit(value, width) {
+    if inline_at_least(value, width, 2) <= width {
         // Written on one line, then taken back if it runs past the width: each number is
         // formatted once for values that fit, and at most a line's worth is wasted for those
         // that do not.
@@ -113,6 +115,10 @@ pub fn write_pretty(value: &Json, depth: usize, out: &mut String) {
             out.push('}');
         }
         Json::Vec3(v) => write_pretty(&Json::Arr(v.map(Json::float).to_vec()), depth, out),
+        Json::Strs(items) => {
+            let items = items.iter().map(|s| Json::Str(s)).collect();
+            write_pretty(&Json::Arr(items), depth, out);
+        }
         scalar => write_inline(scalar, out),
     }
 }
@@ -162,6 +168,16 @@ fn write_inline_within(value: &Json, out: &mut String, limit: usize) -> bool {
             }
             out.push(']');
         }
+        Json::Strs(items) => {
+            out.push('[');
+            for (k, item) in items.iter().enumerate() {
+                if k > 0 {
+                    out.push_str(", ");
+                }
+                write_string(item, out);
+            }
+            out.push(']');
+        }
         Json::Str(s) => write_string(s, out),
         Json::Num(n) => write_number(n, out),
         Json::Bool(b) => out.push_str(if *b { "true" } else { "false" }),
@@ -190,24 +206,33 @@ fn write_number(n: &Number, out: &mut String) {
     }
 }
 
-/// False when `value` on one line is surely longer than `width` bytes, by a lower bound that
-/// formats no number (each is at least one digit); stops counting past the width.
-fn inline_may_fit(value: &Json, width: usize) -> bool {
-    inline_at_least(value, width) <= width
-}
-
-/// A lower bound on the length of `value` on one line, exact until it passes `width`.
-fn inline_at_least(value: &Json, width: usize) -> usize {
+/// A lower bound on the length of `value` on one line, formatting no number (each is at least one
+/// digit), exact until it passes `width` (then it stops counting); more than `width` when arrays
+/// and objects nest more than `levels` deep (`[1, 2]` is one level, `[[1], [2]]` two), as such a
+/// value is never kept on one line. One walk, stopping early, however large the value.
+fn inline_at_least(value: &Json, width: usize, levels: usize) -> usize {
+    let too_deep = width.saturating_add(1);
     match value {
         Json::Null | Json::Bool(true) => 4,
         Json::Bool(false) => 5,
         Json::Num(_) => 1,
-        Json::Vec3(_) => 9,
         Json::Str(s) => s.len() + 2,
+        Json::Vec3(_) | Json::Strs(_) | Json::Arr(_) | Json::Obj(_) if levels == 0 => too_deep,
+        Json::Vec3(_) => 9,
+        Json::Strs(items) => {
+            let mut length = items.len().max(1) * 2;
+            for item in *items {
+                length += item.len() + 2;
+                if length > width {
+                    break;
+                }
+            }
+            length
+        }
         Json::Arr(items) => {
             let mut length = items.len().max(1) * 2;
             for item in items {
-                length += inline_at_least(item, width);
+                length += inline_at_least(item, width, levels - 1);
                 if length > width {
                     break;
                 }
@@ -217,7 +242,7 @@ fn inline_at_least(value: &Json, width: usize) -> usize {
         Json::Obj(fields) => {
             let mut length = fields.len().max(1) * 2;
             for (key, item) in fields {
-                length += key.len() + 4 + inline_at_least(item, width);
+                length += key.len() + 4 + inline_at_least(item, width, levels - 1);
                 if length > width {
                     break;
                 }
@@ -228,7 +253,7 @@ fn inline_at_least(value: &Json, width: usize) -> usize {
 }
 
 fn write_string(s: &str, out: &mut String) {
-    if s.bytes().any(|b| ESCAPED[usize::from(b)]) {
+    if needs_escapes(s.as_bytes()) {
         out.push_str(&serde_json::to_string(s).expect("strings serialise"));
     } else {
         out.reserve(s.len() + 2);
@@ -236,6 +261,27 @@ fn write_string(s: &str, out: &mut String) {
         out.push_str(s);
         out.push('"');
     }
+}
+
+/// True when `bytes` hold a byte of [`ESCAPED`]: eight bytes at a time, by the zero-byte tests of
+/// Anderson's "Bit Twiddling Hacks" ("Determine if a word has a zero byte", "... a byte less than
+/// n"), which are exact for the word as a whole; the tail byte by byte.
+fn needs_escapes(bytes: &[u8]) -> bool {
+    const ONES: u64 = u64::from_ne_bytes([1; 8]);
+    const HIGHS: u64 = ONES * 0x80;
+    let has_zero = |v: u64| v.wrapping_sub(ONES) & !v & HIGHS != 0;
+    let mut words = bytes.chunks_exact(8);
+    for word in &mut words {
+        let x = u64::from_ne_bytes(word.try_into().expect("eight bytes"));
+        let control = x.wrapping_sub(ONES * 0x20) & !x & HIGHS != 0;
+        if control
+            || has_zero(x ^ (ONES * u64::from(b'"')))
+            || has_zero(x ^ (ONES * u64::from(b'\\')))
+        {
+            return true;
+        }
+    }
+    words.remainder().iter().any(|&b| ESCAPED[usize::from(b)])
 }
 
 /// The bytes a JSON string cannot hold as they are (RFC 8259 §7): control characters, `"` and `\`.
@@ -257,17 +303,6 @@ fn indent(depth: usize) -> std::borrow::Cow<'static, str> {
     match SPACES.get(..2 * depth) {
         Some(s) => std::borrow::Cow::Borrowed(s),
         None => std::borrow::Cow::Owned("  ".repeat(depth)),
-    }
-}
-
-/// True when arrays and objects nest at most `levels` deep (`[1, 2]` is 1, `[[1], [2]]` is 2);
-/// stops looking as soon as it is deeper, so large documents are not walked.
-fn nests_within(value: &Json, levels: usize) -> bool {
-    match value {
-        Json::Arr(items) => levels > 0 && items.iter().all(|i| nests_within(i, levels - 1)),
-        Json::Obj(fields) => levels > 0 && fields.iter().all(|(_, v)| nests_within(v, levels - 1)),
-        Json::Vec3(_) => levels > 0,
-        _ => true,
     }
 }
 
@@ -324,6 +359,17 @@ mod tests {
     }
 
     proptest::proptest! {
+        /// Strings are written byte for byte as serde_json (the reference writer) writes them,
+        /// whatever bytes need escaping and wherever they fall in an eight-byte word.
+        #[test]
+        fn strings_are_written_as_serde_json_writes_them(s in "[ -~\u{0}-\u{1f}\u{7f}-\u{3ff}]{0,40}") {
+            let mut out = String::new();
+            write_string(&s, &mut out);
+            proptest::prop_assert_eq!(out, serde_json::to_string(&s).unwrap());
+            let escaped = s.bytes().any(|b| b < 0x20 || b == b'"' || b == b'\\');
+            proptest::prop_assert_eq!(needs_escapes(s.as_bytes()), escaped);
+        }
+
         /// Numbers are written byte for byte as serde_json (the reference writer) writes them.
         #[test]
         fn numbers_are_written_as_serde_json_writes_them(bits in proptest::prelude::any::<u64>(), i in proptest::prelude::any::<i64>()) {
@@ -344,7 +390,7 @@ mod tests {
             let json = Json::from(&value);
             let mut line = String::new();
             write_inline(&json, &mut line);
-            proptest::prop_assert!(inline_at_least(&json, usize::MAX) <= line.len(), "{}", line);
+            proptest::prop_assert!(inline_at_least(&json, usize::MAX, usize::MAX) <= line.len(), "{}", line);
             proptest::prop_assert_eq!(serde_json::from_str::<Value>(&to_pretty(&value)).unwrap(), value);
         }
     }
@@ -365,6 +411,25 @@ mod tests {
             ] {
                 let (mut a, mut b) = (String::new(), String::new());
                 write_pretty(&vector, depth, &mut a);
+                write_pretty(&array, depth, &mut b);
+                proptest::prop_assert_eq!(a, b);
+            }
+        }
+    }
+
+    proptest::proptest! {
+        /// A list of strings is written exactly as the array of its strings, on one line or
+        /// broken up, alone or nested too deep for one line.
+        #[test]
+        fn string_lists_are_written_as_arrays_of_strings(items in proptest::collection::vec("[a-z\"é ]{0,12}", 0..8), depth in 0usize..50) {
+            let as_array = Json::Arr(items.iter().map(|s| Json::Str(s)).collect());
+            let within = |inner| Json::Obj(vec![("tags", inner)]);
+            for (list, array) in [
+                (Json::Strs(&items), as_array.clone()),
+                (within(within(Json::Strs(&items))), within(within(as_array))),
+            ] {
+                let (mut a, mut b) = (String::new(), String::new());
+                write_pretty(&list, depth, &mut a);
                 write_pretty(&array, depth, &mut b);
                 proptest::prop_assert_eq!(a, b);
             }

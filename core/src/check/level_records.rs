@@ -131,10 +131,7 @@ impl CoverageRecord {
     pub fn to_json(&self) -> Json<'_> {
         let points = |list: &[[f64; 3]]| Json::Arr(list.iter().map(|p| Json::vec3(*p)).collect());
         let mut f = vec![
-            (
-                "spots",
-                Json::Arr(self.spots.iter().map(|s| Json::Str(s)).collect()),
-            ),
+            ("spots", Json::Strs(&self.spots)),
             ("spot_points", points(&self.spot_points)),
             ("points", Json::int(self.points as u64)),
             ("seen", Json::int(self.seen as u64)),

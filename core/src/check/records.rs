@@ -427,7 +427,7 @@ impl Summary {
 
 /// A list of tags as results files lay it out.
 pub(super) fn tags_json(tags: &[String]) -> Json<'_> {
-    Json::Arr(tags.iter().map(|t| Json::Str(t)).collect())
+    Json::Strs(tags)
 }
 
 /// The tail walks and settles share in results files: the object met (and its tags), when there is
