@@ -81,10 +81,14 @@ fn answer(world: &World, probe: &Probe, progress: &Progress) -> Result<Answer, Q
     let source = |id, triangle: Option<u32>| source_record(world, id, triangle?);
     Ok(match &probe.query {
         ProbeQuery::Ray { from, to, hits } => {
-            let found = if *hits == Some(HitsMode::All) {
-                view.ray_all(*from, *to)?
+            let all;
+            let first;
+            let found: &[_] = if *hits == Some(HitsMode::All) {
+                all = view.ray_all(*from, *to)?;
+                &all
             } else {
-                view.ray_first(*from, *to)?.into_iter().collect()
+                first = view.ray_first(*from, *to)?;
+                first.as_slice()
             };
             let records = found
                 .iter()

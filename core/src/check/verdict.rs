@@ -18,18 +18,32 @@ pub fn judge(
 ) -> (Verdict, String) {
     let mut answer = describe(hits, clearance);
     if let Some(met) = super::volumes::describe(volumes) {
-        answer = format!("{answer}; {met}");
+        answer.push_str("; ");
+        answer.push_str(&met);
     }
     let Some(expect) = &probe.expect else {
-        return (Verdict::Unchecked, capitalise(&answer));
+        return (Verdict::Unchecked, capitalise(answer));
     };
     let conditions = expect.conditions();
     let unmet = first_unmet(&conditions, hits, clearance, up)
         .or_else(|| super::volumes::first_unmet(&conditions, volumes));
     match unmet {
-        None => (Verdict::Pass, format!("As expected: {answer}")),
-        Some(wanted) => (Verdict::Fail, format!("Expected {wanted}; {answer}")),
+        None => (Verdict::Pass, ["As expected: ", &answer].concat()),
+        Some(wanted) => (
+            Verdict::Fail,
+            ["Expected ", &wanted, "; ", &answer].concat(),
+        ),
     }
+}
+
+/// A sentence written straight into a string with room for most reasons (`format!` guesses the
+/// room from the literal text alone, and grows the string once or twice more for a typical one).
+fn sentence(parts: fmt::Arguments) -> String {
+    use fmt::Write;
+    let mut out = String::with_capacity(64);
+    out.write_fmt(parts)
+        .expect("writing to a String cannot fail");
+    out
 }
 
 /// The first condition that does not hold, worded as what was expected.
@@ -125,28 +139,34 @@ fn describe(hits: &Hits, clearance: Option<&ClearanceRecord>) -> String {
     let found = match hits {
         Hits::Ray(h) => h.first().map(|x| {
             let what = named(&x.object, &x.material);
-            format!("blocked by {what} at {}{more}", Metres(x.distance))
+            sentence(format_args!(
+                "blocked by {what} at {}{more}",
+                Metres(x.distance)
+            ))
         }),
         Hits::Sweep(h) => h.first().map(|x| {
             let what = named(&x.object, &x.material);
             if x.started_inside {
-                format!("starts inside {what}{more}")
+                sentence(format_args!("starts inside {what}{more}"))
             } else {
-                format!("hits {what} after {}{more}", Metres(x.distance))
+                sentence(format_args!(
+                    "hits {what} after {}{more}",
+                    Metres(x.distance)
+                ))
             }
         }),
         Hits::Closest(h) => h.first().map(|x| {
             let what = named(&x.object, &x.material);
             if x.overlapping {
-                format!("overlaps {what}")
+                sentence(format_args!("overlaps {what}"))
             } else {
-                format!("nearest is {what} at {}", Metres(x.distance))
+                sentence(format_args!("nearest is {what} at {}", Metres(x.distance)))
             }
         }),
         Hits::Overlap(h) => h.first().map(|x| {
             let how = if x.enclosed { "is inside" } else { "overlaps" };
             let what = named(&x.object, &x.material);
-            format!("{how} {what} by {}{more}", Metres(x.depth))
+            sentence(format_args!("{how} {what} by {}{more}", Metres(x.depth)))
         }),
         Hits::Rest(_) | Hits::Sightlines(_) | Hits::Coverage(_) => {
             return super::level_verdict::describe(hits);
@@ -233,19 +253,30 @@ impl fmt::Display for Metres {
     }
 }
 
-fn capitalise(s: &str) -> String {
-    let mut c = s.chars();
-    c.next().map_or_else(String::new, |f| {
-        let mut out = String::with_capacity(s.len() + 2);
-        out.extend(f.to_uppercase());
-        out.push_str(c.as_str());
-        out
-    })
+/// The sentence with its first letter a capital (in place when that letter is ASCII).
+fn capitalise(mut s: String) -> String {
+    match s.chars().next() {
+        Some(f) if f.is_ascii() => {
+            s[..1].make_ascii_uppercase();
+            s
+        }
+        Some(f) => f.to_uppercase().chain(s.chars().skip(1)).collect(),
+        None => s,
+    }
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn sentences_start_with_a_capital_whatever_their_first_letter() {
+        assert_eq!(capitalise("clear".into()), "Clear");
+        assert_eq!(capitalise("élan hits".into()), "Élan hits");
+        assert_eq!(capitalise("ßeam".into()), "SSeam");
+        assert_eq!(capitalise("3 of 4".into()), "3 of 4");
+        assert_eq!(capitalise(String::new()), "");
+    }
 
     /// The reference: the standard library's exact formatting.
     fn formatted(x: f64) -> String {
