@@ -6,7 +6,7 @@
 //! first time a query needs it: rays walk the world's ray index instead, so a check of rays alone
 //! never builds one.
 
-use std::sync::{Arc, Mutex, OnceLock, PoisonError};
+use std::sync::{Arc, Mutex, MutexGuard, OnceLock, PoisonError};
 
 use glam::DVec3;
 use parry3d_f64::bounding_volume::Aabb;
@@ -103,6 +103,14 @@ impl Body {
         self.shape.with_triangles(read)
     }
 
+    /// This body's mesh, when it is one, held where it is for reading (built or not; nothing is
+    /// built to read it). While it is held a query that needs the mesh built waits. Every body
+    /// owns its mesh (`Body` is not `Clone`), so holding each body of a world once, all at the
+    /// same time, never locks one mesh twice.
+    pub(crate) fn hold_triangles(&self) -> Option<HeldMesh<'_>> {
+        self.shape.hold_triangles()
+    }
+
     /// The nearest point to `p` on the whole surface of the closed mesh the body belongs to (on the
     /// body itself for an open mesh or a primitive).
     pub fn nearest_wall(&self, p: DVec3) -> DVec3 {
@@ -130,6 +138,30 @@ impl Body {
 
 /// A mesh's vertices, and its triangles as indices into them.
 type MeshData = (Box<[DVec3]>, Box<[[u32; 3]]>);
+
+/// A body's mesh held for reading: its triangles as loaded (locked, so no query builds the mesh
+/// meanwhile), or the built mesh's.
+pub(crate) enum HeldMesh<'a> {
+    /// Not built yet: the pending triangles, locked.
+    Pending(MutexGuard<'a, Option<MeshData>>),
+    /// Built.
+    Built(&'a TriMesh),
+}
+
+impl HeldMesh<'_> {
+    /// The mesh's vertices and its triangles as indices into them.
+    pub fn triangles(&self) -> (&[DVec3], &[[u32; 3]]) {
+        match self {
+            HeldMesh::Pending(pending) => {
+                let (vertices, triangles) = pending
+                    .as_ref()
+                    .expect("held only while its triangles are pending");
+                (vertices, triangles)
+            }
+            HeldMesh::Built(mesh) => (mesh.vertices(), mesh.indices()),
+        }
+    }
+}
 
 /// A body's parry shape. A mesh keeps its triangles as loaded and hands them to its `TriMesh` the
 /// first time a query asks for it: building the BVH is most of the cost of loading a level, and
@@ -206,18 +238,25 @@ impl LazyShape {
 
     /// `read(vertices, triangles)` on a mesh, from where they are: pending, or in the built mesh.
     fn with_triangles<R>(&self, read: impl FnOnce(&[DVec3], &[[u32; 3]]) -> R) -> Option<R> {
+        self.hold_triangles().map(|held| {
+            let (vertices, triangles) = held.triangles();
+            read(vertices, triangles)
+        })
+    }
+
+    /// A mesh's triangles held where they are: pending, or in the built mesh.
+    fn hold_triangles(&self) -> Option<HeldMesh<'_>> {
         let LazyShape::Mesh { pending, built, .. } = self else {
             return None;
         };
         if built.get().is_none() {
             let pending = pending.lock().unwrap_or_else(PoisonError::into_inner);
-            if let Some((vertices, triangles)) = pending.as_ref() {
-                return Some(read(vertices, triangles));
+            if pending.is_some() {
+                return Some(HeldMesh::Pending(pending));
             }
         }
         // Built, or being built on another thread (which `get` waits for).
-        let mesh = self.get().as_trimesh().expect("a mesh");
-        Some(read(mesh.vertices(), mesh.indices()))
+        Some(HeldMesh::Built(self.get().as_trimesh().expect("a mesh")))
     }
 
     /// True once a mesh is built (a primitive always is).

@@ -4,9 +4,13 @@
 //! item). Built when a ray first needs it.
 
 use glam::DVec3;
+use rayon::prelude::*;
 
-use super::body::Body;
+use super::body::{Body, HeldMesh};
 use super::ray_tree::{RayFrame, RayTree, TreeItems, TreeRay};
+
+/// A mesh's vertices and its triangles as indices into them, borrowed.
+type Triangles<'a> = (&'a [DVec3], &'a [[u32; 3]]);
 
 /// Most items in one leaf.
 const LEAF_ITEMS: usize = 4;
@@ -46,27 +50,22 @@ impl RayIndex {
     pub fn new(
         frame: RayFrame,
         bodies: &[Body],
-        number: impl Fn(&Body, u32) -> u32 + Copy,
+        number: impl Fn(&Body, u32) -> u32 + Copy + Sync,
     ) -> RayIndex {
-        let count = bodies
+        // Every mesh held where it is for the build (nothing is copied or built to read it).
+        let held: Vec<Option<HeldMesh>> = bodies.iter().map(Body::hold_triangles).collect();
+        let meshes: Vec<Option<Triangles>> = held
             .iter()
-            .map(|body| {
-                body.with_triangles(|_, triangles| triangles.len())
-                    .unwrap_or(1)
-            })
-            .sum();
-        // The tree from the items' boxes; then the items in body order, put in the tree's leaf
-        // order in place. Each body's mesh is read where it is held, twice, so the build never
-        // holds the boxes and the items at once, nor two copies of the items.
-        let mut boxes = TreeItems::with_capacity(frame, count);
-        for_each_item(bodies, number, |item| {
-            let [a, b, c] = item.corners;
-            boxes.push(a.min(b).min(c), a.max(b).max(c));
-        });
+            .map(|h| h.as_ref().map(HeldMesh::triangles))
+            .collect();
+        let source = ItemSource::new(bodies, &meshes, number);
+        // The tree from the items' boxes; then the items gathered in the tree's leaf order, in
+        // parallel, each made again from its body's mesh: the build never holds the boxes and the
+        // items at once, nor two copies of the items.
+        let mut boxes = TreeItems::with_capacity(frame, source.count());
+        source.each_corners(|[a, b, c]| boxes.push(a.min(b).min(c), a.max(b).max(c)));
         let (tree, order) = boxes.build(LEAF_ITEMS);
-        let mut items = Vec::with_capacity(count);
-        for_each_item(bodies, number, |item| items.push(item));
-        put_in_order(&mut items, &order);
+        let items: Vec<RayItem> = order.par_iter().map(|&k| source.item(k as usize)).collect();
         RayIndex {
             tree,
             items: items.into_boxed_slice(),
@@ -98,76 +97,207 @@ impl RayIndex {
     }
 }
 
-/// Calls `each` on every item of `bodies`, in body order: a mesh's triangles in order (numbered by
-/// `number`), or the primitive whole (its box standing in for corners).
-fn for_each_item(
-    bodies: &[Body],
-    number: impl Fn(&Body, u32) -> u32,
-    mut each: impl FnMut(RayItem),
-) {
-    for (index, body) in bodies.iter().enumerate() {
-        let body_id = index as u32;
-        let mesh = body.with_triangles(|vertices, triangles| {
-            for (t, corners) in triangles.iter().enumerate() {
-                each(RayItem {
-                    body: body_id,
-                    triangle: number(body, t as u32),
-                    corners: corners.map(|v| vertices[v as usize]),
-                });
+/// The items of `bodies`, numbered in body order (a mesh's triangles in order, numbered by
+/// `number`; a primitive whole, its box standing in for corners), each made on demand from its
+/// body's mesh.
+struct ItemSource<'a, N> {
+    bodies: &'a [Body],
+    meshes: &'a [Option<Triangles<'a>>],
+    number: N,
+    /// Each item's body, by item number.
+    body_of: Vec<u32>,
+    /// Each body's first item.
+    first: Vec<u32>,
+}
+
+impl<'a, N: Fn(&Body, u32) -> u32> ItemSource<'a, N> {
+    fn new(bodies: &'a [Body], meshes: &'a [Option<Triangles<'a>>], number: N) -> Self {
+        let mut body_of = Vec::new();
+        let mut first = Vec::with_capacity(bodies.len());
+        for (index, mesh) in meshes.iter().enumerate() {
+            first.push(body_of.len() as u32);
+            let items = mesh.map_or(1, |(_, triangles)| triangles.len());
+            body_of.resize(body_of.len() + items, index as u32);
+        }
+        ItemSource {
+            bodies,
+            meshes,
+            number,
+            body_of,
+            first,
+        }
+    }
+
+    /// How many items there are.
+    fn count(&self) -> usize {
+        self.body_of.len()
+    }
+
+    /// Item `k`.
+    fn item(&self, k: usize) -> RayItem {
+        let index = self.body_of[k];
+        let body = &self.bodies[index as usize];
+        match self.meshes[index as usize] {
+            Some((vertices, triangles)) => {
+                let t = k as u32 - self.first[index as usize];
+                RayItem {
+                    body: index,
+                    triangle: (self.number)(body, t),
+                    corners: corners(vertices, triangles[t as usize]),
+                }
             }
-        });
-        if mesh.is_none() {
-            each(RayItem {
-                body: body_id,
+            None => RayItem {
+                body: index,
                 triangle: PRIMITIVE,
-                corners: [body.aabb.mins, body.aabb.maxs, body.aabb.mins],
-            });
+                corners: primitive_corners(body),
+            },
+        }
+    }
+
+    /// Calls `each` on every item's corners, in item order (body by body, without look-ups).
+    fn each_corners(&self, mut each: impl FnMut([DVec3; 3])) {
+        for (body, mesh) in self.bodies.iter().zip(self.meshes) {
+            match mesh {
+                Some((vertices, triangles)) => {
+                    for &triangle in *triangles {
+                        each(corners(vertices, triangle));
+                    }
+                }
+                None => each(primitive_corners(body)),
+            }
         }
     }
 }
 
-/// Rearranges `items` so that position `p` holds what was at `order[p]` (`order` is a permutation),
-/// in place: each cycle of the permutation is followed once, keeping one item aside.
-fn put_in_order<T: Copy>(items: &mut [T], order: &[u32]) {
-    let mut placed = vec![false; items.len()];
-    for start in 0..items.len() {
-        if placed[start] {
-            continue;
-        }
-        let aside = items[start];
-        let mut at = start;
-        loop {
-            placed[at] = true;
-            let from = order[at] as usize;
-            if from == start {
-                items[at] = aside;
-                break;
-            }
-            items[at] = items[from];
-            at = from;
-        }
-    }
+/// A triangle's corners.
+fn corners(vertices: &[DVec3], triangle: [u32; 3]) -> [DVec3; 3] {
+    triangle.map(|v| vertices[v as usize])
+}
+
+/// What stands in for a primitive body's corners: its box.
+fn primitive_corners(body: &Body) -> [DVec3; 3] {
+    [body.aabb.mins, body.aabb.maxs, body.aabb.mins]
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
 
-    #[test]
-    fn items_are_put_in_the_order_asked() {
-        // Against the plain way: a new array that reads each position's item from `order`.
-        let mut state = 7u64;
-        for len in [0usize, 1, 2, 5, 64, 1000] {
-            let mut order: Vec<u32> = (0..len as u32).collect();
-            for k in (1..len).rev() {
-                state = state.wrapping_mul(6364136223846793005).wrapping_add(1);
-                order.swap(k, (state >> 33) as usize % (k + 1));
-            }
-            let original: Vec<u64> = (0..len as u64).map(|x| x * 10 + 3).collect();
-            let expected: Vec<u64> = order.iter().map(|&i| original[i as usize]).collect();
-            let mut items = original.clone();
-            put_in_order(&mut items, &order);
-            assert_eq!(items, expected, "{len} items");
+    use crate::level::{Geometry, Level, LevelObject, Mesh, Primitive};
+    use crate::query::{ProbeShape, World};
+    use glam::DQuat;
+
+    /// A level of a small mesh (a fan of triangles) and a box.
+    fn fan_and_box() -> Level {
+        let mut vertices = vec![DVec3::ZERO];
+        vertices.extend((0..9).map(|k| {
+            let a = k as f64 * 0.7;
+            DVec3::new(a.cos() * 3.0, 0.1 * k as f64, a.sin() * 3.0)
+        }));
+        let triangles = (1..9).map(|k| [0, k, k + 1]).collect();
+        Level {
+            up: DVec3::Y,
+            objects: vec![
+                LevelObject {
+                    name: "fan".into(),
+                    tags: Vec::new(),
+                    geometry: Geometry::Mesh(Mesh {
+                        vertices,
+                        triangles,
+                        origin: Default::default(),
+                    }),
+                },
+                LevelObject {
+                    name: "crate".into(),
+                    tags: Vec::new(),
+                    geometry: Geometry::Primitive {
+                        shape: Primitive::Box {
+                            half_extents: DVec3::ONE,
+                        },
+                        translation: DVec3::new(5.0, 1.0, 0.0),
+                        rotation: DQuat::IDENTITY,
+                    },
+                },
+            ],
         }
+    }
+
+    /// The index's items as (body, triangle, corners), sorted.
+    fn items_of(world: &World) -> Vec<(u32, u32, [[u64; 3]; 3])> {
+        let mut items: Vec<_> = world
+            .ray_index()
+            .items
+            .iter()
+            .map(|i| {
+                let corners = i.corners.map(|c| c.to_array().map(f64::to_bits));
+                (i.body, i.triangle, corners)
+            })
+            .collect();
+        items.sort();
+        items
+    }
+
+    #[test]
+    fn every_triangle_and_primitive_is_one_item_with_its_corners() {
+        let level = fan_and_box();
+        let world = World::new(&level).unwrap();
+        let items = items_of(&world);
+        let Geometry::Mesh(mesh) = &level.objects[0].geometry else {
+            unreachable!()
+        };
+        // The plain way: every triangle of the mesh, numbered in order, then the box whole.
+        let mut expected: Vec<_> = mesh
+            .triangles
+            .iter()
+            .enumerate()
+            .map(|(t, tri)| {
+                let corners = tri.map(|v| mesh.vertices[v as usize].to_array().map(f64::to_bits));
+                (0, t as u32, corners)
+            })
+            .collect();
+        let boxed = world
+            .ray_index()
+            .items
+            .iter()
+            .find(|i| i.body == 1)
+            .unwrap();
+        assert_eq!(boxed.triangle(), None);
+        expected.push((
+            1,
+            PRIMITIVE,
+            boxed.corners.map(|c| c.to_array().map(f64::to_bits)),
+        ));
+        expected.sort();
+        assert_eq!(items, expected);
+    }
+
+    #[test]
+    fn a_mesh_built_before_the_index_gives_the_same_items() {
+        let level = fan_and_box();
+        let pending = World::new(&level).unwrap();
+        let built = World::new(&level).unwrap();
+        // A sweep builds the meshes it meets; rays never do.
+        let ball = ProbeShape::new(
+            &crate::level::ShapeSpec::Sphere { radius: 0.2 },
+            DQuat::IDENTITY,
+        )
+        .unwrap();
+        let path = [DVec3::new(0.5, 3.0, 0.5), DVec3::new(0.5, -3.0, 0.5)];
+        assert!(
+            built
+                .everything()
+                .sweep_first(&ball, &path)
+                .unwrap()
+                .is_some()
+        );
+        assert_eq!(items_of(&built), items_of(&pending));
+        let in_leaf_order = |w: &World| -> Vec<(u32, u32)> {
+            w.ray_index()
+                .items
+                .iter()
+                .map(|i| (i.body, i.triangle))
+                .collect()
+        };
+        assert_eq!(in_leaf_order(&built), in_leaf_order(&pending));
     }
 }
