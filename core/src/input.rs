@@ -13,6 +13,8 @@
 //! as written; special files are refused wherever they are.
 
 use std::io::Read;
+
+use sha2::{Digest, Sha256};
 use std::path::{Component, Path, PathBuf};
 
 use crate::error::{Error, InputError};
@@ -64,6 +66,15 @@ pub fn read_input(path: &Path) -> Result<Vec<u8>, InputError> {
         return Err(InputError::file(path, "the file is empty"));
     }
     Ok(bytes)
+}
+
+/// `sha256:<hex>` of a file's bytes: the `probes_digest` of a probe-set file as read.
+pub fn text_digest(bytes: &[u8]) -> String {
+    let hash = Sha256::digest(bytes);
+    format!(
+        "sha256:{}",
+        hash.iter().map(|b| format!("{b:02x}")).collect::<String>()
+    )
 }
 
 fn too_large(path: &Path) -> InputError {

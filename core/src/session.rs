@@ -17,9 +17,7 @@ use std::path::{Path, PathBuf};
 use std::borrow::Cow;
 use std::ops::Range;
 
-use crate::check::{
-    ProbeResult, Runner, Shard, Summary, assign, expand_rules, expected_cost, text_digest,
-};
+use crate::check::{ProbeResult, Runner, Shard, Summary, assign, expand_rules, expected_cost};
 use crate::error::{Diagnostic, Error, InputError, Warning};
 use crate::input::{PathPolicy, resolve_named};
 use crate::level::{Level, LintSettings, LoadedLevel, level_digest, load_level};
@@ -215,10 +213,9 @@ pub fn open(path: &Path, options: &OpenOptions) -> Result<Opened, Error> {
             };
             open_level(&level_path, options)
         })?;
-        let digest = text_digest(text.text().as_bytes());
         (
             Some(path.to_path_buf()),
-            Some(digest),
+            Some(text.digest().to_string()),
             Source::File(text),
             level?,
         )

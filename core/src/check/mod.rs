@@ -22,6 +22,7 @@ mod verdict;
 mod volumes;
 mod walk;
 
+pub use crate::input::text_digest;
 pub use answer::{answer_probe, answer_probe_watched};
 pub use answer_level::spot_list;
 pub use compare::{Aspect, Comparer, Comparison, DEFAULT_TOLERANCE, ProbeChange, changes, compare};
@@ -36,7 +37,7 @@ pub use records::{
 };
 pub use results_file::{
     PARTIAL_KIND, PartHead, ResultsFile, ResultsHead, ResultsWriter, load_results, parse_results,
-    probes_digest, text_digest,
+    probes_digest,
 };
 pub use rules::expand_rules;
 pub use run::{Runner, run_probes};

@@ -7,12 +7,12 @@ use std::path::{Path, PathBuf};
 use serde::Deserialize;
 use serde_json::Value;
 use serde_json::value::RawValue;
-use sha2::{Digest, Sha256};
 
 use super::records::{ClearanceRecord, Hits, ProbeResult, Summary, Verdict, VolumeRecord};
 use super::shard::Shard;
 use crate::atomic::{AtomicFile, Spill};
 use crate::error::{InputError, check_header};
+use crate::input::text_digest;
 use crate::probe::{ProbeKind, ProbeSet, probe_set_to_json};
 
 /// A results file: what was checked, on which geometry, and every probe's result.
@@ -217,15 +217,6 @@ impl ResultsWriter {
         file.write_all(tail_text(self.total).as_bytes())?;
         file.commit()
     }
-}
-
-/// `sha256:<hex>` of a file's bytes: the `probes_digest` of a probe-set file as read.
-pub fn text_digest(bytes: &[u8]) -> String {
-    let hash = Sha256::digest(bytes);
-    format!(
-        "sha256:{}",
-        hash.iter().map(|b| format!("{b:02x}")).collect::<String>()
-    )
 }
 
 /// The digest of a probe set as this program saves it (equal to [`text_digest`] of the saved file).

@@ -12,7 +12,7 @@ use super::parse::parse_probe;
 use super::plain_read::SetFields;
 use super::rules::{Rule, parse_rule};
 use crate::error::{InputError, check_header};
-use crate::input::{MAX_PROBES, read_input};
+use crate::input::{MAX_PROBES, read_input, text_digest};
 
 /// Probes parsed at a time while checking a file: enough to keep every core busy, few enough that
 /// what a batch holds stays small. Ours.
@@ -28,6 +28,8 @@ pub struct ProbeText {
     spans: Vec<(usize, usize)>,
     /// The length of the longest id, in characters.
     longest_id: usize,
+    /// `sha256:` of the file's bytes as read ([`text_digest`]).
+    digest: String,
     /// The rules, parsed.
     rules: Vec<Rule>,
     /// The `$schema` the file names.
@@ -103,14 +105,21 @@ impl ProbeText {
             level,
             spans,
             longest_id: 0,
+            digest: String::new(),
             rules,
         };
         Ok((unchecked, rule_spans))
     }
 
-    /// This text once every probe is checked (`rule_spans`: where each rule lies).
+    /// This text once every probe is checked (`rule_spans`: where each rule lies), its digest
+    /// taken meanwhile on the current thread pool.
     fn checked(mut self, rule_spans: &[(usize, usize)]) -> Result<ProbeText, InputError> {
-        self.longest_id = self.check_every_probe(rule_spans)?;
+        let (longest, digest) = rayon::join(
+            || self.check_every_probe(rule_spans),
+            || text_digest(self.text.as_bytes()),
+        );
+        self.longest_id = longest?;
+        self.digest = digest;
         Ok(self)
     }
 
@@ -209,6 +218,11 @@ impl ProbeText {
     /// The file's text as read.
     pub fn text(&self) -> &str {
         &self.text
+    }
+
+    /// `sha256:` of the file's bytes as read: a results file's `probes_digest`.
+    pub fn digest(&self) -> &str {
+        &self.digest
     }
 }
 
