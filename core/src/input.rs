@@ -13,9 +13,9 @@
 //! as written; special files are refused wherever they are.
 
 use std::io::Read;
+use std::path::{Component, Path, PathBuf};
 
 use sha2::{Digest, Sha256};
-use std::path::{Component, Path, PathBuf};
 
 use crate::error::{Error, InputError};
 
