@@ -2,7 +2,6 @@
 //! holds (for `diff`: no changes; for `lint`: nothing found), 1 an expectation fails or a probe errs
 //! (for `diff`: changes found; for `lint`: findings), 2 bad usage or input that cannot be read.
 
-mod allocator;
 mod cli;
 
 use std::path::PathBuf;
@@ -101,7 +100,6 @@ fn demo_scenes() -> PathBuf {
 const EXIT_INTERRUPTED: i32 = 130;
 
 fn main() -> ExitCode {
-    allocator::keep_freed_memory();
     // An interrupted run leaves no temporary files behind (the files it replaces stay as they were).
     let _ = ctrlc::set_handler(|| {
         plumbline_core::atomic::remove_unfinished();
