@@ -65,7 +65,10 @@ impl RayIndex {
         let mut boxes = TreeItems::with_capacity(frame, source.count());
         source.each_corners(|[a, b, c]| boxes.push(a.min(b).min(c), a.max(b).max(c)));
         let (tree, order) = boxes.build(LEAF_ITEMS);
-        let items: Vec<RayItem> = order.par_iter().map(|&k| source.item(k as usize)).collect();
+        let items: Vec<RayItem> = order
+            .par_iter()
+            .map_init(|| 0, |guess, &k| source.item(k, guess))
+            .collect();
         RayIndex {
             tree,
             items: items.into_boxed_slice(),
@@ -104,42 +107,49 @@ struct ItemSource<'a, N> {
     bodies: &'a [Body],
     meshes: &'a [Option<Triangles<'a>>],
     number: N,
-    /// Each item's body, by item number.
-    body_of: Vec<u32>,
-    /// Each body's first item.
+    /// Each body's first item, then the number of items.
     first: Vec<u32>,
 }
 
 impl<'a, N: Fn(&Body, u32) -> u32> ItemSource<'a, N> {
     fn new(bodies: &'a [Body], meshes: &'a [Option<Triangles<'a>>], number: N) -> Self {
-        let mut body_of = Vec::new();
-        let mut first = Vec::with_capacity(bodies.len());
-        for (index, mesh) in meshes.iter().enumerate() {
-            first.push(body_of.len() as u32);
-            let items = mesh.map_or(1, |(_, triangles)| triangles.len());
-            body_of.resize(body_of.len() + items, index as u32);
+        let mut first = Vec::with_capacity(bodies.len() + 1);
+        let mut count = 0;
+        for mesh in meshes {
+            first.push(count as u32);
+            count += mesh.map_or(1, |(_, triangles)| triangles.len());
         }
+        first.push(count as u32);
         ItemSource {
             bodies,
             meshes,
             number,
-            body_of,
             first,
         }
     }
 
     /// How many items there are.
     fn count(&self) -> usize {
-        self.body_of.len()
+        self.first.last().map_or(0, |&n| n as usize)
     }
 
-    /// Item `k`.
-    fn item(&self, k: usize) -> RayItem {
-        let index = self.body_of[k];
+    /// The body of item `k`: `guess` when it holds it (items in leaf order mostly follow each other
+    /// within a body), else found by bisection; `guess` is left at the answer.
+    fn body_of(&self, k: u32, guess: &mut usize) -> u32 {
+        let held = |b: usize| self.first[b] <= k && k < self.first[b + 1];
+        if !held(*guess) {
+            *guess = self.first.partition_point(|&f| f <= k) - 1;
+        }
+        *guess as u32
+    }
+
+    /// Item `k` (`guess`: see [`ItemSource::body_of`]).
+    fn item(&self, k: u32, guess: &mut usize) -> RayItem {
+        let index = self.body_of(k, guess);
         let body = &self.bodies[index as usize];
         match self.meshes[index as usize] {
             Some((vertices, triangles)) => {
-                let t = k as u32 - self.first[index as usize];
+                let t = k - self.first[index as usize];
                 RayItem {
                     body: index,
                     triangle: (self.number)(body, t),
@@ -269,6 +279,24 @@ mod tests {
         ));
         expected.sort();
         assert_eq!(items, expected);
+    }
+
+    #[test]
+    fn each_item_is_found_in_its_body_whatever_the_guess() {
+        // Bodies of 3, 1 (a primitive) and 5 items; against the plain way: counting through them.
+        let vertices = [DVec3::ZERO; 3];
+        let (three, five) = ([[0, 1, 2]; 3], [[0, 1, 2]; 5]);
+        let meshes = [Some((&vertices[..], &three[..])), None, Some((&vertices[..], &five[..]))];
+        let source = ItemSource::new(&[], &meshes, |_: &Body, t: u32| t);
+        assert_eq!(source.count(), 9);
+        let plain = [0, 0, 0, 1, 2, 2, 2, 2, 2];
+        for (k, &body) in plain.iter().enumerate() {
+            for start in 0..3 {
+                let mut guess = start;
+                assert_eq!(source.body_of(k as u32, &mut guess), body, "item {k} from {start}");
+                assert_eq!(guess, body as usize);
+            }
+        }
     }
 
     #[test]
