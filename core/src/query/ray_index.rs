@@ -286,14 +286,22 @@ mod tests {
         // Bodies of 3, 1 (a primitive) and 5 items; against the plain way: counting through them.
         let vertices = [DVec3::ZERO; 3];
         let (three, five) = ([[0, 1, 2]; 3], [[0, 1, 2]; 5]);
-        let meshes = [Some((&vertices[..], &three[..])), None, Some((&vertices[..], &five[..]))];
+        let meshes = [
+            Some((&vertices[..], &three[..])),
+            None,
+            Some((&vertices[..], &five[..])),
+        ];
         let source = ItemSource::new(&[], &meshes, |_: &Body, t: u32| t);
         assert_eq!(source.count(), 9);
         let plain = [0, 0, 0, 1, 2, 2, 2, 2, 2];
         for (k, &body) in plain.iter().enumerate() {
             for start in 0..3 {
                 let mut guess = start;
-                assert_eq!(source.body_of(k as u32, &mut guess), body, "item {k} from {start}");
+                assert_eq!(
+                    source.body_of(k as u32, &mut guess),
+                    body,
+                    "item {k} from {start}"
+                );
                 assert_eq!(guess, body as usize);
             }
         }
