@@ -68,14 +68,14 @@ impl<'a> Scanner<'a> {
     /// A number as RFC 8259 §6 writes it, when it is a finite f64.
     fn number(&mut self) -> Option<f64> {
         self.skip_space();
-        let (length, exact) = scan_number(&self.bytes()[self.at..])?;
-        let text = &self.text[self.at..self.at + length];
+        let start = self.at;
+        let (length, exact) = scan_number(&self.bytes()[start..])?;
         self.at += length;
         // The standard library's parse is correctly rounded, as serde_json's is with
         // `float_roundtrip`; out of range is serde_json's error, so it is not read here.
         let x = match exact {
             Some(x) => x,
-            None => text.parse().ok()?,
+            None => self.text[start..self.at].parse().ok()?,
         };
         x.is_finite().then_some(x)
     }
