@@ -6,7 +6,7 @@
 //! first time a query needs it: rays walk the world's ray index instead, so a check of rays alone
 //! never builds one.
 
-use std::sync::{Arc, Mutex, MutexGuard, OnceLock, PoisonError};
+use std::sync::{Arc, Mutex, OnceLock, PoisonError};
 
 use glam::DVec3;
 use parry3d_f64::bounding_volume::Aabb;
@@ -104,9 +104,8 @@ impl Body {
     }
 
     /// This body's mesh, when it is one, held where it is for reading (built or not; nothing is
-    /// built to read it). While it is held a query that needs the mesh built waits. Every body
-    /// owns its mesh (`Body` is not `Clone`), so holding each body of a world once, all at the
-    /// same time, never locks one mesh twice.
+    /// built or copied to read it). Nothing is locked while it is held: a query that builds the
+    /// mesh meanwhile builds it from a copy.
     pub(crate) fn hold_triangles(&self) -> Option<HeldMesh<'_>> {
         self.shape.hold_triangles()
     }
@@ -139,11 +138,12 @@ impl Body {
 /// A mesh's vertices, and its triangles as indices into them.
 type MeshData = (Box<[DVec3]>, Box<[[u32; 3]]>);
 
-/// A body's mesh held for reading: its triangles as loaded (locked, so no query builds the mesh
-/// meanwhile), or the built mesh's.
+/// A body's mesh held for reading: its triangles as loaded (shared, so that holding them locks
+/// nothing: a lock held across parallel work could be wanted by a job the holding thread runs
+/// while it waits), or the built mesh's.
 pub(crate) enum HeldMesh<'a> {
-    /// Not built yet: the pending triangles, locked.
-    Pending(MutexGuard<'a, Option<MeshData>>),
+    /// Not built yet: the pending triangles.
+    Pending(Arc<MeshData>),
     /// Built.
     Built(&'a TriMesh),
 }
@@ -152,12 +152,7 @@ impl HeldMesh<'_> {
     /// The mesh's vertices and its triangles as indices into them.
     pub fn triangles(&self) -> (&[DVec3], &[[u32; 3]]) {
         match self {
-            HeldMesh::Pending(pending) => {
-                let (vertices, triangles) = pending
-                    .as_ref()
-                    .expect("held only while its triangles are pending");
-                (vertices, triangles)
-            }
+            HeldMesh::Pending(pending) => (&pending.0, &pending.1),
             HeldMesh::Built(mesh) => (mesh.vertices(), mesh.indices()),
         }
     }
@@ -172,7 +167,7 @@ enum LazyShape {
     /// A triangle mesh.
     Mesh {
         /// Its vertices and triangles until it is built (then they are the `TriMesh`'s).
-        pending: Mutex<Option<MeshData>>,
+        pending: Mutex<Option<Arc<MeshData>>>,
         /// The flags it is built with.
         flags: TriMeshFlags,
         /// The least box around its triangles.
@@ -200,7 +195,7 @@ impl LazyShape {
             }
         }
         Ok(LazyShape::Mesh {
-            pending: Mutex::new(Some((vertices.into(), triangles.into()))),
+            pending: Mutex::new(Some(Arc::new((vertices.into(), triangles.into())))),
             flags,
             aabb,
             built: OnceLock::new(),
@@ -224,11 +219,13 @@ impl LazyShape {
                 built,
                 ..
             } => built.get_or_init(|| {
-                let (vertices, triangles) = pending
+                let pending = pending
                     .lock()
                     .unwrap_or_else(PoisonError::into_inner)
                     .take()
                     .expect("a mesh's triangles are pending until it is built");
+                // Moved into the mesh, or copied when they are held for reading meanwhile.
+                let (vertices, triangles) = Arc::unwrap_or_clone(pending);
                 let mesh = TriMesh::with_flags(vertices.into_vec(), triangles.into_vec(), *flags)
                     .expect("a mesh has triangles (checked when it was made)");
                 SharedShape::new(mesh)
@@ -251,8 +248,8 @@ impl LazyShape {
         };
         if built.get().is_none() {
             let pending = pending.lock().unwrap_or_else(PoisonError::into_inner);
-            if pending.is_some() {
-                return Some(HeldMesh::Pending(pending));
+            if let Some(triangles) = pending.as_ref() {
+                return Some(HeldMesh::Pending(Arc::clone(triangles)));
             }
         }
         // Built, or being built on another thread (which `get` waits for).

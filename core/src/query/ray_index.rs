@@ -308,6 +308,56 @@ mod tests {
     }
 
     #[test]
+    fn rays_and_sweeps_answered_together_agree_with_one_at_a_time() {
+        // The first ray builds the index while sweeps on the other threads build the meshes it
+        // reads (from a copy then): every answer as a fresh world gives it alone.
+        let mut level = fan_and_box();
+        let fan = level.objects[0].clone();
+        for k in 1..24 {
+            let mut copy = fan.clone();
+            copy.name = format!("fan-{k}");
+            if let Geometry::Mesh(mesh) = &mut copy.geometry {
+                mesh.vertices
+                    .iter_mut()
+                    .for_each(|v| *v += DVec3::new(7.0 * k as f64, 0.0, 0.0));
+            }
+            level.objects.push(copy);
+        }
+        let ball = ProbeShape::new(
+            &crate::level::ShapeSpec::Sphere { radius: 0.2 },
+            DQuat::IDENTITY,
+        )
+        .unwrap();
+        let answer = |world: &World, task: usize| -> Option<u64> {
+            let x = 7.0 * (task % 24) as f64 + 0.5;
+            let (from, to) = (DVec3::new(x, 3.0, 0.5), DVec3::new(x, -3.0, 0.5));
+            let view = world.everything();
+            let distance = if task.is_multiple_of(2) {
+                view.ray_first(from, to).unwrap().map(|h| h.distance)
+            } else {
+                view.sweep_first(&ball, &[from, to])
+                    .unwrap()
+                    .map(|h| h.distance)
+            };
+            distance.map(f64::to_bits)
+        };
+        let expected: Vec<_> = (0..96)
+            .map(|t| answer(&World::new(&level).unwrap(), t))
+            .collect();
+        assert!(expected.iter().all(Option::is_some));
+        let pool = rayon::ThreadPoolBuilder::new()
+            .num_threads(4)
+            .build()
+            .unwrap();
+        for _ in 0..5 {
+            let world = World::new(&level).unwrap();
+            let together: Vec<_> =
+                pool.install(|| (0..96).into_par_iter().map(|t| answer(&world, t)).collect());
+            assert_eq!(together, expected);
+        }
+    }
+
+    #[test]
     fn a_mesh_built_before_the_index_gives_the_same_items() {
         let level = fan_and_box();
         let pending = World::new(&level).unwrap();
