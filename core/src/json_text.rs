@@ -74,13 +74,13 @@ pub fn to_pretty(value: &Value) -> String {
 
 /// Writes a value laid out as [`to_pretty`] does, as if it stood `depth` levels deep (no newline).
 pub fn write_pretty(value: &Json, depth: usize, out: &mut String) {
-    if let Json::Null | Json::Bool(_) | Json::Num(_) | Json::Str(_) = value {
-        // A scalar stands on one line however long it is.
-        write_inline(value, out);
-        return;
-    }
     let width = INLINE_WIDTH.saturating_sub(depth * 2);
-    if inline_at_least(value, width, 2) <= width {
+    // A scalar stands on one line however long it is (the last arm below).
+    let scalar = matches!(
+        value,
+        Json::Null | Json::Bool(_) | Json::Num(_) | Json::Str(_)
+    );
+    if !scalar && inline_at_least(value, width, 2) <= width {
         // Written on one line, then taken back if it runs past the width: each number is
         // formatted once for values that fit, and at most a line's worth is wasted for those
         // that do not.
@@ -90,30 +90,15 @@ pub fn write_pretty(value: &Json, depth: usize, out: &mut String) {
         }
         out.truncate(start);
     }
-    let pad = indent(depth + 1);
     match value {
-        Json::Arr(items) => {
-            out.push_str("[\n");
-            for (k, item) in items.iter().enumerate() {
-                out.push_str(&pad);
-                write_pretty(item, depth + 1, out);
-                out.push_str(if k + 1 < items.len() { ",\n" } else { "\n" });
-            }
-            out.push_str(&indent(depth));
-            out.push(']');
-        }
-        Json::Obj(fields) => {
-            out.push_str("{\n");
-            for (k, (key, item)) in fields.iter().enumerate() {
-                out.push_str(&pad);
-                write_string(key, out);
-                out.push_str(": ");
-                write_pretty(item, depth + 1, out);
-                out.push_str(if k + 1 < fields.len() { ",\n" } else { "\n" });
-            }
-            out.push_str(&indent(depth));
-            out.push('}');
-        }
+        Json::Arr(items) => write_lines(('[', ']'), items, depth, out, |item, out| {
+            write_pretty(item, depth + 1, out)
+        }),
+        Json::Obj(fields) => write_lines(('{', '}'), fields, depth, out, |(key, item), out| {
+            write_string(key, out);
+            out.push_str(": ");
+            write_pretty(item, depth + 1, out);
+        }),
         Json::Vec3(v) => write_pretty(&Json::Arr(v.map(Json::float).to_vec()), depth, out),
         Json::Strs(items) => {
             let items = items.iter().map(|s| Json::Str(s)).collect();
@@ -121,6 +106,27 @@ pub fn write_pretty(value: &Json, depth: usize, out: &mut String) {
         }
         scalar => write_inline(scalar, out),
     }
+}
+
+/// Writes `items` between `open` and `close`, each by `item` on its own line one level deeper
+/// than `depth`.
+fn write_lines<T>(
+    (open, close): (char, char),
+    items: &[T],
+    depth: usize,
+    out: &mut String,
+    mut item: impl FnMut(&T, &mut String),
+) {
+    let pad = indent(depth + 1);
+    out.push(open);
+    out.push('\n');
+    for (k, each) in items.iter().enumerate() {
+        out.push_str(&pad);
+        item(each, out);
+        out.push_str(if k + 1 < items.len() { ",\n" } else { "\n" });
+    }
+    out.push_str(&indent(depth));
+    out.push(close);
 }
 
 /// Writes a value on one line, with a space after each `,` and `:`.
@@ -131,59 +137,62 @@ fn write_inline(value: &Json, out: &mut String) {
 /// Writes a value as [`write_inline`] does while `out` stays at most `limit` bytes long; returns
 /// false (with `out` part written) as soon as it is longer.
 fn write_inline_within(value: &Json, out: &mut String, limit: usize) -> bool {
-    match value {
-        Json::Arr(items) => {
-            out.push('[');
-            for (k, item) in items.iter().enumerate() {
-                if k > 0 {
-                    out.push_str(", ");
-                }
-                if !write_inline_within(item, out, limit) {
-                    return false;
-                }
-            }
-            out.push(']');
+    let complete = match value {
+        Json::Arr(items) => write_list(('[', ']'), items, out, |item, out| {
+            write_inline_within(item, out, limit)
+        }),
+        Json::Obj(fields) => write_list(('{', '}'), fields, out, |(key, item), out| {
+            write_string(key, out);
+            out.push_str(": ");
+            write_inline_within(item, out, limit)
+        }),
+        Json::Vec3(v) => write_list(('[', ']'), v, out, |x, out| {
+            write_float(*x, out);
+            true
+        }),
+        Json::Strs(items) => write_list(('[', ']'), items, out, |item, out| {
+            write_string(item, out);
+            true
+        }),
+        Json::Str(s) => {
+            write_string(s, out);
+            true
         }
-        Json::Obj(fields) => {
-            out.push('{');
-            for (k, (key, item)) in fields.iter().enumerate() {
-                if k > 0 {
-                    out.push_str(", ");
-                }
-                write_string(key, out);
-                out.push_str(": ");
-                if !write_inline_within(item, out, limit) {
-                    return false;
-                }
-            }
-            out.push('}');
+        Json::Num(n) => {
+            write_number(n, out);
+            true
         }
-        Json::Vec3(v) => {
-            out.push('[');
-            for (k, x) in v.iter().enumerate() {
-                if k > 0 {
-                    out.push_str(", ");
-                }
-                write_float(*x, out);
-            }
-            out.push(']');
+        Json::Bool(b) => {
+            out.push_str(if *b { "true" } else { "false" });
+            true
         }
-        Json::Strs(items) => {
-            out.push('[');
-            for (k, item) in items.iter().enumerate() {
-                if k > 0 {
-                    out.push_str(", ");
-                }
-                write_string(item, out);
-            }
-            out.push(']');
+        Json::Null => {
+            out.push_str("null");
+            true
         }
-        Json::Str(s) => write_string(s, out),
-        Json::Num(n) => write_number(n, out),
-        Json::Bool(b) => out.push_str(if *b { "true" } else { "false" }),
-        Json::Null => out.push_str("null"),
+    };
+    complete && out.len() <= limit
+}
+
+/// Writes `items` between `open` and `close` on one line, `, ` between them, each by `item`;
+/// false as soon as `item` is (the line ran past its limit), with `out` part written.
+fn write_list<T>(
+    (open, close): (char, char),
+    items: &[T],
+    out: &mut String,
+    mut item: impl FnMut(&T, &mut String) -> bool,
+) -> bool {
+    out.push(open);
+    for (k, each) in items.iter().enumerate() {
+        if k > 0 {
+            out.push_str(", ");
+        }
+        if !item(each, out) {
+            return false;
+        }
     }
-    out.len() <= limit
+    out.push(close);
+    true
 }
 
 /// A float as [`Json::float`] and [`write_number`] write it: `null` when not finite.

@@ -50,7 +50,7 @@ impl RayIndex {
     pub fn new(
         frame: RayFrame,
         bodies: &[Body],
-        number: impl Fn(&Body, u32) -> u32 + Copy + Sync,
+        number: impl Fn(&Body, u32) -> u32 + Sync,
     ) -> RayIndex {
         // Every mesh held where it is for the build (nothing is copied or built to read it).
         let held: Vec<Option<HeldMesh>> = bodies.iter().map(Body::hold_triangles).collect();
