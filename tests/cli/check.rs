@@ -397,6 +397,76 @@ fn bad_probe_files_exit_2_with_a_clear_message() {
     );
 }
 
+/// A set larger than the part checked whole up front: a mistake past that part still exits 2
+/// naming its place, and no results file is written (one from an earlier run is left as it was);
+/// a repeated id past it is found before anything is answered.
+#[test]
+fn a_mistake_deep_in_a_large_set_stops_the_check_and_writes_nothing() {
+    let dir = fixture_copy();
+    let count = plumbline_core::probe::CHECKED_WHOLE + 100;
+    let ray = |k: usize, from: &str| {
+        format!(r#"    {{"id": "r{k}", "kind": "ray", "from": {from}, "to": [1, 0, 0]}}"#)
+    };
+    let set = |bad: usize, id_of_bad: Option<usize>| {
+        let probes: Vec<String> = (0..count)
+            .map(|k| match (k == bad, id_of_bad) {
+                (true, None) => ray(k, r#"[0, 0, "x"]"#),
+                (true, Some(same)) => ray(same, "[0, 0, 0]"),
+                _ => ray(k, "[0, 0, 0]"),
+            })
+            .collect();
+        format!(
+            "{{\n  \"plumbline\": \"probes\", \"version\": 1, \"level\": \"lane.level.json\",\n  \"probes\": [\n{}\n  ]\n}}\n",
+            probes.join(",\n")
+        )
+    };
+    let results = out(dir.path(), "big.results.json");
+    std::fs::write(&results, "earlier results").unwrap();
+    let bad = count - 3;
+    std::fs::write(dir.path().join("big.probes.json"), set(bad, None)).unwrap();
+    let args = [
+        "check",
+        "big.probes.json",
+        "--out",
+        "big.results.json",
+        "--brief",
+    ];
+    let run = plumbline(dir.path(), &args);
+    let stderr = text(&run.stderr);
+    assert_eq!(run.status.code(), Some(2), "{stderr}");
+    // The probe's line in the file: the set's three lines of top, then one probe a line.
+    let place = format!("big.probes.json: line {}, column 53", bad + 4);
+    assert!(
+        stderr.contains(&place) && stderr.contains("invalid type"),
+        "{stderr}"
+    );
+    assert_eq!(
+        std::fs::read_to_string(&results).unwrap(),
+        "earlier results"
+    );
+
+    std::fs::write(dir.path().join("big.probes.json"), set(bad, Some(5))).unwrap();
+    let run = plumbline(dir.path(), &args);
+    let stderr = text(&run.stderr);
+    assert_eq!(run.status.code(), Some(2), "{stderr}");
+    assert!(stderr.contains("\"r5\" is used twice"), "{stderr}");
+    assert!(
+        text(&run.stdout).is_empty(),
+        "nothing answered before the error"
+    );
+    assert_eq!(
+        std::fs::read_to_string(&results).unwrap(),
+        "earlier results"
+    );
+
+    // The same set without the mistake is answered whole.
+    std::fs::write(dir.path().join("big.probes.json"), set(count, None)).unwrap();
+    let run = plumbline(dir.path(), &args);
+    assert_eq!(run.status.code(), Some(0), "{}", text(&run.stderr));
+    let written = plumbline_core::check::load_results(&results).unwrap();
+    assert_eq!(written.results.len(), count);
+}
+
 /// `check --watch` re-runs when the level changes on disk and prints what changed since the last run.
 #[test]
 fn watch_reruns_on_a_level_edit() {

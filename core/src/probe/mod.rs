@@ -1,8 +1,9 @@
 //! Probe definitions, the probe-set file, and expectations (SPEC §2).
 //!
-//! Architecture invariant: a [`ProbeSet`] (or a [`ProbeText`]) that leaves this module is valid —
-//! unique ids, known kinds, only the fields each kind takes, finite numbers, usable shapes — and
-//! saving then loading it gives the same value.
+//! Architecture invariant: a [`ProbeSet`] that leaves this module is valid — unique ids, known
+//! kinds, only the fields each kind takes, finite numbers, usable shapes — and saving then loading
+//! it gives the same value. A [`ProbeText`] has unique ids, and every probe taken from it is
+//! checked as it is parsed.
 
 mod model;
 mod parse;
@@ -18,5 +19,5 @@ pub use model::{
     TARGET_REACH, Turns,
 };
 pub use rules::{Anchor, FromRule, Landmark, REST_TOLERANCE, Rule, Template, parse_rules};
-pub use text::{ProbeText, load_probe_set, parse_probe_set, validate_probe};
+pub use text::{CHECKED_WHOLE, ProbeText, load_probe_set, parse_probe_set, validate_probe};
 pub use write::{probe_set_to_json, rules_to_json};

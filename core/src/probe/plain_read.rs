@@ -549,6 +549,24 @@ pub(super) fn plain_string(text: &str) -> Option<&str> {
     s.at_end().then_some(found)
 }
 
+/// A probe's id, found in its text (one JSON object) without reading anything else: the first
+/// `"id"` member's plain string, other members' values stepped over. `None` when there is no such
+/// member before the object closes or the text is not plain there (the caller parses the probe).
+/// Whether the probe is otherwise valid is not looked at.
+pub(super) fn plain_id(text: &str) -> Option<&str> {
+    let mut s = Scanner::new(text);
+    s.take(b'{')?;
+    loop {
+        let key = s.string()?;
+        s.take(b':')?;
+        if key == "id" {
+            return s.string();
+        }
+        s.value_text()?;
+        s.take(b',')?;
+    }
+}
+
 /// An array of values, each kept as its text.
 fn raw_texts<'de, D: serde::Deserializer<'de>>(d: D) -> Result<Vec<&'de str>, D::Error> {
     let raw = Vec::<&'de RawValue>::deserialize(d)?;
@@ -704,6 +722,10 @@ mod tests {
             }
             // Edits that break UTF-8 cannot reach the reader (the file is checked as text first).
             let Ok(text) = String::from_utf8(bytes) else { return Ok(()) };
+            // The id found alone is the one a whole reading finds, whenever that reading succeeds.
+            if let (Some(id), Ok(reference)) = (plain_id(&text), from_object_str::<ProbeFields>(&text)) {
+                prop_assert_eq!(id, reference.id.as_str(), "{}", text);
+            }
             if let Some(plain) = ProbeFields::read_plain(&text) {
                 let reference = from_object_str::<ProbeFields>(&text);
                 prop_assert!(reference.is_ok(), "read {:?}, serde_json refused it: {:?}", text, reference.err());
@@ -756,6 +778,32 @@ mod tests {
         for probe in plain.probes {
             let fields = ProbeFields::read_plain(probe).expect("a plain probe");
             assert!(same(&fields, &from_object_str(probe).unwrap()), "{probe}");
+        }
+    }
+
+    #[test]
+    fn a_probe_id_is_found_wherever_it_stands() {
+        let set = demo_set();
+        for probe in SetFields::read_plain(&set).unwrap().probes {
+            let fields: ProbeFields = from_object_str(probe).unwrap();
+            assert_eq!(plain_id(probe), Some(fields.id.as_str()), "{probe}");
+            // The same probe with its id last, after every nested value.
+            let serde_json::Value::Object(members) = serde_json::from_str(probe).unwrap() else {
+                panic!("a probe is an object");
+            };
+            let (id, rest): (Vec<_>, Vec<_>) = members.into_iter().partition(|(k, _)| k == "id");
+            let last: serde_json::Map<_, _> = rest.into_iter().chain(id).collect();
+            let text = serde_json::to_string_pretty(&last).unwrap();
+            assert_eq!(plain_id(&text), Some(fields.id.as_str()), "{text}");
+        }
+        // Escaped, missing or not a string: left to the whole reading.
+        for text in [
+            r#"{"\u0069d": "a"}"#,
+            r#"{"kind": "ray"}"#,
+            r#"{"id": 7}"#,
+            r#"{"id": "a\"b"}"#,
+        ] {
+            assert_eq!(plain_id(text), None, "{text}");
         }
     }
 

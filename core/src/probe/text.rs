@@ -1,24 +1,30 @@
-//! A probe-set file (`*.probes.json`, SPEC §2) read and checked whole, its probes parsed again when
-//! they are needed, a chunk at a time: a check of a million probes never holds a million parsed
-//! probes (about 400 bytes each), only the file's text (about 150 bytes a probe) and where each
-//! probe lies in it.
+//! A probe-set file (`*.probes.json`, SPEC §2) read and checked (its ids, and its first probes
+//! whole: [`CHECKED_WHOLE`]), its probes parsed when they are needed, a chunk at a time: a check of
+//! a million probes never holds a million parsed probes (about 400 bytes each), only the file's
+//! text (about 150 bytes a probe) and where each probe lies in it.
 
+use std::borrow::Cow;
 use std::collections::HashSet;
 use std::ops::Range;
 use std::path::{Path, PathBuf};
 
 use super::model::{Probe, ProbeSet};
 use super::parse::parse_probe;
-use super::plain_read::SetFields;
+use super::plain_read::{SetFields, plain_id};
 use super::rules::{Rule, parse_rule};
 use crate::error::{InputError, check_header};
 use crate::input::{MAX_PROBES, read_input, text_digest};
 
-/// Probes parsed at a time while checking a file: enough to keep every core busy, few enough that
-/// what a batch holds stays small. Ours.
-const PARSE_BATCH: usize = 8192;
+/// Probes checked whole as soon as a file is read, before anything is answered: every probe of
+/// a set this size or smaller (nearly every set a person writes), so its mistakes are reported
+/// first. Past them only the ids are checked then (unique; the longest's length), and each probe
+/// is checked whole when it is parsed to be answered: a check of a large set reads each probe
+/// once, and a mistake there still stops it, naming the probe's place, before any file is
+/// written. Ours.
+pub const CHECKED_WHOLE: usize = 8192;
 
-/// A checked probe-set file: every probe in it is valid and ids are unique.
+/// A checked probe-set file: its ids are unique and its first [`CHECKED_WHOLE`] probes valid; any
+/// other probe is checked whole whenever it is parsed (every way of getting probes parses them).
 #[derive(Debug, Clone)]
 pub struct ProbeText {
     path: PathBuf,
@@ -123,13 +129,13 @@ impl ProbeText {
         Ok(self)
     }
 
-    /// Parses every probe once (each valid, ids unique among probes and rules), keeping nothing but
-    /// the ids; returns the length of the longest.
+    /// Checks the ids of every probe (unique among probes and rules) and the first
+    /// [`CHECKED_WHOLE`] probes whole; returns the length of the longest id. The first error in
+    /// file order wins.
     fn check_every_probe(&self, rule_spans: &[(usize, usize)]) -> Result<usize, InputError> {
-        let mut ids = HashSet::with_capacity(self.spans.len());
-        let mut longest = 0;
+        let mut ids: HashSet<Cow<'_, str>> = HashSet::with_capacity(self.spans.len());
         for (rule, &(start, end)) in self.rules.iter().zip(rule_spans) {
-            if !ids.insert(rule.id.clone()) {
+            if !ids.insert(Cow::Borrowed(&rule.id)) {
                 return Err(InputError::at_fragment(
                     &self.path,
                     &self.text,
@@ -138,25 +144,38 @@ impl ProbeText {
                 ));
             }
         }
-        // A batch at a time, parsed on the current thread pool; the first error in file order wins.
-        for start in (0..self.spans.len()).step_by(PARSE_BATCH) {
-            let batch = start..(start + PARSE_BATCH).min(self.spans.len());
-            for (k, parsed) in batch.clone().zip(self.parse_each(batch)) {
-                let id = parsed?.id;
-                longest = longest.max(id.chars().count());
-                if !ids.insert(id) {
-                    let (start, end) = self.spans[k];
-                    let id = self.probe(k)?.id;
-                    return Err(InputError::at_fragment(
-                        &self.path,
-                        &self.text,
-                        &self.text[start..end],
-                        format!("probe id \"{id}\" is used twice (by a probe or a rule)"),
-                    ));
-                }
+        let mut whole = self
+            .parse_each(0..self.spans.len().min(CHECKED_WHOLE))
+            .into_iter();
+        let mut longest = 0;
+        for k in 0..self.spans.len() {
+            let id = match whole.next() {
+                Some(parsed) => Cow::Owned(parsed?.id),
+                None => self.id_of(k)?,
+            };
+            longest = longest.max(id.chars().count());
+            if !ids.insert(id) {
+                let (start, end) = self.spans[k];
+                let id = self.probe(k)?.id;
+                return Err(InputError::at_fragment(
+                    &self.path,
+                    &self.text,
+                    &self.text[start..end],
+                    format!("probe id \"{id}\" is used twice (by a probe or a rule)"),
+                ));
             }
         }
         Ok(longest)
+    }
+
+    /// Probe `k`'s id: found in its text without parsing the rest, or, where the text is not
+    /// plain there, by parsing the probe (whose error this returns).
+    fn id_of(&self, k: usize) -> Result<Cow<'_, str>, InputError> {
+        let (start, end) = self.spans[k];
+        match plain_id(&self.text[start..end]) {
+            Some(id) => Ok(Cow::Borrowed(id)),
+            None => Ok(Cow::Owned(self.probe(k)?.id)),
+        }
     }
 
     /// The probes in `range` (of file order), each parsed, in parallel on the current thread pool.
