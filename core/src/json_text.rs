@@ -95,8 +95,7 @@ pub fn write_pretty(value: &Json, depth: usize, out: &mut String) {
             write_pretty(item, depth + 1, out)
         }),
         Json::Obj(fields) => write_lines(('{', '}'), fields, depth, out, |(key, item), out| {
-            write_string(key, out);
-            out.push_str(": ");
+            write_key(key, out);
             write_pretty(item, depth + 1, out);
         }),
         Json::Vec3(v) => write_pretty(&Json::Arr(v.map(Json::float).to_vec()), depth, out),
@@ -142,8 +141,7 @@ fn write_inline_within(value: &Json, out: &mut String, limit: usize) -> bool {
             write_inline_within(item, out, limit)
         }),
         Json::Obj(fields) => write_list(('{', '}'), fields, out, |(key, item), out| {
-            write_string(key, out);
-            out.push_str(": ");
+            write_key(key, out);
             write_inline_within(item, out, limit)
         }),
         Json::Vec3(v) => write_list(('[', ']'), v, out, |x, out| {
@@ -263,13 +261,32 @@ fn inline_at_least(value: &Json, width: usize, levels: usize) -> usize {
 
 fn write_string(s: &str, out: &mut String) {
     if needs_escapes(s.as_bytes()) {
-        out.push_str(&serde_json::to_string(s).expect("strings serialise"));
+        write_escaped(s, out);
     } else {
         out.reserve(s.len() + 2);
         out.push('"');
         out.push_str(s);
         out.push('"');
     }
+}
+
+/// An object's key and the `": "` after it (one copy fewer than a string and then the colon).
+fn write_key(key: &str, out: &mut String) {
+    if needs_escapes(key.as_bytes()) {
+        write_escaped(key, out);
+        out.push_str(": ");
+    } else {
+        out.reserve(key.len() + 4);
+        out.push('"');
+        out.push_str(key);
+        out.push_str("\": ");
+    }
+}
+
+/// A string that needs escapes, as serde_json writes it (rare: kept out of the common path).
+#[cold]
+fn write_escaped(s: &str, out: &mut String) {
+    out.push_str(&serde_json::to_string(s).expect("strings serialise"));
 }
 
 /// True when `bytes` hold a byte of [`ESCAPED`]: eight bytes at a time, by the zero-byte tests of
