@@ -133,7 +133,8 @@ impl ProbeText {
     /// [`CHECKED_WHOLE`] probes whole; returns the length of the longest id. The first error in
     /// file order wins.
     fn check_every_probe(&self, rule_spans: &[(usize, usize)]) -> Result<usize, InputError> {
-        let mut ids: HashSet<Cow<'_, str>> = HashSet::with_capacity(self.spans.len());
+        let mut ids: HashSet<Cow<'_, str>, foldhash::fast::RandomState> =
+            HashSet::with_capacity_and_hasher(self.spans.len(), Default::default());
         for (rule, &(start, end)) in self.rules.iter().zip(rule_spans) {
             if !ids.insert(Cow::Borrowed(&rule.id)) {
                 return Err(InputError::at_fragment(
@@ -153,7 +154,7 @@ impl ProbeText {
                 Some(parsed) => Cow::Owned(parsed?.id),
                 None => self.id_of(k)?,
             };
-            longest = longest.max(id.chars().count());
+            longest = longest.max(characters(&id));
             if !ids.insert(id) {
                 let (start, end) = self.spans[k];
                 let id = self.probe(k)?.id;
@@ -242,6 +243,15 @@ impl ProbeText {
     /// `sha256:` of the file's bytes as read: a results file's `probes_digest`.
     pub fn digest(&self) -> &str {
         &self.digest
+    }
+}
+
+/// How many characters `text` holds (its length when it is ASCII, as ids nearly always are).
+fn characters(text: &str) -> usize {
+    if text.is_ascii() {
+        text.len()
+    } else {
+        text.chars().count()
     }
 }
 
