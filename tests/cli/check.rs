@@ -429,8 +429,21 @@ fn a_mistake_deep_in_a_large_set_stops_the_check_and_writes_nothing() {
         "big.probes.json",
         "--out",
         "big.results.json",
+        "--junit",
+        "big.junit.xml",
+        "--markdown",
+        "big.md",
         "--brief",
     ];
+    let files = || {
+        let mut names: Vec<String> = std::fs::read_dir(dir.path())
+            .unwrap()
+            .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+            .collect();
+        names.sort();
+        names
+    };
+    let before = files();
     let run = plumbline(dir.path(), &args);
     let stderr = text(&run.stderr);
     assert_eq!(run.status.code(), Some(2), "{stderr}");
@@ -444,6 +457,8 @@ fn a_mistake_deep_in_a_large_set_stops_the_check_and_writes_nothing() {
         std::fs::read_to_string(&results).unwrap(),
         "earlier results"
     );
+    // No report written, no scratch file left.
+    assert_eq!(files(), before);
 
     std::fs::write(dir.path().join("big.probes.json"), set(bad, Some(5))).unwrap();
     let run = plumbline(dir.path(), &args);
