@@ -19,8 +19,8 @@ use crate::input::{MAX_PROBES, read_input, text_digest};
 /// a set this size or smaller (nearly every set a person writes), so its mistakes are reported
 /// first. Past them only the ids are checked then (unique; the longest's length), and each probe
 /// is checked whole when it is parsed to be answered: a check of a large set reads each probe
-/// once, and a mistake there still stops it, naming the probe's place, before any file is
-/// written. Ours.
+/// once, and a mistake there still stops it, naming the probe's place, before its results or
+/// reports are written. Ours.
 pub const CHECKED_WHOLE: usize = 8192;
 
 /// A checked probe-set file: its ids are unique and its first [`CHECKED_WHOLE`] probes valid; any
