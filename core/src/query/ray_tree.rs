@@ -18,6 +18,7 @@
 
 use std::ops::Range;
 
+use arrayvec::ArrayVec;
 use glam::DVec3;
 use rayon::prelude::*;
 use wide::f32x4;
@@ -347,24 +348,20 @@ impl RayTree {
         let mut reach = reach;
         // The reach rounded up to `f32`: a box entered beyond it is entered beyond the reach.
         let mut limit = up(reach);
-        let mut stack = [(EMPTY, 0f32); STACK];
-        let mut len = 0;
+        // Not zero-filled: a ray visits a handful of the slots (ArrayVec's are left unwritten).
+        let mut stack: ArrayVec<(Child, f32), STACK> = ArrayVec::new();
         // The next child to visit when a node met only one (most do): it skips the stack.
         let mut next = Some(self.root);
         loop {
             let child = match next.take() {
                 // Entered within the limit it was met under, which is still the limit.
                 Some(only) => only,
-                None if len > 0 => {
-                    len -= 1;
-                    let (child, entry) = stack[len];
+                None => match stack.pop() {
                     // The limit may have shrunk since it was pushed.
-                    if entry > limit {
-                        continue;
-                    }
-                    child
-                }
-                None => break,
+                    Some((_, entry)) if entry > limit => continue,
+                    Some((child, _)) => child,
+                    None => break,
+                },
             };
             if child & LEAF_BIT != 0 {
                 let start = (child & ((1 << LEAF_START_BITS) - 1)) as usize;
@@ -381,22 +378,22 @@ impl RayTree {
                 continue;
             }
             // Pushed farthest first; the nearest is taken straight back as the next to visit.
-            let from = len;
+            let from = stack.len();
             while met != 0 {
                 let k = met.trailing_zeros() as usize;
                 met &= met - 1;
                 let item = (node.children[k], entries[k]);
-                let mut at = len;
-                while at > from && stack[at - 1].1 < item.1 {
-                    stack[at] = stack[at - 1];
+                stack.push(item);
+                let slots = stack.as_mut_slice();
+                let mut at = slots.len() - 1;
+                while at > from && slots[at - 1].1 < item.1 {
+                    slots[at] = slots[at - 1];
                     at -= 1;
                 }
-                stack[at] = item;
-                len += 1;
+                slots[at] = item;
             }
-            if len > from {
-                len -= 1;
-                next = Some(stack[len].0);
+            if stack.len() > from {
+                next = stack.pop().map(|(child, _)| child);
             }
         }
     }
