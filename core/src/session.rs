@@ -158,6 +158,15 @@ impl Probes {
     pub fn all(&self) -> Result<Vec<Probe>, Error> {
         Ok(self.chunk(0..self.len())?.into_owned())
     }
+
+    /// Checks every probe whole (a large file's are otherwise checked as they are taken), a
+    /// chunk at a time, keeping none.
+    pub fn check_all(&self) -> Result<(), Error> {
+        for start in (0..self.len()).step_by(CHUNK) {
+            self.chunk(start..(start + CHUNK).min(self.len()))?;
+        }
+        Ok(())
+    }
 }
 
 /// Probes are answered this many at a time: enough to keep every core busy, few enough that a run

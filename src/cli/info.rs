@@ -22,6 +22,8 @@ pub fn info(path: &Path, allow_outside_paths: bool) -> Result<ExitCode, String> 
         },
     )
     .map_err(|e| e.to_string())?;
+    // Given a probe set, every probe in it is checked as `check` would.
+    opened.probes.check_all().map_err(|e| e.to_string())?;
     let OpenLevel {
         model,
         world,

@@ -93,6 +93,8 @@ pub fn lint(args: &LintArgs) -> Result<ExitCode, String> {
         },
     )
     .map_err(|e| e.to_string())?;
+    // Given a probe set, every probe in it is checked as `check` would.
+    opened.probes.check_all().map_err(|e| e.to_string())?;
     let level = opened.level;
     let mut inputs = level.files.clone();
     inputs.extend(opened.probes_path.clone());

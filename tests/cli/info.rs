@@ -66,3 +66,33 @@ fn schema_prints_each_formats_schema_as_the_repository_holds_it() {
     let run = plumbline(root, &["schema", "lint"]);
     assert_eq!(run.status.code(), Some(2));
 }
+
+/// Given a probe set larger than the part checked up front, `info` (and `lint`) still check every
+/// probe: a mistake near its end exits 2 naming the place.
+#[test]
+fn info_and_lint_check_every_probe_of_a_large_set() {
+    let dir = tempfile::tempdir().unwrap();
+    write(dir.path(), "a.obj", b"v 0 0 0\nv 1 0 0\nv 0 1 0\nf 1 2 3\n");
+    let count = plumbline_core::probe::CHECKED_WHOLE + 10;
+    let probes: Vec<String> = (0..count)
+        .map(|k| {
+            let x = if k == count - 2 { "\"x\"" } else { "0" };
+            format!(r#"{{"id": "r{k}", "kind": "ray", "from": [{x}, 0, 1], "to": [0, 0, -1]}}"#)
+        })
+        .collect();
+    let set = format!(
+        "{{\"plumbline\": \"probes\", \"version\": 1, \"level\": \"a.obj\", \"probes\": [\n{}\n]}}\n",
+        probes.join(",\n")
+    );
+    write(dir.path(), "big.probes.json", set.as_bytes());
+    for command in ["info", "lint"] {
+        let out = plumbline(dir.path(), &[command, "big.probes.json"]);
+        let stderr = String::from_utf8(out.stderr).unwrap();
+        assert_eq!(out.status.code(), Some(2), "{command}: {stderr}");
+        assert!(
+            // Probe k stands on line k + 2.
+            stderr.contains(&format!("big.probes.json: line {count}, column 43")),
+            "{command}: {stderr}"
+        );
+    }
+}
