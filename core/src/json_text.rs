@@ -17,6 +17,9 @@ pub enum Json<'a> {
     Bool(bool),
     /// A number, formatted as serde_json formats it.
     Num(Number),
+    /// A float, written as [`Json::Num`] writes one (`null` when not finite): records' lengths,
+    /// fractions and coordinates, without a `Number` made for each.
+    Float(f64),
     /// A string.
     Str(&'a str),
     /// An array.
@@ -33,7 +36,7 @@ pub enum Json<'a> {
 impl Json<'_> {
     /// A float (`null` when not finite, as serde_json writes it).
     pub fn float(x: f64) -> Json<'static> {
-        Number::from_f64(x).map_or(Json::Null, Json::Num)
+        Json::Float(x)
     }
 
     /// A whole number.
@@ -78,7 +81,7 @@ pub fn write_pretty(value: &Json, depth: usize, out: &mut String) {
     // A scalar stands on one line however long it is (the last arm below).
     let scalar = matches!(
         value,
-        Json::Null | Json::Bool(_) | Json::Num(_) | Json::Str(_)
+        Json::Null | Json::Bool(_) | Json::Num(_) | Json::Float(_) | Json::Str(_)
     );
     if !scalar && inline_at_least(value, width, 2) <= width {
         // Written on one line, then taken back if it runs past the width: each number is
@@ -92,11 +95,11 @@ pub fn write_pretty(value: &Json, depth: usize, out: &mut String) {
     }
     match value {
         Json::Arr(items) => write_lines(('[', ']'), items, depth, out, |item, out| {
-            write_pretty(item, depth + 1, out)
+            write_item(item, depth + 1, out)
         }),
         Json::Obj(fields) => write_lines(('{', '}'), fields, depth, out, |(key, item), out| {
             write_key(key, out);
-            write_pretty(item, depth + 1, out);
+            write_item(item, depth + 1, out);
         }),
         Json::Vec3(v) => write_pretty(&Json::Arr(v.map(Json::float).to_vec()), depth, out),
         Json::Strs(items) => {
@@ -104,6 +107,18 @@ pub fn write_pretty(value: &Json, depth: usize, out: &mut String) {
             write_pretty(&Json::Arr(items), depth, out);
         }
         scalar => write_inline(scalar, out),
+    }
+}
+
+/// [`write_pretty`] of an array's item or an object's value: strings and numbers, most of them,
+/// written here without the call.
+#[inline(always)]
+fn write_item(item: &Json, depth: usize, out: &mut String) {
+    match item {
+        Json::Str(s) => write_string(s, out),
+        Json::Num(n) => write_number(n, out),
+        Json::Float(x) => write_float(*x, out),
+        _ => write_pretty(item, depth, out),
     }
 }
 
@@ -158,6 +173,10 @@ fn write_inline_within(value: &Json, out: &mut String, limit: usize) -> bool {
         }
         Json::Num(n) => {
             write_number(n, out);
+            true
+        }
+        Json::Float(x) => {
+            write_float(*x, out);
             true
         }
         Json::Bool(b) => {
@@ -222,7 +241,7 @@ fn inline_at_least(value: &Json, width: usize, levels: usize) -> usize {
     match value {
         Json::Null | Json::Bool(true) => 4,
         Json::Bool(false) => 5,
-        Json::Num(_) => 1,
+        Json::Num(_) | Json::Float(_) => 1,
         Json::Str(s) => s.len() + 2,
         Json::Vec3(_) | Json::Strs(_) | Json::Arr(_) | Json::Obj(_) if levels == 0 => too_deep,
         Json::Vec3(_) => 9,
@@ -239,7 +258,7 @@ fn inline_at_least(value: &Json, width: usize, levels: usize) -> usize {
         Json::Arr(items) => {
             let mut length = items.len().max(1) * 2;
             for item in items {
-                length += inline_at_least(item, width, levels - 1);
+                length += item_at_least(item, width, levels - 1);
                 if length > width {
                     break;
                 }
@@ -249,13 +268,24 @@ fn inline_at_least(value: &Json, width: usize, levels: usize) -> usize {
         Json::Obj(fields) => {
             let mut length = fields.len().max(1) * 2;
             for (key, item) in fields {
-                length += key.len() + 4 + inline_at_least(item, width, levels - 1);
+                length += key.len() + 4 + item_at_least(item, width, levels - 1);
                 if length > width {
                     break;
                 }
             }
             length
         }
+    }
+}
+
+/// [`inline_at_least`] of an array's item or an object's value: scalars, most of them, measured
+/// here without the call.
+#[inline(always)]
+fn item_at_least(item: &Json, width: usize, levels: usize) -> usize {
+    match item {
+        Json::Num(_) | Json::Float(_) => 1,
+        Json::Str(s) => s.len() + 2,
+        _ => inline_at_least(item, width, levels),
     }
 }
 
@@ -425,6 +455,30 @@ mod tests {
         /// A vector is written exactly as the array of its three numbers, on one line or broken
         /// up (deep enough that it no longer fits), alone or inside objects (nested too deep for
         /// one line at two levels).
+        #[test]
+        fn floats_are_laid_out_as_the_numbers_they_stand_for(
+            bits in proptest::prelude::any::<[u64; 3]>(),
+            special in 0usize..6,
+            depth in 0usize..60,
+        ) {
+            // What `Json::float` gave before it had its own variant: serde_json's `Number`, or
+            // `null` where that has none.
+            let number = |x: f64| Number::from_f64(x).map_or(Json::Null, Json::Num);
+            let odd = [f64::NAN, f64::INFINITY, f64::NEG_INFINITY, -0.0, 1e300, 5e-324][special];
+            let xs = [f64::from_bits(bits[0]), f64::from_bits(bits[1]), odd, f64::from_bits(bits[2])];
+            let record = |f: &dyn Fn(f64) -> Json<'static>| {
+                Json::Obj(vec![
+                    ("distance", f(xs[0])),
+                    ("list", Json::Arr(xs.iter().map(|&x| f(x)).collect())),
+                    ("inner", Json::Obj(vec![("t", f(xs[2])), ("u", f(xs[3]))])),
+                ])
+            };
+            let (mut a, mut b) = (String::new(), String::new());
+            write_pretty(&record(&Json::float), depth, &mut a);
+            write_pretty(&record(&number), depth, &mut b);
+            proptest::prop_assert_eq!(a, b);
+        }
+
         #[test]
         fn vectors_are_written_as_arrays_of_numbers(bits in proptest::prelude::any::<[u64; 3]>(), depth in 0usize..60) {
             let v = bits.map(f64::from_bits);
