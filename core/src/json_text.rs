@@ -452,9 +452,8 @@ mod tests {
     }
 
     proptest::proptest! {
-        /// A vector is written exactly as the array of its three numbers, on one line or broken
-        /// up (deep enough that it no longer fits), alone or inside objects (nested too deep for
-        /// one line at two levels).
+        /// A float is laid out exactly as the serde_json `Number` (or `null`) it stands for, on
+        /// one line or broken up, at any depth, NaN, infinities, −0 and subnormals included.
         #[test]
         fn floats_are_laid_out_as_the_numbers_they_stand_for(
             bits in proptest::prelude::any::<[u64; 3]>(),
@@ -479,6 +478,9 @@ mod tests {
             proptest::prop_assert_eq!(a, b);
         }
 
+        /// A vector is written exactly as the array of its three numbers, on one line or broken
+        /// up (deep enough that it no longer fits), alone or inside objects (nested too deep for
+        /// one line at two levels).
         #[test]
         fn vectors_are_written_as_arrays_of_numbers(bits in proptest::prelude::any::<[u64; 3]>(), depth in 0usize..60) {
             let v = bits.map(f64::from_bits);

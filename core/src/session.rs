@@ -159,13 +159,17 @@ impl Probes {
         Ok(self.chunk(0..self.len())?.into_owned())
     }
 
+    /// Every probe, the rules' included, parsed a chunk at a time, in order.
+    fn chunks(&self) -> impl Iterator<Item = Result<Cow<'_, [Probe]>, Error>> {
+        (0..self.len())
+            .step_by(CHUNK)
+            .map(|start| self.chunk(start..(start + CHUNK).min(self.len())))
+    }
+
     /// Checks every probe whole (a large file's are otherwise checked as they are taken), a
     /// chunk at a time, keeping none.
     pub fn check_all(&self) -> Result<(), Error> {
-        for start in (0..self.len()).step_by(CHUNK) {
-            self.chunk(start..(start + CHUNK).min(self.len()))?;
-        }
-        Ok(())
+        self.chunks().try_for_each(|chunk| chunk.map(drop))
     }
 }
 
@@ -428,12 +432,8 @@ impl Opened {
     pub fn shard_positions(&self, shard: Shard) -> Result<Vec<usize>, Error> {
         let total = self.probes.len();
         let mut costs = Vec::with_capacity(total);
-        let mut start = 0;
-        while start < total {
-            let range = start..(start + CHUNK).min(total);
-            start = range.end;
-            let chunk = self.probes.chunk(range)?;
-            costs.extend(chunk.iter().map(|p| expected_cost(p, &self.level.world)));
+        for chunk in self.probes.chunks() {
+            costs.extend(chunk?.iter().map(|p| expected_cost(p, &self.level.world)));
         }
         let shard_of = assign(&costs, shard.count);
         Ok((0..total)
