@@ -200,12 +200,6 @@ fn bench_merge(
                 .filter(|&p| shard_of[p] == shard)
                 .collect();
             let path = dir.join(format!("part-{}.json", shard + 1));
-            let mut writer = ResultsWriter::create(&path, positions.len()).unwrap();
-            let mut summary = Summary::default();
-            for &p in &positions {
-                writer.push(&results[p]).unwrap();
-                summary.count(results[p].verdict);
-            }
             let part = PartHead {
                 shard: Shard {
                     index: shard as usize + 1,
@@ -214,7 +208,14 @@ fn bench_merge(
                 of_probes: probes.len(),
                 positions,
             };
-            writer.finish_part(&head, &summary, &part).unwrap();
+            let mut writer =
+                ResultsWriter::create(&path, part.positions.len(), &head, Some(&part)).unwrap();
+            let mut summary = Summary::default();
+            for &p in &part.positions {
+                writer.push(&results[p]).unwrap();
+                summary.count(results[p].verdict);
+            }
+            writer.finish(&summary).unwrap();
             path
         })
         .collect();

@@ -67,6 +67,38 @@ impl AtomicFile {
     }
 }
 
+impl AtomicFile {
+    /// Writes `bytes` over what was written at `offset` (the file grows only if they run past its
+    /// end); later writes continue at the end.
+    pub fn write_at(&mut self, offset: u64, bytes: &[u8]) -> io::Result<()> {
+        use std::io::{Seek, SeekFrom};
+        let out = self.writer()?;
+        out.seek(SeekFrom::Start(offset))?;
+        out.write_all(bytes)?;
+        out.seek(SeekFrom::End(0))?;
+        Ok(())
+    }
+
+    /// Asks the system to start writing what has been written so far to disk, without waiting
+    /// for it, so that the commit's flush of a large file has little left to wait for. Only a
+    /// hint: where it is not available (or fails), the commit still flushes everything.
+    pub fn start_writeback(&mut self) -> io::Result<()> {
+        let out = self.writer()?;
+        out.flush()?;
+        #[cfg(target_os = "linux")]
+        {
+            use std::os::fd::AsRawFd;
+            let fd = out.get_ref().as_raw_fd();
+            // SAFETY: `fd` is this file's open descriptor for the whole call, and the call only
+            // schedules the writing of its pages (offset 0 and length 0: the whole file).
+            unsafe {
+                libc::sync_file_range(fd, 0, 0, libc::SYNC_FILE_RANGE_WRITE);
+            }
+        }
+        Ok(())
+    }
+}
+
 impl Write for AtomicFile {
     fn write(&mut self, buf: &[u8]) -> io::Result<usize> {
         self.writer()?.write(buf)

@@ -137,7 +137,13 @@ struct Writers {
 }
 
 impl Writers {
-    fn create(options: &CheckOptions, total: usize) -> Result<Writers, Error> {
+    /// Starts every file `options` asks for; a results file gets `head` (and `part`, a shard's).
+    fn create(
+        options: &CheckOptions,
+        total: usize,
+        head: &ResultsHead,
+        part: Option<&PartHead>,
+    ) -> Result<Writers, Error> {
         let failed = |path: &Path| {
             let path = path.to_path_buf();
             move |source| Error::Write { path, source }
@@ -146,7 +152,7 @@ impl Writers {
             results: options
                 .out
                 .as_deref()
-                .map(|p| ResultsWriter::create(p, total).map_err(failed(p)))
+                .map(|p| ResultsWriter::create(p, total, head, part).map_err(failed(p)))
                 .transpose()?,
             junit: options
                 .junit
@@ -216,7 +222,21 @@ pub fn run_once(
         header.push_str(&style.paint(Tone::Note, &format!("warning: {w}\n")));
     }
     write_stdout(&header);
-    let mut writers = Writers::create(options, total)?;
+    let head = ResultsHead {
+        probes: options.probes.display().to_string(),
+        level: level.path.display().to_string(),
+        level_digest: level.digest.clone(),
+        probes_digest: opened.probes_digest.clone().unwrap_or_default(),
+    };
+    let part = options
+        .shard
+        .zip(positions)
+        .map(|(shard, positions)| PartHead {
+            shard,
+            of_probes: opened.probes.len(),
+            positions,
+        });
+    let mut writers = Writers::create(options, total, &head, part.as_ref())?;
     let mut pictures = match (&options.pictures, &level.model) {
         (Some(dir), Some(model)) => {
             Some(Pictures::new(dir, model, options.pictures_all, baseline)?)
@@ -239,7 +259,7 @@ pub fn run_once(
     let mut timings = options.timings.then(Timings::default);
     let summary = opened.answer_each(
         &threads,
-        positions.as_deref(),
+        part.as_ref().map(|p| p.positions.as_slice()),
         &|done| progress.update(done),
         &mut |probe, result, took| {
             if let Some(t) = &mut timings {
@@ -300,29 +320,12 @@ pub fn run_once(
     if let Some(c) = &comparison {
         print_comparison(c, style);
     }
-    let head = ResultsHead {
-        probes: options.probes.display().to_string(),
-        level: level.path.display().to_string(),
-        level_digest: level.digest.clone(),
-        probes_digest: opened.probes_digest.clone().unwrap_or_default(),
-    };
     let written = |path: &Option<PathBuf>| {
         let path = path.clone().unwrap_or_default();
         move |source| Error::Write { path, source }
     };
     if let Some(w) = writers.results {
-        match (options.shard, positions) {
-            (Some(shard), Some(positions)) => {
-                let part = PartHead {
-                    shard,
-                    of_probes: opened.probes.len(),
-                    positions,
-                };
-                w.finish_part(&head, &summary, &part)
-            }
-            _ => w.finish(&head, &summary),
-        }
-        .map_err(written(&options.out))?;
+        w.finish(&summary).map_err(written(&options.out))?;
     }
     if let Some(w) = writers.junit {
         w.finish(&suite_name(&options.probes), &summary)

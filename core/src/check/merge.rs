@@ -174,7 +174,7 @@ pub fn merge(
         source,
     };
     let mut file = AtomicFile::create(out).map_err(written)?;
-    file.write_all(head_text(&head, &summary, total, None).as_bytes())
+    file.write_all(head_text(&head, &summary, total, None).0.as_bytes())
         .map_err(written)?;
     for (position, &(k, i)) in source.iter().flatten().enumerate() {
         let raw = raws[k].results[i];

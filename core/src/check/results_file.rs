@@ -2,7 +2,7 @@
 //! inputs, and read back for baselines and `diff`.
 
 use std::io::{self, Write};
-use std::path::{Path, PathBuf};
+use std::path::Path;
 
 use serde::Deserialize;
 use serde_json::Value;
@@ -10,7 +10,7 @@ use serde_json::value::RawValue;
 
 use super::records::{ClearanceRecord, Hits, ProbeResult, Summary, Verdict, VolumeRecord};
 use super::shard::Shard;
-use crate::atomic::{AtomicFile, Spill};
+use crate::atomic::AtomicFile;
 use crate::error::{InputError, check_header};
 use crate::input::text_digest;
 use crate::probe::{ProbeKind, ProbeSet, probe_set_to_json};
@@ -59,7 +59,7 @@ impl ResultsFile {
 
     /// The file's text: stable JSON, no timestamps (the same layout [`ResultsWriter`] streams).
     pub fn to_json(&self) -> String {
-        let mut out = head_text(&self.head(), &self.summary, self.results.len(), None);
+        let (mut out, _) = head_text(&self.head(), &self.summary, self.results.len(), None);
         for (k, result) in self.results.iter().enumerate() {
             entry_text(result, k + 1 == self.results.len(), &mut out);
         }
@@ -104,21 +104,21 @@ pub struct PartHead {
 }
 
 /// The file up to its first result: the head (and the shard's, for a partial file), the summary,
-/// and the opening of the results array.
+/// and the opening of the results array; and where the summary's text starts in it.
 pub(super) fn head_text(
     head: &ResultsHead,
     summary: &Summary,
     count: usize,
     part: Option<&PartHead>,
-) -> String {
+) -> (String, usize) {
     use crate::json_text::to_pretty;
     let mut value = serde_json::json!({
         "plumbline": if part.is_some() { PARTIAL_KIND } else { "results" }, "version": 1,
         "probes": head.probes, "level": head.level,
         "level_digest": head.level_digest, "probes_digest": head.probes_digest,
     });
-    let map = value.as_object_mut().expect("an object");
     if let Some(part) = part {
+        let map = value.as_object_mut().expect("an object");
         map.insert(
             "shard".into(),
             serde_json::json!({
@@ -127,13 +127,27 @@ pub(super) fn head_text(
         );
         map.insert("positions".into(), serde_json::json!(part.positions));
     }
-    map.insert("summary".into(), serde_json::json!(summary));
-    map.insert("results".into(), serde_json::json!([]));
     let text = to_pretty(&value);
-    // The text ends with `"results": []\n}\n`: open the array there instead.
-    let mut out = text[..text.len() - "[]\n}\n".len()].to_string();
+    // The text ends with `\n}\n`: the summary and the results array's opening go there.
+    let mut out = text[..text.len() - "\n}\n".len()].to_string();
+    out.push_str(",\n  \"summary\": ");
+    let summary_at = out.len();
+    out.push_str(&summary_text(summary));
+    out.push_str(",\n  \"results\": ");
     out.push_str(if count == 0 { "[]" } else { "[\n" });
-    out
+    (out, summary_at)
+}
+
+/// The summary as a results file writes it: each verdict's count right-aligned to the width of the
+/// number of probes, so that the text's length is known before any probe is answered (a streamed
+/// file is written in place and its summary filled in last).
+pub(super) fn summary_text(summary: &Summary) -> String {
+    let width = summary.probes.to_string().len();
+    format!(
+        "{{\"probes\": {}, \"pass\": {:>width$}, \"fail\": {:>width$}, \"unchecked\": {:>width$}, \
+         \"error\": {:>width$}}}",
+        summary.probes, summary.pass, summary.fail, summary.unchecked, summary.error
+    )
 }
 
 /// One result as an element of the results array.
@@ -152,26 +166,50 @@ pub(super) fn tail_text(count: usize) -> &'static str {
 }
 
 /// Writes a results file result by result, as a check answers its probes, so that a run of a
-/// million probes never holds its whole results in memory: the results go to a scratch file beside
-/// the output, and [`ResultsWriter::finish`] writes the head with the summary, then copies them in.
-/// Byte for byte what [`ResultsFile::to_json`] gives for the same run.
+/// million probes never holds its whole results in memory: the file is written in place (a
+/// temporary file renamed at the end, like every file this program writes) with a summary of zeros
+/// of the final summary's length, which [`ResultsWriter::finish`] fills in. Byte for byte what
+/// [`ResultsFile::to_json`] gives for the same run.
 pub struct ResultsWriter {
-    path: PathBuf,
-    body: Spill,
+    file: AtomicFile,
+    /// Where the summary's text starts, and its length.
+    summary_at: usize,
+    summary_len: usize,
     written: usize,
     total: usize,
     entry: String,
+    /// Bytes written since the system was last asked to start writing them to disk.
+    unsent: usize,
 }
 
+/// How many bytes of results are written between requests to start writing them to disk, so that
+/// the final flush of a large file has little left to wait for.
+const WRITEBACK_BYTES: usize = 8 << 20;
+
 impl ResultsWriter {
-    /// Starts writing `path` for a run of `total` probes.
-    pub fn create(path: &Path, total: usize) -> io::Result<ResultsWriter> {
+    /// Starts writing `path` for a run of `total` probes, with this head (and the shard's, for a
+    /// shard's partial results file, which `plumbline merge` joins).
+    pub fn create(
+        path: &Path,
+        total: usize,
+        head: &ResultsHead,
+        part: Option<&PartHead>,
+    ) -> io::Result<ResultsWriter> {
+        let zeros = Summary {
+            probes: total,
+            ..Summary::default()
+        };
+        let (text, summary_at) = head_text(head, &zeros, total, part);
+        let mut file = AtomicFile::create(path)?;
+        file.write_all(text.as_bytes())?;
         Ok(ResultsWriter {
-            path: path.to_path_buf(),
-            body: Spill::beside(path, "part")?,
+            file,
+            summary_at,
+            summary_len: summary_text(&zeros).len(),
             written: 0,
             total,
             entry: String::new(),
+            unsent: 0,
         })
     }
 
@@ -180,42 +218,34 @@ impl ResultsWriter {
         self.written += 1;
         self.entry.clear();
         entry_text(result, self.written == self.total, &mut self.entry);
-        self.body.write_all(self.entry.as_bytes())
+        self.file.write_all(self.entry.as_bytes())?;
+        self.unsent += self.entry.len();
+        if self.unsent >= WRITEBACK_BYTES {
+            self.file.start_writeback()?;
+            self.unsent = 0;
+        }
+        Ok(())
     }
 
-    /// Writes the file atomically: head and summary, then every result pushed.
-    pub fn finish(self, head: &ResultsHead, summary: &Summary) -> io::Result<()> {
-        self.finish_as(head, summary, None)
-    }
-
-    /// Writes a shard's partial results file atomically: as [`ResultsWriter::finish`], with the
-    /// shard's head (`plumbline merge` joins the parts).
-    pub fn finish_part(
-        self,
-        head: &ResultsHead,
-        summary: &Summary,
-        part: &PartHead,
-    ) -> io::Result<()> {
-        self.finish_as(head, summary, Some(part))
-    }
-
-    fn finish_as(
-        self,
-        head: &ResultsHead,
-        summary: &Summary,
-        part: Option<&PartHead>,
-    ) -> io::Result<()> {
+    /// Fills in the summary and puts the file in place, atomically.
+    pub fn finish(mut self, summary: &Summary) -> io::Result<()> {
         if self.written != self.total {
             return Err(io::Error::other(format!(
                 "{} of {} results were written",
                 self.written, self.total
             )));
         }
-        let mut file = AtomicFile::create(&self.path)?;
-        file.write_all(head_text(head, summary, self.total, part).as_bytes())?;
-        self.body.copy_into(&mut file)?;
-        file.write_all(tail_text(self.total).as_bytes())?;
-        file.commit()
+        let text = summary_text(summary);
+        if summary.probes != self.total || text.len() != self.summary_len {
+            return Err(io::Error::other(format!(
+                "the summary counts {} probes, the file holds {}",
+                summary.probes, self.total
+            )));
+        }
+        self.file.write_all(tail_text(self.total).as_bytes())?;
+        self.file
+            .write_at(self.summary_at as u64, text.as_bytes())?;
+        self.file.commit()
     }
 }
 
@@ -333,4 +363,78 @@ fn parse_hits(kind: ProbeKind, hits: Vec<Value>) -> Result<Hits, String> {
         ProbeKind::Reach => Hits::Reach(serde_json::from_value(value).map_err(err)?),
         ProbeKind::Settle => Hits::Settle(serde_json::from_value(value).map_err(err)?),
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use proptest::prelude::*;
+
+    fn demo_baseline() -> (std::path::PathBuf, ResultsFile) {
+        let path = Path::new(env!("CARGO_MANIFEST_DIR"))
+            .join("../scenes")
+            .join(crate::demo::files::BASELINE);
+        let file = load_results(&path).expect("the demo's baseline");
+        (path, file)
+    }
+
+    #[test]
+    fn a_streamed_file_is_the_files_text_byte_for_byte() {
+        // The demo's baseline (67 probes: counts of one and two digits, so the summary is padded).
+        let (path, file) = demo_baseline();
+        let dir = tempfile::tempdir().unwrap();
+        let out = dir.path().join("streamed.results.json");
+        let mut writer =
+            ResultsWriter::create(&out, file.results.len(), &file.head(), None).unwrap();
+        for result in &file.results {
+            writer.push(result).unwrap();
+        }
+        writer.finish(&file.summary).unwrap();
+        let streamed = std::fs::read_to_string(&out).unwrap();
+        assert_eq!(streamed, file.to_json());
+        assert_eq!(streamed, std::fs::read_to_string(&path).unwrap());
+        let names: Vec<_> = std::fs::read_dir(dir.path()).unwrap().collect();
+        assert_eq!(names.len(), 1, "only the results file is left");
+    }
+
+    #[test]
+    fn a_summary_that_does_not_fit_the_file_writes_nothing() {
+        let (_, file) = demo_baseline();
+        let dir = tempfile::tempdir().unwrap();
+        let out = dir.path().join("wrong.results.json");
+        let mut writer =
+            ResultsWriter::create(&out, file.results.len(), &file.head(), None).unwrap();
+        for result in &file.results {
+            writer.push(result).unwrap();
+        }
+        let mut wrong = file.summary;
+        wrong.probes = 1000;
+        assert!(writer.finish(&wrong).is_err());
+        assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 0);
+    }
+
+    proptest! {
+        /// The summary's text has one length for every split of the probes between verdicts (so
+        /// the file can be written before they are known), and reads back as the same counts by
+        /// a general JSON reader (serde_json; RFC 8259 §2 allows the padding's spaces).
+        #[test]
+        fn the_summary_has_one_length_and_reads_back(
+            probes in 0usize..20_000_000,
+            cuts in prop::array::uniform3(0.0f64..=1.0),
+        ) {
+            let mut cuts = cuts.map(|c| (c * probes as f64) as usize);
+            cuts.sort();
+            let summary = Summary {
+                probes,
+                pass: cuts[0],
+                fail: cuts[1] - cuts[0],
+                unchecked: cuts[2] - cuts[1],
+                error: probes - cuts[2],
+            };
+            let zeros = Summary { probes, ..Summary::default() };
+            let text = summary_text(&summary);
+            prop_assert_eq!(text.len(), summary_text(&zeros).len());
+            prop_assert_eq!(serde_json::from_str::<Summary>(&text).unwrap(), summary);
+        }
+    }
 }

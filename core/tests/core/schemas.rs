@@ -95,18 +95,6 @@ fn a_shards_partial_results_validate() {
     let positions = opened.shard_positions(shard).unwrap();
     let dir = tempfile::tempdir().unwrap();
     let path = dir.path().join("part.json");
-    let mut writer = ResultsWriter::create(&path, positions.len()).unwrap();
-    let summary = opened
-        .answer_each(
-            &Runner::new(Some(1)).unwrap(),
-            Some(&positions),
-            &|_| {},
-            &mut |_, result, _| {
-                writer.push(&result).unwrap();
-                Ok(())
-            },
-        )
-        .unwrap();
     let head = ResultsHead {
         probes: "saltfen-quay.probes.json".into(),
         level: "saltfen-quay.level.json".into(),
@@ -118,7 +106,20 @@ fn a_shards_partial_results_validate() {
         of_probes: opened.probes.len(),
         positions,
     };
-    writer.finish_part(&head, &summary, &part).unwrap();
+    let mut writer =
+        ResultsWriter::create(&path, part.positions.len(), &head, Some(&part)).unwrap();
+    let summary = opened
+        .answer_each(
+            &Runner::new(Some(1)).unwrap(),
+            Some(&part.positions),
+            &|_| {},
+            &mut |_, result, _| {
+                writer.push(&result).unwrap();
+                Ok(())
+            },
+        )
+        .unwrap();
+    writer.finish(&summary).unwrap();
     let value = read_json(&path);
     assert_eq!(summary.probes, part.positions.len());
     let found = errors(&validator("partial-results"), &value);
