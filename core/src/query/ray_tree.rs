@@ -1,8 +1,9 @@
-//! Ray trees: BVHs with four children per node whose boxes are stored in `f32`, rounded outwards,
-//! and tested four at a time, a few items to a leaf. Ray probes walk one over every triangle and
-//! primitive of the world ([`super::ray_index`]) instead of parry's general-purpose BVHs (binary
-//! trees of `f64` boxes, one item per leaf, a tree of bodies over a tree per mesh), which their
-//! profile showed spending most of its time in box tests.
+//! Ray trees: BVHs with eight children per node whose boxes are stored in `f32`, rounded outwards,
+//! and tested eight at a time (in one AVX register where the processor has AVX, else in two SSE
+//! halves), a few items to a leaf. Ray probes walk one over every triangle and primitive of the
+//! world ([`super::ray_index`]) instead of parry's general-purpose BVHs (binary trees of `f64`
+//! boxes, one item per leaf, a tree of bodies over a tree per mesh), which their profile showed
+//! spending most of its time in box tests.
 //!
 //! A tree only chooses which items to test; the exact `f64` tests decide. So it must be
 //! conservative: it may offer a triangle the ray misses, never skip one it meets. Boxes are rounded
@@ -13,25 +14,36 @@
 //! centre, so a level far from the origin keeps tight boxes.
 //!
 //! Built by binned surface-area heuristic (Wald, "On fast Construction of SAH-based Bounding Volume
-//! Hierarchies", IEEE Symposium on Interactive Ray Tracing, 2007), each node split twice to give
-//! four children; below [`SAH_DEPTH`] splits it cuts at the median instead, which bounds the depth.
+//! Hierarchies", IEEE Symposium on Interactive Ray Tracing, 2007), each node split three times to
+//! give eight children; below [`SAH_DEPTH`] splits it cuts at the median instead, which bounds the
+//! depth.
 
 use std::ops::Range;
 
 use arrayvec::ArrayVec;
 use glam::DVec3;
 use rayon::prelude::*;
-use wide::f32x4;
+use wide::{f32x4, f32x8};
 
 /// Bins per axis of the surface-area heuristic.
 const BINS: usize = 12;
 
 /// Binary splits by surface-area heuristic before median splits take over: with at most 2³²
-/// items the tree is at most `(SAH_DEPTH + 32) / 2` nodes deep, which sizes the walk's stack.
+/// items the tree is at most `(SAH_DEPTH + 32) / SPLITS` nodes deep, which sizes the walk's stack.
 const SAH_DEPTH: usize = 40;
 
-/// Room on the walk's stack: each node visited pushes at most four children and pops itself.
-const STACK: usize = 3 * (SAH_DEPTH + 32) / 2 + 4;
+/// Children per node: boxes tested in one row of lanes.
+const WIDTH: usize = 8;
+
+/// Binary splits that make a node's children (`WIDTH` is their power of two).
+const SPLITS: usize = WIDTH.trailing_zeros() as usize;
+
+/// A row of lanes, one per child.
+type Lanes = f32x8;
+
+/// Room on the walk's stack: at most `(SAH_DEPTH + 32) / SPLITS` nodes deep (rounded up), and each
+/// node visited pushes at most `WIDTH` children and pops itself.
+const STACK: usize = (WIDTH - 1) * (SAH_DEPTH + 32).div_ceil(SPLITS) + WIDTH;
 
 /// Groups of more items than this are binned along one axis only.
 const ONE_AXIS_ITEMS: usize = 256;
@@ -73,12 +85,12 @@ fn leaf(start: usize, len: usize) -> Child {
     LEAF_BIT | (len as u32) << LEAF_START_BITS | start as u32
 }
 
-/// Four children's boxes, one coordinate per lane, and what each child holds.
+/// The children's boxes, one coordinate per lane, and what each child holds.
 #[derive(Debug, Clone)]
 struct WideNode {
-    lo: [f32x4; 3],
-    hi: [f32x4; 3],
-    children: [Child; 4],
+    lo: [Lanes; 3],
+    hi: [Lanes; 3],
+    children: [Child; WIDTH],
 }
 
 /// Where a ray tree measures its `f32` coordinates from: the centre of what it holds, and how far
@@ -125,10 +137,10 @@ pub(crate) struct RayTree {
 /// and its inverse direction, in `f32` lanes.
 pub(crate) struct TreeRay {
     /// Origin + pad on every axis: where the boxes' low sides are measured from.
-    from_lo: [f32x4; 3],
+    from_lo: [Lanes; 3],
     /// Origin − pad on every axis: where the boxes' high sides are measured from.
-    from_hi: [f32x4; 3],
-    inv_dir: [f32x4; 3],
+    from_hi: [Lanes; 3],
+    inv_dir: [Lanes; 3],
     /// The ray starts too far away for finite `f32` box tests (beyond ~1e30 m), which the padding
     /// argument needs: every item is offered instead.
     beyond_f32: bool,
@@ -160,29 +172,29 @@ impl TreeRay {
         let (lo, hi) = (origin + pad, origin - pad);
         let lanes = |v: DVec3| {
             [
-                f32x4::splat(v.x as f32),
-                f32x4::splat(v.y as f32),
-                f32x4::splat(v.z as f32),
+                Lanes::splat(v.x as f32),
+                Lanes::splat(v.y as f32),
+                Lanes::splat(v.z as f32),
             ]
         };
         TreeRay {
             from_lo: lanes(lo),
             from_hi: lanes(hi),
             inv_dir: [
-                f32x4::splat(inv(dir.x)),
-                f32x4::splat(inv(dir.y)),
-                f32x4::splat(inv(dir.z)),
+                Lanes::splat(inv(dir.x)),
+                Lanes::splat(inv(dir.y)),
+                Lanes::splat(inv(dir.z)),
             ],
             beyond_f32,
         }
     }
 
-    /// Which of the node's four boxes the ray meets within `0 ..= reach` (bit `k` for child `k`),
+    /// Which of the node's boxes the ray meets within `0 ..= reach` (bit `k` for child `k`),
     /// and where it enters each.
     #[inline(always)]
-    fn entries(&self, node: &WideNode, reach: f32) -> (u32, [f32; 4]) {
-        let mut near = f32x4::splat(0.0);
-        let mut far = f32x4::splat(reach);
+    fn entries(&self, node: &WideNode, reach: f32) -> (u32, [f32; WIDTH]) {
+        let mut near = Lanes::splat(0.0);
+        let mut far = Lanes::splat(reach);
         for k in 0..3 {
             let a = (node.lo[k] - self.from_lo[k]) * self.inv_dir[k];
             let b = (node.hi[k] - self.from_hi[k]) * self.inv_dir[k];
@@ -190,6 +202,31 @@ impl TreeRay {
             far = far.fast_min(a.fast_max(b));
         }
         (near.simd_le(far).to_bitmask(), near.to_array())
+    }
+
+    /// [`TreeRay::entries`] in AVX's eight-lane registers: the same IEEE operations lane by lane
+    /// (difference, product, minimum, maximum, `<=`; no lane holds a NaN), so the same answer bit
+    /// for bit, in half the instructions of the portable lanes' two halves.
+    #[cfg(target_arch = "x86_64")]
+    #[target_feature(enable = "avx")]
+    fn entries_avx(&self, node: &WideNode, reach: f32) -> (u32, [f32; WIDTH]) {
+        use std::arch::x86_64::*;
+        // SAFETY: each `Lanes` is eight `f32` in lane order, 32 readable bytes behind the reference.
+        let row = |lanes: &Lanes| unsafe { _mm256_loadu_ps(lanes.as_array().as_ptr()) };
+        let mut near = _mm256_setzero_ps();
+        let mut far = _mm256_set1_ps(reach);
+        for k in 0..3 {
+            let inv = row(&self.inv_dir[k]);
+            let a = _mm256_mul_ps(_mm256_sub_ps(row(&node.lo[k]), row(&self.from_lo[k])), inv);
+            let b = _mm256_mul_ps(_mm256_sub_ps(row(&node.hi[k]), row(&self.from_hi[k])), inv);
+            near = _mm256_max_ps(near, _mm256_min_ps(a, b));
+            far = _mm256_min_ps(far, _mm256_max_ps(a, b));
+        }
+        let met = _mm256_movemask_ps(_mm256_cmp_ps::<_CMP_LE_OQ>(near, far)) as u32;
+        let mut entries = [0.0; WIDTH];
+        // SAFETY: `entries` is eight writable `f32`.
+        unsafe { _mm256_storeu_ps(entries.as_mut_ptr(), near) };
+        (met, entries)
     }
 }
 
@@ -339,7 +376,39 @@ impl RayTree {
         &self,
         ray: &TreeRay,
         reach: f64,
+        leaf: impl FnMut(Range<usize>, f64) -> f64,
+    ) {
+        #[cfg(target_arch = "x86_64")]
+        if std::arch::is_x86_feature_detected!("avx") {
+            // SAFETY: this processor has AVX (just asked).
+            unsafe { self.nearest_first_avx(ray, reach, leaf) };
+            return;
+        }
+        self.walk(ray, reach, leaf, |node, limit| ray.entries(node, limit));
+    }
+
+    /// [`RayTree::nearest_first`] with the boxes tested in AVX registers (and the whole walk,
+    /// with `leaf`, compiled for them): the same answers.
+    #[cfg(target_arch = "x86_64")]
+    #[target_feature(enable = "avx")]
+    fn nearest_first_avx(
+        &self,
+        ray: &TreeRay,
+        reach: f64,
+        leaf: impl FnMut(Range<usize>, f64) -> f64,
+    ) {
+        self.walk(ray, reach, leaf, |node, limit| ray.entries_avx(node, limit));
+    }
+
+    /// The walk of [`RayTree::nearest_first`], testing a node's boxes with `entries` (see
+    /// [`TreeRay::entries`]).
+    #[inline(always)]
+    fn walk(
+        &self,
+        ray: &TreeRay,
+        reach: f64,
         mut leaf: impl FnMut(Range<usize>, f64) -> f64,
+        entries: impl Fn(&WideNode, f32) -> (u32, [f32; WIDTH]),
     ) {
         if ray.beyond_f32 {
             leaf(0..self.count, reach);
@@ -371,7 +440,7 @@ impl RayTree {
                 continue;
             }
             let node = &self.nodes[child as usize];
-            let (mut met, entries) = ray.entries(node, limit);
+            let (mut met, entries) = entries(node, limit);
             if met != 0 && met & (met - 1) == 0 {
                 let k = met.trailing_zeros() as usize;
                 next = Some(node.children[k]);
@@ -418,8 +487,8 @@ impl RayTree {
             }
             let node = &self.nodes[child as usize];
             let mut met = (0..3).fold(u32::MAX, |met, k| {
-                let below = node.lo[k].simd_le(f32x4::splat(q_hi[k]));
-                let above = node.hi[k].simd_ge(f32x4::splat(q_lo[k]));
+                let below = node.lo[k].simd_le(Lanes::splat(q_hi[k]));
+                let above = node.hi[k].simd_ge(Lanes::splat(q_lo[k]));
                 met & (below & above).to_bitmask()
             });
             while met != 0 {
@@ -464,20 +533,23 @@ impl Builder {
         if order.len() <= self.leaf_size {
             return leaf(start, order.len());
         }
-        // Split in two, then each half in two again: up to four children.
-        let mut groups: Vec<(usize, usize, Extent)> = Vec::with_capacity(4);
-        let (half, halves) = self.split(order, extent, depth);
-        for ((from, to), extent) in [(0, half), (half, order.len())].into_iter().zip(halves) {
-            if to - from <= self.leaf_size {
-                groups.push((from, to, extent));
-            } else {
-                let (cut, quarters) = self.split(&mut order[from..to], extent, depth + 1);
-                groups.push((from, from + cut, quarters[0]));
-                groups.push((from + cut, to, quarters[1]));
+        // Split in two, then each part in two again, `SPLITS` times: up to `WIDTH` children.
+        let mut groups: Vec<(usize, usize, Extent)> = vec![(0, order.len(), extent)];
+        for round in 0..SPLITS {
+            let mut next = Vec::with_capacity(WIDTH);
+            for (from, to, extent) in groups {
+                if to - from <= self.leaf_size {
+                    next.push((from, to, extent));
+                } else {
+                    let (cut, halves) = self.split(&mut order[from..to], extent, depth + round);
+                    next.push((from, from + cut, halves[0]));
+                    next.push((from + cut, to, halves[1]));
+                }
             }
+            groups = next;
         }
-        let mut lo = [[f32::INFINITY; 4]; 3];
-        let mut hi = [[f32::INFINITY; 4]; 3];
+        let mut lo = [[f32::INFINITY; WIDTH]; 3];
+        let mut hi = [[f32::INFINITY; WIDTH]; 3];
         for (slot, &(_, _, extent)) in groups.iter().enumerate() {
             let bounds = extent.bounds;
             let (bounds_lo, bounds_hi) = (bounds.lo.to_array(), bounds.hi.to_array());
@@ -488,21 +560,21 @@ impl Builder {
         }
         let index = nodes.len();
         nodes.push(WideNode {
-            lo: lo.map(f32x4::from),
-            hi: hi.map(f32x4::from),
-            children: [EMPTY; 4],
+            lo: lo.map(Lanes::from),
+            hi: hi.map(Lanes::from),
+            children: [EMPTY; WIDTH],
         });
         let parallel = order.len() >= PARALLEL_ITEMS;
         // The groups as disjoint slices of `order`, with their extents and where each starts in
         // the leaf order.
-        let mut parts: Vec<(&mut [BuildItem], Extent, usize)> = Vec::with_capacity(4);
+        let mut parts: Vec<(&mut [BuildItem], Extent, usize)> = Vec::with_capacity(WIDTH);
         let mut rest = order;
         for &(from, to, extent) in &groups {
             let (part, tail) = rest.split_at_mut(to - from);
             parts.push((part, extent, start + from));
             rest = tail;
         }
-        let mut children = [EMPTY; 4];
+        let mut children = [EMPTY; WIDTH];
         if parallel {
             // Large subtrees are built on the pool's threads, each into its own nodes, then
             // appended with their node indices moved.
@@ -510,7 +582,7 @@ impl Builder {
                 .into_par_iter()
                 .map(|(part, extent, at)| {
                     let mut own = Vec::new();
-                    let root = self.subtree(part, extent, at, depth + 2, &mut own);
+                    let root = self.subtree(part, extent, at, depth + SPLITS, &mut own);
                     (own, root)
                 })
                 .collect();
@@ -524,7 +596,7 @@ impl Builder {
             }
         } else {
             for (slot, (part, extent, at)) in parts.into_iter().enumerate() {
-                children[slot] = self.subtree(part, extent, at, depth + 2, nodes);
+                children[slot] = self.subtree(part, extent, at, depth + SPLITS, nodes);
             }
         }
         nodes[index].children = children;
@@ -692,19 +764,27 @@ mod tests {
         items.build(leaf_size)
     }
 
-    /// Which of the tree's items the ray `from + t * dir` (`t` in `0..=reach`) is offered.
+    /// Which of the tree's items the ray `from + t * dir` (`t` in `0..=reach`) is offered. The
+    /// walk with the portable box test visits the same leaves in the same order as
+    /// [`RayTree::nearest_first`] (which tests boxes in AVX registers where it can).
     fn offered(tree: &RayTree, order: &[u32], from: DVec3, dir: DVec3, reach: f64) -> Vec<bool> {
+        let ray = TreeRay::new(tree.frame(), from, dir);
+        let mut visits = Vec::new();
+        tree.nearest_first(&ray, reach, |range, reach| {
+            visits.push(range);
+            reach
+        });
+        let mut portable = Vec::new();
+        let visit = |range, reach| {
+            portable.push(range);
+            reach
+        };
+        tree.walk(&ray, reach, visit, |node, limit| ray.entries(node, limit));
+        assert_eq!(visits, portable, "the two box tests disagree");
         let mut offered = vec![false; order.len()];
-        tree.nearest_first(
-            &TreeRay::new(tree.frame(), from, dir),
-            reach,
-            |range, reach| {
-                for &i in &order[range] {
-                    offered[i as usize] = true;
-                }
-                reach
-            },
-        );
+        for &i in visits.into_iter().flat_map(|range| &order[range]) {
+            offered[i as usize] = true;
+        }
         offered
     }
 
@@ -724,6 +804,47 @@ mod tests {
                 exact.intersect(a, b, c, len).is_some() && !offered[i]
             })
             .collect()
+    }
+
+    /// A side of a box for the lane tests: on a small grid (rays run along it), or nothing (an
+    /// empty slot's +∞).
+    fn side() -> impl Strategy<Value = f32> {
+        prop::sample::select(vec![-2.0, -1.0, -0.5, 0.0, 0.5, 1.0, 2.0, f32::INFINITY])
+    }
+
+    proptest! {
+        /// The AVX box test gives the portable one's answer bit for bit (the same IEEE operations
+        /// lane by lane): which boxes are met and where each is entered, on boxes with sides on
+        /// a grid the rays start on and run along, empty slots, and axis-parallel directions.
+        #[test]
+        fn avx_box_tests_match_the_portable_lanes(
+            lo in prop::array::uniform3(prop::array::uniform8(side())),
+            grow in prop::array::uniform3(prop::array::uniform8(prop::sample::select(vec![0.0f32, 0.5, 1.0]))),
+            from in prop::array::uniform3(prop::sample::select(vec![-1.0, 0.0, 0.5, 3.0])),
+            dir in prop::array::uniform3(-2i32..=2),
+            reach in prop::sample::select(vec![0.0, 0.5, 3.0, 1e6]),
+        ) {
+            prop_assume!(dir != [0, 0, 0]);
+            #[cfg(target_arch = "x86_64")]
+            if std::arch::is_x86_feature_detected!("avx") {
+                let hi: [[f32; WIDTH]; 3] =
+                    std::array::from_fn(|k| std::array::from_fn(|i| lo[k][i] + grow[k][i]));
+                let node = WideNode {
+                    lo: lo.map(Lanes::from),
+                    hi: hi.map(Lanes::from),
+                    children: [EMPTY; WIDTH],
+                };
+                let frame = RayFrame::around(DVec3::splat(-2.0), DVec3::splat(3.0));
+                let dir = DVec3::new(dir[0].into(), dir[1].into(), dir[2].into()).normalize();
+                let ray = TreeRay::new(frame, DVec3::from_array(from), dir);
+                let limit = up(reach);
+                // SAFETY: this processor has AVX (just asked).
+                let (avx_met, avx_entries) = unsafe { ray.entries_avx(&node, limit) };
+                let (met, entries) = ray.entries(&node, limit);
+                prop_assert_eq!(avx_met, met);
+                prop_assert_eq!(avx_entries.map(f32::to_bits), entries.map(f32::to_bits));
+            }
+        }
     }
 
     proptest! {
