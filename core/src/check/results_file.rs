@@ -378,18 +378,23 @@ mod tests {
         (path, file)
     }
 
+    /// A writer of `file`'s head at `out` with every one of its results pushed, not finished.
+    fn pushed(file: &ResultsFile, out: &Path) -> ResultsWriter {
+        let mut writer =
+            ResultsWriter::create(out, file.results.len(), &file.head(), None).unwrap();
+        for result in &file.results {
+            writer.push(result).unwrap();
+        }
+        writer
+    }
+
     #[test]
     fn a_streamed_file_is_the_files_text_byte_for_byte() {
         // The demo's baseline (67 probes: counts of one and two digits, so the summary is padded).
         let (path, file) = demo_baseline();
         let dir = tempfile::tempdir().unwrap();
         let out = dir.path().join("streamed.results.json");
-        let mut writer =
-            ResultsWriter::create(&out, file.results.len(), &file.head(), None).unwrap();
-        for result in &file.results {
-            writer.push(result).unwrap();
-        }
-        writer.finish(&file.summary).unwrap();
+        pushed(&file, &out).finish(&file.summary).unwrap();
         let streamed = std::fs::read_to_string(&out).unwrap();
         assert_eq!(streamed, file.to_json());
         assert_eq!(streamed, std::fs::read_to_string(&path).unwrap());
@@ -402,14 +407,9 @@ mod tests {
         let (_, file) = demo_baseline();
         let dir = tempfile::tempdir().unwrap();
         let out = dir.path().join("wrong.results.json");
-        let mut writer =
-            ResultsWriter::create(&out, file.results.len(), &file.head(), None).unwrap();
-        for result in &file.results {
-            writer.push(result).unwrap();
-        }
         let mut wrong = file.summary;
         wrong.probes = 1000;
-        assert!(writer.finish(&wrong).is_err());
+        assert!(pushed(&file, &out).finish(&wrong).is_err());
         assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 0);
     }
 
