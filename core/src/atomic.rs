@@ -65,9 +65,7 @@ impl AtomicFile {
         }
         Ok(())
     }
-}
 
-impl AtomicFile {
     /// Writes `bytes` over what was written at `offset` (the file grows only if they run past its
     /// end); later writes continue at the end.
     pub fn write_at(&mut self, offset: u64, bytes: &[u8]) -> io::Result<()> {
@@ -301,6 +299,32 @@ mod tests {
         write_with_backup(&path, b"two").unwrap();
         assert_eq!(fs::read(&path).unwrap(), b"two");
         assert_eq!(fs::read(backup_path(&path)).unwrap(), b"one");
+        assert!(leftovers(dir.path()).is_empty());
+    }
+
+    #[test]
+    fn a_file_written_early_to_disk_and_patched_at_its_head_holds_every_byte() {
+        // Writing starts early between writes, and the head is written over at the end (as a
+        // results file's summary is): the committed file holds exactly what was meant.
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("big.results.json");
+        let mut file = AtomicFile::create(&path).unwrap();
+        let mut expected = b"head:????\n".to_vec();
+        file.write_all(&expected).unwrap();
+        for k in 0..300u32 {
+            let line = format!("{k:>65535}\n");
+            file.write_all(line.as_bytes()).unwrap();
+            expected.extend_from_slice(line.as_bytes());
+            if k % 50 == 0 {
+                file.start_writeback().unwrap();
+            }
+        }
+        file.write_at(5, b"done").unwrap();
+        expected[5..9].copy_from_slice(b"done");
+        file.write_all(b"tail\n").unwrap();
+        expected.extend_from_slice(b"tail\n");
+        file.commit().unwrap();
+        assert!(fs::read(&path).unwrap() == expected);
         assert!(leftovers(dir.path()).is_empty());
     }
 
