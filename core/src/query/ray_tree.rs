@@ -134,13 +134,13 @@ pub(crate) struct RayTree {
 }
 
 /// A ray prepared for a tree's frame: its origin relative to the frame's centre, moved by the pad,
-/// and its inverse direction, in `f32` lanes.
+/// and its inverse direction, in `f32` (spread across a node's lanes as each box test needs them).
 pub(crate) struct TreeRay {
     /// Origin + pad on every axis: where the boxes' low sides are measured from.
-    from_lo: [Lanes; 3],
+    from_lo: [f32; 3],
     /// Origin − pad on every axis: where the boxes' high sides are measured from.
-    from_hi: [Lanes; 3],
-    inv_dir: [Lanes; 3],
+    from_hi: [f32; 3],
+    inv_dir: [f32; 3],
     /// The ray starts too far away for finite `f32` box tests (beyond ~1e30 m), which the padding
     /// argument needs: every item is offered instead.
     beyond_f32: bool,
@@ -161,30 +161,13 @@ impl TreeRay {
         let m = frame.extent + origin.abs().max_element();
         let beyond_f32 = m.is_nan() || m >= 1e30;
         let pad = m * (1.0 / 524_288.0) + SLACK;
-        let inv = |d: f64| {
-            let inv = 1.0 / d;
-            (if inv.abs() <= 1e30 {
-                inv
-            } else {
-                1e30f64.copysign(d)
-            }) as f32
-        };
-        let (lo, hi) = (origin + pad, origin - pad);
-        let lanes = |v: DVec3| {
-            [
-                Lanes::splat(v.x as f32),
-                Lanes::splat(v.y as f32),
-                Lanes::splat(v.z as f32),
-            ]
-        };
+        // ±∞ (a zero component) and anything beyond ±1e30 become ±1e30, keeping the sign.
+        let inv = (1.0 / dir).clamp(DVec3::splat(-1e30), DVec3::splat(1e30));
+        let single = |v: DVec3| [v.x as f32, v.y as f32, v.z as f32];
         TreeRay {
-            from_lo: lanes(lo),
-            from_hi: lanes(hi),
-            inv_dir: [
-                Lanes::splat(inv(dir.x)),
-                Lanes::splat(inv(dir.y)),
-                Lanes::splat(inv(dir.z)),
-            ],
+            from_lo: single(origin + pad),
+            from_hi: single(origin - pad),
+            inv_dir: single(inv),
             beyond_f32,
         }
     }
@@ -196,8 +179,9 @@ impl TreeRay {
         let mut near = Lanes::splat(0.0);
         let mut far = Lanes::splat(reach);
         for k in 0..3 {
-            let a = (node.lo[k] - self.from_lo[k]) * self.inv_dir[k];
-            let b = (node.hi[k] - self.from_hi[k]) * self.inv_dir[k];
+            let inv = Lanes::splat(self.inv_dir[k]);
+            let a = (node.lo[k] - Lanes::splat(self.from_lo[k])) * inv;
+            let b = (node.hi[k] - Lanes::splat(self.from_hi[k])) * inv;
             near = near.fast_max(a.fast_min(b));
             far = far.fast_min(a.fast_max(b));
         }
@@ -216,9 +200,13 @@ impl TreeRay {
         let mut near = _mm256_setzero_ps();
         let mut far = _mm256_set1_ps(reach);
         for k in 0..3 {
-            let inv = row(&self.inv_dir[k]);
-            let a = _mm256_mul_ps(_mm256_sub_ps(row(&node.lo[k]), row(&self.from_lo[k])), inv);
-            let b = _mm256_mul_ps(_mm256_sub_ps(row(&node.hi[k]), row(&self.from_hi[k])), inv);
+            let inv = _mm256_set1_ps(self.inv_dir[k]);
+            let (from_lo, from_hi) = (
+                _mm256_set1_ps(self.from_lo[k]),
+                _mm256_set1_ps(self.from_hi[k]),
+            );
+            let a = _mm256_mul_ps(_mm256_sub_ps(row(&node.lo[k]), from_lo), inv);
+            let b = _mm256_mul_ps(_mm256_sub_ps(row(&node.hi[k]), from_hi), inv);
             near = _mm256_max_ps(near, _mm256_min_ps(a, b));
             far = _mm256_min_ps(far, _mm256_max_ps(a, b));
         }
