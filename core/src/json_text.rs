@@ -415,13 +415,16 @@ mod tests {
     }
 
     proptest::proptest! {
-        /// Strings are written byte for byte as serde_json (the reference writer) writes them,
-        /// whatever bytes need escaping and wherever they fall in an eight-byte word.
+        /// Strings are written byte for byte as serde_json (the reference writer) writes them, as
+        /// values and as keys, whatever bytes need escaping and wherever they fall in a word.
         #[test]
         fn strings_are_written_as_serde_json_writes_them(s in "[ -~\u{0}-\u{1f}\u{7f}-\u{3ff}]{0,40}") {
             let mut out = String::new();
             write_string(&s, &mut out);
             proptest::prop_assert_eq!(out, serde_json::to_string(&s).unwrap());
+            let mut key = String::new();
+            write_key(&s, &mut key);
+            proptest::prop_assert_eq!(key, format!("{}: ", serde_json::to_string(&s).unwrap()));
             let escaped = s.bytes().any(|b| b < 0x20 || b == b'"' || b == b'\\');
             proptest::prop_assert_eq!(needs_escapes(s.as_bytes()), escaped);
         }
