@@ -117,8 +117,8 @@ pub(super) fn head_text(
         "probes": head.probes, "level": head.level,
         "level_digest": head.level_digest, "probes_digest": head.probes_digest,
     });
+    let map = value.as_object_mut().expect("an object");
     if let Some(part) = part {
-        let map = value.as_object_mut().expect("an object");
         map.insert(
             "shard".into(),
             serde_json::json!({
@@ -127,10 +127,17 @@ pub(super) fn head_text(
         );
         map.insert("positions".into(), serde_json::json!(part.positions));
     }
+    map.insert("summary".into(), serde_json::Value::Null);
+    map.insert("results".into(), serde_json::json!([]));
+    // Too long for one line whatever the head holds, so it ends with `"summary": null,`, then
+    // `"results": []` and the closing brace, each on its own line: the summary's own text and the
+    // results array's opening are put there instead.
     let text = to_pretty(&value);
-    // The text ends with `\n}\n`: the summary and the results array's opening go there.
-    let mut out = text[..text.len() - "\n}\n".len()].to_string();
-    out.push_str(",\n  \"summary\": ");
+    let key = "\n  \"summary\": ";
+    let at = text
+        .rfind(key)
+        .expect("a results head is laid out a member to a line");
+    let mut out = text[..at + key.len()].to_string();
     let summary_at = out.len();
     out.push_str(&summary_text(summary));
     out.push_str(",\n  \"results\": ");
@@ -172,14 +179,22 @@ pub(super) fn tail_text(count: usize) -> &'static str {
 /// [`ResultsFile::to_json`] gives for the same run.
 pub struct ResultsWriter {
     file: AtomicFile,
-    /// Where the summary's text starts, and its length.
+    /// Where the summary's text starts (its length is that of a summary of `total` probes).
     summary_at: usize,
-    summary_len: usize,
     written: usize,
     total: usize,
     entry: String,
     /// Bytes written since the system was last asked to start writing them to disk.
     unsent: usize,
+}
+
+/// A summary of `total` probes and no verdicts yet: what a streamed file's head holds until the
+/// end (its text has the final summary's length).
+fn no_verdicts(total: usize) -> Summary {
+    Summary {
+        probes: total,
+        ..Summary::default()
+    }
 }
 
 /// How many bytes of results are written between requests to start writing them to disk, so that
@@ -195,17 +210,12 @@ impl ResultsWriter {
         head: &ResultsHead,
         part: Option<&PartHead>,
     ) -> io::Result<ResultsWriter> {
-        let zeros = Summary {
-            probes: total,
-            ..Summary::default()
-        };
-        let (text, summary_at) = head_text(head, &zeros, total, part);
+        let (text, summary_at) = head_text(head, &no_verdicts(total), total, part);
         let mut file = AtomicFile::create(path)?;
         file.write_all(text.as_bytes())?;
         Ok(ResultsWriter {
             file,
             summary_at,
-            summary_len: summary_text(&zeros).len(),
             written: 0,
             total,
             entry: String::new(),
@@ -236,7 +246,9 @@ impl ResultsWriter {
             )));
         }
         let text = summary_text(summary);
-        if summary.probes != self.total || text.len() != self.summary_len {
+        if summary.probes != self.total
+            || text.len() != summary_text(&no_verdicts(self.total)).len()
+        {
             return Err(io::Error::other(format!(
                 "the summary counts {} probes, the file holds {}",
                 summary.probes, self.total
@@ -413,6 +425,23 @@ mod tests {
         assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 0);
     }
 
+    #[test]
+    fn the_shortest_head_is_still_laid_out_a_member_to_a_line() {
+        // Empty names and digests: the summary is still found, and the file reads back.
+        let head = ResultsHead {
+            probes: String::new(),
+            level: String::new(),
+            level_digest: String::new(),
+            probes_digest: String::new(),
+        };
+        let summary = no_verdicts(0);
+        let (mut text, at) = head_text(&head, &summary, 0, None);
+        assert!(text[at..].starts_with(&summary_text(&summary)), "{text}");
+        text.push_str(tail_text(0));
+        let back = parse_results(Path::new("r.json"), &text).unwrap();
+        assert_eq!((back.summary, back.results.len()), (summary, 0));
+    }
+
     proptest! {
         /// The summary's text has one length for every split of the probes between verdicts (so
         /// the file can be written before they are known), and reads back as the same counts by
@@ -431,9 +460,8 @@ mod tests {
                 unchecked: cuts[2] - cuts[1],
                 error: probes - cuts[2],
             };
-            let zeros = Summary { probes, ..Summary::default() };
             let text = summary_text(&summary);
-            prop_assert_eq!(text.len(), summary_text(&zeros).len());
+            prop_assert_eq!(text.len(), summary_text(&no_verdicts(probes)).len());
             prop_assert_eq!(serde_json::from_str::<Summary>(&text).unwrap(), summary);
         }
     }

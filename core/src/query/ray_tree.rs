@@ -375,8 +375,8 @@ impl RayTree {
         self.walk(ray, reach, leaf, |node, limit| ray.entries(node, limit));
     }
 
-    /// [`RayTree::nearest_first`] with the boxes tested in AVX registers (and the whole walk,
-    /// with `leaf`, compiled for them): the same answers.
+    /// [`RayTree::nearest_first`] with the boxes tested in AVX registers (the walk is compiled
+    /// for them; `leaf`, called from it, need not be): the same answers.
     #[cfg(target_arch = "x86_64")]
     #[target_feature(enable = "avx")]
     fn nearest_first_avx(
