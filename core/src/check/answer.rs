@@ -256,7 +256,7 @@ fn overlap_records(
 /// Where triangle `number` of a mesh object is in the user's file (nothing for a list of triangles
 /// written in the level file, whose number is the place).
 fn source_record(world: &World, object: ObjectId, number: u32) -> Option<SourceRecord> {
-    let file = world.source_file(object).map(str::to_string);
+    let file = world.source_file(object).cloned();
     match world.face_place(object, number)? {
         FacePlace::Listed => None,
         FacePlace::Obj {

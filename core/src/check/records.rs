@@ -76,7 +76,7 @@ pub struct RayHitRecord {
 pub struct SourceRecord {
     /// The mesh file, as the level names it.
     #[serde(default)]
-    pub file: Option<String>,
+    pub file: Option<Arc<str>>,
     /// OBJ: the face's line (1-based).
     #[serde(default)]
     pub line: Option<u32>,
@@ -103,7 +103,7 @@ impl SourceRecord {
     pub fn describe(&self) -> String {
         let mut parts = Vec::new();
         if let Some(file) = &self.file {
-            parts.push(file.clone());
+            parts.push(file.to_string());
         }
         let mut place = Vec::new();
         if let Some(line) = self.line {
@@ -451,179 +451,169 @@ pub(super) fn push_object_and_way<'a>(
 }
 
 /// The records as the results file lays them out (the one writer of results; reading is serde's):
-/// built as borrowed JSON, without intermediate values.
+/// each offers its fields in order to the layout's passes, without a tree.
 mod layout {
     use super::*;
-    use crate::json_text::Json;
-
-    use super::tags_json as tags;
+    use crate::json_text::{Brackets, Layout, Members, Trees, key};
 
     /// The triangle, where it is in the file, and the material, each when known.
-    fn face_fields<'a>(
+    fn face_members<M: Members>(
+        m: &mut M,
         triangle: Option<u32>,
-        source: &'a Option<SourceRecord>,
-        material: &'a Option<Arc<str>>,
-        f: &mut Vec<(&'static str, Json<'a>)>,
+        source: &Option<SourceRecord>,
+        material: &Option<Arc<str>>,
     ) {
         if let Some(t) = triangle {
-            f.push(("triangle", Json::int(u64::from(t))));
+            m.uint(key!("triangle"), u64::from(t));
         }
         if let Some(s) = source {
-            let mut fields = Vec::with_capacity(7);
-            if let Some(file) = &s.file {
-                fields.push(("file", Json::Str(file)));
+            m.nested(key!("source"), s);
+        }
+        if let Some(material) = material {
+            m.str(key!("material"), material);
+        }
+    }
+
+    impl Layout for SourceRecord {
+        const BRACKETS: Brackets = Brackets::Object;
+
+        fn members<M: Members>(&self, m: &mut M) {
+            if let Some(file) = &self.file {
+                m.str(key!("file"), file);
             }
             for (key, value) in [
-                ("line", s.line),
-                ("face", s.face),
-                ("fan", s.fan),
-                ("mesh", s.mesh),
-                ("primitive", s.primitive),
-                ("triangle", s.triangle),
+                (key!("line"), self.line),
+                (key!("face"), self.face),
+                (key!("fan"), self.fan),
+                (key!("mesh"), self.mesh),
+                (key!("primitive"), self.primitive),
+                (key!("triangle"), self.triangle),
             ] {
                 if let Some(v) = value {
-                    fields.push((key, Json::int(u64::from(v))));
+                    m.uint(key, u64::from(v));
                 }
             }
-            f.push(("source", Json::Obj(fields)));
-        }
-        if let Some(m) = material {
-            f.push(("material", Json::Str(m)));
         }
     }
 
-    impl RayHitRecord {
-        /// This record as laid out in results files.
-        pub fn to_json(&self) -> Json<'_> {
-            // Room for every field a ray hit may have, so that none is added by reallocating.
-            let mut f = Vec::with_capacity(10);
-            f.extend([
-                ("object", Json::Str(&self.object)),
-                ("tags", tags(&self.tags)),
-                ("distance", Json::float(self.distance)),
-                ("t", Json::float(self.t)),
-                ("point", Json::vec3(self.point)),
-                ("normal", Json::vec3(self.normal)),
-            ]);
-            face_fields(self.triangle, &self.source, &self.material, &mut f);
+    impl Layout for RayHitRecord {
+        const BRACKETS: Brackets = Brackets::Object;
+
+        fn members<M: Members>(&self, m: &mut M) {
+            m.str(key!("object"), &self.object);
+            m.strs(key!("tags"), &self.tags);
+            m.float(key!("distance"), self.distance);
+            m.float(key!("t"), self.t);
+            m.vec3(key!("point"), self.point);
+            m.vec3(key!("normal"), self.normal);
+            face_members(m, self.triangle, &self.source, &self.material);
             if self.back_face {
-                f.push(("back_face", Json::Bool(true)));
+                m.boolean(key!("back_face"), true);
             }
-            Json::Obj(f)
         }
     }
 
-    impl SweepHitRecord {
-        /// This record as laid out in results files.
-        pub fn to_json(&self) -> Json<'_> {
-            let mut f = vec![
-                ("object", Json::Str(&self.object)),
-                ("tags", tags(&self.tags)),
-                ("distance", Json::float(self.distance)),
-                ("t", Json::float(self.t)),
-                ("segment", Json::int(self.segment as u64)),
-            ];
+    impl Layout for SweepHitRecord {
+        const BRACKETS: Brackets = Brackets::Object;
+
+        fn members<M: Members>(&self, m: &mut M) {
+            m.str(key!("object"), &self.object);
+            m.strs(key!("tags"), &self.tags);
+            m.float(key!("distance"), self.distance);
+            m.float(key!("t"), self.t);
+            m.uint(key!("segment"), self.segment as u64);
             if let Some(time) = self.time {
-                f.push(("time", Json::float(time)));
+                m.float(key!("time"), time);
             }
-            f.push(("position", Json::vec3(self.position)));
-            if let Some(q) = self.rotation {
-                f.push((
-                    "rotation",
-                    Json::Arr(q.iter().map(|c| Json::float(*c)).collect()),
-                ));
+            m.vec3(key!("position"), self.position);
+            if let Some(q) = &self.rotation {
+                m.nested(key!("rotation"), &q[..]);
             }
-            f.push(("point", Json::vec3(self.point)));
-            f.push(("normal", Json::vec3(self.normal)));
+            m.vec3(key!("point"), self.point);
+            m.vec3(key!("normal"), self.normal);
             if self.started_inside {
-                f.push(("started_inside", Json::Bool(true)));
+                m.boolean(key!("started_inside"), true);
             }
-            face_fields(self.triangle, &self.source, &self.material, &mut f);
-            Json::Obj(f)
+            face_members(m, self.triangle, &self.source, &self.material);
         }
     }
 
-    impl ClosestRecord {
-        /// This record as laid out in results files.
-        pub fn to_json(&self) -> Json<'_> {
-            let mut f = vec![
-                ("object", Json::Str(&self.object)),
-                ("tags", tags(&self.tags)),
-                ("distance", Json::float(self.distance)),
-                ("point", Json::vec3(self.point)),
-                ("shape_point", Json::vec3(self.shape_point)),
-                ("normal", Json::vec3(self.normal)),
-            ];
+    impl Layout for ClosestRecord {
+        const BRACKETS: Brackets = Brackets::Object;
+
+        fn members<M: Members>(&self, m: &mut M) {
+            m.str(key!("object"), &self.object);
+            m.strs(key!("tags"), &self.tags);
+            m.float(key!("distance"), self.distance);
+            m.vec3(key!("point"), self.point);
+            m.vec3(key!("shape_point"), self.shape_point);
+            m.vec3(key!("normal"), self.normal);
             if self.overlapping {
-                f.push(("overlapping", Json::Bool(true)));
+                m.boolean(key!("overlapping"), true);
             }
-            face_fields(None, &None, &self.material, &mut f);
-            Json::Obj(f)
+            face_members(m, None, &None, &self.material);
         }
     }
 
-    impl OverlapRecord {
-        /// This record as laid out in results files.
-        pub fn to_json(&self) -> Json<'_> {
-            let mut f = vec![
-                ("object", Json::Str(&self.object)),
-                ("tags", tags(&self.tags)),
-                ("depth", Json::float(self.depth)),
-                ("direction", Json::vec3(self.direction)),
-                ("point", Json::vec3(self.point)),
-            ];
+    impl Layout for OverlapRecord {
+        const BRACKETS: Brackets = Brackets::Object;
+
+        fn members<M: Members>(&self, m: &mut M) {
+            m.str(key!("object"), &self.object);
+            m.strs(key!("tags"), &self.tags);
+            m.float(key!("depth"), self.depth);
+            m.vec3(key!("direction"), self.direction);
+            m.vec3(key!("point"), self.point);
             if self.enclosed {
-                f.push(("enclosed", Json::Bool(true)));
+                m.boolean(key!("enclosed"), true);
             }
-            face_fields(None, &None, &self.material, &mut f);
-            Json::Obj(f)
+            face_members(m, None, &None, &self.material);
         }
     }
 
-    impl ClearanceRecord {
-        /// This record as laid out in results files.
-        pub fn to_json(&self) -> Json<'_> {
-            Json::Obj(vec![
-                ("distance", Json::float(self.distance)),
-                ("t", Json::float(self.t)),
-                ("position", Json::vec3(self.position)),
-                ("object", Json::Str(&self.object)),
-                ("point", Json::vec3(self.point)),
-            ])
+    impl Layout for ClearanceRecord {
+        const BRACKETS: Brackets = Brackets::Object;
+
+        fn members<M: Members>(&self, m: &mut M) {
+            m.float(key!("distance"), self.distance);
+            m.float(key!("t"), self.t);
+            m.vec3(key!("position"), self.position);
+            m.str(key!("object"), &self.object);
+            m.vec3(key!("point"), self.point);
         }
     }
 
-    impl ProbeResult {
-        /// This result as laid out in results files.
-        pub fn to_json(&self) -> Json<'_> {
-            let hits = match &self.hits {
-                Hits::Ray(h) => h.iter().map(RayHitRecord::to_json).collect(),
-                Hits::Sweep(h) => h.iter().map(SweepHitRecord::to_json).collect(),
-                Hits::Closest(h) => h.iter().map(ClosestRecord::to_json).collect(),
-                Hits::Overlap(h) => h.iter().map(OverlapRecord::to_json).collect(),
-                Hits::Rest(h) => h.iter().map(RestRecord::to_json).collect(),
-                Hits::Sightlines(h) => h.iter().map(PairRecord::to_json).collect(),
-                Hits::Coverage(h) => h.iter().map(CoverageRecord::to_json).collect(),
-                Hits::Jump(h) => h.iter().map(JumpRecord::to_json).collect(),
-                Hits::Walk(h) => h.iter().map(WalkRecord::to_json).collect(),
-                Hits::Reach(h) => h.iter().map(ReachRecord::to_json).collect(),
-                Hits::Settle(h) => h.iter().map(SettleRecord::to_json).collect(),
-            };
-            let mut f = vec![
-                ("id", Json::Str(&self.id)),
-                ("kind", Json::Str(self.kind.name())),
-                ("verdict", Json::Str(self.verdict.word())),
-                ("reason", Json::Str(&self.reason)),
-                ("hits", Json::Arr(hits)),
-            ];
+    impl Layout for ProbeResult {
+        const BRACKETS: Brackets = Brackets::Object;
+
+        fn members<M: Members>(&self, m: &mut M) {
+            m.str(key!("id"), &self.id);
+            m.str(key!("kind"), self.kind.name());
+            m.str(key!("verdict"), self.verdict.word());
+            m.str(key!("reason"), &self.reason);
+            let hits = key!("hits");
+            match &self.hits {
+                Hits::Ray(h) => m.nested(hits, h.as_slice()),
+                Hits::Sweep(h) => m.nested(hits, h.as_slice()),
+                Hits::Closest(h) => m.nested(hits, h.as_slice()),
+                Hits::Overlap(h) => m.nested(hits, h.as_slice()),
+                Hits::Rest(h) => m.nested(hits, &Trees(h, RestRecord::to_json)),
+                Hits::Sightlines(h) => m.nested(hits, &Trees(h, PairRecord::to_json)),
+                Hits::Coverage(h) => m.nested(hits, &Trees(h, CoverageRecord::to_json)),
+                Hits::Jump(h) => m.nested(hits, &Trees(h, JumpRecord::to_json)),
+                Hits::Walk(h) => m.nested(hits, &Trees(h, WalkRecord::to_json)),
+                Hits::Reach(h) => m.nested(hits, &Trees(h, ReachRecord::to_json)),
+                Hits::Settle(h) => m.nested(hits, &Trees(h, SettleRecord::to_json)),
+            }
             if let Some(c) = &self.clearance {
-                f.push(("clearance", c.to_json()));
+                m.nested(key!("clearance"), c);
             }
             if !self.volumes.is_empty() {
-                let volumes = self.volumes.iter().map(VolumeRecord::to_json).collect();
-                f.push(("volumes", Json::Arr(volumes)));
+                m.nested(
+                    key!("volumes"),
+                    &Trees(&self.volumes, VolumeRecord::to_json),
+                );
             }
-            Json::Obj(f)
         }
     }
 }

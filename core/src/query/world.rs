@@ -319,8 +319,8 @@ impl World {
     }
 
     /// The mesh file an object's triangles come from, as the level names it.
-    pub fn source_file(&self, id: ObjectId) -> Option<&str> {
-        self.objects[id].origin.as_ref()?.file.as_deref()
+    pub fn source_file(&self, id: ObjectId) -> Option<&Arc<str>> {
+        self.objects[id].origin.as_ref()?.file.as_ref()
     }
 
     /// Where triangle `number` (as the file numbers it) of a mesh object is in its file.

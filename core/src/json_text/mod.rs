@@ -1,0 +1,328 @@
+//! JSON as the program writes it for people to read and review: two-space indents, with short
+//! arrays and objects (vectors, shapes, ranges) kept on one line. Stable: the same value gives the
+//! same bytes.
+
+use serde_json::{Number, Value};
+
+mod layout;
+mod scalars;
+
+pub(crate) use layout::key;
+pub use layout::{Brackets, Key, Layout, Members, Scalar, Trees, write_layout};
+pub use scalars::is_plain_key;
+
+/// A JSON value that borrows its text: what the writer lays out. Records build it without the
+/// allocations of a `serde_json::Value` (no owned keys, no maps).
+#[derive(Debug, Clone, PartialEq)]
+pub enum Json<'a> {
+    /// `null`.
+    Null,
+    /// `true` or `false`.
+    Bool(bool),
+    /// A number, formatted as serde_json formats it.
+    Num(Number),
+    /// A float, written as [`Json::Num`] writes one (`null` when not finite): records' lengths,
+    /// fractions and coordinates, without a `Number` made for each.
+    Float(f64),
+    /// A string.
+    Str(&'a str),
+    /// An array.
+    Arr(Vec<Json<'a>>),
+    /// An object, keys in order.
+    Obj(Vec<(&'a str, Json<'a>)>),
+    /// Three floats, an array written as [`Json::vec3`] describes (no allocation: records hold
+    /// many points and normals).
+    Vec3([f64; 3]),
+    /// A list of strings (tags, names), an array of them (no allocation).
+    Strs(&'a [String]),
+}
+
+impl Json<'_> {
+    /// A float (`null` when not finite, as serde_json writes it).
+    pub fn float(x: f64) -> Json<'static> {
+        Json::Float(x)
+    }
+
+    /// A whole number.
+    pub fn int(x: u64) -> Json<'static> {
+        Json::Num(Number::from(x))
+    }
+
+    /// Three floats, a vector: an array of three numbers, each `null` when not finite.
+    pub fn vec3(v: [f64; 3]) -> Json<'static> {
+        Json::Vec3(v)
+    }
+}
+
+impl<'a> From<&'a Value> for Json<'a> {
+    fn from(value: &'a Value) -> Json<'a> {
+        match value {
+            Value::Null => Json::Null,
+            Value::Bool(b) => Json::Bool(*b),
+            Value::Number(n) => Json::Num(n.clone()),
+            Value::String(s) => Json::Str(s),
+            Value::Array(items) => Json::Arr(items.iter().map(Json::from).collect()),
+            Value::Object(map) => Json::Obj(
+                map.iter()
+                    .map(|(k, v)| (k.as_str(), Json::from(v)))
+                    .collect(),
+            ),
+        }
+    }
+}
+
+/// Formats a JSON value for a file, ending with a newline.
+pub fn to_pretty(value: &Value) -> String {
+    let mut out = String::new();
+    write_pretty(&Json::from(value), 0, &mut out);
+    out.push('\n');
+    out
+}
+
+/// Writes a value laid out as [`to_pretty`] does, as if it stood `depth` levels deep (no newline).
+pub fn write_pretty(value: &Json, depth: usize, out: &mut String) {
+    match value {
+        Json::Arr(items) => write_layout(items.as_slice(), depth, out),
+        Json::Obj(fields) => write_layout(fields.as_slice(), depth, out),
+        Json::Vec3(v) => write_layout(&v[..], depth, out),
+        Json::Strs(items) => write_layout(*items, depth, out),
+        // A scalar stands on one line however long it is.
+        Json::Null => out.push_str("null"),
+        Json::Bool(b) => out.push_str(if *b { "true" } else { "false" }),
+        Json::Num(n) => scalars::write_number(n, out),
+        Json::Float(x) => scalars::write_float(*x, out),
+        Json::Str(s) => scalars::write_string(s, out),
+    }
+}
+
+/// Rounds a length, fraction or coordinate for output: nine decimals (a nanometre), and never `-0`.
+pub fn round9(x: f64) -> f64 {
+    let r = (x * 1e9).round() / 1e9;
+    if r == 0.0 { 0.0 } else { r }
+}
+
+/// [`round9`] on each component.
+pub fn round9_vec(v: glam::DVec3) -> [f64; 3] {
+    [round9(v.x), round9(v.y), round9(v.z)]
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use serde_json::json;
+
+    #[test]
+    fn vectors_inline_and_records_broken() {
+        let v = json!({"a": [1.0, 2.5, 3.0], "b": {"type": "sphere", "radius": 0.3}, "c": [{"x": 1}, {"y": "a,b"}]});
+        let deep = json!({"hits": [{"point": [1.0, 2.0, 3.0]}]});
+        assert_eq!(
+            to_pretty(&deep),
+            "{\n  \"hits\": [\n    {\"point\": [1.0, 2.0, 3.0]}\n  ]\n}\n"
+        );
+        let text = to_pretty(&v);
+        assert_eq!(
+            text,
+            "{\n  \"a\": [1.0, 2.5, 3.0],\n  \"b\": {\"type\": \"sphere\", \"radius\": 0.3},\n  \"c\": [{\"x\": 1}, {\"y\": \"a,b\"}]\n}\n"
+        );
+        assert_eq!(serde_json::from_str::<Value>(&text).unwrap(), v);
+    }
+
+    /// Random JSON values: scalars of every kind, and arrays and objects of them.
+    fn json_value() -> impl proptest::strategy::Strategy<Value = Value> {
+        use proptest::prelude::*;
+        let scalar = prop_oneof![
+            Just(Value::Null),
+            any::<bool>().prop_map(Value::Bool),
+            any::<u64>().prop_map(Value::from),
+            any::<i64>().prop_map(Value::from),
+            any::<f64>().prop_map(Value::from),
+            "[a-z\\\"é ]{0,12}".prop_map(Value::from),
+        ];
+        scalar.prop_recursive(3, 40, 6, |inner| {
+            prop_oneof![
+                prop::collection::vec(inner.clone(), 0..6).prop_map(Value::Array),
+                prop::collection::vec(("[a-z_]{1,10}", inner), 0..6)
+                    .prop_map(|fields| Value::Object(fields.into_iter().collect())),
+            ]
+        })
+    }
+
+    /// Small values nested up to four levels: short enough that many fit on one line near the
+    /// width, and deep enough to meet the two-level limit.
+    fn small_value() -> impl proptest::strategy::Strategy<Value = Value> {
+        use proptest::prelude::*;
+        let scalar = prop_oneof![
+            Just(Value::Null),
+            (0u64..100).prop_map(Value::from),
+            "[a-z]{0,3}".prop_map(Value::from),
+        ];
+        scalar.prop_recursive(4, 24, 3, |inner| {
+            prop_oneof![
+                prop::collection::vec(inner.clone(), 0..4).prop_map(Value::Array),
+                prop::collection::vec(("[a-z]{1,2}", inner), 0..4)
+                    .prop_map(|fields| Value::Object(fields.into_iter().collect())),
+            ]
+        })
+    }
+
+    /// How many levels of arrays and objects a value has (a scalar none).
+    fn levels(value: &Value) -> usize {
+        match value {
+            Value::Array(items) => 1 + items.iter().map(levels).max().unwrap_or(0),
+            Value::Object(map) => 1 + map.values().map(levels).max().unwrap_or(0),
+            _ => 0,
+        }
+    }
+
+    /// A value on one line: serde_json's scalars and keys, `, ` between members, `: ` after keys.
+    fn one_line(value: &Value) -> String {
+        let key = |k: &String| serde_json::to_string(k).unwrap();
+        match value {
+            Value::Array(items) => {
+                let items: Vec<String> = items.iter().map(one_line).collect();
+                format!("[{}]", items.join(", "))
+            }
+            Value::Object(map) => {
+                let fields: Vec<String> = map
+                    .iter()
+                    .map(|(k, v)| format!("{}: {}", key(k), one_line(v)))
+                    .collect();
+                format!("{{{}}}", fields.join(", "))
+            }
+            scalar => serde_json::to_string(scalar).unwrap(),
+        }
+    }
+
+    /// The layout rule, written out plainly over serde_json's values as the reference: a scalar as
+    /// serde_json writes it; an array or object on one line when it nests at most two levels and
+    /// that line is at most `100 - 2 × depth` long; otherwise a member to a line, each laid out
+    /// one level deeper, and the closing bracket on a line of its own.
+    fn reference(value: &Value, depth: usize) -> String {
+        let key = |k: &String| serde_json::to_string(k).unwrap();
+        let line = one_line(value);
+        let (open, close, members): (char, char, Vec<String>) = match value {
+            Value::Array(items) => (
+                '[',
+                ']',
+                items.iter().map(|v| reference(v, depth + 1)).collect(),
+            ),
+            Value::Object(map) => (
+                '{',
+                '}',
+                map.iter()
+                    .map(|(k, v)| format!("{}: {}", key(k), reference(v, depth + 1)))
+                    .collect(),
+            ),
+            _ => return line,
+        };
+        if levels(value) <= 2 && line.len() <= 100usize.saturating_sub(2 * depth) {
+            return line;
+        }
+        // Each member on its own line; an empty one (too deep for its width) still breaks.
+        let pad = "  ".repeat(depth + 1);
+        let lines: String = members
+            .iter()
+            .map(|m| format!("{pad}{m}"))
+            .collect::<Vec<_>>()
+            .join(",\n");
+        let lines = if members.is_empty() {
+            lines
+        } else {
+            lines + "\n"
+        };
+        format!("{open}\n{lines}{}{close}", "  ".repeat(depth))
+    }
+
+    proptest::proptest! {
+        /// Values are laid out as the plainly written rule lays them out, at any depth and at the
+        /// two depths where the value's own line just fits and just does not, and read back as
+        /// the same value by serde_json (RFC 8259).
+        #[test]
+        fn values_are_laid_out_by_the_rule(
+            value in proptest::prop_oneof![json_value(), small_value()],
+            depth in 0usize..55,
+        ) {
+            let edge = 100usize.saturating_sub(one_line(&value).len()) / 2;
+            for depth in [depth, edge, edge + 1] {
+                let mut out = String::new();
+                write_pretty(&Json::from(&value), depth, &mut out);
+                proptest::prop_assert_eq!(&out, &reference(&value, depth));
+                proptest::prop_assert_eq!(serde_json::from_str::<Value>(&out).unwrap(), value.clone());
+            }
+        }
+    }
+
+    proptest::proptest! {
+        /// A float is laid out exactly as the serde_json `Number` (or `null`) it stands for, on
+        /// one line or broken up, at any depth, NaN, infinities, −0 and subnormals included.
+        #[test]
+        fn floats_are_laid_out_as_the_numbers_they_stand_for(
+            bits in proptest::prelude::any::<[u64; 3]>(),
+            special in 0usize..6,
+            depth in 0usize..60,
+        ) {
+            // What `Json::float` gave before it had its own variant: serde_json's `Number`, or
+            // `null` where that has none.
+            let number = |x: f64| Number::from_f64(x).map_or(Json::Null, Json::Num);
+            let odd = [f64::NAN, f64::INFINITY, f64::NEG_INFINITY, -0.0, 1e300, 5e-324][special];
+            let xs = [f64::from_bits(bits[0]), f64::from_bits(bits[1]), odd, f64::from_bits(bits[2])];
+            let record = |f: &dyn Fn(f64) -> Json<'static>| {
+                Json::Obj(vec![
+                    ("distance", f(xs[0])),
+                    ("list", Json::Arr(xs.iter().map(|&x| f(x)).collect())),
+                    ("inner", Json::Obj(vec![("t", f(xs[2])), ("u", f(xs[3]))])),
+                ])
+            };
+            let (mut a, mut b) = (String::new(), String::new());
+            write_pretty(&record(&Json::float), depth, &mut a);
+            write_pretty(&record(&number), depth, &mut b);
+            proptest::prop_assert_eq!(a, b);
+        }
+
+        /// A vector is written exactly as the array of its three numbers, on one line or broken
+        /// up (deep enough that it no longer fits), alone or inside objects (nested too deep for
+        /// one line at two levels).
+        #[test]
+        fn vectors_are_written_as_arrays_of_numbers(bits in proptest::prelude::any::<[u64; 3]>(), depth in 0usize..60) {
+            let v = bits.map(f64::from_bits);
+            let as_array = Json::Arr(v.iter().map(|x| Json::float(*x)).collect());
+            let within = |inner| Json::Obj(vec![("p", inner)]);
+            for (vector, array) in [
+                (Json::vec3(v), as_array.clone()),
+                (within(Json::vec3(v)), within(as_array.clone())),
+                (within(within(Json::vec3(v))), within(within(as_array))),
+            ] {
+                let (mut a, mut b) = (String::new(), String::new());
+                write_pretty(&vector, depth, &mut a);
+                write_pretty(&array, depth, &mut b);
+                proptest::prop_assert_eq!(a, b);
+            }
+        }
+    }
+
+    proptest::proptest! {
+        /// A list of strings is written exactly as the array of its strings, on one line or
+        /// broken up, alone or nested too deep for one line.
+        #[test]
+        fn string_lists_are_written_as_arrays_of_strings(items in proptest::collection::vec("[a-z\"é ]{0,12}", 0..8), depth in 0usize..50) {
+            let as_array = Json::Arr(items.iter().map(|s| Json::Str(s)).collect());
+            let within = |inner| Json::Obj(vec![("tags", inner)]);
+            for (list, array) in [
+                (Json::Strs(&items), as_array.clone()),
+                (within(within(Json::Strs(&items))), within(within(as_array))),
+            ] {
+                let (mut a, mut b) = (String::new(), String::new());
+                write_pretty(&list, depth, &mut a);
+                write_pretty(&array, depth, &mut b);
+                proptest::prop_assert_eq!(a, b);
+            }
+        }
+    }
+
+    #[test]
+    fn rounding_is_stable() {
+        assert_eq!(round9(-1e-12), 0.0);
+        assert!(round9(-1e-12).is_sign_positive());
+        assert_eq!(round9(23.9140000000004), 23.914);
+    }
+}
