@@ -7,6 +7,7 @@ use std::borrow::Cow;
 use std::collections::HashSet;
 use std::ops::Range;
 use std::path::{Path, PathBuf};
+use std::sync::Mutex;
 
 use super::model::{Probe, ProbeSet};
 use super::parse::parse_probe;
@@ -25,7 +26,7 @@ pub const CHECKED_WHOLE: usize = 8192;
 
 /// A checked probe-set file: its ids are unique and its first [`CHECKED_WHOLE`] probes valid; any
 /// other probe is checked whole whenever it is parsed (every way of getting probes parses them).
-#[derive(Debug, Clone)]
+#[derive(Debug)]
 pub struct ProbeText {
     path: PathBuf,
     text: String,
@@ -40,6 +41,9 @@ pub struct ProbeText {
     rules: Vec<Rule>,
     /// The `$schema` the file names.
     schema: Option<String>,
+    /// The first probes, parsed when the file was checked, kept until they are first asked for
+    /// (the first chunk a check answers): those are not parsed twice.
+    first: Mutex<Vec<Probe>>,
 }
 
 impl ProbeText {
@@ -113,6 +117,7 @@ impl ProbeText {
             longest_id: 0,
             digest: String::new(),
             rules,
+            first: Mutex::default(),
         };
         Ok((unchecked, rule_spans))
     }
@@ -124,15 +129,20 @@ impl ProbeText {
             || self.check_every_probe(rule_spans),
             || text_digest(self.text.as_bytes()),
         );
-        self.longest_id = longest?;
+        let (longest, first) = longest?;
+        self.longest_id = longest;
+        self.first = Mutex::new(first);
         self.digest = digest;
         Ok(self)
     }
 
     /// Checks the ids of every probe (unique among probes and rules) and the first
-    /// [`CHECKED_WHOLE`] probes whole; returns the length of the longest id. The first error in
-    /// file order wins.
-    fn check_every_probe(&self, rule_spans: &[(usize, usize)]) -> Result<usize, InputError> {
+    /// [`CHECKED_WHOLE`] probes whole; returns the length of the longest id and those probes. The
+    /// first error in file order wins.
+    fn check_every_probe(
+        &self,
+        rule_spans: &[(usize, usize)],
+    ) -> Result<(usize, Vec<Probe>), InputError> {
         let mut ids: HashSet<Cow<'_, str>, foldhash::fast::RandomState> =
             HashSet::with_capacity_and_hasher(self.spans.len(), Default::default());
         for (rule, &(start, end)) in self.rules.iter().zip(rule_spans) {
@@ -148,10 +158,16 @@ impl ProbeText {
         let mut whole = self
             .parse_each(0..self.spans.len().min(CHECKED_WHOLE))
             .into_iter();
+        let mut first = Vec::with_capacity(whole.len());
         let mut longest = 0;
         for k in 0..self.spans.len() {
             let id = match whole.next() {
-                Some(parsed) => Cow::Owned(parsed?.id),
+                Some(parsed) => {
+                    let probe = parsed?;
+                    let id = Cow::Owned(probe.id.clone());
+                    first.push(probe);
+                    id
+                }
                 None => self.id_of(k)?,
             };
             longest = longest.max(characters(&id));
@@ -166,7 +182,7 @@ impl ProbeText {
                 ));
             }
         }
-        Ok(longest)
+        Ok((longest, first))
     }
 
     /// Probe `k`'s id: found in its text without parsing the rest, or, where the text is not
@@ -205,8 +221,15 @@ impl ProbeText {
         self.spans.is_empty()
     }
 
-    /// The probes in `range` (of file order), parsed.
+    /// The probes in `range` (of file order), parsed (the first ones, parsed when the file was
+    /// checked, are handed over the first time exactly they are asked for).
     pub fn probes(&self, range: Range<usize>) -> Result<Vec<Probe>, InputError> {
+        {
+            let mut first = self.first.lock().unwrap_or_else(|e| e.into_inner());
+            if range.start == 0 && range.end == first.len() && !first.is_empty() {
+                return Ok(std::mem::take(&mut *first));
+            }
+        }
         self.parse_each(range).into_iter().collect()
     }
 
@@ -318,5 +341,36 @@ mod tests {
             turns: None,
         };
         assert!(validate_probe(&probe).is_err(), "a path needs two points");
+    }
+
+    /// The first probes, parsed when the file is checked, are handed over once and are the
+    /// probes a later parse gives; ranges that are not exactly them are parsed.
+    #[test]
+    fn the_first_probes_are_parsed_once_and_handed_over_whole() {
+        let probes: Vec<String> = (0..5)
+            .map(|k| {
+                format!(
+                    r#"{{"id": "p{k}", "kind": "ray", "from": [{k}, 0, 0], "to": [{k}, 1, 0]}}"#
+                )
+            })
+            .collect();
+        let text = format!(
+            r#"{{"plumbline": "probes", "version": 1, "level": "l.level.json", "probes": [{}]}}"#,
+            probes.join(", ")
+        );
+        let set = ProbeText::parse(Path::new("set"), text).unwrap();
+        assert_eq!(set.first.lock().unwrap().len(), 5);
+        let part = set.probes(1..3).unwrap();
+        assert_eq!(
+            set.first.lock().unwrap().len(),
+            5,
+            "a part is parsed, not taken"
+        );
+        let handed = set.probes(0..5).unwrap();
+        assert!(set.first.lock().unwrap().is_empty());
+        let parsed = set.probes(0..5).unwrap();
+        assert_eq!(handed, parsed);
+        assert_eq!(&parsed[1..3], &part[..]);
+        assert_eq!(parsed[4].id, "p4");
     }
 }
