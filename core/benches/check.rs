@@ -3,10 +3,13 @@
 //! thread; and the same run on two threads. Then the merge of that run split into four shards'
 //! partial results files. Figures are in the README.
 
+#[path = "common/bare.rs"]
+mod bare;
 mod common;
 
+use bare::bare_queries;
+
 use criterion::{BenchmarkId, Criterion, criterion_group, criterion_main};
-use glam::DQuat;
 use plumbline_core::check::{
     PartHead, ResultsFile, ResultsHead, ResultsWriter, Shard, Summary, assign, expected_cost,
     merge, run_probes, text_digest,
@@ -16,7 +19,7 @@ use plumbline_core::level::{ShapeSpec, level_digest};
 use plumbline_core::probe::{
     Expect, ExpectWord, HitsMode, Probe, ProbeQuery, ProbeSet, probe_set_to_json,
 };
-use plumbline_core::query::{ClosestProbe, Filter, ProbeShape, World};
+use plumbline_core::query::{Filter, World};
 
 const PROBES: usize = 100_000;
 
@@ -89,46 +92,6 @@ fn probes() -> Vec<Probe> {
             }
         })
         .collect()
-}
-
-/// The bare query calls for the same probes, with nothing recorded.
-fn bare_queries(world: &World, probes: &[Probe]) -> usize {
-    let view = world.everything();
-    let mut found = 0;
-    for probe in probes {
-        found += match &probe.query {
-            ProbeQuery::Ray {
-                from,
-                to,
-                hits: None,
-            } => view.ray_first(*from, *to).unwrap().is_some() as usize,
-            ProbeQuery::Ray { from, to, .. } => view.ray_all(*from, *to).unwrap().len(),
-            ProbeQuery::Sweep { shape, path, .. } => {
-                let shape = ProbeShape::new(shape, DQuat::IDENTITY).unwrap();
-                view.sweep_first(&shape, path).unwrap().is_some() as usize
-            }
-            ProbeQuery::Closest {
-                at, max_distance, ..
-            } => view
-                .closest(ClosestProbe::Point, *at, *max_distance)
-                .unwrap()
-                .is_some() as usize,
-            ProbeQuery::Overlap { shape, at, .. } => {
-                let shape = ProbeShape::new(shape, DQuat::IDENTITY).unwrap();
-                view.overlap(&shape, *at).unwrap().len()
-            }
-            ProbeQuery::Rest { .. }
-            | ProbeQuery::Sightlines { .. }
-            | ProbeQuery::Coverage { .. }
-            | ProbeQuery::Jump { .. }
-            | ProbeQuery::Walk { .. }
-            | ProbeQuery::Settle { .. }
-            | ProbeQuery::Reach { .. } => {
-                unreachable!("the generated probes are single queries")
-            }
-        };
-    }
-    found
 }
 
 fn bench(c: &mut Criterion) {
