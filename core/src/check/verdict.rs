@@ -36,13 +36,27 @@ pub fn judge(
     }
 }
 
-/// A sentence written straight into a string with room for most reasons (`format!` guesses the
-/// room from the literal text alone, and grows the string once or twice more for a typical one).
-fn sentence(parts: fmt::Arguments) -> String {
-    use fmt::Write;
+/// One part of a reason: words, an object as [`named`] names it, or a length as [`metres`] writes
+/// it.
+enum Part<'a> {
+    Text(&'a str),
+    Named(Named<'a>),
+    Metres(f64),
+}
+
+/// A reason written from its parts straight into a string with room for most reasons, without the
+/// formatter (a check words one for every probe).
+fn sentence(parts: &[Part]) -> String {
     let mut out = String::with_capacity(64);
-    out.write_fmt(parts)
-        .expect("writing to a String cannot fail");
+    for part in parts {
+        match part {
+            Part::Text(text) => out.push_str(text),
+            Part::Named(named) => named.push_to(&mut out),
+            Part::Metres(x) => {
+                write_metres(*x, &mut out).expect("writing to a String cannot fail");
+            }
+        }
+    }
     out
 }
 
@@ -136,37 +150,52 @@ fn describe(hits: &Hits, clearance: Option<&ClearanceRecord>) -> String {
     } else {
         String::new()
     };
+    let more = Part::Text(&more);
     let found = match hits {
         Hits::Ray(h) => h.first().map(|x| {
-            let what = named(&x.object, &x.material);
-            sentence(format_args!(
-                "blocked by {what} at {}{more}",
-                Metres(x.distance)
-            ))
+            let what = Part::Named(named(&x.object, &x.material));
+            let at = Part::Metres(x.distance);
+            sentence(&[
+                Part::Text("blocked by "),
+                what,
+                Part::Text(" at "),
+                at,
+                more,
+            ])
         }),
         Hits::Sweep(h) => h.first().map(|x| {
-            let what = named(&x.object, &x.material);
+            let what = Part::Named(named(&x.object, &x.material));
             if x.started_inside {
-                sentence(format_args!("starts inside {what}{more}"))
+                sentence(&[Part::Text("starts inside "), what, more])
             } else {
-                sentence(format_args!(
-                    "hits {what} after {}{more}",
-                    Metres(x.distance)
-                ))
+                let after = Part::Metres(x.distance);
+                sentence(&[
+                    Part::Text("hits "),
+                    what,
+                    Part::Text(" after "),
+                    after,
+                    more,
+                ])
             }
         }),
         Hits::Closest(h) => h.first().map(|x| {
-            let what = named(&x.object, &x.material);
+            let what = Part::Named(named(&x.object, &x.material));
             if x.overlapping {
-                sentence(format_args!("overlaps {what}"))
+                sentence(&[Part::Text("overlaps "), what])
             } else {
-                sentence(format_args!("nearest is {what} at {}", Metres(x.distance)))
+                let at = Part::Metres(x.distance);
+                sentence(&[Part::Text("nearest is "), what, Part::Text(" at "), at])
             }
         }),
         Hits::Overlap(h) => h.first().map(|x| {
-            let how = if x.enclosed { "is inside" } else { "overlaps" };
-            let what = named(&x.object, &x.material);
-            sentence(format_args!("{how} {what} by {}{more}", Metres(x.depth)))
+            let how = Part::Text(if x.enclosed {
+                "is inside "
+            } else {
+                "overlaps "
+            });
+            let what = Part::Named(named(&x.object, &x.material));
+            let by = Part::Metres(x.depth);
+            sentence(&[how, what, Part::Text(" by "), by, more])
         }),
         Hits::Rest(_) | Hits::Sightlines(_) | Hits::Coverage(_) => {
             return super::level_verdict::describe(hits);
@@ -202,6 +231,18 @@ pub(super) struct Named<'a> {
     material: &'a Option<std::sync::Arc<str>>,
 }
 
+impl Named<'_> {
+    /// Writes the name (and material) at the end of `out`.
+    fn push_to(&self, out: &mut String) {
+        out.push_str(self.object);
+        if let Some(m) = self.material {
+            out.push_str(" (");
+            out.push_str(m);
+            out.push(')');
+        }
+    }
+}
+
 impl fmt::Display for Named<'_> {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         match self.material {
@@ -220,37 +261,41 @@ pub fn metres(x: f64) -> String {
 pub(super) struct Metres(pub f64);
 
 impl fmt::Display for Metres {
-    /// `x` with three decimals as `{x:.3}` writes it, without the float formatter where that is
-    /// sure to give the same digits (a check words a distance for every ray that hits). The
-    /// product `|x| · 1000` is within half an ulp of the exact one, so when it is farther than
-    /// that from a half, both round to the same whole number of millimetres; halves, near-halves,
-    /// huge and non-finite values go to the formatter.
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        let x = self.0;
-        let scaled = x.abs() * 1000.0;
-        if scaled < 1e15 {
-            let whole = scaled.floor();
-            let fraction = scaled - whole;
-            if (fraction - 0.5).abs() > scaled * f64::EPSILON {
-                let millimetres = (whole as u64) + u64::from(fraction > 0.5);
-                if x.is_sign_negative() {
-                    f.write_str("-")?;
-                }
-                f.write_str(itoa::Buffer::new().format(millimetres / 1000))?;
-                let thousandths = millimetres % 1000;
-                let digit = |d: u64| b'0' + d as u8;
-                let digits = [
-                    b'.',
-                    digit(thousandths / 100),
-                    digit(thousandths / 10 % 10),
-                    digit(thousandths % 10),
-                ];
-                f.write_str(std::str::from_utf8(&digits).expect("ASCII digits"))?;
-                return f.write_str(" m");
-            }
-        }
-        write!(f, "{x:.3} m")
+        write_metres(self.0, f)
     }
+}
+
+/// Writes `x` with three decimals and " m", as `{x:.3} m` writes it, without the float formatter
+/// where that is sure to give the same digits (a check words a distance for every ray that hits).
+/// The product `|x| · 1000` is within half an ulp of the exact one, so when it is farther than
+/// that from a half, both round to the same whole number of millimetres; halves, near-halves,
+/// huge and non-finite values go to the formatter.
+fn write_metres(x: f64, out: &mut impl fmt::Write) -> fmt::Result {
+    let scaled = x.abs() * 1000.0;
+    if scaled < 1e15 {
+        let whole = scaled.floor();
+        let fraction = scaled - whole;
+        if (fraction - 0.5).abs() > scaled * f64::EPSILON {
+            let millimetres = (whole as u64) + u64::from(fraction > 0.5);
+            if x.is_sign_negative() {
+                out.write_str("-")?;
+            }
+            out.write_str(itoa::Buffer::new().format(millimetres / 1000))?;
+            let thousandths = millimetres % 1000;
+            let digit = |d: u64| b'0' + d as u8;
+            let digits = [
+                b'.',
+                digit(thousandths / 100),
+                digit(thousandths / 10 % 10),
+                digit(thousandths % 10),
+                b' ',
+                b'm',
+            ];
+            return out.write_str(std::str::from_utf8(&digits).expect("ASCII digits"));
+        }
+    }
+    write!(out, "{x:.3} m")
 }
 
 /// The sentence with its first letter a capital (in place when that letter is ASCII).
