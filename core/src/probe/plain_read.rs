@@ -567,6 +567,27 @@ pub(super) fn plain_id(text: &str) -> Option<&str> {
     }
 }
 
+/// The level a probe-set file names, found in its head without reading its probes: the `"level"`
+/// member's plain string, when it comes before `"probes"` and `"rules"` and every member before it
+/// is plain. `None` otherwise (the caller reads the whole top). Whether the file is otherwise valid
+/// is not looked at; when it is, its level is this one (a repeated member is not valid).
+pub(super) fn plain_level(text: &str) -> Option<&str> {
+    let mut s = Scanner::new(text);
+    s.take(b'{')?;
+    loop {
+        let key = s.string()?;
+        s.take(b':')?;
+        match key {
+            "level" => return s.string(),
+            "probes" | "rules" => return None,
+            _ => {
+                s.value_text()?;
+            }
+        }
+        s.take(b',')?;
+    }
+}
+
 /// An array of values, each kept as its text.
 fn raw_texts<'de, D: serde::Deserializer<'de>>(d: D) -> Result<Vec<&'de str>, D::Error> {
     let raw = Vec::<&'de RawValue>::deserialize(d)?;
@@ -751,6 +772,10 @@ mod tests {
             if ProbeText::parse(std::path::Path::new("set"), text.clone()).is_ok() {
                 let value: serde_json::Value = serde_json::from_str(&text)
                     .map_err(|e| TestCaseError::fail(format!("read a set that is not JSON ({e}): {text}")))?;
+                // The level found in the head alone is the one the whole top names.
+                if let Some(level) = plain_level(&text) {
+                    prop_assert_eq!(Some(level), value["level"].as_str(), "{}", text);
+                }
                 let set = ProbeText::parse(std::path::Path::new("set"), text).unwrap();
                 prop_assert_eq!(Some(set.len()), value["probes"].as_array().map(Vec::len));
             }
@@ -804,6 +829,31 @@ mod tests {
             r#"{"id": "a\"b"}"#,
         ] {
             assert_eq!(plain_id(text), None, "{text}");
+        }
+    }
+
+    #[test]
+    fn a_sets_level_is_found_in_its_head() {
+        let set = demo_set();
+        let top: SetFields = from_object_str(&set).unwrap();
+        assert_eq!(plain_level(&set), Some(top.level.as_str()));
+        for (text, level) in [
+            (
+                r#"{"level": "a.level.json", "probes": []}"#,
+                Some("a.level.json"),
+            ),
+            (
+                r#"{"plumbline": "probes", "version": 1, "level": "b"}"#,
+                Some("b"),
+            ),
+            // After the probes, escaped, or not a string: left to the whole top.
+            (r#"{"probes": [], "level": "a"}"#, None),
+            (r#"{"rules": [], "level": "a"}"#, None),
+            (r#"{"level": "a\u0062"}"#, None),
+            (r#"{"level": 3}"#, None),
+            (r#"{"$schema": {"x": 1}, "level": "c"}"#, Some("c")),
+        ] {
+            assert_eq!(plain_level(text), level, "{text}");
         }
     }
 

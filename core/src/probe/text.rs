@@ -8,10 +8,11 @@ use std::collections::HashSet;
 use std::ops::Range;
 use std::path::{Path, PathBuf};
 use std::sync::Mutex;
+use std::sync::atomic::{AtomicBool, Ordering};
 
 use super::model::{Probe, ProbeSet};
 use super::parse::parse_probe;
-use super::plain_read::{SetFields, plain_id};
+use super::plain_read::{SetFields, plain_id, plain_level};
 use super::rules::{Rule, parse_rule};
 use crate::error::{InputError, check_header};
 use crate::input::{MAX_PROBES, read_input, text_digest};
@@ -52,9 +53,12 @@ impl ProbeText {
         ProbeText::read_alongside(path, |_| ()).map(|(text, ())| text)
     }
 
-    /// Reads and checks a probe-set file as [`ProbeText::read`] does; once the file's top is read,
-    /// runs `alongside` on the level it names, in parallel (on the current thread pool) with
-    /// checking every probe: a check loads its level meanwhile. The probes' errors come first.
+    /// Reads and checks a probe-set file as [`ProbeText::read`] does, and runs `alongside` on the
+    /// level it names, in parallel (on the current thread pool) with reading and checking the
+    /// probes: a check loads its level meanwhile. The level's name is taken from the file's head
+    /// before its probes are read, where the head is plain and names it before them (as every
+    /// file this program writes does); otherwise once the file's top is read. The probes' errors
+    /// come first, and a file whose top cannot be read never has its level loaded on one thread.
     pub fn read_alongside<R: Send>(
         path: &Path,
         alongside: impl FnOnce(&str) -> R + Send,
@@ -62,13 +66,34 @@ impl ProbeText {
         let bytes = read_input(path)?;
         let text = String::from_utf8(bytes)
             .map_err(|e| InputError::file(path, format!("not UTF-8 text: {}", e.utf8_error())))?;
-        let (unchecked, rule_spans) = ProbeText::read_top(path, text)?;
-        let level = unchecked.level.clone();
+        let Some(named) = plain_level(&text).map(str::to_string) else {
+            let (unchecked, rule_spans) = ProbeText::read_top(path, text)?;
+            let level = unchecked.level.clone();
+            let (checked, also) = rayon::join(
+                move || unchecked.checked(&rule_spans),
+                move || alongside(&level),
+            );
+            return Ok((checked?, also));
+        };
+        let unreadable = AtomicBool::new(false);
         let (checked, also) = rayon::join(
-            move || unchecked.checked(&rule_spans),
-            move || alongside(&level),
+            || {
+                let top = ProbeText::read_top(path, text);
+                unreadable.store(top.is_err(), Ordering::Relaxed);
+                let (unchecked, rule_spans) = top?;
+                unchecked.checked(&rule_spans)
+            },
+            || (!unreadable.load(Ordering::Relaxed)).then(|| alongside(&named)),
         );
-        Ok((checked?, also))
+        let checked = checked?;
+        debug_assert_eq!(
+            checked.level, named,
+            "the head names the level the top reads"
+        );
+        Ok((
+            checked,
+            also.expect("the level is loaded once the top is read"),
+        ))
     }
 
     /// Checks probe-set text; `path` is named in errors.
