@@ -110,7 +110,8 @@ impl Scalar<'_> {
         }
     }
 
-    fn write(self, out: &mut String) {
+    /// Writes the scalar at the end of `out`.
+    pub(super) fn write(self, out: &mut String) {
         match self {
             Scalar::Str(s) => write_string(s, out),
             Scalar::Float(x) => write_float(x, out),
@@ -181,15 +182,11 @@ pub trait Members {
     /// A member whose value is a tree.
     fn json(&mut self, key: Key, value: &Json) {
         match value {
-            Json::Null => self.scalar(key, Scalar::Word("null")),
-            Json::Bool(b) => self.boolean(key, *b),
-            Json::Num(n) => self.scalar(key, Scalar::Number(n)),
-            Json::Float(x) => self.float(key, *x),
-            Json::Str(s) => self.str(key, s),
             Json::Arr(items) => self.nested(key, items.as_slice()),
             Json::Obj(fields) => self.nested(key, fields.as_slice()),
             Json::Vec3(v) => self.vec3(key, *v),
             Json::Strs(items) => self.strs(key, items),
+            scalar => self.scalar(key, scalar.as_scalar().expect("not an array or object")),
         }
     }
 }

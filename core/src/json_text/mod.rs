@@ -1,6 +1,8 @@
-//! JSON as the program writes it for people to read and review: two-space indents, with short
-//! arrays and objects (vectors, shapes, ranges) kept on one line. Stable: the same value gives the
-//! same bytes.
+//! JSON as the program writes it for people to read and review: two-space indents; an array or
+//! object stays on one line when it nests at most two levels and fits in 100 characters less two
+//! for each level it stands at (vectors, shapes, ranges), otherwise it has a member to a line.
+//! Stable: the same value gives the same bytes. Results' records lay themselves out through
+//! [`Layout`] without building anything; other values are built as [`Json`] trees first.
 
 use serde_json::{Number, Value};
 
@@ -87,11 +89,24 @@ pub fn write_pretty(value: &Json, depth: usize, out: &mut String) {
         Json::Vec3(v) => write_layout(&v[..], depth, out),
         Json::Strs(items) => write_layout(*items, depth, out),
         // A scalar stands on one line however long it is.
-        Json::Null => out.push_str("null"),
-        Json::Bool(b) => out.push_str(if *b { "true" } else { "false" }),
-        Json::Num(n) => scalars::write_number(n, out),
-        Json::Float(x) => scalars::write_float(*x, out),
-        Json::Str(s) => scalars::write_string(s, out),
+        scalar => scalar
+            .as_scalar()
+            .expect("not an array or object")
+            .write(out),
+    }
+}
+
+impl Json<'_> {
+    /// The value as a scalar; `None` for arrays and objects.
+    fn as_scalar(&self) -> Option<Scalar<'_>> {
+        Some(match self {
+            Json::Null => Scalar::Word("null"),
+            Json::Bool(b) => Scalar::Word(if *b { "true" } else { "false" }),
+            Json::Num(n) => Scalar::Number(n),
+            Json::Float(x) => Scalar::Float(*x),
+            Json::Str(s) => Scalar::Str(s),
+            Json::Arr(_) | Json::Obj(_) | Json::Vec3(_) | Json::Strs(_) => return None,
+        })
     }
 }
 
