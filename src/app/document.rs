@@ -62,7 +62,7 @@ fn owed_result(probe: &Probe) -> ProbeResult {
         id: probe.id.clone(),
         kind,
         verdict: Verdict::Unchecked,
-        reason: "Being answered in the background…".to_string(),
+        reason: "Being answered in the background…".into(),
         hits: Hits::empty(kind),
         clearance: None,
         volumes: Vec::new(),

@@ -126,7 +126,7 @@ pub fn inspector_ui(
         ui.label(RichText::new(label).italics());
     }
     badge(ui, result.verdict, "");
-    ui.label(&result.reason);
+    ui.label(&*result.reason);
     if document.was_cancelled(index) && ui.button("Answer again").clicked() {
         action = Some(InspectorAction::AnswerAgain(index));
     }

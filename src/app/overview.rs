@@ -50,7 +50,7 @@ pub fn overview_ui(
                     RichText::new(&document.probes.probes[i].id)
                         .color(verdict_color32(result.verdict)),
                 )
-                .on_hover_text(&result.reason);
+                .on_hover_text(&*result.reason);
             if link.clicked() {
                 action = Some(InspectorAction::Select(i));
             }

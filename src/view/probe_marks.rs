@@ -709,7 +709,7 @@ mod tests {
             id: "gate-view".into(),
             kind: probe.query.kind(),
             verdict: Verdict::Pass,
-            reason: String::new(),
+            reason: "".into(),
             hits: Hits::Ray(vec![RayHitRecord {
                 object: "gate".into(),
                 tags: Vec::<String>::new().into(),

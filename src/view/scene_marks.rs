@@ -324,7 +324,7 @@ mod tests {
             id: "spawn".into(),
             kind: probe.query.kind(),
             verdict: Verdict::Unchecked,
-            reason: String::new(),
+            reason: "".into(),
             hits: Hits::Overlap(vec![OverlapRecord {
                 object: "drum".into(),
                 tags: Vec::<String>::new().into(),

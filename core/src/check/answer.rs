@@ -33,7 +33,8 @@ pub fn answer_probe_watched(world: &World, probe: &Probe, progress: &Progress) -
             reason: format!(
                 "The rule selects no object: the level has no {} (a tag or name changed?)",
                 rule.selection
-            ),
+            )
+            .into(),
             clearance: None,
             volumes: Vec::new(),
         };
@@ -64,7 +65,7 @@ pub fn answer_probe_watched(world: &World, probe: &Probe, progress: &Progress) -
             hits: Hits::empty(kind),
             kind,
             verdict: Verdict::Error,
-            reason: format!("could not be answered: {error}"),
+            reason: format!("could not be answered: {error}").into(),
             clearance: None,
             volumes: Vec::new(),
         },

@@ -354,7 +354,7 @@ pub struct ProbeResult {
     /// How the expectation fared.
     pub verdict: Verdict,
     /// One sentence a designer can read.
-    pub reason: String,
+    pub reason: std::borrow::Cow<'static, str>,
     /// The hits.
     pub hits: Hits,
     /// A sweep's least clearance, when asked for.

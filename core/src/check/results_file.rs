@@ -364,7 +364,7 @@ pub(super) fn parse_entry(
         id: r.id,
         kind: r.kind,
         verdict: r.verdict,
-        reason: r.reason,
+        reason: r.reason.into(),
         hits,
         clearance: r.clearance,
         volumes: r.volumes,

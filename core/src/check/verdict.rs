@@ -1,5 +1,6 @@
 //! Judging an answer against a probe's expectation, with one sentence a designer can read.
 
+use std::borrow::Cow;
 use std::fmt;
 
 use glam::DVec3;
@@ -15,24 +16,53 @@ pub fn judge(
     clearance: Option<&ClearanceRecord>,
     volumes: &[VolumeRecord],
     up: DVec3,
-) -> (Verdict, String) {
+) -> (Verdict, Cow<'static, str>) {
     let mut answer = describe(hits, clearance);
     if let Some(met) = super::volumes::describe(volumes) {
-        answer.push_str("; ");
-        answer.push_str(&met);
+        let text = answer.to_mut();
+        text.push_str("; ");
+        text.push_str(&met);
     }
     let Some(expect) = &probe.expect else {
-        return (Verdict::Unchecked, capitalise(answer));
+        return (Verdict::Unchecked, fixed_or(answer, 1, capitalise));
     };
     let conditions = expect.conditions();
     let unmet = first_unmet(&conditions, hits, clearance, up)
         .or_else(|| super::volumes::first_unmet(&conditions, volumes));
     match unmet {
-        None => (Verdict::Pass, ["As expected: ", &answer].concat()),
+        None => (
+            Verdict::Pass,
+            fixed_or(answer, 2, |a| ["As expected: ", &a].concat()),
+        ),
         Some(wanted) => (
             Verdict::Fail,
-            ["Expected ", &wanted, "; ", &answer].concat(),
+            Cow::Owned(["Expected ", &wanted, "; ", &answer].concat()),
         ),
+    }
+}
+
+/// The answers that are words alone (no object, no number): each as [`describe`] gives it, as a
+/// sentence on its own, and after "As expected: ". A check gives one of these for every clear
+/// ray, so their reasons are not written again each time.
+const FIXED: [[&str; 3]; 2] = [
+    ["clear", "Clear", "As expected: clear"],
+    [
+        "nothing within reach",
+        "Nothing within reach",
+        "As expected: nothing within reach",
+    ],
+];
+
+/// The reason for `answer`: column `form` of [`FIXED`] when the answer is one of those words,
+/// else `make` of it.
+fn fixed_or(
+    answer: Cow<'static, str>,
+    form: usize,
+    make: impl FnOnce(String) -> String,
+) -> Cow<'static, str> {
+    match FIXED.iter().find(|fixed| fixed[0] == answer) {
+        Some(fixed) => Cow::Borrowed(fixed[form]),
+        None => Cow::Owned(make(answer.into_owned())),
     }
 }
 
@@ -144,7 +174,7 @@ fn first_word(hits: &Hits) -> &'static str {
 }
 
 /// What the probe found, in a few words.
-fn describe(hits: &Hits, clearance: Option<&ClearanceRecord>) -> String {
+fn describe(hits: &Hits, clearance: Option<&ClearanceRecord>) -> Cow<'static, str> {
     let more = if hits.len() > 1 {
         format!(" (and {} more)", hits.len() - 1)
     } else {
@@ -198,25 +228,25 @@ fn describe(hits: &Hits, clearance: Option<&ClearanceRecord>) -> String {
             sentence(&[how, what, Part::Text(" by "), by, more])
         }),
         Hits::Rest(_) | Hits::Sightlines(_) | Hits::Coverage(_) => {
-            return super::level_verdict::describe(hits);
+            return super::level_verdict::describe(hits).into();
         }
-        Hits::Jump(h) => return super::jump::describe(h),
-        Hits::Walk(h) => return super::walk::describe(h),
-        Hits::Reach(h) => return super::reach::describe(h),
-        Hits::Settle(h) => return super::settle::describe(h),
+        Hits::Jump(h) => return super::jump::describe(h).into(),
+        Hits::Walk(h) => return super::walk::describe(h).into(),
+        Hits::Reach(h) => return super::reach::describe(h).into(),
+        Hits::Settle(h) => return super::settle::describe(h).into(),
     };
     match (found, clearance) {
-        (Some(text), _) => text,
-        (None, Some(c)) => format!(
+        (Some(text), _) => Cow::Owned(text),
+        (None, Some(c)) => Cow::Owned(format!(
             "clear; closest approach {} to {} at {:.0}% of the path",
             metres(c.distance),
             c.object,
             c.t * 100.0
-        ),
-        (None, None) => match hits {
-            Hits::Closest(_) => "nothing within reach".to_string(),
-            _ => "clear".to_string(),
-        },
+        )),
+        (None, None) => Cow::Borrowed(match hits {
+            Hits::Closest(_) => FIXED[1][0],
+            _ => FIXED[0][0],
+        }),
     }
 }
 
@@ -313,6 +343,22 @@ fn capitalise(mut s: String) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// The shared reasons are the words the general path would write for the same answer.
+    #[test]
+    fn answers_of_words_alone_are_shared_and_worded_as_any_other() {
+        let as_expected = |a: String| ["As expected: ", &a].concat();
+        for [answer, alone, expected] in FIXED {
+            let shared = fixed_or(Cow::Borrowed(answer), 1, capitalise);
+            assert!(matches!(shared, Cow::Borrowed(_)));
+            assert_eq!(shared, capitalise(answer.to_string()));
+            assert_eq!(shared, alone);
+            assert_eq!(fixed_or(Cow::Borrowed(answer), 2, as_expected), expected);
+            assert_eq!(as_expected(answer.to_string()), expected);
+        }
+        let other = fixed_or(Cow::Owned("blocked by gate".into()), 1, capitalise);
+        assert_eq!(other, "Blocked by gate");
+    }
 
     #[test]
     fn sentences_start_with_a_capital_whatever_their_first_letter() {

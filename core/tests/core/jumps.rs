@@ -35,7 +35,11 @@ fn jump(world: &World, fields: &str) -> (Verdict, Option<JumpRecord>, String) {
     let Hits::Jump(hits) = result.hits else {
         panic!("a jump answer")
     };
-    (result.verdict, hits.into_iter().next(), result.reason)
+    (
+        result.verdict,
+        hits.into_iter().next(),
+        result.reason.into_owned(),
+    )
 }
 
 fn ball() -> &'static str {

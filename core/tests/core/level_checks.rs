@@ -28,7 +28,7 @@ fn answers(world: &World, set: &ProbeSet) -> Vec<(String, Verdict, Hits, String)
         .iter()
         .map(|p| {
             let r = answer_probe(world, p);
-            (r.id, r.verdict, r.hits, r.reason)
+            (r.id, r.verdict, r.hits, r.reason.into_owned())
         })
         .collect()
 }

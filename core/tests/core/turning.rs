@@ -25,7 +25,7 @@ fn answer(world: &World, fields: &str) -> (Verdict, Hits, String) {
     );
     let set = parse_probe_set(Path::new("test.probes.json"), &text).expect("a valid probe set");
     let r = answer_probe(world, &set.probes[0]);
-    (r.verdict, r.hits, r.reason)
+    (r.verdict, r.hits, r.reason.into_owned())
 }
 
 const PLANK: &str = r#""shape": {"type": "box", "half_extents": [2, 0.1, 0.1]}"#;
