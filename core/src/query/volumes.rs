@@ -80,10 +80,15 @@ impl Mover<'_> {
     /// Broad-phase culling, common practice; the margin (a centimetre, far above the tolerances of
     /// the exact tests it spares) keeps it conservative.
     pub(crate) fn may_touch(self, volume: &Volume, path: &[DVec3]) -> bool {
-        !path.is_empty()
-            && Aabb::from_points_ref(path)
-                .loosened(self.reach() + CULL_MARGIN)
-                .intersects(&volume.aabb)
+        self.cull_box(path)
+            .is_some_and(|reach| reach.intersects(&volume.aabb))
+    }
+
+    /// The box [`Mover::may_touch`] tests volumes' boxes against: around `path`, grown by the
+    /// mover's reach and the margin (`None` for an empty path). Made once for a path and every
+    /// volume.
+    fn cull_box(self, path: &[DVec3]) -> Option<Aabb> {
+        (!path.is_empty()).then(|| Aabb::from_points_ref(path).loosened(self.reach() + CULL_MARGIN))
     }
 
     /// True when the mover placed at `at` touches or overlaps the volume.
@@ -152,11 +157,11 @@ impl View<'_> {
         if let Some(k) = path.iter().position(|p| !p.is_finite()) {
             return Err(QueryError::PathPointNotFinite(k));
         }
-        let Some(&start) = path.first() else {
+        let (Some(&start), Some(reach)) = (path.first(), mover.cull_box(path)) else {
             return Ok(Vec::new());
         };
         let mut events = Vec::new();
-        for volume in self.volumes().filter(|v| mover.may_touch(v, path)) {
+        for volume in self.volumes().filter(|v| reach.intersects(&v.aabb)) {
             let mut inside = mover.touches(volume, start);
             if inside {
                 events.push(event(volume, Crossing::Inside, 0.0, start));
