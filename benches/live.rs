@@ -20,7 +20,7 @@ use plumbline_core::query::{Filter, World};
 
 fn probe(id: usize, query: ProbeQuery) -> Probe {
     Probe {
-        id: format!("p{id}"),
+        id: format!("p{id}").into(),
         label: None,
         filter: Filter::default(),
         query,

@@ -83,7 +83,7 @@ fn probes() -> Vec<Probe> {
                 }
             };
             Probe {
-                id: format!("p{k}"),
+                id: format!("p{k}").into(),
                 label: None,
                 filter: Filter::default(),
                 query,

@@ -44,9 +44,9 @@ pub struct Document {
     edits: u64,
     saved_edits: u64,
     /// Probes (by id) whose answers are owed: edited kinds that answer in the background.
-    owed: Vec<String>,
+    owed: Vec<Arc<str>>,
     /// Probes (by id) whose background answer the user cancelled.
-    cancelled: Vec<String>,
+    cancelled: Vec<Arc<str>>,
 }
 
 /// True for the kinds whose answers take long enough (a reach map: seconds; a settle: a physics run)
@@ -111,11 +111,11 @@ impl Document {
             .probes
             .iter()
             .zip(&self.results)
-            .map(|(p, r)| (p.id.as_str(), (p, r)))
+            .map(|(p, r)| (&*p.id, (p, r)))
             .collect();
         let kept: Vec<Option<ProbeResult>> = probes
             .iter()
-            .map(|probe| match old.get(probe.id.as_str()) {
+            .map(|probe| match old.get(&*probe.id) {
                 Some((was, result)) if *was == probe => Some((*result).clone()),
                 _ => None,
             })
@@ -337,7 +337,7 @@ impl Document {
             .probes
             .iter()
             .zip(&self.results)
-            .map(|(p, r)| (p.id.as_str(), r))
+            .map(|(p, r)| (&*p.id, r))
             .collect();
         let changed = now
             .iter()
@@ -347,7 +347,7 @@ impl Document {
                 !unanswered.contains(&probe.id) && !self.owed.contains(&probe.id)
             })
             .filter_map(|(i, (probe, new))| {
-                let old = before.get(probe.id.as_str())?;
+                let old = before.get(&*probe.id)?;
                 let aspects = changes(old, new, DEFAULT_TOLERANCE);
                 (!aspects.is_empty()).then_some((i, aspects))
             })
@@ -467,7 +467,7 @@ impl Reloaded {
 
 /// An id not used by any of `probes`: `base`, or `base-2`, `base-3`, …
 pub fn unused_id(probes: &[Probe], base: &str) -> String {
-    let taken = |id: &str| probes.iter().any(|p| p.id == id);
+    let taken = |id: &str| probes.iter().any(|p| &*p.id == id);
     if !taken(base) {
         return base.to_string();
     }

@@ -35,7 +35,11 @@ impl Workbench {
 
     /// The index of the probe with this id.
     fn index_of(&self, id: &str) -> Option<usize> {
-        self.document.probes.probes.iter().position(|p| p.id == id)
+        self.document
+            .probes
+            .probes
+            .iter()
+            .position(|p| &*p.id == id)
     }
 
     /// True (and says why) when probe `index` is made by a rule, which is edited instead.
@@ -104,7 +108,7 @@ impl Workbench {
             let mut copy = probes[i].clone();
             copy.from_rule = None;
             let base = format!("{}-copy", copy.id.replace('/', "-"));
-            copy.id = document::unused_id(&probes, &base);
+            copy.id = document::unused_id(&probes, &base).into();
             copies.push(copy.id.clone());
             probes.push(copy);
         }

@@ -46,7 +46,7 @@ pub fn probe_editor(
     if state.probe != Some(index) {
         *state = EditorState {
             probe: Some(index),
-            id_text: probe.id.clone(),
+            id_text: probe.id.to_string(),
         };
     }
     let mut draft = probe.clone();
@@ -61,8 +61,8 @@ pub fn probe_editor(
                 .labelled_by(label.id);
             if response.changed() {
                 let text = state.id_text.trim();
-                if text != probe.id && !text.is_empty() && !id_taken(text) {
-                    draft.id = text.to_string();
+                if text != &*probe.id && !text.is_empty() && !id_taken(text) {
+                    draft.id = text.into();
                     field = Some("id".to_string());
                 }
             }
@@ -85,7 +85,7 @@ pub fn probe_editor(
                 field = Some(f);
             }
         });
-    if state.id_text.trim() != probe.id && field.as_deref() != Some("id") {
+    if state.id_text.trim() != &*probe.id && field.as_deref() != Some("id") {
         let text = state.id_text.trim();
         let why = if text.is_empty() {
             "An id cannot be empty.".to_string()

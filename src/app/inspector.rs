@@ -121,7 +121,7 @@ pub fn inspector_ui(
         return None;
     };
     let mut action = None;
-    ui.heading(&probe.id);
+    ui.heading(&*probe.id);
     if let Some(label) = &probe.label {
         ui.label(RichText::new(label).italics());
     }
@@ -130,7 +130,7 @@ pub fn inspector_ui(
     if document.was_cancelled(index) && ui.button("Answer again").clicked() {
         action = Some(InspectorAction::AnswerAgain(index));
     }
-    if let Some(aspects) = changes.get(&probe.id) {
+    if let Some(aspects) = changes.get(&*probe.id) {
         let words: Vec<String> = aspects.iter().map(|a| a.to_string()).collect();
         ui.label(
             RichText::new(format!("Changed at the level reload: {}", words.join("; ")))
@@ -198,7 +198,7 @@ pub fn inspector_ui(
     egui::CollapsingHeader::new("Edit the question")
         .default_open(false)
         .show(ui, |ui| {
-            let taken = |id: &str| document.probes.probes.iter().any(|p| p.id == id);
+            let taken = |id: &str| document.probes.probes.iter().any(|p| &*p.id == id);
             if let Some(edit) = probe_editor(ui, index, probe, editor, &taken) {
                 action = Some(InspectorAction::Edit(index, Box::new(edit)));
             }

@@ -77,7 +77,7 @@ pub fn launch(path: &std::path::Path, options: WindowOptions) -> Result<(), Stri
                 .probes
                 .probes
                 .iter()
-                .position(|p| p.id == *id)
+                .position(|p| *p.id == **id)
                 .ok_or_else(|| format!("{}: no probe with id \"{id}\"", path.display()))?,
         ),
     };

@@ -47,7 +47,7 @@ pub fn overview_ui(
             let result = &document.results[i];
             let link = ui
                 .link(
-                    RichText::new(&document.probes.probes[i].id)
+                    RichText::new(&*document.probes.probes[i].id)
                         .color(verdict_color32(result.verdict)),
                 )
                 .on_hover_text(&*result.reason);

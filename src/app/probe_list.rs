@@ -178,7 +178,7 @@ pub fn probe_list_ui(
             let probe = &document.probes.probes[i];
             let result = &document.results[i];
             let selected = selection.contains(i);
-            let changed = changes.get(&probe.id);
+            let changed = changes.get(&*probe.id);
             let mut response = probe_row(
                 ui,
                 row_height - 2.0,

@@ -39,7 +39,7 @@ impl Workbench {
         self.message = None;
         self.changes = changed
             .into_iter()
-            .map(|(i, aspects)| (self.document.probes.probes[i].id.clone(), aspects))
+            .map(|(i, aspects)| (self.document.probes.probes[i].id.to_string(), aspects))
             .collect();
         self.viewport.set_level(&self.document);
         self.results_revision += 1;

@@ -167,7 +167,7 @@ impl Workbench {
                 .probes
                 .probes
                 .iter()
-                .any(|p| p.from_rule.is_none() && p.id == r.id)
+                .any(|p| p.from_rule.is_none() && *p.id == *r.id)
         }) {
             return Err(format!(
                 "rule id \"{}\" is already a probe's id; ids are unique in a set",

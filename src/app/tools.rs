@@ -237,7 +237,7 @@ pub fn new_probe(tool: Tool, id: String, points: &[DVec3], up: DVec3) -> Option<
         _ => return None,
     };
     Some(Probe {
-        id,
+        id: id.into(),
         label: None,
         filter: Filter::default(),
         query,

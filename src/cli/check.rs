@@ -271,7 +271,7 @@ pub fn run_once(
             let changed = comparer.as_mut().is_some_and(|c| c.observe(&result));
             if changed {
                 changed_count += 1;
-                changed_labels.insert(result.id.clone(), probe.label.clone());
+                changed_labels.insert(result.id.to_string(), probe.label.clone());
             }
             let drawn = match &mut pictures {
                 Some(p) => p.draw(probe, &result, changed)?,

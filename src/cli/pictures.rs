@@ -50,7 +50,7 @@ impl<'a> Pictures<'a> {
         let before = baseline
             .iter()
             .flat_map(|b| &b.results)
-            .map(|r| (r.id.as_str(), r))
+            .map(|r| (&*r.id, r))
             .collect();
         Ok(Pictures {
             dir: dir.to_path_buf(),
@@ -84,7 +84,7 @@ impl<'a> Pictures<'a> {
             stem = format!("{plain}~{n}");
         }
         let mut shots = Vec::new();
-        if changed && let Some(before) = self.before.get(result.id.as_str()) {
+        if changed && let Some(before) = self.before.get(&*result.id) {
             shots.push((
                 format!("{} — before", result.id),
                 before,
@@ -94,7 +94,7 @@ impl<'a> Pictures<'a> {
         let now = if changed {
             format!("{} — now", result.id)
         } else {
-            result.id.clone()
+            result.id.to_string()
         };
         shots.push((now, &result, format!("{stem}.png")));
         shots

@@ -33,7 +33,8 @@ impl Timings {
         self.by_kind[k].1 += took;
         let place = self.slowest.partition_point(|(t, _, _)| *t >= took);
         if place < SLOWEST {
-            self.slowest.insert(place, (took, probe.id.clone(), kind));
+            self.slowest
+                .insert(place, (took, probe.id.to_string(), kind));
             self.slowest.truncate(SLOWEST);
         }
     }

@@ -41,7 +41,7 @@ fn harness(path: &Path) -> Harness<'static, Workbench> {
 fn select_by_id(harness: &mut Harness<'static, Workbench>, id: &str) -> usize {
     let index = probes_of(harness)
         .iter()
-        .position(|p| p.id == id)
+        .position(|p| &*p.id == id)
         .expect("the demo has this probe");
     harness.state_mut().select_probe(Some(index));
     index
@@ -66,7 +66,10 @@ fn a_ray_placed_in_the_view_can_be_undone_redone_saved_and_reopened_unchanged() 
     let after = probes_of(&harness);
     assert_eq!(after.len(), before.len() + 1, "one new probe");
     // The new probe follows the written ones (the rules' probes come last).
-    let new = after.iter().find(|p| p.id == "ray").expect("the new probe");
+    let new = after
+        .iter()
+        .find(|p| &*p.id == "ray")
+        .expect("the new probe");
     assert!(new.from_rule.is_none());
     assert_eq!(new.query.kind().name(), "ray");
     // Both ends sit 1.7 m (eye height) above the surface points that were clicked, so 1.7 m below
@@ -82,7 +85,7 @@ fn a_ray_placed_in_the_view_can_be_undone_redone_saved_and_reopened_unchanged() 
     }
     assert_eq!(
         harness.state().selection.probe,
-        after.iter().position(|p| p.id == "ray")
+        after.iter().position(|p| &*p.id == "ray")
     );
     assert!(harness.state().document.is_dirty());
 
@@ -399,7 +402,7 @@ fn renaming_is_one_undo_step_and_taken_ids_are_refused() {
     harness.get_by_label_contains("Another probe is called");
     harness.get_by_label("id").type_text("-north");
     harness.run_steps(2);
-    assert_eq!(probes_of(&harness)[0].id, format!("{taken}-north"));
+    assert_eq!(&*probes_of(&harness)[0].id, format!("{taken}-north"));
 
     // Leave the box, then one undo brings the old name back.
     harness.key_press(Key::Escape);
@@ -428,7 +431,7 @@ fn a_jump_placed_with_two_clicks_is_aimed_at_the_second_and_answered() {
         .probes
         .probes
         .iter()
-        .position(|p| p.id == "jump")
+        .position(|p| &*p.id == "jump")
         .expect("a new jump");
     assert_eq!(workbench.selection.probe, Some(index));
     let ProbeQuery::Jump {
@@ -502,7 +505,7 @@ fn a_walk_placed_with_clicks_and_enter_is_walked_and_its_record_shown() {
         .probes
         .probes
         .iter()
-        .position(|p| p.id == "walk")
+        .position(|p| &*p.id == "walk")
         .expect("a new walk");
     assert!(matches!(
         &workbench.document.probes.probes[index].query,

@@ -32,7 +32,7 @@ fn index_of(workbench: &Workbench, id: &str) -> usize {
         .probes
         .probes
         .iter()
-        .position(|p| p.id == id)
+        .position(|p| &*p.id == id)
         .unwrap()
 }
 

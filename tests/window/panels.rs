@@ -34,7 +34,10 @@ fn probe_with_hits(workbench: &Workbench) -> (usize, String) {
         .iter()
         .position(|r| !r.hits.is_empty())
         .expect("one of the first ten demo probes is blocked");
-    (index, workbench.document.probes.probes[index].id.clone())
+    (
+        index,
+        workbench.document.probes.probes[index].id.to_string(),
+    )
 }
 
 #[test]
@@ -76,7 +79,7 @@ fn with_nothing_selected_the_overview_links_the_failures_and_highlights_a_tag() 
     let workbench = harness.state();
     let picked = workbench.selection.probe.expect("the failure is selected");
     assert_eq!(
-        workbench.document.probes.probes[picked].id,
+        &*workbench.document.probes.probes[picked].id,
         "spawns-clear/spawn-pad-hedge"
     );
     harness.state_mut().select_probe(None);
@@ -190,7 +193,7 @@ fn picking_a_probe_frames_it_in_the_view_and_clicking_it_in_the_view_finds_it_in
         .probes
         .probes
         .iter()
-        .position(|p| p.id == "spawn-by-drums")
+        .position(|p| &*p.id == "spawn-by-drums")
         .unwrap();
     let at = workbench
         .viewport

@@ -63,7 +63,7 @@ wait "$app"
     let saved = load_probe_set(&probes).unwrap();
     assert_eq!(saved.probes.len(), before + 1, "the placed ray was saved");
     let ray = saved.probes.last().unwrap();
-    assert_eq!((ray.id.as_str(), ray.query.kind().name()), ("ray", "ray"));
+    assert_eq!((&*ray.id, ray.query.kind().name()), ("ray", "ray"));
     let backup = load_probe_set(&folder.path().join(format!("{}.bak", files::PROBES))).unwrap();
     assert_eq!(backup.probes.len(), before, "the previous version is kept");
     let state = std::fs::read_to_string(data.join("plumbline").join("app.ron"))

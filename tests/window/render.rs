@@ -280,7 +280,7 @@ fn the_selected_ray_is_the_widest_and_most_vivid_line_and_the_others_step_back()
         .iter()
         .enumerate()
         .map(|(k, z)| Probe {
-            id: format!("lane-{k}"),
+            id: format!("lane-{k}").into(),
             label: None,
             filter: Filter::default(),
             query: ProbeQuery::Ray {

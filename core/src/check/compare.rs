@@ -188,7 +188,7 @@ impl<'a> Comparer<'a> {
                 .results
                 .iter()
                 .enumerate()
-                .map(|(k, r)| (r.id.as_str(), k))
+                .map(|(k, r)| (&*r.id, k))
                 .collect(),
             seen: vec![false; old.results.len()],
             old,
@@ -202,7 +202,7 @@ impl<'a> Comparer<'a> {
 
     /// Takes in the next result of the new run; true when it changed (or is new).
     pub fn observe(&mut self, new: &ProbeResult) -> bool {
-        match self.by_id.get(new.id.as_str()) {
+        match self.by_id.get(&*new.id) {
             Some(&k) => {
                 self.seen[k] = true;
                 let aspects = changes(&self.old.results[k], new, self.tolerance);
@@ -210,11 +210,11 @@ impl<'a> Comparer<'a> {
                     return false;
                 }
                 self.comparison.changed.push(ProbeChange {
-                    id: new.id.clone(),
+                    id: new.id.to_string(),
                     aspects,
                 });
             }
-            None => self.comparison.added.push(new.id.clone()),
+            None => self.comparison.added.push(new.id.to_string()),
         }
         true
     }
@@ -227,7 +227,7 @@ impl<'a> Comparer<'a> {
             .iter()
             .zip(&self.seen)
             .filter(|(_, seen)| !**seen)
-            .map(|(r, _)| r.id.clone())
+            .map(|(r, _)| r.id.to_string())
             .collect();
         self.comparison
     }

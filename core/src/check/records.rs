@@ -348,7 +348,7 @@ impl Hits {
 #[derive(Debug, Clone, PartialEq)]
 pub struct ProbeResult {
     /// The probe's id.
-    pub id: String,
+    pub id: Arc<str>,
     /// The probe's kind.
     pub kind: ProbeKind,
     /// How the expectation fared.

@@ -361,7 +361,7 @@ pub(super) fn parse_entry(
         InputError::at_fragment(path, text, item.get(), format!("result \"{}\": {m}", r.id))
     })?;
     Ok(ProbeResult {
-        id: r.id,
+        id: r.id.into(),
         kind: r.kind,
         verdict: r.verdict,
         reason: r.reason.into(),

@@ -19,7 +19,7 @@ pub fn expand_rules(rules: &[Rule], world: &World) -> Vec<Probe> {
             .collect();
         if picked.is_empty() {
             let mut probe = template_probe(rule, world, None);
-            probe.id = rule.id.clone();
+            probe.id = rule.id.as_str().into();
             probe.from_rule = Some(FromRule {
                 rule: rule_id.clone(),
                 object: None,
@@ -31,7 +31,7 @@ pub fn expand_rules(rules: &[Rule], world: &World) -> Vec<Probe> {
         for id in picked {
             let mut probe = template_probe(rule, world, Some(id));
             let name = world.shared_name(id);
-            probe.id = format!("{}/{}", rule.id, name);
+            probe.id = format!("{}/{}", rule.id, name).into();
             probe.label = rule.label.as_ref().map(|l| format!("{l}: {name}"));
             // A probe about an object looks past that object.
             probe.filter.ignore_objects.push(name.to_string());
@@ -51,7 +51,7 @@ fn template_probe(rule: &Rule, world: &World, object: Option<ObjectId>) -> Probe
     let up = world.up();
     let frame = |id: ObjectId| (world.object_bounds(id), world.object_frame(id));
     let blank = |query: ProbeQuery, expect: Option<Expect>| Probe {
-        id: String::new(),
+        id: "".into(),
         label: None,
         filter: rule.filter.clone(),
         query,

@@ -23,8 +23,8 @@ pub struct ProbeSet {
 /// One probe: a question about the level, and optionally the answer it should get.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Probe {
-    /// Unique id in the set, `[A-Za-z0-9._-]+`.
-    pub id: String,
+    /// Unique id in the set, `[A-Za-z0-9._-]+` (shared with its results, not copied).
+    pub id: std::sync::Arc<str>,
     /// What a designer is checking, in words.
     pub label: Option<String>,
     /// Which objects the probe looks at.

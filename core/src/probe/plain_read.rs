@@ -383,7 +383,7 @@ fn put<T>(slot: &mut Option<T>, value: T) -> Option<()> {
 #[derive(Debug, Default, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub(super) struct ProbeFields<'a> {
-    pub id: String,
+    pub id: std::sync::Arc<str>,
     pub label: Option<String>,
     /// Borrowed from the text when it holds no escapes (nearly always): no allocation a probe.
     #[serde(borrow)]
@@ -459,7 +459,7 @@ impl<'a> ProbeFields<'a> {
                 let key = s.string()?;
                 s.take(b':')?;
                 match key {
-                    "id" => put(&mut id, s.read()?)?,
+                    "id" => put(&mut id, s.string()?.into())?,
                     "label" => put(&mut f.label, s.read()?)?,
                     "kind" => put(&mut kind, s.string()?.into())?,
                     "from" => put(&mut f.from, s.read()?)?,
@@ -745,7 +745,7 @@ mod tests {
             let Ok(text) = String::from_utf8(bytes) else { return Ok(()) };
             // The id found alone is the one a whole reading finds, whenever that reading succeeds.
             if let (Some(id), Ok(reference)) = (plain_id(&text), from_object_str::<ProbeFields>(&text)) {
-                prop_assert_eq!(id, reference.id.as_str(), "{}", text);
+                prop_assert_eq!(id, &*reference.id, "{}", text);
             }
             if let Some(plain) = ProbeFields::read_plain(&text) {
                 let reference = from_object_str::<ProbeFields>(&text);
@@ -811,7 +811,7 @@ mod tests {
         let set = demo_set();
         for probe in SetFields::read_plain(&set).unwrap().probes {
             let fields: ProbeFields = from_object_str(probe).unwrap();
-            assert_eq!(plain_id(probe), Some(fields.id.as_str()), "{probe}");
+            assert_eq!(plain_id(probe), Some(&*fields.id), "{probe}");
             // The same probe with its id last, after every nested value.
             let serde_json::Value::Object(members) = serde_json::from_str(probe).unwrap() else {
                 panic!("a probe is an object");
@@ -819,7 +819,7 @@ mod tests {
             let (id, rest): (Vec<_>, Vec<_>) = members.into_iter().partition(|(k, _)| k == "id");
             let last: serde_json::Map<_, _> = rest.into_iter().chain(id).collect();
             let text = serde_json::to_string_pretty(&last).unwrap();
-            assert_eq!(plain_id(&text), Some(fields.id.as_str()), "{text}");
+            assert_eq!(plain_id(&text), Some(&*fields.id), "{text}");
         }
         // Escaped, missing or not a string: left to the whole reading.
         for text in [

@@ -189,7 +189,7 @@ impl ProbeText {
             let id = match whole.next() {
                 Some(parsed) => {
                     let probe = parsed?;
-                    let id = Cow::Owned(probe.id.clone());
+                    let id = Cow::Owned(probe.id.to_string());
                     first.push(probe);
                     id
                 }
@@ -216,7 +216,7 @@ impl ProbeText {
         let (start, end) = self.spans[k];
         match plain_id(&self.text[start..end]) {
             Some(id) => Ok(Cow::Borrowed(id)),
-            None => Ok(Cow::Owned(self.probe(k)?.id)),
+            None => Ok(Cow::Owned(self.probe(k)?.id.to_string())),
         }
     }
 
@@ -396,6 +396,6 @@ mod tests {
         let parsed = set.probes(0..5).unwrap();
         assert_eq!(handed, parsed);
         assert_eq!(&parsed[1..3], &part[..]);
-        assert_eq!(parsed[4].id, "p4");
+        assert_eq!(&*parsed[4].id, "p4");
     }
 }

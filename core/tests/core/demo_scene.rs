@@ -87,7 +87,7 @@ fn the_probe_set_gives_the_reviewed_baseline() {
     let failing: Vec<(&str, &str)> = results
         .iter()
         .filter(|r| r.verdict == Verdict::Fail)
-        .map(|r| (r.id.as_str(), &*r.reason))
+        .map(|r| (&*r.id, &*r.reason))
         .collect();
     assert_eq!(
         failing,

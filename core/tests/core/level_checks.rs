@@ -28,7 +28,7 @@ fn answers(world: &World, set: &ProbeSet) -> Vec<(String, Verdict, Hits, String)
         .iter()
         .map(|p| {
             let r = answer_probe(world, p);
-            (r.id, r.verdict, r.hits, r.reason.into_owned())
+            (r.id.to_string(), r.verdict, r.hits, r.reason.into_owned())
         })
         .collect()
 }
@@ -173,7 +173,7 @@ fn rules_expand_to_one_probe_per_selected_object_in_level_order_the_same_every_t
                        "at": {"anchor": "bottom", "offset": [0, 0.92, 0]}}}]"#,
     );
     let first = expand_rules(&set.rules, &world);
-    let ids: Vec<&str> = first.iter().map(|p| p.id.as_str()).collect();
+    let ids: Vec<&str> = first.iter().map(|p| &*p.id).collect();
     assert_eq!(
         ids,
         [
@@ -493,7 +493,7 @@ fn rule_ids_stay_the_same_when_unrelated_objects_are_added() {
     let ids = |w: &World| -> Vec<String> {
         expand_rules(&rules.rules, w)
             .into_iter()
-            .map(|p| p.id)
+            .map(|p| p.id.to_string())
             .collect()
     };
     assert_eq!(ids(&before), ["clear/s1", "clear/s2"]);

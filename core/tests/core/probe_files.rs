@@ -16,7 +16,7 @@ fn save_and_reload_is_identical() {
     let again = parse_probe_set(path, &saved).unwrap();
     assert_eq!(set, again);
     assert_eq!(saved, probe_set_to_json(&again), "saving is stable");
-    let ids: Vec<&str> = again.probes.iter().map(|p| p.id.as_str()).collect();
+    let ids: Vec<&str> = again.probes.iter().map(|p| &*p.id).collect();
     assert_eq!(
         ids,
         [
@@ -125,7 +125,10 @@ fn a_set_of_many_chunks_is_answered_in_order_for_any_thread_count() {
     };
     let one = answers(1, None);
     let ids: Vec<String> = (0..20_000).map(|k| format!("r{k}")).collect();
-    assert_eq!(one.iter().map(|r| r.id.clone()).collect::<Vec<_>>(), ids);
+    assert_eq!(
+        one.iter().map(|r| r.id.to_string()).collect::<Vec<_>>(),
+        ids
+    );
     assert!(
         one.iter().any(|r| !r.hits.is_empty()),
         "some rays hit the level"

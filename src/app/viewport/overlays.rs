@@ -53,7 +53,7 @@ impl Viewport {
                 continue;
             };
             let selected = selection.probe == Some(i);
-            let changed = changes.contains_key(&probe.id);
+            let changed = changes.contains_key(&*probe.id);
             if !selected && !changed && !matches!(result.verdict, Verdict::Fail | Verdict::Error) {
                 continue;
             }
