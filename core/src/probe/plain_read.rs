@@ -123,25 +123,14 @@ impl<'a> Scanner<'a> {
         self.skip_space();
         let b = self.bytes();
         let start = self.at;
-        let mut i = start;
-        let mut depth = 0usize;
-        loop {
-            match *b.get(i)? {
-                b'"' => i = string_end(b, i + 1)? + 1,
-                b'{' | b'[' => {
-                    depth += 1;
-                    i += 1;
-                }
-                b'}' | b']' => {
-                    depth = depth.checked_sub(1)?;
-                    i += 1;
-                }
-                // Inside brackets only strings and brackets matter for finding the end.
-                _ if depth > 0 => i += b[i..].iter().position(|&c| NESTING[usize::from(c)])?,
-                b',' | b':' => return None,
-                // A number or a literal: up to the next delimiter.
-                _ => {
-                    i += b[i..]
+        let end = match *b.get(start)? {
+            b'{' | b'[' => nested_end(b, start)?,
+            b'"' => string_end(b, start + 1)? + 1,
+            b',' | b':' | b'}' | b']' => return None,
+            // A number or a literal: up to the next delimiter.
+            _ => {
+                start
+                    + b[start..]
                         .iter()
                         .position(|c| {
                             matches!(
@@ -158,14 +147,11 @@ impl<'a> Scanner<'a> {
                                     | b'\r'
                             )
                         })
-                        .unwrap_or(b.len() - i)
-                }
+                        .unwrap_or(b.len() - start)
             }
-            if depth == 0 {
-                self.at = i;
-                return self.text.get(start..i);
-            }
-        }
+        };
+        self.at = end;
+        self.text.get(start..end)
     }
 
     /// The text of the next value, checked to be JSON: a plain string here, anything else by
@@ -223,6 +209,32 @@ const NESTING: [bool; 256] = {
     table[b']' as usize] = true;
     table
 };
+
+/// Where the array or object whose opening bracket is `b[start]` ends (one past its closing
+/// bracket): strings stepped over with their escapes, brackets counted in one pass (whether they
+/// match is for whoever reads the value). `None` when it does not close.
+fn nested_end(b: &[u8], start: usize) -> Option<usize> {
+    let mut depth = 0usize;
+    let mut i = start;
+    loop {
+        let c = *b.get(i)?;
+        i += 1;
+        if !NESTING[usize::from(c)] {
+            continue;
+        }
+        match c {
+            b'"' => i = string_end(b, i)? + 1,
+            b'{' | b'[' => depth += 1,
+            // A closing bracket: the opening one at `start` was counted first.
+            _ => {
+                depth -= 1;
+                if depth == 0 {
+                    return Some(i);
+                }
+            }
+        }
+    }
+}
 
 /// Where the string whose text starts at `i` ends (its closing quote), stepping over escapes.
 fn string_end(b: &[u8], mut i: usize) -> Option<usize> {
@@ -870,6 +882,21 @@ mod tests {
         ] {
             assert_eq!(plain_id(text), None, "{text}");
         }
+    }
+
+    /// Brackets, braces and escaped quotes inside strings are text, not structure: each probe's
+    /// text ends where serde_json (the reference reader) ends it.
+    #[test]
+    fn brackets_and_quotes_inside_strings_do_not_end_a_probe() {
+        let text = r#"{"plumbline": "probes", "version": 1, "level": "l.level.json", "probes": [
+            {"id": "a", "label": "gate ]} [north {", "kind": "ray", "from": [0, 0, 0], "to": [1, 0, 0]},
+            {"id": "b", "label": "say \"]}\" twice \\", "kind": "ray", "from": [0, 0, 0], "to": [0, 1, 0]}
+        ]}"#;
+        let plain = SetFields::read_plain(text).expect("a plain top");
+        let reference: SetFields = from_object_str(text).unwrap();
+        assert_eq!(plain.probes.len(), 2);
+        assert_eq!(plain.probes, reference.probes);
+        assert_eq!(plain_id(plain.probes[1]), Some("b"));
     }
 
     #[test]
