@@ -261,39 +261,71 @@ fn take_digits(b: &[u8], mut i: usize, mantissa: &mut u64) -> usize {
     i
 }
 
+/// Powers of ten that f64 holds exactly.
+const POWERS: [f64; 23] = [
+    1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15, 1e16,
+    1e17, 1e18, 1e19, 1e20, 1e21, 1e22,
+];
+
+/// A JSON number's sign, digits and fraction (RFC 8259 §6), up to where its exponent would start.
+struct Decimal {
+    /// Where its digits end.
+    end: usize,
+    negative: bool,
+    /// Its digits, before and after the point, as one whole number (wrapping past 19 digits,
+    /// when it is not used).
+    mantissa: u64,
+    /// How many digits it has (a leading zero counted).
+    digits: usize,
+    /// How many of them follow the point.
+    fraction: usize,
+}
+
+/// Reads the number's sign, digits and fraction at `b[at..]`; `None` when no number starts there
+/// or its point has no digits after it.
+#[inline(always)]
+fn decimal(b: &[u8], at: usize) -> Option<Decimal> {
+    let negative = b.get(at) == Some(&b'-');
+    let first = at + usize::from(negative);
+    let mut mantissa = 0u64;
+    let mut end = match b.get(first) {
+        // A lone zero before the point, as JSON writes it.
+        Some(b'0') => first + 1,
+        Some(b'1'..=b'9') => take_digits(b, first, &mut mantissa),
+        _ => return None,
+    };
+    let mut digits = end - first;
+    let mut fraction = 0;
+    if b.get(end) == Some(&b'.') {
+        let after = take_digits(b, end + 1, &mut mantissa);
+        fraction = after - (end + 1);
+        if fraction == 0 {
+            return None;
+        }
+        digits += fraction;
+        end = after;
+    }
+    Some(Decimal {
+        end,
+        negative,
+        mantissa,
+        digits,
+        fraction,
+    })
+}
+
 /// The length of the JSON number at the start of `b` (RFC 8259 §6), and its value when it is
 /// exact by Clinger's fast path (Clinger, "How to Read Floating Point Numbers Accurately", PLDI
 /// 1990): at most 2^53 in its digits and a power of ten up to 22 either way, both exact in f64,
 /// so that one multiplication or division rounds once, correctly.
 fn scan_number(b: &[u8]) -> Option<(usize, Option<f64>)> {
-    const POWERS: [f64; 23] = [
-        1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15, 1e16,
-        1e17, 1e18, 1e19, 1e20, 1e21, 1e22,
-    ];
-    let negative = b.first() == Some(&b'-');
-    let mut i = usize::from(negative);
-    let mut mantissa = 0u64;
-    let mut count = match b.get(i) {
-        Some(b'0') => {
-            i += 1;
-            1
-        }
-        Some(b'1'..=b'9') => {
-            let end = take_digits(b, i, &mut mantissa);
-            std::mem::replace(&mut i, end).abs_diff(end)
-        }
-        _ => return None,
-    };
-    let mut fraction = 0;
-    if b.get(i) == Some(&b'.') {
-        let end = take_digits(b, i + 1, &mut mantissa);
-        fraction = end - (i + 1);
-        if fraction == 0 {
-            return None;
-        }
-        count += fraction;
-        i = end;
-    }
+    let Decimal {
+        end: mut i,
+        negative,
+        mantissa,
+        digits,
+        fraction,
+    } = decimal(b, 0)?;
     let mut exponent = 0i64;
     if matches!(b.get(i), Some(b'e' | b'E')) {
         i += 1;
@@ -317,7 +349,7 @@ fn scan_number(b: &[u8]) -> Option<(usize, Option<f64>)> {
         }
     }
     let power = exponent - fraction as i64;
-    let exact = (count <= 19 && mantissa <= 1 << 53 && power.abs() <= 22).then(|| {
+    let exact = (digits <= 19 && mantissa <= 1 << 53 && power.abs() <= 22).then(|| {
         let m = mantissa as f64;
         let x = if power >= 0 {
             m * POWERS[power as usize]
@@ -335,34 +367,12 @@ fn scan_number(b: &[u8]) -> Option<(usize, Option<f64>)> {
 /// for the fraction are both exact, so one division rounds once, correctly (Clinger's fast path,
 /// as there). Always finite.
 fn short_decimal(b: &[u8], at: usize) -> Option<(usize, f64)> {
-    const POWERS: [f64; 16] = [
-        1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15,
-    ];
-    let negative = b.get(at) == Some(&b'-');
-    let first = at + usize::from(negative);
-    let mut mantissa = 0u64;
-    let mut i = match b.get(first) {
-        // A lone zero before the point, as JSON writes it.
-        Some(b'0') => first + 1,
-        Some(b'1'..=b'9') => take_digits(b, first, &mut mantissa),
-        _ => return None,
-    };
-    let mut digits = i - first;
-    let mut fraction = 0;
-    if b.get(i) == Some(&b'.') {
-        let end = take_digits(b, i + 1, &mut mantissa);
-        fraction = end - (i + 1);
-        if fraction == 0 {
-            return None;
-        }
-        digits += fraction;
-        i = end;
-    }
-    if digits > 15 || matches!(b.get(i), Some(b'e' | b'E')) {
+    let d = decimal(b, at)?;
+    if d.digits > 15 || matches!(b.get(d.end), Some(b'e' | b'E')) {
         return None;
     }
-    let x = mantissa as f64 / POWERS[fraction];
-    Some((i, if negative { -x } else { x }))
+    let x = d.mantissa as f64 / POWERS[d.fraction];
+    Some((d.end, if d.negative { -x } else { x }))
 }
 
 /// A value read without serde.
