@@ -456,6 +456,12 @@ mod layout {
     use super::*;
     use crate::json_text::{Brackets, Layout, Members, Trees, key};
 
+    /// The object met and its tags, as every hit record begins.
+    fn object_members<M: Members>(m: &mut M, object: &str, tags: &[String]) {
+        m.str(key!("object"), object);
+        m.strs(key!("tags"), tags);
+    }
+
     /// The triangle, where it is in the file, and the material, each when known.
     fn face_members<M: Members>(
         m: &mut M,
@@ -500,8 +506,7 @@ mod layout {
         const BRACKETS: Brackets = Brackets::Object;
 
         fn members<M: Members>(&self, m: &mut M) {
-            m.str(key!("object"), &self.object);
-            m.strs(key!("tags"), &self.tags);
+            object_members(m, &self.object, &self.tags);
             m.float(key!("distance"), self.distance);
             m.float(key!("t"), self.t);
             m.vec3(key!("point"), self.point);
@@ -517,8 +522,7 @@ mod layout {
         const BRACKETS: Brackets = Brackets::Object;
 
         fn members<M: Members>(&self, m: &mut M) {
-            m.str(key!("object"), &self.object);
-            m.strs(key!("tags"), &self.tags);
+            object_members(m, &self.object, &self.tags);
             m.float(key!("distance"), self.distance);
             m.float(key!("t"), self.t);
             m.uint(key!("segment"), self.segment as u64);
@@ -542,8 +546,7 @@ mod layout {
         const BRACKETS: Brackets = Brackets::Object;
 
         fn members<M: Members>(&self, m: &mut M) {
-            m.str(key!("object"), &self.object);
-            m.strs(key!("tags"), &self.tags);
+            object_members(m, &self.object, &self.tags);
             m.float(key!("distance"), self.distance);
             m.vec3(key!("point"), self.point);
             m.vec3(key!("shape_point"), self.shape_point);
@@ -559,8 +562,7 @@ mod layout {
         const BRACKETS: Brackets = Brackets::Object;
 
         fn members<M: Members>(&self, m: &mut M) {
-            m.str(key!("object"), &self.object);
-            m.strs(key!("tags"), &self.tags);
+            object_members(m, &self.object, &self.tags);
             m.float(key!("depth"), self.depth);
             m.vec3(key!("direction"), self.direction);
             m.vec3(key!("point"), self.point);
