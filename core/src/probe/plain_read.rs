@@ -616,17 +616,7 @@ pub(super) fn plain_string(text: &str) -> Option<&str> {
 /// member before the object closes or the text is not plain there (the caller parses the probe).
 /// Whether the probe is otherwise valid is not looked at.
 pub(super) fn plain_id(text: &str) -> Option<&str> {
-    let mut s = Scanner::new(text);
-    s.take(b'{')?;
-    loop {
-        let key = s.string()?;
-        s.take(b':')?;
-        if key == "id" {
-            return s.string();
-        }
-        s.value_text()?;
-        s.take(b',')?;
-    }
+    plain_member(text, "id", &[])
 }
 
 /// The level a probe-set file names, found in its head without reading its probes: the `"level"`
@@ -634,18 +624,25 @@ pub(super) fn plain_id(text: &str) -> Option<&str> {
 /// is plain. `None` otherwise (the caller reads the whole top). Whether the file is otherwise valid
 /// is not looked at; when it is, its level is this one (a repeated member is not valid).
 pub(super) fn plain_level(text: &str) -> Option<&str> {
+    plain_member(text, "level", &["probes", "rules"])
+}
+
+/// The plain string of the first member `name` of the object `text`, the values of the members
+/// before it stepped over; `None` when a member of `first` comes before it, the object closes
+/// without it, or the text is not plain up to it.
+fn plain_member<'t>(text: &'t str, name: &str, first: &[&str]) -> Option<&'t str> {
     let mut s = Scanner::new(text);
     s.take(b'{')?;
     loop {
         let key = s.string()?;
         s.take(b':')?;
-        match key {
-            "level" => return s.string(),
-            "probes" | "rules" => return None,
-            _ => {
-                s.value_text()?;
-            }
+        if key == name {
+            return s.string();
         }
+        if first.contains(&key) {
+            return None;
+        }
+        s.value_text()?;
         s.take(b',')?;
     }
 }
