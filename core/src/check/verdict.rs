@@ -24,7 +24,10 @@ pub fn judge(
         text.push_str(&met);
     }
     let Some(expect) = &probe.expect else {
-        return (Verdict::Unchecked, fixed_or(answer, 1, capitalise));
+        return (
+            Verdict::Unchecked,
+            fixed_or(answer, |w| w.alone, capitalise),
+        );
     };
     let conditions = expect.conditions();
     let unmet = first_unmet(&conditions, hits, clearance, up)
@@ -32,7 +35,11 @@ pub fn judge(
     match unmet {
         None => (
             Verdict::Pass,
-            fixed_or(answer, 2, |a| ["As expected: ", &a].concat()),
+            fixed_or(
+                answer,
+                |w| w.as_expected,
+                |a| ["As expected: ", &a].concat(),
+            ),
         ),
         Some(wanted) => (
             Verdict::Fail,
@@ -41,29 +48,44 @@ pub fn judge(
     }
 }
 
-/// The answers that are words alone (no object, no number): each as [`describe`] gives it, as a
-/// sentence on its own, and after "As expected: ". A check gives one of these for every clear
-/// ray, so their reasons are not written again each time.
-const FIXED: [[&str; 3]; 2] = [
-    ["clear", "Clear", "As expected: clear"],
-    [
-        "nothing within reach",
-        "Nothing within reach",
-        "As expected: nothing within reach",
-    ],
-];
+/// An answer that is words alone (no object, no number), as [`describe`] gives it, with its
+/// reasons written once: a check gives one of these for every clear ray, so they are shared, not
+/// written again each time.
+struct Words {
+    answer: &'static str,
+    /// The reason of a probe without an expectation.
+    alone: &'static str,
+    /// The reason of a probe whose expectation holds.
+    as_expected: &'static str,
+}
 
-/// The reason for `answer`: column `form` of [`FIXED`] when the answer is one of those words,
-/// else `make` of it.
+const CLEAR: Words = Words {
+    answer: "clear",
+    alone: "Clear",
+    as_expected: "As expected: clear",
+};
+
+const NOTHING_WITHIN_REACH: Words = Words {
+    answer: "nothing within reach",
+    alone: "Nothing within reach",
+    as_expected: "As expected: nothing within reach",
+};
+
+/// The reason for `answer`: its `form` when the answer is one of the shared [`Words`], else
+/// `make` of it.
 fn fixed_or(
     answer: Cow<'static, str>,
-    form: usize,
+    form: fn(&Words) -> &'static str,
     make: impl FnOnce(String) -> String,
 ) -> Cow<'static, str> {
-    match FIXED.iter().find(|fixed| fixed[0] == answer) {
-        Some(fixed) => Cow::Borrowed(fixed[form]),
-        None => Cow::Owned(make(answer.into_owned())),
+    if let Cow::Borrowed(text) = answer
+        && let Some(words) = [CLEAR, NOTHING_WITHIN_REACH]
+            .iter()
+            .find(|w| w.answer == text)
+    {
+        return Cow::Borrowed(form(words));
     }
+    Cow::Owned(make(answer.into_owned()))
 }
 
 /// One part of a reason: words, an object as [`named`] names it, or a length as [`metres`] writes
@@ -244,8 +266,8 @@ fn describe(hits: &Hits, clearance: Option<&ClearanceRecord>) -> Cow<'static, st
             c.t * 100.0
         )),
         (None, None) => Cow::Borrowed(match hits {
-            Hits::Closest(_) => FIXED[1][0],
-            _ => FIXED[0][0],
+            Hits::Closest(_) => NOTHING_WITHIN_REACH.answer,
+            _ => CLEAR.answer,
         }),
     }
 }
@@ -348,15 +370,25 @@ mod tests {
     #[test]
     fn answers_of_words_alone_are_shared_and_worded_as_any_other() {
         let as_expected = |a: String| ["As expected: ", &a].concat();
-        for [answer, alone, expected] in FIXED {
-            let shared = fixed_or(Cow::Borrowed(answer), 1, capitalise);
+        for Words {
+            answer,
+            alone,
+            as_expected: expected,
+        } in [CLEAR, NOTHING_WITHIN_REACH]
+        {
+            let shared = fixed_or(Cow::Borrowed(answer), |w| w.alone, capitalise);
             assert!(matches!(shared, Cow::Borrowed(_)));
             assert_eq!(shared, capitalise(answer.to_string()));
             assert_eq!(shared, alone);
-            assert_eq!(fixed_or(Cow::Borrowed(answer), 2, as_expected), expected);
+            let expected_shared = fixed_or(Cow::Borrowed(answer), |w| w.as_expected, as_expected);
+            assert_eq!(expected_shared, expected);
             assert_eq!(as_expected(answer.to_string()), expected);
         }
-        let other = fixed_or(Cow::Owned("blocked by gate".into()), 1, capitalise);
+        let other = fixed_or(
+            Cow::Owned("blocked by gate".into()),
+            |w| w.alone,
+            capitalise,
+        );
         assert_eq!(other, "Blocked by gate");
     }
 
