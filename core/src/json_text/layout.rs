@@ -364,8 +364,6 @@ impl Broken<'_> {
     /// Starts a member: the line break (after a comma, but for the first), the indent and its key.
     #[inline(always)]
     fn start(&mut self, key: Key) {
-        /// A comma, a line break and the indents of the first levels.
-        const BREAKS: &str = ",\n                                                                ";
         let from = usize::from(self.count == 0);
         match BREAKS.get(from..2 + 2 * (self.depth + 1)) {
             Some(text) => self.out.push_str(text),
@@ -396,12 +394,30 @@ impl Members for Broken<'_> {
     }
 }
 
+/// A comma, a line break and the indents of the first 32 levels: a member's line start is one
+/// slice of it, an indent another.
+const BREAKS: &str = ",\n                                                                ";
+
 /// Two spaces per level.
 fn indent(depth: usize) -> Cow<'static, str> {
-    const SPACES: &str = "                                ";
-    match SPACES.get(..2 * depth) {
+    match BREAKS.get(2..2 + 2 * depth) {
         Some(s) => Cow::Borrowed(s),
         None => Cow::Owned("  ".repeat(depth)),
+    }
+}
+
+/// Offers each of `items` to the pass `m` by `offer`, until the pass has its answer.
+#[inline(always)]
+fn offer_each<M: Members, T>(
+    m: &mut M,
+    items: impl IntoIterator<Item = T>,
+    mut offer: impl FnMut(&mut M, T),
+) {
+    for item in items {
+        if m.done() {
+            return;
+        }
+        offer(m, item);
     }
 }
 
@@ -409,9 +425,7 @@ impl Layout for [f64] {
     const BRACKETS: Brackets = Brackets::Array;
 
     fn members<M: Members>(&self, m: &mut M) {
-        for x in self {
-            m.float(Key::Item, *x);
-        }
+        offer_each(m, self, |m, x| m.float(Key::Item, *x));
     }
 }
 
@@ -419,12 +433,7 @@ impl Layout for [String] {
     const BRACKETS: Brackets = Brackets::Array;
 
     fn members<M: Members>(&self, m: &mut M) {
-        for s in self {
-            if m.done() {
-                return;
-            }
-            m.str(Key::Item, s);
-        }
+        offer_each(m, self, |m, s| m.str(Key::Item, s));
     }
 }
 
@@ -432,12 +441,7 @@ impl Layout for [Json<'_>] {
     const BRACKETS: Brackets = Brackets::Array;
 
     fn members<M: Members>(&self, m: &mut M) {
-        for item in self {
-            if m.done() {
-                return;
-            }
-            m.json(Key::Item, item);
-        }
+        offer_each(m, self, |m, item| m.json(Key::Item, item));
     }
 }
 
@@ -445,12 +449,7 @@ impl Layout for [(&str, Json<'_>)] {
     const BRACKETS: Brackets = Brackets::Object;
 
     fn members<M: Members>(&self, m: &mut M) {
-        for (key, item) in self {
-            if m.done() {
-                return;
-            }
-            m.json(Key::Text(key), item);
-        }
+        offer_each(m, self, |m, (key, item)| m.json(Key::Text(key), item));
     }
 }
 
@@ -459,12 +458,7 @@ impl<T: Layout> Layout for [T] {
     const BRACKETS: Brackets = Brackets::Array;
 
     fn members<M: Members>(&self, m: &mut M) {
-        for item in self {
-            if m.done() {
-                return;
-            }
-            m.nested(Key::Item, item);
-        }
+        offer_each(m, self, |m, item| m.nested(Key::Item, item));
     }
 }
 
@@ -476,11 +470,6 @@ impl<'a, T, F: Fn(&'a T) -> Json<'a>> Layout for Trees<'a, T, F> {
     const BRACKETS: Brackets = Brackets::Array;
 
     fn members<M: Members>(&self, m: &mut M) {
-        for item in self.0 {
-            if m.done() {
-                return;
-            }
-            m.json(Key::Item, &(self.1)(item));
-        }
+        offer_each(m, self.0, |m, item| m.json(Key::Item, &(self.1)(item)));
     }
 }
