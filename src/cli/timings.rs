@@ -18,7 +18,7 @@ pub struct Timings {
     /// Probes and time, per kind (in [`ProbeKind::ALL`] order).
     by_kind: [(usize, Duration); ProbeKind::ALL.len()],
     /// The slowest probes so far, slowest first (ties: earlier in the set first).
-    slowest: Vec<(Duration, String, ProbeKind)>,
+    slowest: Vec<(Duration, std::sync::Arc<str>, ProbeKind)>,
 }
 
 impl Timings {
@@ -33,8 +33,7 @@ impl Timings {
         self.by_kind[k].1 += took;
         let place = self.slowest.partition_point(|(t, _, _)| *t >= took);
         if place < SLOWEST {
-            self.slowest
-                .insert(place, (took, probe.id.to_string(), kind));
+            self.slowest.insert(place, (took, probe.id.clone(), kind));
             self.slowest.truncate(SLOWEST);
         }
     }
