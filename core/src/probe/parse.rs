@@ -10,7 +10,7 @@ use super::model::{
     Conditions, Expect, ExpectWord, Launch, MAX_SETTLE_TIME, Probe, ProbeKind, ProbeQuery, Region,
     Spot, Spots, Turns,
 };
-use super::plain_read::{ProbeFields, plain_string};
+use super::plain_read::{ProbeFields, plain_ray, plain_string};
 use crate::error::InputError;
 use crate::input::{MAX_NAME_CHARS, check_name, number, one_line};
 use crate::level::ShapeSpec;
@@ -35,8 +35,17 @@ fn check_names(raw: &ProbeFields) -> Result<(), String> {
     Ok(())
 }
 
-/// Parses probe `fragment`, a slice of the file's `text`.
+/// Parses probe `fragment`, a slice of the file's `text`: a plain ray straight from its text (see
+/// [`plain_ray`]), any other probe field by field.
 pub(super) fn parse_probe(path: &Path, text: &str, fragment: &str) -> Result<Probe, InputError> {
+    match plain_ray(fragment) {
+        Some(probe) => Ok(probe),
+        None => parse_fields(path, text, fragment),
+    }
+}
+
+/// Parses probe `fragment` field by field, naming any error's place in `text`.
+fn parse_fields(path: &Path, text: &str, fragment: &str) -> Result<Probe, InputError> {
     let mut raw = ProbeFields::default();
     ProbeFields::read_into(fragment, &mut raw)
         .map_err(|e| InputError::json_in(path, text, fragment, &e))?;
@@ -848,4 +857,85 @@ fn check_conditions(c: &Conditions, query: &ProbeQuery) -> Result<(), String> {
         }
     }
     Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    //! The plain ray reader against the general one (itself held to serde_json, the reference
+    //! reader from crates.io, in plain_read.rs): wherever the plain reader reads a probe, it reads
+    //! the probe the general one does; and it does read the plain rays it exists for.
+
+    use proptest::prelude::*;
+
+    use super::*;
+
+    /// A number's text: ordinary decimals, integers, exponents, and values out of range.
+    fn number() -> impl Strategy<Value = String> {
+        prop_oneof![
+            4 => (-200.0..200.0f64).prop_map(|x| format!("{:.4}", x)),
+            1 => (-9i64..9).prop_map(|x| x.to_string()),
+            1 => Just("1.5e3".to_string()),
+            1 => Just("2e7".to_string()),
+            1 => Just("1e400".to_string()),
+            1 => Just("-0.0".to_string()),
+        ]
+    }
+
+    fn point() -> impl Strategy<Value = [String; 3]> {
+        [number(), number(), number()]
+    }
+
+    /// A ray probe's members (some not plain, some not a ray, some wrong), in a random order and
+    /// spacing; `true` with them when they make a plain ray the plain reader must read.
+    fn ray_probe() -> impl Strategy<Value = (String, bool)> {
+        (
+            prop_oneof![3 => "[a-z][a-z0-9._-]{0,8}", 1 => "[a-z ]{0,3}", 1 => Just("r\\u0031".to_string())],
+            prop_oneof![4 => Just("ray"), 1 => Just("sweep"), 1 => Just("Ray")],
+            point(),
+            prop_oneof![3 => point().prop_map(Some), 1 => Just(None)],
+            prop_oneof![3 => Just(None), 1 => Just(Some("\"first\"")), 1 => Just(Some("\"all\"")), 1 => Just(Some("\"both\""))],
+            prop_oneof![4 => Just(None), 1 => Just(Some(r#""label": "gate""#)), 1 => Just(Some(r#""id": "again""#))],
+            any::<prop::sample::Index>(),
+            prop_oneof![Just(" "), Just(""), Just("\n  ")],
+        )
+            .prop_map(|(id, kind, from, to, hits, extra, order, space)| {
+                let to = to.unwrap_or_else(|| from.clone());
+                let mut members = vec![
+                    format!(r#""id":{space}"{id}""#),
+                    format!(r#""kind":{space}"{kind}""#),
+                    format!(r#""from": [{}]"#, from.join(&format!(",{space}"))),
+                    format!(r#""to": [{}]"#, to.join(", ")),
+                ];
+                members.extend(hits.map(|h| format!(r#""hits": {h}"#)));
+                members.extend(extra.map(str::to_string));
+                let turn = order.index(members.len());
+                members.rotate_left(turn);
+                let text = format!("{{{space}{}}}", members.join(&format!(",{space}")));
+                let values = |p: &[String; 3]| p.iter().map(|x| x.parse::<f64>().unwrap()).collect::<Vec<_>>();
+                let (a, b) = (values(&from), values(&to));
+                let plain = check_id("probe", &id).is_ok()
+                    && !id.contains('\\')
+                    && kind == "ray"
+                    && a.iter().chain(&b).all(|x| x.abs() <= crate::level::MAX_COORDINATE)
+                    && a != b
+                    && hits != Some("\"both\"")
+                    && extra.is_none();
+                (text, plain)
+            })
+    }
+
+    proptest! {
+        #[test]
+        fn plain_rays_are_read_as_the_general_reader_reads_them((text, plain) in ray_probe()) {
+            let general = parse_fields(Path::new("set"), &text, &text);
+            match plain_ray(&text) {
+                Some(probe) => {
+                    let general = general.map_err(|e| e.to_string());
+                    prop_assert!(general.is_ok(), "{} read plainly, refused: {:?}", text, general);
+                    prop_assert_eq!(format!("{probe:?}"), format!("{:?}", general.unwrap()), "{}", text);
+                }
+                None => prop_assert!(!plain, "{} is a plain ray, not read plainly", text),
+            }
+        }
+    }
 }

@@ -12,8 +12,13 @@
 use serde::Deserialize;
 use serde_json::value::RawValue;
 
-use super::model::HitsMode;
+use glam::DVec3;
+
+use super::model::{HitsMode, Probe, ProbeQuery};
+use super::parse::check_id;
 use crate::json_object::{from_object_str, objects};
+use crate::level::within_range;
+use crate::query::Filter;
 
 /// Where reading is in a probe's text.
 struct Scanner<'a> {
@@ -572,6 +577,50 @@ impl<'a> ProbeFields<'a> {
         f.kind = kind?;
         Some(())
     }
+}
+
+/// A ray probe that holds nothing but its id, its kind, its two ends and perhaps its hits mode,
+/// each once and plainly written, with a well-formed id and two distinct ends within range, read
+/// straight into a [`Probe`]: the probes of large generated sets are nearly all such rays, and this
+/// skips the general reader's table of every field. `None` for anything else, which the general
+/// reader then reads (and names any error in); where both read a probe they give the same one.
+pub(super) fn plain_ray(text: &str) -> Option<Probe> {
+    let mut s = Scanner::new(text);
+    let (mut id, mut kind, mut from, mut to, mut hits) = (None, None, None, None, None);
+    s.take(b'{')?;
+    loop {
+        let key = s.string()?;
+        s.take(b':')?;
+        match key {
+            "id" => put(&mut id, s.string()?)?,
+            "kind" => put(&mut kind, s.string()?)?,
+            "from" => put(&mut from, s.read::<[f64; 3]>()?)?,
+            "to" => put(&mut to, s.read::<[f64; 3]>()?)?,
+            "hits" => put(&mut hits, s.read::<HitsMode>()?)?,
+            _ => return None,
+        }
+        if s.takes(b'}') {
+            break;
+        }
+        s.take(b',')?;
+    }
+    if !s.at_end() || kind? != "ray" {
+        return None;
+    }
+    let id = id?;
+    check_id("probe", id).ok()?;
+    let (from, to) = (DVec3::from_array(from?), DVec3::from_array(to?));
+    if !within_range(from) || !within_range(to) || from == to {
+        return None;
+    }
+    Some(Probe {
+        id: id.into(),
+        label: None,
+        filter: Filter::default(),
+        query: ProbeQuery::Ray { from, to, hits },
+        expect: None,
+        from_rule: None,
+    })
 }
 
 /// An array of objects, read by serde from `text`.
