@@ -61,9 +61,7 @@ impl<'a> Scanner<'a> {
     fn string(&mut self) -> Option<&'a str> {
         self.take(b'"')?;
         let start = self.at;
-        let length = self.bytes()[start..]
-            .iter()
-            .position(|&b| b == b'"' || b == b'\\' || b < 0x20)?;
+        let length = plain_run(&self.bytes()[start..])?;
         self.at = start + length;
         self.takes_exact(b'"').then_some(())?;
         // The quote is ASCII, so the slice ends on a character boundary.
@@ -277,7 +275,50 @@ fn nested_end_bytewise(b: &[u8], mut i: usize, mut depth: usize) -> Option<usize
     }
 }
 
-/// Which of the sixteen bytes from `b[i]` are quotes, backslashes or brackets (bit `k` for `b[i + k]`), or
+/// How many bytes `b` starts with that a string holds as they are: none a quote, a backslash or a
+/// control character; `None` when every byte is. Sixteen bytes are looked at together where
+/// SSE2 is at hand (see [`string_stops`]).
+fn plain_run(b: &[u8]) -> Option<usize> {
+    let mut i = 0;
+    while let Some(stops) = string_stops(b, i) {
+        if stops != 0 {
+            return Some(i + stops.trailing_zeros() as usize);
+        }
+        i += 16;
+    }
+    let stop = |c: &u8| *c == b'"' || *c == b'\\' || *c < 0x20;
+    Some(i + b[i..].iter().position(stop)?)
+}
+
+/// Which of the sixteen bytes from `b[i]` end a plain run of a string (a quote, a backslash or a
+/// control character; bit `k` for `b[i + k]`), or `None` when fewer than sixteen are left.
+#[cfg(target_arch = "x86_64")]
+fn string_stops(b: &[u8], i: usize) -> Option<u32> {
+    use std::arch::x86_64::{
+        __m128i, _mm_cmpeq_epi8, _mm_loadu_si128, _mm_min_epu8, _mm_movemask_epi8, _mm_or_si128,
+        _mm_set1_epi8,
+    };
+    let block = b.get(i..i + 16)?;
+    // SAFETY: every x86-64 target enables SSE2, so these instructions exist wherever this runs;
+    // the load reads the sixteen bytes of `block` (unaligned loads are allowed).
+    unsafe {
+        let v = _mm_loadu_si128(block.as_ptr().cast::<__m128i>());
+        let is = |c: u8| _mm_cmpeq_epi8(v, _mm_set1_epi8(c as i8));
+        // A byte at most 0x1f is its own minimum with 0x1f.
+        let control = _mm_cmpeq_epi8(_mm_min_epu8(v, _mm_set1_epi8(0x1f)), v);
+        let any = _mm_or_si128(control, _mm_or_si128(is(b'"'), is(b'\\')));
+        Some(_mm_movemask_epi8(any) as u32)
+    }
+}
+
+/// [`string_stops`] where SSE2 is not at hand: none found by blocks, every byte looked at singly.
+#[cfg(not(target_arch = "x86_64"))]
+fn string_stops(_b: &[u8], _i: usize) -> Option<u32> {
+    None
+}
+
+/// Which of the sixteen bytes from `b[i]` are quotes, backslashes or brackets (bit `k` for
+/// `b[i + k]`), or
 /// `None` when fewer than sixteen are left. One SSE2 comparison per byte value (SSE2 is part of
 /// every x86-64 processor).
 #[cfg(target_arch = "x86_64")]
@@ -301,13 +342,10 @@ fn nesting_bits(b: &[u8], i: usize) -> Option<u32> {
     }
 }
 
-/// [`nesting_bits`] where SSE2 is not at hand: the same bits, from the byte table.
+/// [`nesting_bits`] where SSE2 is not at hand: none found by blocks, every byte looked at singly.
 #[cfg(not(target_arch = "x86_64"))]
-fn nesting_bits(b: &[u8], i: usize) -> Option<u32> {
-    let block = b.get(i..i + 16)?;
-    Some(block.iter().enumerate().fold(0, |bits, (k, &c)| {
-        bits | (u32::from(NESTING[usize::from(c)] || c == b'\\') << k)
-    }))
+fn nesting_bits(_b: &[u8], _i: usize) -> Option<u32> {
+    None
 }
 
 /// Where the string whose text starts at `i` ends (its closing quote), stepping over escapes.
@@ -1085,6 +1123,16 @@ mod tests {
             text.push(opening as u8);
             text.extend(rest);
             prop_assert_eq!(nested_end(&text, start), nested_end_bytewise(&text, start, 0), "{:?}", String::from_utf8_lossy(&text));
+        }
+
+        /// A string's plain run, found sixteen bytes at a time, ends where a byte-at-a-time
+        /// search ends it: at the first quote, backslash or control character.
+        #[test]
+        fn plain_runs_found_by_blocks_are_found_bytewise(
+            text in proptest::collection::vec(prop_oneof![8 => 0x20u8..0x7f, 1 => Just(b'"'), 1 => Just(b'\\'), 1 => 0u8..0x20, 1 => 0x7fu8..=0xff], 0..60),
+        ) {
+            let bytewise = text.iter().position(|&c| c == b'"' || c == b'\\' || c < 0x20);
+            prop_assert_eq!(plain_run(&text), bytewise, "{:?}", text);
         }
     }
 }
