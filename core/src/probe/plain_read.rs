@@ -190,6 +190,24 @@ impl<'a> Scanner<'a> {
         read(self.value_text()?).ok()
     }
 
+    /// Reads an object's members, each by `member` given its key once the colon is taken; `None`
+    /// as soon as `member` gives `None` or the object is not plain (its brackets and commas).
+    fn members(&mut self, mut member: impl FnMut(&mut Self, &'a str) -> Option<()>) -> Option<()> {
+        self.take(b'{')?;
+        if self.takes(b'}') {
+            return Some(());
+        }
+        loop {
+            let key = self.string()?;
+            self.take(b':')?;
+            member(self, key)?;
+            if self.takes(b'}') {
+                return Some(());
+            }
+            self.take(b',')?;
+        }
+    }
+
     /// A value of a type this reader knows.
     fn read<T: Plain<'a>>(&mut self) -> Option<T> {
         T::read(self)
@@ -627,56 +645,45 @@ impl<'a> ProbeFields<'a> {
     fn read_plain_into(text: &'a str, f: &mut ProbeFields<'a>) -> Option<()> {
         let mut s = Scanner::new(text);
         let (mut id, mut kind) = (None, None);
-        s.take(b'{')?;
-        if !s.takes(b'}') {
-            loop {
-                let key = s.string()?;
-                s.take(b':')?;
-                match key {
-                    "id" => put(&mut id, s.string()?.into())?,
-                    "label" => put(&mut f.label, s.read()?)?,
-                    "kind" => put(&mut kind, s.string()?.into())?,
-                    "from" => put(&mut f.from, s.read()?)?,
-                    "to" => put(&mut f.to, s.read()?)?,
-                    "hits" => put(&mut f.hits, s.read()?)?,
-                    "shape" => put(&mut f.shape, s.with_serde(from_object_str)?)?,
-                    "rotation" => put(&mut f.rotation, s.read()?)?,
-                    "path" => put(&mut f.path, s.read()?)?,
-                    "duration" => put(&mut f.duration, s.read()?)?,
-                    "clearance" => put(&mut f.clearance, s.read()?)?,
-                    "at" => put(&mut f.at, s.read()?)?,
-                    "max_distance" => put(&mut f.max_distance, s.read()?)?,
-                    "search" => put(&mut f.search, s.read()?)?,
-                    "spots" => put(&mut f.spots, s.with_serde(objects_str)?)?,
-                    "spot_tags" => put(&mut f.spot_tags, s.read()?)?,
-                    "eye" => put(&mut f.eye, s.read()?)?,
-                    "region" => put(&mut f.region, s.with_serde(from_object_str)?)?,
-                    "spacing" => put(&mut f.spacing, s.read()?)?,
-                    "velocity" => put(&mut f.velocity, s.read()?)?,
-                    "turns" => put(&mut f.turns, s.read()?)?,
-                    "yaw" => put(&mut f.yaw, s.read()?)?,
-                    "apex" => put(&mut f.apex, s.read()?)?,
-                    "gravity" => put(&mut f.gravity, s.read()?)?,
-                    "max_slope" => put(&mut f.max_slope, s.read()?)?,
-                    "max_step" => put(&mut f.max_step, s.read()?)?,
-                    "targets" => put(&mut f.targets, s.with_serde(objects_str)?)?,
-                    "target_tags" => put(&mut f.target_tags, s.read()?)?,
-                    "max_time" => put(&mut f.max_time, s.read()?)?,
-                    "density" => put(&mut f.density, s.read()?)?,
-                    "friction" => put(&mut f.friction, s.read()?)?,
-                    "restitution" => put(&mut f.restitution, s.read()?)?,
-                    "ignore_tags" => put(&mut f.ignore_tags, s.read()?)?,
-                    "only_tags" => put(&mut f.only_tags, s.read()?)?,
-                    "ignore_objects" => put(&mut f.ignore_objects, s.read()?)?,
-                    "expect" => put(&mut f.expect, s.checked_text()?)?,
-                    _ => return None,
-                }
-                if s.takes(b'}') {
-                    break;
-                }
-                s.take(b',')?;
-            }
-        }
+        s.members(|s, key| match key {
+            "id" => put(&mut id, s.string()?.into()),
+            "label" => put(&mut f.label, s.read()?),
+            "kind" => put(&mut kind, s.string()?.into()),
+            "from" => put(&mut f.from, s.read()?),
+            "to" => put(&mut f.to, s.read()?),
+            "hits" => put(&mut f.hits, s.read()?),
+            "shape" => put(&mut f.shape, s.with_serde(from_object_str)?),
+            "rotation" => put(&mut f.rotation, s.read()?),
+            "path" => put(&mut f.path, s.read()?),
+            "duration" => put(&mut f.duration, s.read()?),
+            "clearance" => put(&mut f.clearance, s.read()?),
+            "at" => put(&mut f.at, s.read()?),
+            "max_distance" => put(&mut f.max_distance, s.read()?),
+            "search" => put(&mut f.search, s.read()?),
+            "spots" => put(&mut f.spots, s.with_serde(objects_str)?),
+            "spot_tags" => put(&mut f.spot_tags, s.read()?),
+            "eye" => put(&mut f.eye, s.read()?),
+            "region" => put(&mut f.region, s.with_serde(from_object_str)?),
+            "spacing" => put(&mut f.spacing, s.read()?),
+            "velocity" => put(&mut f.velocity, s.read()?),
+            "turns" => put(&mut f.turns, s.read()?),
+            "yaw" => put(&mut f.yaw, s.read()?),
+            "apex" => put(&mut f.apex, s.read()?),
+            "gravity" => put(&mut f.gravity, s.read()?),
+            "max_slope" => put(&mut f.max_slope, s.read()?),
+            "max_step" => put(&mut f.max_step, s.read()?),
+            "targets" => put(&mut f.targets, s.with_serde(objects_str)?),
+            "target_tags" => put(&mut f.target_tags, s.read()?),
+            "max_time" => put(&mut f.max_time, s.read()?),
+            "density" => put(&mut f.density, s.read()?),
+            "friction" => put(&mut f.friction, s.read()?),
+            "restitution" => put(&mut f.restitution, s.read()?),
+            "ignore_tags" => put(&mut f.ignore_tags, s.read()?),
+            "only_tags" => put(&mut f.only_tags, s.read()?),
+            "ignore_objects" => put(&mut f.ignore_objects, s.read()?),
+            "expect" => put(&mut f.expect, s.checked_text()?),
+            _ => None,
+        })?;
         if !s.at_end() {
             return None;
         }
@@ -694,23 +701,14 @@ impl<'a> ProbeFields<'a> {
 pub(super) fn plain_ray(text: &str) -> Option<Probe> {
     let mut s = Scanner::new(text);
     let (mut id, mut kind, mut from, mut to, mut hits) = (None, None, None, None, None);
-    s.take(b'{')?;
-    loop {
-        let key = s.string()?;
-        s.take(b':')?;
-        match key {
-            "id" => put(&mut id, s.string()?)?,
-            "kind" => put(&mut kind, s.string()?)?,
-            "from" => put(&mut from, s.read::<[f64; 3]>()?)?,
-            "to" => put(&mut to, s.read::<[f64; 3]>()?)?,
-            "hits" => put(&mut hits, s.read::<HitsMode>()?)?,
-            _ => return None,
-        }
-        if s.takes(b'}') {
-            break;
-        }
-        s.take(b',')?;
-    }
+    s.members(|s, key| match key {
+        "id" => put(&mut id, s.string()?),
+        "kind" => put(&mut kind, s.string()?),
+        "from" => put(&mut from, s.read::<[f64; 3]>()?),
+        "to" => put(&mut to, s.read::<[f64; 3]>()?),
+        "hits" => put(&mut hits, s.read::<HitsMode>()?),
+        _ => None,
+    })?;
     if !s.at_end() || kind? != "ray" {
         return None;
     }
@@ -824,26 +822,15 @@ impl<'a> SetFields<'a> {
         let mut s = Scanner::new(text);
         let (mut schema, mut plumbline, mut version, mut level) = (None, None, None, None);
         let (mut probes, mut rules) = (None, None);
-        s.take(b'{')?;
-        if !s.takes(b'}') {
-            loop {
-                let key = s.string()?;
-                s.take(b':')?;
-                match key {
-                    "$schema" => put(&mut schema, s.read()?)?,
-                    "plumbline" => put(&mut plumbline, s.read()?)?,
-                    "version" => put(&mut version, s.whole_u32()?)?,
-                    "level" => put(&mut level, s.read()?)?,
-                    "probes" => put(&mut probes, s.list(Scanner::value_text)?)?,
-                    "rules" => put(&mut rules, s.list(Scanner::value_text)?)?,
-                    _ => return None,
-                }
-                if s.takes(b'}') {
-                    break;
-                }
-                s.take(b',')?;
-            }
-        }
+        s.members(|s, key| match key {
+            "$schema" => put(&mut schema, s.read()?),
+            "plumbline" => put(&mut plumbline, s.read()?),
+            "version" => put(&mut version, s.whole_u32()?),
+            "level" => put(&mut level, s.read()?),
+            "probes" => put(&mut probes, s.list(Scanner::value_text)?),
+            "rules" => put(&mut rules, s.list(Scanner::value_text)?),
+            _ => None,
+        })?;
         if !s.at_end() {
             return None;
         }
