@@ -234,7 +234,8 @@ const NESTING: [bool; 256] = {
 /// Where the array or object whose opening bracket is `b[start]` ends (one past its closing
 /// bracket): strings stepped over with their escapes, brackets counted in one pass (whether they
 /// match is for whoever reads the value). `None` when it does not close. Sixteen bytes are looked
-/// at together (see [`nesting_bits`]): only the quotes and brackets among them are visited.
+/// at together (see [`nesting_bits`]): only the quotes, backslashes and brackets among them are
+/// visited.
 fn nested_end(b: &[u8], start: usize) -> Option<usize> {
     let mut depth = 0usize;
     let mut in_string = false;
@@ -336,9 +337,8 @@ fn string_stops(_b: &[u8], _i: usize) -> Option<u32> {
 }
 
 /// Which of the sixteen bytes from `b[i]` are quotes, backslashes or brackets (bit `k` for
-/// `b[i + k]`), or
-/// `None` when fewer than sixteen are left. One SSE2 comparison per byte value (SSE2 is part of
-/// every x86-64 processor).
+/// `b[i + k]`), or `None` when fewer than sixteen are left. One SSE2 comparison per byte value
+/// (SSE2 is part of every x86-64 processor).
 #[cfg(target_arch = "x86_64")]
 fn nesting_bits(b: &[u8], i: usize) -> Option<u32> {
     use std::arch::x86_64::{
