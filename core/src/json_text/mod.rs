@@ -142,6 +142,25 @@ mod tests {
         assert_eq!(serde_json::from_str::<Value>(&text).unwrap(), v);
     }
 
+    /// Arrays and objects of `scalar`s, up to `depth` levels, about `size` values in all and
+    /// `branch` items each on average (proptest's `prop_recursive`), fewer than `items` each, keys
+    /// drawn from `keys`.
+    fn nested(
+        scalar: impl proptest::strategy::Strategy<Value = Value> + 'static,
+        (depth, size, branch): (u32, u32, u32),
+        items: usize,
+        keys: &'static str,
+    ) -> impl proptest::strategy::Strategy<Value = Value> {
+        use proptest::prelude::*;
+        scalar.prop_recursive(depth, size, branch, move |inner| {
+            prop_oneof![
+                prop::collection::vec(inner.clone(), 0..items).prop_map(Value::Array),
+                prop::collection::vec((keys, inner), 0..items)
+                    .prop_map(|fields| Value::Object(fields.into_iter().collect())),
+            ]
+        })
+    }
+
     /// Random JSON values: scalars of every kind, and arrays and objects of them.
     fn json_value() -> impl proptest::strategy::Strategy<Value = Value> {
         use proptest::prelude::*;
@@ -153,13 +172,7 @@ mod tests {
             any::<f64>().prop_map(Value::from),
             "[a-z\\\"é ]{0,12}".prop_map(Value::from),
         ];
-        scalar.prop_recursive(3, 40, 6, |inner| {
-            prop_oneof![
-                prop::collection::vec(inner.clone(), 0..6).prop_map(Value::Array),
-                prop::collection::vec(("[a-z_]{1,10}", inner), 0..6)
-                    .prop_map(|fields| Value::Object(fields.into_iter().collect())),
-            ]
-        })
+        nested(scalar, (3, 40, 6), 6, "[a-z_]{1,10}")
     }
 
     /// Small values nested up to four levels: short enough that many fit on one line near the
@@ -171,13 +184,7 @@ mod tests {
             (0u64..100).prop_map(Value::from),
             "[a-z]{0,3}".prop_map(Value::from),
         ];
-        scalar.prop_recursive(4, 24, 3, |inner| {
-            prop_oneof![
-                prop::collection::vec(inner.clone(), 0..4).prop_map(Value::Array),
-                prop::collection::vec(("[a-z]{1,2}", inner), 0..4)
-                    .prop_map(|fields| Value::Object(fields.into_iter().collect())),
-            ]
-        })
+        nested(scalar, (4, 24, 3), 4, "[a-z]{1,2}")
     }
 
     /// How many levels of arrays and objects a value has (a scalar none).
