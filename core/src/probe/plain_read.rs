@@ -700,18 +700,20 @@ impl<'a> ProbeFields<'a> {
 /// reader then reads (and names any error in); where both read a probe they give the same one.
 pub(super) fn plain_ray(text: &str) -> Option<Probe> {
     let mut s = Scanner::new(text);
-    let (mut id, mut kind, mut from, mut to, mut hits) = (None, None, None, None, None);
+    let (mut id, mut ray, mut from, mut to, mut hits) = (None, None, None, None, None);
     s.members(|s, key| match key {
         "id" => put(&mut id, s.string()?),
-        "kind" => put(&mut kind, s.string()?),
+        // Another kind is left at once to the general reader (it reads the probe from its start).
+        "kind" => put(&mut ray, (s.string()? == "ray").then_some(())?),
         "from" => put(&mut from, s.read::<[f64; 3]>()?),
         "to" => put(&mut to, s.read::<[f64; 3]>()?),
         "hits" => put(&mut hits, s.read::<HitsMode>()?),
         _ => None,
     })?;
-    if !s.at_end() || kind? != "ray" {
+    if !s.at_end() {
         return None;
     }
+    ray?;
     let id = id?;
     check_id("probe", id).ok()?;
     let (from, to) = (DVec3::from_array(from?), DVec3::from_array(to?));
