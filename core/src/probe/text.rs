@@ -4,7 +4,7 @@
 //! text (about 150 bytes a probe) and where each probe lies in it.
 
 use std::borrow::Cow;
-use std::collections::HashSet;
+use std::hash::BuildHasher;
 use std::ops::Range;
 use std::path::{Path, PathBuf};
 use std::sync::Mutex;
@@ -168,45 +168,65 @@ impl ProbeText {
         &self,
         rule_spans: &[(usize, usize)],
     ) -> Result<(usize, Vec<Probe>), InputError> {
-        let mut ids: HashSet<Cow<'_, str>, foldhash::fast::RandomState> =
-            HashSet::with_capacity_and_hasher(self.spans.len(), Default::default());
-        for (rule, &(start, end)) in self.rules.iter().zip(rule_spans) {
-            if !ids.insert(Cow::Borrowed(&rule.id)) {
-                return Err(InputError::at_fragment(
-                    &self.path,
-                    &self.text,
-                    &self.text[start..end],
-                    format!("rule id \"{}\" is used twice", rule.id),
-                ));
-            }
-        }
         let mut whole = self
             .parse_each(0..self.spans.len().min(CHECKED_WHOLE))
             .into_iter();
         let mut first = Vec::with_capacity(whole.len());
-        let mut longest = 0;
+        // Every id in file order, the rules' first, up to the first probe that cannot be read.
+        let mut ids: Vec<Cow<'_, str>> = Vec::with_capacity(self.rules.len() + self.spans.len());
+        ids.extend(
+            self.rules
+                .iter()
+                .map(|rule| Cow::Borrowed(rule.id.as_str())),
+        );
+        let mut unreadable = None;
         for k in 0..self.spans.len() {
             let id = match whole.next() {
-                Some(parsed) => {
-                    let probe = parsed?;
+                Some(Ok(probe)) => {
                     let id = Cow::Owned(probe.id.to_string());
                     first.push(probe);
-                    id
+                    Ok(id)
                 }
-                None => self.id_of(k)?,
+                Some(Err(error)) => Err(error),
+                None => self.id_of(k),
             };
-            longest = longest.max(characters(&id));
-            if !ids.insert(id) {
-                let (start, end) = self.spans[k];
-                let id = self.probe(k)?.id;
-                return Err(InputError::at_fragment(
-                    &self.path,
-                    &self.text,
-                    &self.text[start..end],
-                    format!("probe id \"{id}\" is used twice (by a probe or a rule)"),
-                ));
+            match id {
+                Ok(id) => ids.push(id),
+                Err(error) => {
+                    unreadable = Some(error);
+                    break;
+                }
             }
         }
+        if let Some(at) = first_repeat(&ids) {
+            let (start, end, message) = match at.checked_sub(self.rules.len()) {
+                None => {
+                    let (start, end) = rule_spans[at];
+                    let message = format!("rule id \"{}\" is used twice", ids[at]);
+                    (start, end, message)
+                }
+                Some(k) => {
+                    let (start, end) = self.spans[k];
+                    let id = self.probe(k)?.id;
+                    let message = format!("probe id \"{id}\" is used twice (by a probe or a rule)");
+                    (start, end, message)
+                }
+            };
+            return Err(InputError::at_fragment(
+                &self.path,
+                &self.text,
+                &self.text[start..end],
+                message,
+            ));
+        }
+        if let Some(error) = unreadable {
+            return Err(error);
+        }
+        let longest = ids[self.rules.len()..]
+            .iter()
+            .map(|id| characters(id))
+            .max()
+            .unwrap_or(0);
         Ok((longest, first))
     }
 
@@ -295,6 +315,42 @@ impl ProbeText {
 }
 
 /// How many characters `text` holds (its length when it is ASCII, as ids nearly always are).
+/// The position of the first id equal to one before it; `None` when every id differs. By sorting
+/// their 64-bit hashes (with positions) and comparing ids only where hashes meet: a sort of a few
+/// megabytes in place of a hash set's table of every id, whose random reads miss the caches.
+fn first_repeat(ids: &[Cow<'_, str>]) -> Option<usize> {
+    let hasher = foldhash::fast::FixedState::default();
+    first_repeat_by(ids, |id| hasher.hash_one(id))
+}
+
+/// [`first_repeat`] with any hash: ids whose hashes are equal are compared, so a poor hash costs
+/// time, never a wrong answer.
+fn first_repeat_by(ids: &[Cow<'_, str>], hash: impl Fn(&str) -> u64) -> Option<usize> {
+    let mut keyed: Vec<(u64, usize)> = ids
+        .iter()
+        .enumerate()
+        .map(|(k, id)| (hash(id), k))
+        .collect();
+    keyed.sort_unstable();
+    let mut found: Option<usize> = None;
+    for run in keyed
+        .chunk_by(|a, b| a.0 == b.0)
+        .filter(|run| run.len() > 1)
+    {
+        // A run is in file order; its first repeat, if any, is the earliest it can offer.
+        let repeat = (1..run.len()).map(|j| run[j].1).find(|&later| {
+            run.iter()
+                .take_while(|&&(_, earlier)| earlier < later)
+                .any(|&(_, earlier)| ids[earlier] == ids[later])
+        });
+        found = match (found, repeat) {
+            (Some(a), Some(b)) => Some(a.min(b)),
+            (a, b) => a.or(b),
+        };
+    }
+    found
+}
+
 fn characters(text: &str) -> usize {
     if text.is_ascii() {
         text.len()
@@ -397,5 +453,19 @@ mod tests {
         assert_eq!(handed, parsed);
         assert_eq!(&parsed[1..3], &part[..]);
         assert_eq!(&*parsed[4].id, "p4");
+    }
+
+    proptest::proptest! {
+        /// The first repeated id is the one a set of the ids seen so far finds first (common
+        /// practice), whatever the hash: with the real one, and with one that gives most ids the
+        /// same hash (their length), so that runs of equal hashes hold ids that differ.
+        #[test]
+        fn the_first_repeat_is_found_whatever_the_hash(ids in proptest::collection::vec("[ab]{0,4}", 0..40)) {
+            let ids: Vec<Cow<'_, str>> = ids.into_iter().map(Cow::Owned).collect();
+            let mut seen = std::collections::HashSet::new();
+            let expected = ids.iter().position(|id| !seen.insert(id.clone()));
+            proptest::prop_assert_eq!(first_repeat(&ids), expected);
+            proptest::prop_assert_eq!(first_repeat_by(&ids, |id| id.len() as u64), expected);
+        }
     }
 }
