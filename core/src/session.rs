@@ -177,6 +177,9 @@ impl Probes {
 /// of any size holds little (README, "Limits"). Ours.
 const CHUNK: usize = 8192;
 
+/// How many answered chunks may wait to be handed out while the next is answered.
+const AHEAD: usize = 2;
+
 /// A chunk of probes and their answers, in probe order, with the time each took.
 struct Answered<'a> {
     probes: Cow<'a, [Probe]>,
@@ -345,9 +348,10 @@ impl Opened {
     /// Answers every probe as [`Opened::answer`] does, on `runner`'s threads (the check's one pool,
     /// which also parsed the probe set), handing each probe, its result and the time its answer
     /// took to `each` in probe order as soon as its chunk is done, so that nothing of the run is
-    /// held beyond two chunks. With two threads or more, this thread hands out one chunk while the
-    /// pool answers the next. With `only` (ascending positions in the whole set, as
-    /// [`Opened::shard_positions`] gives), answers those probes alone. Returns the counts by verdict.
+    /// held beyond a few chunks. With two threads or more, the pool answers up to [`AHEAD`] chunks
+    /// ahead while this thread hands out the answered ones. With `only` (ascending positions in
+    /// the whole set, as [`Opened::shard_positions`] gives), answers those probes alone. Returns
+    /// the counts by verdict.
     pub fn answer_each(
         &self,
         runner: &Runner,
@@ -363,41 +367,56 @@ impl Opened {
             }
             Ok(())
         };
-        let overlap = runner.threads() > 1;
-        let mut waiting: Option<Answered> = None;
-        let mut done = 0;
-        for range in (0..self.probes.len()).step_by(CHUNK) {
-            let range = range..(range + CHUNK).min(self.probes.len());
-            let answer = || -> Result<Option<Answered>, Error> {
-                let Some(probes) = self.chunk_of(runner, range, only)? else {
-                    return Ok(None);
-                };
-                let results = runner.answer(&self.level.world, &probes, done, progress);
-                Ok(Some(Answered { probes, results }))
-            };
-            let answered = if overlap {
-                std::thread::scope(|scope| {
-                    let answering = scope.spawn(answer);
-                    let handed = waiting.take().map_or(Ok(()), &mut hand_out);
-                    let answered = answering
-                        .join()
-                        .unwrap_or_else(|panic| std::panic::resume_unwind(panic));
-                    handed.and(answered)
-                })?
-            } else {
-                answer()?
-            };
-            if let Some(answered) = answered {
-                done += answered.probes.len();
-                if let Some(previous) = waiting.replace(answered) {
-                    hand_out(previous)?;
-                }
-            }
-        }
-        if let Some(last) = waiting {
-            hand_out(last)?;
+        if runner.threads() > 1 {
+            std::thread::scope(|scope| {
+                let (sender, receiver) = std::sync::mpsc::sync_channel(AHEAD);
+                // The queue closes when this thread stops taking (a failed hand-out): the
+                // answering thread then stops after its chunk.
+                let answering = scope.spawn(move || {
+                    self.answer_chunks(runner, only, progress, &mut |answered| {
+                        sender.send(answered).is_ok()
+                    })
+                });
+                let handed = receiver.into_iter().try_for_each(&mut hand_out);
+                let answered = answering
+                    .join()
+                    .unwrap_or_else(|panic| std::panic::resume_unwind(panic));
+                handed.and(answered)
+            })?;
+        } else {
+            let mut handed = Ok(());
+            self.answer_chunks(runner, only, progress, &mut |answered| {
+                handed = hand_out(answered);
+                handed.is_ok()
+            })?;
+            handed?;
         }
         Ok(summary)
+    }
+
+    /// Answers the chunks in turn, each told how many probes were done before it (for progress),
+    /// giving each to `deliver` until it returns false.
+    fn answer_chunks<'s>(
+        &'s self,
+        runner: &Runner,
+        only: Option<&[usize]>,
+        progress: &(dyn Fn(usize) + Sync),
+        deliver: &mut dyn FnMut(Answered<'s>) -> bool,
+    ) -> Result<(), Error> {
+        let total = self.probes.len();
+        let mut done = 0;
+        for start in (0..total).step_by(CHUNK) {
+            let range = start..(start + CHUNK).min(total);
+            let Some(probes) = self.chunk_of(runner, range, only)? else {
+                continue;
+            };
+            let results = runner.answer(&self.level.world, &probes, done, progress);
+            done += probes.len();
+            if !deliver(Answered { probes, results }) {
+                break;
+            }
+        }
+        Ok(())
     }
 
     /// The probes of `range` (of the whole set) parsed on `runner`'s threads; with `only`, those
