@@ -112,7 +112,7 @@ impl Json<'_> {
 
 /// Rounds a length, fraction or coordinate for output: nine decimals (a nanometre), and never `-0`.
 pub fn round9(x: f64) -> f64 {
-    let r = scalars::round_half_away(x * 1e9) / 1e9;
+    let r = (x * 1e9).round() / 1e9;
     if r == 0.0 { 0.0 } else { r }
 }
 

@@ -5,90 +5,10 @@ use serde_json::Number;
 
 /// A float as [`super::Json::float`] and [`write_number`] write it: `null` when not finite.
 pub(super) fn write_float(x: f64, out: &mut String) {
-    if write_billionths(x, out) {
-    } else if x.is_finite() {
+    if x.is_finite() {
         out.push_str(zmij::Buffer::new().format_finite(x));
     } else {
         out.push_str("null");
-    }
-}
-
-/// Writes `x` and returns true when it is the double nearest to a whole number `n` of billionths
-/// (what [`super::round9`] returns) with 10⁻⁵ ≤ |x| < 2²² (or x = +0): the shortest decimal that
-/// reads back as `x` is then `n`'s own digits with the point nine places from the right. No other
-/// decimal of as few digits is within an ulp of `x` (it would lie at least 10⁻⁹ from those
-/// digits, and an ulp is at most 2⁻³⁰ there), so this is byte for byte what the shortest-digits
-/// formatter writes (decimal notation from 10⁻⁵ on). Other values return false, writing nothing.
-fn write_billionths(x: f64, out: &mut String) -> bool {
-    const BILLION: u64 = 1_000_000_000;
-    let scaled = x * 1e9;
-    // Integers past 2^52 have no fraction to round; below it `as i64` truncates exactly.
-    let in_range = scaled.abs() < (BILLION << 22) as f64;
-    if !in_range {
-        return false;
-    }
-    let n = round_half_away(scaled) as i64;
-    let magnitude = n.unsigned_abs();
-    if (n as f64 / 1e9).to_bits() != x.to_bits() || (magnitude != 0 && magnitude < 10_000) {
-        return false;
-    }
-    if n < 0 {
-        out.push('-');
-    }
-    out.push_str(itoa::Buffer::new().format(magnitude / BILLION));
-    let fraction = magnitude % BILLION;
-    if fraction == 0 {
-        out.push_str(".0");
-        return true;
-    }
-    // The point and nine digits, two at a time from the right; then trailing zeros dropped.
-    let mut text = [b'.'; 10];
-    let mut rest = fraction as usize;
-    for end in [9, 7, 5, 3] {
-        let pair = 2 * (rest % 100);
-        text[end - 1..=end].copy_from_slice(&DIGIT_PAIRS[pair..pair + 2]);
-        rest /= 100;
-    }
-    text[1] = b'0' + rest as u8;
-    let mut len = text.len();
-    while text[len - 1] == b'0' {
-        len -= 1;
-    }
-    debug_assert!(text[..len].is_ascii());
-    // SAFETY: the bytes are a point and ASCII digits.
-    out.push_str(unsafe { std::str::from_utf8_unchecked(&text[..len]) });
-    true
-}
-
-/// "00", "01", … "99": two decimal digits at a time.
-const DIGIT_PAIRS: [u8; 200] = {
-    let mut pairs = [0; 200];
-    let mut k = 0;
-    while k < 100 {
-        pairs[2 * k] = b'0' + (k / 10) as u8;
-        pairs[2 * k + 1] = b'0' + (k % 10) as u8;
-        k += 1;
-    }
-    pairs
-};
-
-/// `y` rounded to the nearest whole number, halves away from zero, as `f64::round` does (but
-/// `+0` for results of zero): exact, and without the library call `round` compiles to where SSE4.1
-/// is not assumed. `y - trunc(y)` is exact below 2⁵², and larger doubles are whole already.
-#[inline]
-pub(super) fn round_half_away(y: f64) -> f64 {
-    let fractional = y.abs() < 4_503_599_627_370_496.0;
-    if !fractional {
-        return y;
-    }
-    let whole = y as i64 as f64;
-    let part = y - whole;
-    if part >= 0.5 {
-        whole + 1.0
-    } else if part <= -0.5 {
-        whole - 1.0
-    } else {
-        whole
     }
 }
 
@@ -229,65 +149,6 @@ mod tests {
                 write_number(&n, &mut out);
                 proptest::prop_assert_eq!(out, n.to_string());
             }
-        }
-    }
-
-    proptest::proptest! {
-        #![proptest_config(proptest::prelude::ProptestConfig::with_cases(20_000))]
-
-        /// Rounded lengths and coordinates (nine decimals, every magnitude from 10⁻¹² to 10⁸, both
-        /// signs, whole numbers too) are written byte for byte as the shortest-digits formatter
-        /// writes them, whether or not the billionths shortcut takes them.
-        #[test]
-        fn rounded_floats_are_written_as_the_shortest_digits(
-            mantissa in 1.0f64..10.0,
-            exponent in -12i32..9,
-            negative in proptest::prelude::any::<bool>(),
-            whole in proptest::prelude::any::<bool>(),
-        ) {
-            let raw = mantissa * 10f64.powi(exponent) * if negative { -1.0 } else { 1.0 };
-            let x = if whole { raw.trunc() } else { crate::json_text::round9(raw) };
-            let mut out = String::new();
-            write_float(x, &mut out);
-            let mut reference = zmij::Buffer::new();
-            proptest::prop_assert_eq!(out.as_str(), reference.format_finite(x));
-        }
-
-        /// The rounding is `f64::round`'s, up to the sign of a zero result.
-        #[test]
-        fn rounding_halves_away_matches_the_library(bits in proptest::prelude::any::<u64>(), small in -1e6f64..1e6) {
-            for y in [f64::from_bits(bits), small, small.trunc() + 0.5, small.trunc() - 0.5] {
-                let ours = round_half_away(y);
-                let theirs = y.round();
-                proptest::prop_assert!(ours == theirs || (ours.is_nan() && theirs.is_nan()), "{} {} {}", y, ours, theirs);
-            }
-        }
-    }
-
-    #[test]
-    fn billionths_at_the_edges_are_written_as_the_shortest_digits() {
-        for x in [
-            0.0,
-            -0.0,
-            1e-5,
-            -1e-5,
-            9.999e-6,
-            1e-9,
-            0.5,
-            1.0,
-            12.0,
-            0.000010001,
-            4194303.999999999,
-            4194304.0,
-            4194304.000000001,
-            1e15,
-            123456.000000001,
-            -0.999999999,
-            1e-4 + 1e-9,
-        ] {
-            let mut out = String::new();
-            write_float(x, &mut out);
-            assert_eq!(out, zmij::Buffer::new().format_finite(x), "{x:e}");
         }
     }
 
