@@ -156,4 +156,31 @@ fn a_set_of_many_chunks_is_answered_in_order_for_any_thread_count() {
     let timed = times(Runner::new(Some(1)).unwrap().timing(true));
     assert_eq!(timed.len(), 200);
     assert!(timed.iter().all(|t| !t.is_zero()), "{timed:?}");
+    // A hand-out that fails (say, a full disk) ends the run with its error on one thread or two:
+    // nothing is handed out after it, and the answering thread does not wait on a queue no one
+    // takes from (the test would hang).
+    for jobs in [1, 2] {
+        let mut handed = 0;
+        let failed = opened.answer_each(
+            &Runner::new(Some(jobs)).unwrap(),
+            None,
+            &|_| {},
+            &mut |_, _, _| {
+                handed += 1;
+                if handed < 100 {
+                    Ok(())
+                } else {
+                    Err(plumbline_core::error::Error::Write {
+                        path: "full.json".into(),
+                        source: std::io::Error::other("no space left"),
+                    })
+                }
+            },
+        );
+        assert!(
+            matches!(failed, Err(plumbline_core::error::Error::Write { .. })),
+            "{jobs} thread(s)"
+        );
+        assert_eq!(handed, 100, "{jobs} thread(s)");
+    }
 }
