@@ -25,8 +25,19 @@ pub struct AtomicFile {
 
 impl AtomicFile {
     /// Starts writing `path` (nothing is visible there until the commit). Leftover temporary files of
-    /// earlier runs that were killed while writing the same file are removed first.
+    /// earlier runs that were killed while writing the same file are removed first. Refused when
+    /// `path` (or what a link there points to) exists and is not a regular file: the rename would
+    /// put a file in place of a device such as `/dev/null`, a pipe or a socket.
     pub fn create(path: &Path) -> io::Result<AtomicFile> {
+        if let Ok(found) = fs::metadata(path)
+            && !found.is_file()
+        {
+            return Err(io::Error::new(
+                io::ErrorKind::InvalidInput,
+                "not a regular file (a folder, device, pipe or socket); give the path of a file \
+                 to write",
+            ));
+        }
         let folder = match path.parent() {
             Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
             _ => PathBuf::from("."),
@@ -288,6 +299,35 @@ mod tests {
             .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
             .filter(|n| n.ends_with(".tmp"))
             .collect()
+    }
+
+    #[test]
+    fn what_is_not_a_regular_file_is_never_replaced() {
+        // A folder, and on Unix a device and a pipe: refused before anything is written, and
+        // left as they were (common practice: an output path names a file).
+        let dir = tempfile::tempdir().unwrap();
+        let mut refused = vec![dir.path().to_path_buf()];
+        if cfg!(unix) {
+            refused.push(PathBuf::from("/dev/null"));
+            let pipe = dir.path().join("pipe");
+            let made = std::process::Command::new("mkfifo").arg(&pipe).status();
+            if made.is_ok_and(|s| s.success()) {
+                refused.push(pipe);
+            }
+        }
+        for path in refused {
+            let before = fs::metadata(&path).unwrap().file_type();
+            let error = AtomicFile::create(&path).err().expect("refused");
+            assert_eq!(
+                error.kind(),
+                io::ErrorKind::InvalidInput,
+                "{}",
+                path.display()
+            );
+            assert!(error.to_string().contains("not a regular file"));
+            assert_eq!(fs::metadata(&path).unwrap().file_type(), before);
+        }
+        assert!(leftovers(dir.path()).is_empty());
     }
 
     #[test]
