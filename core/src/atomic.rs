@@ -27,7 +27,9 @@ impl AtomicFile {
     /// Starts writing `path` (nothing is visible there until the commit). Leftover temporary files of
     /// earlier runs that were killed while writing the same file are removed first. Refused when
     /// `path` (or what a link there points to) exists and is not a regular file: the rename would
-    /// put a file in place of a device such as `/dev/null`, a pipe or a socket.
+    /// put a file in place of a device such as `/dev/null`, a pipe or a socket. A link to a file
+    /// is written through: the file it points to is replaced and the link kept (a probe set linked
+    /// into a level's folder stays linked).
     pub fn create(path: &Path) -> io::Result<AtomicFile> {
         if let Ok(found) = fs::metadata(path)
             && !found.is_file()
@@ -38,6 +40,10 @@ impl AtomicFile {
                  to write",
             ));
         }
+        let linked = fs::symlink_metadata(path).is_ok_and(|m| m.file_type().is_symlink());
+        // A link that leads nowhere is replaced, as a missing file would be created.
+        let through = linked.then(|| fs::canonicalize(path).ok()).flatten();
+        let path = through.as_deref().unwrap_or(path);
         let folder = match path.parent() {
             Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
             _ => PathBuf::from("."),
@@ -328,6 +334,30 @@ mod tests {
             assert_eq!(fs::metadata(&path).unwrap().file_type(), before);
         }
         assert!(leftovers(dir.path()).is_empty());
+    }
+
+    #[cfg(unix)]
+    #[test]
+    fn a_link_is_written_through_and_kept() {
+        // The file a link points to gets the new text and the link stays a link (common
+        // practice for editors' safe saves), with the backup beside the link.
+        let dir = tempfile::tempdir().unwrap();
+        let real = dir.path().join("kept").join("yard.probes.json");
+        fs::create_dir(real.parent().unwrap()).unwrap();
+        fs::write(&real, b"one").unwrap();
+        let link = dir.path().join("yard.probes.json");
+        std::os::unix::fs::symlink(&real, &link).unwrap();
+        write_with_backup(&link, b"two").unwrap();
+        assert!(
+            fs::symlink_metadata(&link)
+                .unwrap()
+                .file_type()
+                .is_symlink()
+        );
+        assert_eq!(fs::read(&real).unwrap(), b"two");
+        assert_eq!(fs::read(backup_path(&link)).unwrap(), b"one");
+        assert!(leftovers(dir.path()).is_empty());
+        assert!(leftovers(real.parent().unwrap()).is_empty());
     }
 
     #[test]
