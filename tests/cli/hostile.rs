@@ -83,6 +83,33 @@ fn no_output_may_replace_an_input_or_another_output() {
     assert!(!dir.path().join("r.json").exists());
 }
 
+#[cfg(unix)]
+#[test]
+fn an_output_that_is_a_device_or_a_folder_is_refused_and_left_alone() {
+    // Run as root (as CI containers often are), the atomic rename once put a results file in
+    // place of /dev/null.
+    let dir = lane();
+    let out = plumbline(
+        dir.path(),
+        &["check", "lane.probes.json", "--out", "/dev/null"],
+    );
+    refused(&out, "/dev/null: cannot write the file: not a regular file");
+    use std::os::unix::fs::FileTypeExt;
+    assert!(
+        std::fs::metadata("/dev/null")
+            .unwrap()
+            .file_type()
+            .is_char_device()
+    );
+    std::fs::create_dir(dir.path().join("reports")).unwrap();
+    let out = plumbline(
+        dir.path(),
+        &["check", "lane.probes.json", "--junit", "reports"],
+    );
+    refused(&out, "not a regular file");
+    assert!(dir.path().join("reports").is_dir());
+}
+
 #[test]
 fn long_names_empty_paths_and_odd_keys_give_one_line() {
     let dir = lane();
