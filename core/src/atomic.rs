@@ -60,6 +60,11 @@ impl AtomicFile {
             .create_new(true)
             .open(&temp)?;
         register(&temp, true);
+        // The file replaced keeps its permissions (a probe set shared through a group's folder
+        // stays writable by the group).
+        if let Ok(previous) = fs::metadata(path) {
+            file.set_permissions(previous.permissions())?;
+        }
         Ok(AtomicFile {
             target: path.to_path_buf(),
             folder,
@@ -358,6 +363,22 @@ mod tests {
         assert_eq!(fs::read(backup_path(&link)).unwrap(), b"one");
         assert!(leftovers(dir.path()).is_empty());
         assert!(leftovers(real.parent().unwrap()).is_empty());
+    }
+
+    #[cfg(unix)]
+    #[test]
+    fn a_replaced_file_keeps_its_permissions() {
+        use std::os::unix::fs::PermissionsExt;
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("yard.probes.json");
+        fs::write(&path, b"one").unwrap();
+        fs::set_permissions(&path, fs::Permissions::from_mode(0o664)).unwrap();
+        write_atomic(&path, b"two").unwrap();
+        assert_eq!(
+            fs::metadata(&path).unwrap().permissions().mode() & 0o777,
+            0o664
+        );
+        assert_eq!(fs::read(&path).unwrap(), b"two");
     }
 
     #[test]
