@@ -314,7 +314,6 @@ impl ProbeText {
     }
 }
 
-/// How many characters `text` holds (its length when it is ASCII, as ids nearly always are).
 /// The position of the first id equal to one before it; `None` when every id differs. By sorting
 /// their 64-bit hashes (with positions) and comparing ids only where hashes meet: a sort of a few
 /// megabytes in place of a hash set's table of every id, whose random reads miss the caches.
@@ -351,6 +350,7 @@ fn first_repeat_by(ids: &[Cow<'_, str>], hash: impl Fn(&str) -> u64) -> Option<u
     found
 }
 
+/// How many characters `text` holds (its length when it is ASCII, as ids nearly always are).
 fn characters(text: &str) -> usize {
     if text.is_ascii() {
         text.len()
