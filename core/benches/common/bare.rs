@@ -3,7 +3,6 @@
 //! `bare_queries` example.
 
 use glam::DQuat;
-use plumbline_core::level::ShapeSpec;
 use plumbline_core::probe::{HitsMode, Probe, ProbeQuery};
 use plumbline_core::query::{ClosestProbe, ProbeShape, World};
 
@@ -13,9 +12,8 @@ use plumbline_core::query::{ClosestProbe, ProbeShape, World};
 /// than one query, or sweeps that turn along their path, are not measured here.
 pub fn bare_queries(world: &World, probes: &[Probe]) -> usize {
     let view = world.everything();
-    let shape_of = |shape, rotation: &Option<DQuat>| {
-        ProbeShape::new(shape, rotation.unwrap_or(DQuat::IDENTITY)).unwrap()
-    };
+    let shape_of =
+        |shape, rotation: &Option<DQuat>| ProbeShape::turned_by(shape, *rotation).unwrap();
     let mut found = 0;
     for probe in probes {
         found += match &probe.query {
@@ -46,13 +44,10 @@ pub fn bare_queries(world: &World, probes: &[Probe]) -> usize {
                 rotation,
                 max_distance,
             } => {
-                let probe_shape;
-                let target = if matches!(shape, ShapeSpec::Point {}) {
-                    ClosestProbe::Point
-                } else {
-                    probe_shape = shape_of(shape, rotation);
-                    ClosestProbe::Shape(&probe_shape)
-                };
+                let placed = ProbeShape::unless_point(shape, *rotation).unwrap();
+                let target = placed
+                    .as_ref()
+                    .map_or(ClosestProbe::Point, ClosestProbe::Shape);
                 view.closest(target, *at, *max_distance).unwrap().is_some() as usize
             }
             ProbeQuery::Overlap {

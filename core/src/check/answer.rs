@@ -1,7 +1,5 @@
 //! Answering one probe with the query core and turning the answer into result records.
 
-use glam::DQuat;
-
 use super::records::{
     ClearanceRecord, ClosestRecord, Hits, OverlapRecord, ProbeResult, RayHitRecord, SourceRecord,
     SweepHitRecord, Verdict,
@@ -9,7 +7,7 @@ use super::records::{
 use super::verdict::judge;
 use super::{answer_level, jump, reach, settle, volumes, walk};
 use crate::json_text::{round9, round9_vec};
-use crate::level::{FacePlace, ShapeSpec};
+use crate::level::FacePlace;
 use crate::probe::{HitsMode, Probe, ProbeQuery};
 use crate::query::{
     ClosestProbe, MaterialId, ObjectId, ProbeShape, Progress, QueryError, TurningPath, View, World,
@@ -117,7 +115,7 @@ fn answer(world: &World, probe: &Probe, progress: &Progress) -> Result<Answer, Q
             turns,
             ..
         } => {
-            let shape = probe_shape(shape, *rotation)?;
+            let shape = ProbeShape::turned_by(shape, *rotation)?;
             let all = *hits == Some(HitsMode::All);
             let found = match turns {
                 Some(turns) => {
@@ -176,13 +174,10 @@ fn answer(world: &World, probe: &Probe, progress: &Progress) -> Result<Answer, Q
             rotation,
             max_distance,
         } => {
-            let probe_shape;
-            let target = if matches!(shape, ShapeSpec::Point {}) {
-                ClosestProbe::Point
-            } else {
-                probe_shape = self::probe_shape(shape, *rotation)?;
-                ClosestProbe::Shape(&probe_shape)
-            };
+            let placed = ProbeShape::unless_point(shape, *rotation)?;
+            let target = placed
+                .as_ref()
+                .map_or(ClosestProbe::Point, ClosestProbe::Shape);
             let records = view
                 .closest(target, *at, *max_distance)?
                 .map(|h| ClosestRecord {
@@ -204,7 +199,7 @@ fn answer(world: &World, probe: &Probe, progress: &Progress) -> Result<Answer, Q
             at,
             rotation,
         } => {
-            let shape = probe_shape(shape, *rotation)?;
+            let shape = ProbeShape::turned_by(shape, *rotation)?;
             let records = overlap_records(&view, &shape, *at)?;
             (Hits::Overlap(records), None)
         }
@@ -285,12 +280,4 @@ fn source_record(world: &World, object: ObjectId, number: u32) -> Option<SourceR
             triangle: Some(triangle),
         }),
     }
-}
-
-/// The probe shape of a spec with an optional turn.
-pub(super) fn probe_shape(
-    shape: &ShapeSpec,
-    rotation: Option<DQuat>,
-) -> Result<ProbeShape, QueryError> {
-    Ok(ProbeShape::new(shape, rotation.unwrap_or(DQuat::IDENTITY))?)
 }

@@ -6,7 +6,6 @@ use std::sync::Arc;
 use glam::DVec3;
 use serde::Deserialize;
 
-use super::answer::probe_shape;
 use super::records::{Hits, tags_json};
 use super::verdict::{metres, named};
 use crate::json_text::{Json, round9, round9_vec};
@@ -114,7 +113,7 @@ pub(super) fn answer(view: &View, query: &ProbeQuery) -> Result<Hits, QueryError
     let world = view.world();
     let up = world.up();
     let arc = trajectory(query, up)?.expect("a jump probe");
-    let shape = probe_shape(shape, *rotation)?;
+    let shape = ProbeShape::turned_by(shape, *rotation)?;
     // Below the level's lowest point (and the shape's reach) it can only fall on.
     let floor = world.bounds().map_or(f64::NEG_INFINITY, |(lo, hi)| {
         corners(lo, hi)

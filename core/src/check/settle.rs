@@ -6,12 +6,11 @@ use std::sync::Arc;
 use glam::{DQuat, DVec3};
 use serde::Deserialize;
 
-use super::answer::probe_shape;
 use super::records::{Hits, push_object_and_way};
 use super::verdict::metres;
 use crate::json_text::{Json, round9, round9_vec};
 use crate::probe::{Conditions, ProbeQuery, SETTLE_DENSITY, SETTLE_FRICTION, SETTLE_TIME};
-use crate::query::{Material, QueryError, SettleEnd, View};
+use crate::query::{Material, ProbeShape, QueryError, SettleEnd, View};
 
 /// Where a let-go body ended up.
 #[derive(Debug, Clone, PartialEq, Deserialize)]
@@ -79,7 +78,7 @@ pub(super) fn answer(view: &View, query: &ProbeQuery) -> Result<Hits, QueryError
     };
     let world = view.world();
     let start = rotation.unwrap_or(DQuat::IDENTITY);
-    let body = probe_shape(shape, Some(start))?;
+    let body = ProbeShape::turned_by(shape, Some(start))?;
     let material = Material {
         density: density.unwrap_or(SETTLE_DENSITY),
         friction: friction.unwrap_or(SETTLE_FRICTION),

@@ -7,13 +7,11 @@ use std::sync::Arc;
 use glam::{DQuat, DVec3};
 use serde::Deserialize;
 
-use super::answer::probe_shape;
 use super::jump::trajectory;
 use super::records::{Hits, tags_json};
 use crate::json_text::{Json, round9, round9_vec};
-use crate::level::ShapeSpec;
 use crate::probe::{Conditions, HitsMode, JUMP_TIME, Probe, ProbeQuery};
-use crate::query::{Crossing, Mover, QueryError, TurningPath, View, VolumeEvent};
+use crate::query::{Crossing, Mover, ProbeShape, QueryError, TurningPath, View, VolumeEvent};
 
 /// One meeting of a probe with a volume.
 #[derive(Debug, Clone, PartialEq, Deserialize)]
@@ -124,7 +122,7 @@ pub(super) fn records(
             },
             Hits::Sweep(found),
         ) => {
-            let shape = probe_shape(shape, *rotation)?;
+            let shape = ProbeShape::turned_by(shape, *rotation)?;
             let mut way = path.clone();
             let mut orientations = turns.as_ref().map(|t| t.orientations(view.world().up()));
             if let Some(h) = found.first().filter(|_| *mode != Some(HitsMode::All)) {
@@ -150,7 +148,7 @@ pub(super) fn records(
             along(events, per_metre)
         }
         (ProbeQuery::Walk { shape, .. }, Hits::Walk(walked)) => {
-            let shape = probe_shape(shape, None)?;
+            let shape = ProbeShape::turned_by(shape, None)?;
             let way: Vec<DVec3> = walked
                 .first()
                 .map(|w| w.path.iter().map(|p| DVec3::from_array(*p)).collect())
@@ -167,7 +165,7 @@ pub(super) fn records(
             Hits::Jump(landed),
         ) => {
             let arc = trajectory(&probe.query, view.world().up())?.expect("a jump probe");
-            let shape = probe_shape(shape, *rotation)?;
+            let shape = ProbeShape::turned_by(shape, *rotation)?;
             let end = landed
                 .first()
                 .map_or(max_time.unwrap_or(JUMP_TIME), |l| l.time);
@@ -191,13 +189,8 @@ pub(super) fn records(
             },
             _,
         ) => {
-            let placed;
-            let mover = if matches!(shape, ShapeSpec::Point {}) {
-                Mover::Point
-            } else {
-                placed = probe_shape(shape, *rotation)?;
-                Mover::Shape(&placed)
-            };
+            let placed = ProbeShape::unless_point(shape, *rotation)?;
+            let mover = placed.as_ref().map_or(Mover::Point, Mover::Shape);
             view.volumes_at(mover, *at)?
                 .into_iter()
                 .map(|volume| {

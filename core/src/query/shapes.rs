@@ -122,6 +122,23 @@ impl ProbeShape {
         })
     }
 
+    /// The probe shape for a shape spec turned by `rotation`, unturned when there is none (as a
+    /// probe file leaves it out).
+    pub fn turned_by(spec: &ShapeSpec, rotation: Option<DQuat>) -> Result<ProbeShape, ShapeError> {
+        ProbeShape::new(spec, rotation.unwrap_or(DQuat::IDENTITY))
+    }
+
+    /// [`ProbeShape::turned_by`], or `None` for a point (which has queries of its own).
+    pub fn unless_point(
+        spec: &ShapeSpec,
+        rotation: Option<DQuat>,
+    ) -> Result<Option<ProbeShape>, ShapeError> {
+        if matches!(spec, ShapeSpec::Point {}) {
+            return Ok(None);
+        }
+        ProbeShape::turned_by(spec, rotation).map(Some)
+    }
+
     /// The same shape with another turn.
     pub fn turned(&self, rotation: DQuat) -> ProbeShape {
         ProbeShape {
