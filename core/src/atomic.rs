@@ -31,9 +31,9 @@ impl AtomicFile {
     /// is written through: the file it points to is replaced and the link kept (a probe set linked
     /// into a level's folder stays linked).
     pub fn create(path: &Path) -> io::Result<AtomicFile> {
-        if let Ok(found) = fs::metadata(path)
-            && !found.is_file()
-        {
+        // What is there now, a link followed: its kind is checked and its permissions kept.
+        let previous = fs::metadata(path).ok();
+        if previous.as_ref().is_some_and(|found| !found.is_file()) {
             return Err(io::Error::new(
                 io::ErrorKind::InvalidInput,
                 "not a regular file (a folder, device, pipe or socket); give the path of a file \
@@ -62,7 +62,7 @@ impl AtomicFile {
         register(&temp, true);
         // The file replaced keeps its permissions (a probe set shared through a group's folder
         // stays writable by the group).
-        if let Ok(previous) = fs::metadata(path) {
+        if let Some(previous) = previous {
             file.set_permissions(previous.permissions())?;
         }
         Ok(AtomicFile {
