@@ -11,8 +11,8 @@ use bare::bare_queries;
 
 use criterion::{BenchmarkId, Criterion, criterion_group, criterion_main};
 use plumbline_core::check::{
-    PartHead, ResultsFile, ResultsHead, ResultsWriter, Shard, Summary, assign, expected_cost,
-    merge, run_probes, text_digest,
+    PartHead, ProbeResult, ResultsFile, ResultsHead, ResultsWriter, Shard, Summary, assign,
+    entries_text, expected_cost, merge, run_probes, text_digest,
 };
 use plumbline_core::demo::quay::Random;
 use plumbline_core::level::{ShapeSpec, level_digest};
@@ -174,10 +174,10 @@ fn bench_merge(
             let mut writer =
                 ResultsWriter::create(&path, part.positions.len(), &head, Some(&part)).unwrap();
             let mut summary = Summary::default();
-            for &p in &part.positions {
-                writer.push(&results[p]).unwrap();
-                summary.count(results[p].verdict);
-            }
+            let mine: Vec<&ProbeResult> = part.positions.iter().map(|&p| &results[p]).collect();
+            mine.iter().for_each(|r| summary.count(r.verdict));
+            let text = entries_text(mine.iter().copied(), 0);
+            writer.push_laid_out(&text, mine.len()).unwrap();
             writer.finish(&summary).unwrap();
             path
         })

@@ -17,7 +17,9 @@ use std::path::{Path, PathBuf};
 use std::borrow::Cow;
 use std::ops::Range;
 
-use crate::check::{ProbeResult, Runner, Shard, Summary, assign, expand_rules, expected_cost};
+use crate::check::{
+    ProbeResult, Runner, Shard, Summary, assign, entries_text, expand_rules, expected_cost,
+};
 use crate::error::{Diagnostic, Error, InputError, Warning};
 use crate::input::{PathPolicy, resolve_named};
 use crate::level::{Level, LintSettings, LoadedLevel, level_digest, load_level};
@@ -182,10 +184,43 @@ const CHUNK: usize = 8192;
 /// Ours.
 const AHEAD: usize = 1;
 
-/// A chunk of probes and their answers, in probe order, with the time each took.
+/// Results are laid out as results-file text this many at a time, in parallel. Ours.
+const LAID_OUT: usize = 1024;
+
+/// A chunk of probes and their answers, in probe order, with the time each took, and the answers
+/// laid out as results-file text when that was asked for (in blocks of [`LAID_OUT`]).
 struct Answered<'a> {
     probes: Cow<'a, [Probe]>,
     results: Vec<(ProbeResult, std::time::Duration)>,
+    text: Vec<String>,
+}
+
+/// Where [`Opened::answer_each`] hands the answers: each probe with its result, and, when asked
+/// for, the results laid out as a results file's entries.
+pub struct HandOut<'h> {
+    /// Given each probe, its result and the time its answer took, in probe order.
+    pub each: &'h mut EachAnswer<'h>,
+    /// When set, given each block of results laid out by [`entries_text`] on the answering
+    /// threads (numbered from the first result handed out) and how many results it holds, in
+    /// order, before those probes are given to `each`.
+    pub laid_out: Option<&'h mut LaidOut<'h>>,
+}
+
+/// What takes each probe, its result and the time its answer took.
+pub type EachAnswer<'h> =
+    dyn FnMut(&Probe, ProbeResult, std::time::Duration) -> Result<(), Error> + 'h;
+
+/// What takes a block of results laid out as results-file text, and how many results it holds.
+pub type LaidOut<'h> = dyn FnMut(&str, usize) -> Result<(), Error> + 'h;
+
+impl<'h> HandOut<'h> {
+    /// Each probe given to `each`, no results laid out.
+    pub fn each(each: &'h mut EachAnswer<'h>) -> HandOut<'h> {
+        HandOut {
+            each,
+            laid_out: None,
+        }
+    }
 }
 
 /// The level of an opened probe set: where it came from, what it holds, and its query world.
@@ -340,29 +375,37 @@ impl Opened {
         progress: &(dyn Fn(usize) + Sync),
     ) -> Result<Vec<ProbeResult>, Error> {
         let mut results = Vec::with_capacity(self.probes.len());
-        self.answer_each(&Runner::new(jobs)?, None, progress, &mut |_, result, _| {
+        let each = &mut |_: &Probe, result, _| {
             results.push(result);
             Ok(())
-        })?;
+        };
+        self.answer_each(&Runner::new(jobs)?, None, progress, HandOut::each(each))?;
         Ok(results)
     }
 
     /// Answers every probe as [`Opened::answer`] does, on `runner`'s threads (the check's one pool,
-    /// which also parsed the probe set), handing each probe, its result and the time its answer
-    /// took to `each` in probe order as soon as its chunk is done, so that nothing of the run is
-    /// held beyond a few chunks. With two threads or more, the pool answers up to [`AHEAD`] chunks
-    /// ahead while this thread hands out the answered ones. With `only` (ascending positions in
-    /// the whole set, as [`Opened::shard_positions`] gives), answers those probes alone. Returns
-    /// the counts by verdict.
+    /// which also parsed the probe set), handing the answers to `hand_out` in probe order as soon
+    /// as their chunk is done, so that nothing of the run is held beyond a few chunks. With two
+    /// threads or more, the pool answers (and lays out) up to [`AHEAD`] chunks ahead while this
+    /// thread hands out the answered ones. With `only` (ascending positions in the whole set, as
+    /// [`Opened::shard_positions`] gives), answers those probes alone. Returns the counts by
+    /// verdict.
     pub fn answer_each(
         &self,
         runner: &Runner,
         only: Option<&[usize]>,
         progress: &(dyn Fn(usize) + Sync),
-        each: &mut dyn FnMut(&Probe, ProbeResult, std::time::Duration) -> Result<(), Error>,
+        hand_out: HandOut,
     ) -> Result<Summary, Error> {
+        let HandOut { each, mut laid_out } = hand_out;
+        let lay_out = laid_out.is_some();
         let mut summary = Summary::default();
         let mut hand_out = |answered: Answered| -> Result<(), Error> {
+            if let Some(write) = laid_out.as_mut() {
+                for (text, block) in answered.text.iter().zip(answered.results.chunks(LAID_OUT)) {
+                    write(text, block.len())?;
+                }
+            }
             for (probe, (result, took)) in answered.probes.iter().zip(answered.results) {
                 summary.count(result.verdict);
                 each(probe, result, took)?;
@@ -375,7 +418,7 @@ impl Opened {
                 // The queue closes when this thread stops taking (a failed hand-out): the
                 // answering thread then stops after its chunk.
                 let answering = scope.spawn(move || {
-                    self.answer_chunks(runner, only, progress, &mut |answered| {
+                    self.answer_chunks(runner, only, progress, lay_out, &mut |answered| {
                         sender.send(answered).is_ok()
                     })
                 });
@@ -387,7 +430,7 @@ impl Opened {
             })?;
         } else {
             let mut handed = Ok(());
-            self.answer_chunks(runner, only, progress, &mut |answered| {
+            self.answer_chunks(runner, only, progress, lay_out, &mut |answered| {
                 handed = hand_out(answered);
                 handed.is_ok()
             })?;
@@ -397,12 +440,14 @@ impl Opened {
     }
 
     /// Answers the chunks in turn, each told how many probes were done before it (for progress),
-    /// giving each to `deliver` until it returns false.
+    /// their results laid out as results-file text when `lay_out`, giving each to `deliver`
+    /// until it returns false.
     fn answer_chunks<'s>(
         &'s self,
         runner: &Runner,
         only: Option<&[usize]>,
         progress: &(dyn Fn(usize) + Sync),
+        lay_out: bool,
         deliver: &mut dyn FnMut(Answered<'s>) -> bool,
     ) -> Result<(), Error> {
         let total = self.probes.len();
@@ -413,8 +458,26 @@ impl Opened {
                 continue;
             };
             let results = runner.answer(&self.level.world, &probes, done, progress);
+            let text = if lay_out {
+                runner.install(|| {
+                    use rayon::prelude::*;
+                    results
+                        .par_chunks(LAID_OUT)
+                        .enumerate()
+                        .map(|(k, block)| {
+                            entries_text(block.iter().map(|(r, _)| r), done + k * LAID_OUT)
+                        })
+                        .collect()
+                })
+            } else {
+                Vec::new()
+            };
             done += probes.len();
-            if !deliver(Answered { probes, results }) {
+            if !deliver(Answered {
+                probes,
+                results,
+                text,
+            }) {
                 break;
             }
         }

@@ -12,8 +12,9 @@ use plumbline_core::check::{
 };
 use plumbline_core::error::Error;
 use plumbline_core::input::{PathPolicy, check_outputs};
+use plumbline_core::probe::Probe;
 use plumbline_core::report::{HtmlWriter, JunitWriter, MarkdownWriter};
-use plumbline_core::session::{OpenOptions, open};
+use plumbline_core::session::{HandOut, LaidOut, OpenOptions, open};
 
 use super::pictures::{Pictures, relative_link};
 use super::terminal::{Lines, Progress, Style, Tone, column_width, write_stdout};
@@ -257,62 +258,70 @@ pub fn run_once(
     let progress = Progress::new(total);
     let mut lines = Lines::new(&progress);
     let mut timings = options.timings.then(Timings::default);
+    // The results file is written from the text the answering threads lay out.
+    let mut results_file = writers.results.take();
+    let mut write_results = results_file.as_mut().map(|w| {
+        |text: &str, count| {
+            w.push_laid_out(text, count).map_err(|source| Error::Write {
+                path: options.out.clone().unwrap_or_default(),
+                source,
+            })
+        }
+    });
+    let each = &mut |probe: &Probe, result: ProbeResult, took| {
+        if let Some(t) = &mut timings {
+            t.add(probe, took);
+        }
+        if !(brief && matches!(result.verdict, Verdict::Pass | Verdict::Unchecked)) {
+            lines.push(&result_line(&result, width, style));
+        }
+        let changed = comparer.as_mut().is_some_and(|c| c.observe(&result));
+        if changed {
+            changed_count += 1;
+            changed_labels.insert(result.id.to_string(), probe.label.clone());
+        }
+        let drawn = match &mut pictures {
+            Some(p) => p.draw(probe, &result, changed)?,
+            None => Vec::new(),
+        };
+        let write = |path: &Option<PathBuf>, e| Error::Write {
+            path: path.clone().unwrap_or_default(),
+            source: e,
+        };
+        if let Some(w) = &mut writers.junit {
+            let paths: Vec<String> = drawn.iter().map(|d| d.path.display().to_string()).collect();
+            w.push(&result, &paths)
+                .map_err(|e| write(&options.junit, e))?;
+        }
+        if let Some(w) = &mut writers.markdown {
+            w.push(probe.label.as_deref(), &result)
+                .map_err(|e| write(&options.markdown, e))?;
+            if !drawn.is_empty() {
+                let links: Vec<(String, String)> = drawn
+                    .iter()
+                    .map(|d| (d.caption.clone(), relative_link(&markdown_dir, &d.path)))
+                    .collect();
+                w.picture(&result.id, &links)
+                    .map_err(|e| write(&options.markdown, e))?;
+            }
+        }
+        if let Some(w) = &mut writers.html {
+            let shown: Vec<(String, Vec<u8>)> =
+                drawn.into_iter().map(|d| (d.caption, d.png)).collect();
+            w.push(probe.label.as_deref(), &result, changed, &shown)
+                .map_err(|e| write(&options.html, e))?;
+        }
+        if keep_results {
+            kept.push(result);
+        }
+        Ok(())
+    };
+    let laid_out = write_results.as_mut().map(|w| w as &mut LaidOut);
     let summary = opened.answer_each(
         &threads,
         part.as_ref().map(|p| p.positions.as_slice()),
         &|done| progress.update(done),
-        &mut |probe, result, took| {
-            if let Some(t) = &mut timings {
-                t.add(probe, took);
-            }
-            if !(brief && matches!(result.verdict, Verdict::Pass | Verdict::Unchecked)) {
-                lines.push(&result_line(&result, width, style));
-            }
-            let changed = comparer.as_mut().is_some_and(|c| c.observe(&result));
-            if changed {
-                changed_count += 1;
-                changed_labels.insert(result.id.to_string(), probe.label.clone());
-            }
-            let drawn = match &mut pictures {
-                Some(p) => p.draw(probe, &result, changed)?,
-                None => Vec::new(),
-            };
-            let write = |path: &Option<PathBuf>, e| Error::Write {
-                path: path.clone().unwrap_or_default(),
-                source: e,
-            };
-            if let Some(w) = &mut writers.results {
-                w.push(&result).map_err(|e| write(&options.out, e))?;
-            }
-            if let Some(w) = &mut writers.junit {
-                let paths: Vec<String> =
-                    drawn.iter().map(|d| d.path.display().to_string()).collect();
-                w.push(&result, &paths)
-                    .map_err(|e| write(&options.junit, e))?;
-            }
-            if let Some(w) = &mut writers.markdown {
-                w.push(probe.label.as_deref(), &result)
-                    .map_err(|e| write(&options.markdown, e))?;
-                if !drawn.is_empty() {
-                    let links: Vec<(String, String)> = drawn
-                        .iter()
-                        .map(|d| (d.caption.clone(), relative_link(&markdown_dir, &d.path)))
-                        .collect();
-                    w.picture(&result.id, &links)
-                        .map_err(|e| write(&options.markdown, e))?;
-                }
-            }
-            if let Some(w) = &mut writers.html {
-                let shown: Vec<(String, Vec<u8>)> =
-                    drawn.into_iter().map(|d| (d.caption, d.png)).collect();
-                w.push(probe.label.as_deref(), &result, changed, &shown)
-                    .map_err(|e| write(&options.html, e))?;
-            }
-            if keep_results {
-                kept.push(result);
-            }
-            Ok(())
-        },
+        HandOut { each, laid_out },
     )?;
     lines.finish();
     progress.finish();
@@ -324,7 +333,7 @@ pub fn run_once(
         let path = path.clone().unwrap_or_default();
         move |source| Error::Write { path, source }
     };
-    if let Some(w) = writers.results {
+    if let Some(w) = results_file {
         w.finish(&summary).map_err(written(&options.out))?;
     }
     if let Some(w) = writers.junit {

@@ -9,7 +9,9 @@ use serde::Deserialize;
 use serde_json::value::RawValue;
 
 use super::records::{ProbeResult, Summary};
-use super::results_file::{PARTIAL_KIND, ResultsHead, head_text, parse_entry, tail_text};
+use super::results_file::{
+    PARTIAL_KIND, ResultsHead, before_entry, head_text, parse_entry, tail_text,
+};
 use super::shard::Shard;
 use crate::atomic::AtomicFile;
 use crate::error::{Error, InputError, check_header};
@@ -178,8 +180,7 @@ pub fn merge(
         .map_err(written)?;
     for (position, &(k, i)) in source.iter().flatten().enumerate() {
         let raw = raws[k].results[i];
-        let sep = if position + 1 == total { "\n" } else { ",\n" };
-        write!(file, "    {}{sep}", raw.get()).map_err(written)?;
+        write!(file, "{}    {}", before_entry(position), raw.get()).map_err(written)?;
         if let Some(each) = each.as_deref_mut() {
             each(parse_entry(&texts[k].path, &texts[k].text, raw)?)?;
         }

@@ -36,8 +36,8 @@ pub use records::{
     RayHitRecord, RestRecord, SourceRecord, Summary, SweepHitRecord, Verdict,
 };
 pub use results_file::{
-    PARTIAL_KIND, PartHead, ResultsFile, ResultsHead, ResultsWriter, load_results, parse_results,
-    probes_digest,
+    PARTIAL_KIND, PartHead, ResultsFile, ResultsHead, ResultsWriter, entries_text, load_results,
+    parse_results, probes_digest,
 };
 pub use rules::expand_rules;
 pub use run::{Runner, run_probes};

@@ -60,8 +60,8 @@ impl ResultsFile {
     /// The file's text: stable JSON, no timestamps (the same layout [`ResultsWriter`] streams).
     pub fn to_json(&self) -> String {
         let (mut out, _) = head_text(&self.head(), &self.summary, self.results.len(), None);
-        for (k, result) in self.results.iter().enumerate() {
-            entry_text(result, k + 1 == self.results.len(), &mut out);
+        for (index, result) in self.results.iter().enumerate() {
+            entry_text(result, index, &mut out);
         }
         out.push_str(tail_text(self.results.len()));
         out
@@ -157,11 +157,30 @@ pub(super) fn summary_text(summary: &Summary) -> String {
     )
 }
 
-/// One result as an element of the results array.
-pub(super) fn entry_text(result: &ProbeResult, last: bool, out: &mut String) {
+/// One result as the element at `index` of the results array, with what comes before it.
+fn entry_text(result: &ProbeResult, index: usize, out: &mut String) {
+    out.push_str(before_entry(index));
     out.push_str("    ");
     crate::json_text::write_layout(result, 2, out);
-    out.push_str(if last { "\n" } else { ",\n" });
+}
+
+/// What comes before the element at `index` of the results array: a comma and a line break, but
+/// for the first.
+pub(super) fn before_entry(index: usize) -> &'static str {
+    if index == 0 { "" } else { ",\n" }
+}
+
+/// Results as the elements of the results array from `first` on, laid out as a results file
+/// writes them: what a check's threads lay out in parallel for [`ResultsWriter::push_laid_out`].
+pub fn entries_text<'r>(
+    results: impl IntoIterator<Item = &'r ProbeResult>,
+    first: usize,
+) -> String {
+    let mut out = String::new();
+    for (k, result) in results.into_iter().enumerate() {
+        entry_text(result, first + k, &mut out);
+    }
+    out
 }
 
 /// `"plumbline"` of a shard's partial results file.
@@ -169,11 +188,12 @@ pub const PARTIAL_KIND: &str = "partial-results";
 
 /// The end of the file after the last result.
 pub(super) fn tail_text(count: usize) -> &'static str {
-    if count == 0 { "\n}\n" } else { "  ]\n}\n" }
+    if count == 0 { "\n}\n" } else { "\n  ]\n}\n" }
 }
 
-/// Writes a results file result by result, as a check answers its probes, so that a run of a
-/// million probes never holds its whole results in memory: the file is written in place (a
+/// Writes a results file a block of results at a time (laid out by [`entries_text`] on the threads
+/// that answered them), as a check answers its probes, so that a run of a million probes never
+/// holds its whole results in memory: the file is written in place (a
 /// temporary file renamed at the end, like every file this program writes) with a summary of zeros
 /// of the final summary's length, which [`ResultsWriter::finish`] fills in. Byte for byte what
 /// [`ResultsFile::to_json`] gives for the same run.
@@ -183,9 +203,6 @@ pub struct ResultsWriter {
     summary_at: usize,
     written: usize,
     total: usize,
-    /// Results laid out and not yet written (written in blocks: one copy fewer than a buffered
-    /// writer's).
-    pending: String,
     /// Bytes written since the system was last asked to start writing them to disk.
     unsent: usize,
 }
@@ -198,9 +215,6 @@ fn no_verdicts(total: usize) -> Summary {
         ..Summary::default()
     }
 }
-
-/// How many bytes of results are laid out before they are written.
-const PENDING_BYTES: usize = 1 << 16;
 
 /// How many bytes of results are written between requests to start writing them to disk, so that
 /// the final flush of a large file has little left to wait for.
@@ -223,27 +237,27 @@ impl ResultsWriter {
             summary_at,
             written: 0,
             total,
-            pending: String::with_capacity(PENDING_BYTES + (PENDING_BYTES >> 2)),
             unsent: 0,
         })
     }
 
-    /// Adds the next result, in probe order.
-    pub fn push(&mut self, result: &ProbeResult) -> io::Result<()> {
-        self.written += 1;
-        entry_text(result, self.written == self.total, &mut self.pending);
-        if self.pending.len() >= PENDING_BYTES {
-            self.send()?;
+    /// Adds the next `count` results, in probe order, laid out by [`entries_text`] (numbered from
+    /// the results written before them), as the threads that answered them lay them out.
+    pub fn push_laid_out(&mut self, text: &str, count: usize) -> io::Result<()> {
+        if self.written + count > self.total {
+            return Err(io::Error::other(format!(
+                "more than the {} results the file was started for",
+                self.total
+            )));
         }
-        Ok(())
+        self.written += count;
+        self.write(text)
     }
 
-    /// Writes the results laid out so far, and asks the system to start writing them to disk
-    /// every [`WRITEBACK_BYTES`].
-    fn send(&mut self) -> io::Result<()> {
-        self.file.write_all(self.pending.as_bytes())?;
-        self.unsent += self.pending.len();
-        self.pending.clear();
+    /// Writes `text`, and asks the system to start writing to disk every [`WRITEBACK_BYTES`].
+    fn write(&mut self, text: &str) -> io::Result<()> {
+        self.file.write_all(text.as_bytes())?;
+        self.unsent += text.len();
         if self.unsent >= WRITEBACK_BYTES {
             self.file.start_writeback()?;
             self.unsent = 0;
@@ -268,8 +282,7 @@ impl ResultsWriter {
                 summary.probes, self.total
             )));
         }
-        self.pending.push_str(tail_text(self.total));
-        self.send()?;
+        self.write(tail_text(self.total))?;
         self.file
             .write_at(self.summary_at as u64, text.as_bytes())?;
         self.file.commit()
@@ -409,9 +422,8 @@ mod tests {
     fn pushed(file: &ResultsFile, out: &Path) -> ResultsWriter {
         let mut writer =
             ResultsWriter::create(out, file.results.len(), &file.head(), None).unwrap();
-        for result in &file.results {
-            writer.push(result).unwrap();
-        }
+        let text = entries_text(&file.results, 0);
+        writer.push_laid_out(&text, file.results.len()).unwrap();
         writer
     }
 
@@ -427,6 +439,39 @@ mod tests {
         assert_eq!(streamed, std::fs::read_to_string(&path).unwrap());
         let names: Vec<_> = std::fs::read_dir(dir.path()).unwrap().collect();
         assert_eq!(names.len(), 1, "only the results file is left");
+    }
+
+    #[test]
+    fn results_laid_out_in_blocks_are_the_files_text_byte_for_byte() {
+        // The demo's baseline in blocks of every size from one result to all of them: what a
+        // check's threads lay out is what the file holds.
+        let (_, file) = demo_baseline();
+        let dir = tempfile::tempdir().unwrap();
+        let count = file.results.len();
+        for size in 1..=count {
+            let out = dir.path().join(format!("blocks-{size}.results.json"));
+            let mut writer = ResultsWriter::create(&out, count, &file.head(), None).unwrap();
+            for (k, block) in file.results.chunks(size).enumerate() {
+                let text = entries_text(block, k * size);
+                writer.push_laid_out(&text, block.len()).unwrap();
+            }
+            writer.finish(&file.summary).unwrap();
+            assert_eq!(
+                std::fs::read_to_string(&out).unwrap(),
+                file.to_json(),
+                "{size}"
+            );
+        }
+    }
+
+    #[test]
+    fn more_results_than_the_file_was_started_for_are_refused() {
+        let (_, file) = demo_baseline();
+        let dir = tempfile::tempdir().unwrap();
+        let out = dir.path().join("over.results.json");
+        let mut writer = pushed(&file, &out);
+        let text = entries_text(&file.results[..1], file.results.len());
+        assert!(writer.push_laid_out(&text, 1).is_err());
     }
 
     #[test]

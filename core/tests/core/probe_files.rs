@@ -82,8 +82,8 @@ fn a_set_of_many_chunks_is_answered_in_order_for_any_thread_count() {
     // A check answers a chunk of probes while it hands out the one before (with two threads or
     // more): results must still come out in file order, the same as on one thread, whole and in
     // shards. Common practice for a streaming pipeline; the reference is the one-thread run.
-    use plumbline_core::check::{Runner, Shard};
-    use plumbline_core::session::{OpenOptions, open};
+    use plumbline_core::check::{Runner, Shard, entries_text};
+    use plumbline_core::session::{HandOut, OpenOptions, open};
     let root = Path::new(concat!(env!("CARGO_MANIFEST_DIR"), "/.."));
     let probes: Vec<String> = (0..20_000)
         .map(|k| {
@@ -107,20 +107,32 @@ fn a_set_of_many_chunks_is_answered_in_order_for_any_thread_count() {
         ..OpenOptions::default()
     };
     let opened = open(&path, &options).unwrap();
+    // The answers in probe order, and the results-file text laid out for them by the answering
+    // threads, which must be the text of those results laid out one by one.
     let answers = |jobs: usize, only: Option<&[usize]>| {
         let mut found = Vec::new();
+        let (mut text, mut counted) = (String::new(), 0);
         opened
             .answer_each(
                 &Runner::new(Some(jobs)).unwrap(),
                 only,
                 &|_| {},
-                &mut |probe, result, _| {
-                    assert_eq!(probe.id, result.id);
-                    found.push(result);
-                    Ok(())
+                HandOut {
+                    each: &mut |probe, result, _| {
+                        assert_eq!(probe.id, result.id);
+                        found.push(result);
+                        Ok(())
+                    },
+                    laid_out: Some(&mut |block, count| {
+                        text.push_str(block);
+                        counted += count;
+                        Ok(())
+                    }),
                 },
             )
             .unwrap();
+        assert_eq!(counted, found.len());
+        assert!(text == entries_text(&found, 0), "{jobs} thread(s)");
         found
     };
     let one = answers(1, None);
@@ -144,10 +156,15 @@ fn a_set_of_many_chunks_is_answered_in_order_for_any_thread_count() {
         let mut took = Vec::new();
         let first: Vec<usize> = (0..200).collect();
         opened
-            .answer_each(&runner, Some(&first), &|_| {}, &mut |_, _, t| {
-                took.push(t);
-                Ok(())
-            })
+            .answer_each(
+                &runner,
+                Some(&first),
+                &|_| {},
+                HandOut::each(&mut |_, _, t| {
+                    took.push(t);
+                    Ok(())
+                }),
+            )
             .unwrap();
         took
     };
@@ -165,7 +182,7 @@ fn a_set_of_many_chunks_is_answered_in_order_for_any_thread_count() {
             &Runner::new(Some(jobs)).unwrap(),
             None,
             &|_| {},
-            &mut |_, _, _| {
+            HandOut::each(&mut |_, _, _| {
                 handed += 1;
                 if handed < 100 {
                     Ok(())
@@ -175,7 +192,7 @@ fn a_set_of_many_chunks_is_answered_in_order_for_any_thread_count() {
                         source: std::io::Error::other("no space left"),
                     })
                 }
-            },
+            }),
         );
         assert!(
             matches!(failed, Err(plumbline_core::error::Error::Write { .. })),

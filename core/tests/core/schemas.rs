@@ -9,7 +9,7 @@ use plumbline_core::check::{PartHead, ResultsHead, ResultsWriter, Runner, Shard,
 use plumbline_core::input::PathPolicy;
 use plumbline_core::level::load_level;
 use plumbline_core::probe::parse_probe_set;
-use plumbline_core::session::{OpenOptions, open};
+use plumbline_core::session::{HandOut, OpenOptions, open};
 use proptest::prelude::*;
 use serde_json::Value;
 
@@ -113,9 +113,12 @@ fn a_shards_partial_results_validate() {
             &Runner::new(Some(1)).unwrap(),
             Some(&part.positions),
             &|_| {},
-            &mut |_, result, _| {
-                writer.push(&result).unwrap();
-                Ok(())
+            HandOut {
+                each: &mut |_, _, _| Ok(()),
+                laid_out: Some(&mut |text, count| {
+                    writer.push_laid_out(text, count).unwrap();
+                    Ok(())
+                }),
             },
         )
         .unwrap();
