@@ -5,10 +5,11 @@
 
 use std::borrow::Cow;
 use std::hash::BuildHasher;
+use std::io::Read;
 use std::ops::Range;
 use std::path::{Path, PathBuf};
 use std::sync::Mutex;
-use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::atomic::{AtomicU8, Ordering};
 
 use super::model::{Probe, ProbeSet};
 use super::parse::parse_probe;
@@ -24,6 +25,36 @@ use crate::input::{MAX_PROBES, read_input, text_digest};
 /// once, and a mistake there still stops it, naming the probe's place, before its results or
 /// reports are written. Ours.
 pub const CHECKED_WHOLE: usize = 8192;
+
+/// How much of a probe-set file is read first, for the level it names: its head. Ours.
+const HEAD_BYTES: u64 = 1 << 16;
+
+/// Who started loading the level of a file being read ([`ProbeText::read_alongside`]).
+const NO_ONE_YET: u8 = 0;
+const HEAD: u8 = 1;
+const TOP: u8 = 2;
+const UNREADABLE: u8 = 3;
+
+/// The level a probe-set file names in its head (its first [`HEAD_BYTES`]), read on its own:
+/// `None` when it is not a regular file, cannot be read, or does not name the level plainly there.
+fn head_level(path: &Path) -> Option<String> {
+    // Looked at before opening, as `read_input` does: opening a pipe blocks.
+    if !std::fs::metadata(path).ok()?.is_file() {
+        return None;
+    }
+    let mut head = Vec::new();
+    std::fs::File::open(path)
+        .ok()?
+        .take(HEAD_BYTES)
+        .read_to_end(&mut head)
+        .ok()?;
+    let text = match std::str::from_utf8(&head) {
+        Ok(text) => text,
+        // Cut within a character: the whole characters before it.
+        Err(e) => std::str::from_utf8(&head[..e.valid_up_to()]).ok()?,
+    };
+    plain_level(text).map(str::to_string)
+}
 
 /// A checked probe-set file: its ids are unique and its first [`CHECKED_WHOLE`] probes valid; any
 /// other probe is checked whole whenever it is parsed (every way of getting probes parses them).
@@ -55,45 +86,73 @@ impl ProbeText {
 
     /// Reads and checks a probe-set file as [`ProbeText::read`] does, and runs `alongside` on the
     /// level it names, in parallel (on the current thread pool) with reading and checking the
-    /// probes: a check loads its level meanwhile. The level's name is taken from the file's head
-    /// before its probes are read, where the head is plain and names it before them (as every
-    /// file this program writes does); otherwise once the file's top is read. The probes' errors
-    /// come first, and a file whose top cannot be read never has its level loaded on one thread.
+    /// probes: a check loads its level meanwhile. The level's name is taken from the file's head,
+    /// read on its own before the rest of the file, where the head is plain and names it before
+    /// the probes (as every file this program writes does); otherwise once the file's top is read.
+    /// The probes' errors come first, and a file whose top cannot be read never has its level
+    /// loaded on one thread. Should the head name another level than the whole file (the file
+    /// changed while it was read), the file's own level is the one loaded.
     pub fn read_alongside<R: Send>(
         path: &Path,
-        alongside: impl FnOnce(&str) -> R + Send,
+        alongside: impl Fn(&str) -> R + Sync,
     ) -> Result<(ProbeText, R), InputError> {
-        let bytes = read_input(path)?;
-        let text = String::from_utf8(bytes)
-            .map_err(|e| InputError::file(path, format!("not UTF-8 text: {}", e.utf8_error())))?;
-        let Some(named) = plain_level(&text).map(str::to_string) else {
-            let (unchecked, rule_spans) = ProbeText::read_top(path, text)?;
-            let level = unchecked.level.clone();
-            let (checked, also) = rayon::join(
-                move || unchecked.checked(&rule_spans),
-                move || alongside(&level),
-            );
-            return Ok((checked?, also));
+        ProbeText::read_alongside_with(path, head_level, alongside)
+    }
+
+    /// [`ProbeText::read_alongside`] with the head read by `head` (a test's stand-in can name
+    /// another level than the file does).
+    fn read_alongside_with<R: Send>(
+        path: &Path,
+        head: fn(&Path) -> Option<String>,
+        alongside: impl Fn(&str) -> R + Sync,
+    ) -> Result<(ProbeText, R), InputError> {
+        // Who starts the level: the head, the top, or no one (the file cannot be read).
+        let starter = AtomicU8::new(NO_ONE_YET);
+        let starts = |who| {
+            starter
+                .compare_exchange(NO_ONE_YET, who, Ordering::AcqRel, Ordering::Acquire)
+                .is_ok()
         };
-        let unreadable = AtomicBool::new(false);
-        let (checked, also) = rayon::join(
+        let (read, from_head) = rayon::join(
             || {
-                let top = ProbeText::read_top(path, text);
-                unreadable.store(top.is_err(), Ordering::Relaxed);
-                let (unchecked, rule_spans) = top?;
-                unchecked.checked(&rule_spans)
+                let top = read_input(path).and_then(|bytes| {
+                    let text = String::from_utf8(bytes).map_err(|e| {
+                        InputError::file(path, format!("not UTF-8 text: {}", e.utf8_error()))
+                    })?;
+                    ProbeText::read_top(path, text)
+                });
+                let (unchecked, rule_spans) = match top {
+                    Ok(top) => top,
+                    Err(error) => {
+                        starts(UNREADABLE);
+                        return Err(error);
+                    }
+                };
+                if !starts(TOP) {
+                    return Ok((unchecked.checked(&rule_spans)?, None));
+                }
+                let level = unchecked.level.clone();
+                let (checked, also) =
+                    rayon::join(move || unchecked.checked(&rule_spans), || alongside(&level));
+                Ok((checked?, Some(also)))
             },
-            || (!unreadable.load(Ordering::Relaxed)).then(|| alongside(&named)),
+            || {
+                let named = (starter.load(Ordering::Acquire) == NO_ONE_YET)
+                    .then(|| head(path))
+                    .flatten()?;
+                starts(HEAD).then(|| {
+                    let also = alongside(&named);
+                    (named, also)
+                })
+            },
         );
-        let checked = checked?;
-        debug_assert_eq!(
-            checked.level, named,
-            "the head names the level the top reads"
-        );
-        Ok((
-            checked,
-            also.expect("the level is loaded once the top is read"),
-        ))
+        let (checked, from_top) = read?;
+        let also = match (from_top, from_head) {
+            (Some(also), _) => also,
+            (None, Some((named, also))) if named == checked.level => also,
+            (None, _) => alongside(&checked.level),
+        };
+        Ok((checked, also))
     }
 
     /// Checks probe-set text; `path` is named in errors.
@@ -388,6 +447,83 @@ mod tests {
     use crate::probe::ProbeQuery;
     use crate::query::Filter;
     use glam::DVec3;
+
+    /// A probe set of `probes` rays on `level`, with `before` as the members ahead of the level.
+    fn set_text(before: &str, level: &str, probes: usize) -> String {
+        let rays: Vec<String> = (0..probes)
+            .map(|k| {
+                format!(r#"{{"id": "r{k}", "kind": "ray", "from": [0, 1, 0], "to": [1, 1, 0]}}"#)
+            })
+            .collect();
+        format!(
+            r#"{{{before}"plumbline": "probes", "version": 1, "level": "{level}", "probes": [{}]}}"#,
+            rays.join(",\n")
+        )
+    }
+
+    #[test]
+    fn the_level_is_named_by_the_files_head_or_else_by_its_top() {
+        let dir = tempfile::tempdir().unwrap();
+        let cases = [
+            ("plain", set_text("", "quay.level.json", 3), Some("quay.level.json")),
+            // A head too long to hold the level: it is read from the top.
+            (
+                "long head",
+                set_text(&format!(r#""$schema": "{}", "#, "s".repeat(70_000)), "quay.level.json", 3),
+                None,
+            ),
+            // The level after the probes: from the top.
+            (
+                "level last",
+                r#"{"plumbline": "probes", "version": 1, "probes": [], "level": "quay.level.json"}"#
+                    .to_string(),
+                None,
+            ),
+        ];
+        for (name, text, from_head) in cases {
+            let path = dir.path().join(format!("{name}.probes.json"));
+            std::fs::write(&path, &text).unwrap();
+            assert_eq!(head_level(&path).as_deref(), from_head, "{name}");
+            for jobs in [1, 2] {
+                let pool = rayon::ThreadPoolBuilder::new()
+                    .num_threads(jobs)
+                    .build()
+                    .unwrap();
+                let (read, level) = pool
+                    .install(|| ProbeText::read_alongside(&path, |named| named.to_string()))
+                    .unwrap();
+                assert_eq!(
+                    (read.level(), level.as_str()),
+                    ("quay.level.json", "quay.level.json")
+                );
+            }
+        }
+        // A folder is not read for its head (nor is a pipe, which would block).
+        assert_eq!(head_level(dir.path()), None);
+    }
+
+    #[test]
+    fn a_level_the_head_names_but_the_file_does_not_is_not_the_one_kept() {
+        // As when the file changes between reading its head and reading it whole. On two threads
+        // the head is read long before the whole file (8 MB), so its level starts first; on one
+        // the top starts it (the head is then never read), with the same answer.
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("edited.probes.json");
+        std::fs::write(&path, set_text("", "quay.level.json", 100_000)).unwrap();
+        let elsewhere = |_: &Path| Some("elsewhere.level.json".to_string());
+        for jobs in [1, 2] {
+            let pool = rayon::ThreadPoolBuilder::new()
+                .num_threads(jobs)
+                .build()
+                .unwrap();
+            let (_, level) = pool
+                .install(|| {
+                    ProbeText::read_alongside_with(&path, elsewhere, |named| named.to_string())
+                })
+                .unwrap();
+            assert_eq!(level, "quay.level.json", "{jobs} thread(s)");
+        }
+    }
 
     #[test]
     fn an_edited_probe_is_held_to_the_file_format() {
