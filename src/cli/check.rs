@@ -333,22 +333,28 @@ pub fn run_once(
         let path = path.clone().unwrap_or_default();
         move |source| Error::Write { path, source }
     };
-    if let Some(w) = results_file {
-        w.finish(&summary).map_err(written(&options.out))?;
-    }
-    if let Some(w) = writers.junit {
-        w.finish(&suite_name(&options.probes), &summary)
-            .map_err(written(&options.junit))?;
-    }
-    if let Some(w) = writers.html {
-        w.finish(&summary, &head.level, changed_count)
-            .map_err(written(&options.html))?;
-    }
-    if let Some(w) = writers.markdown {
-        let labels = |id: &str| changed_labels.get(id).cloned().flatten();
-        w.finish(&summary, &head.level, comparison.as_ref(), &labels)
-            .map_err(written(&options.markdown))?;
-    }
+    // The level and the set are freed on their own thread while the files are finished (their
+    // last writes wait on the disk).
+    std::thread::scope(|scope| {
+        scope.spawn(move || drop(opened));
+        if let Some(w) = results_file {
+            w.finish(&summary).map_err(written(&options.out))?;
+        }
+        if let Some(w) = writers.junit {
+            w.finish(&suite_name(&options.probes), &summary)
+                .map_err(written(&options.junit))?;
+        }
+        if let Some(w) = writers.html {
+            w.finish(&summary, &head.level, changed_count)
+                .map_err(written(&options.html))?;
+        }
+        if let Some(w) = writers.markdown {
+            let labels = |id: &str| changed_labels.get(id).cloned().flatten();
+            w.finish(&summary, &head.level, comparison.as_ref(), &labels)
+                .map_err(written(&options.markdown))?;
+        }
+        Ok::<_, Error>(())
+    })?;
     let results = keep_results.then(|| {
         ResultsFile::new(
             head.probes,
