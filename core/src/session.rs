@@ -22,7 +22,7 @@ use crate::check::{
 };
 use crate::error::{Diagnostic, Error, InputError, Warning};
 use crate::input::{PathPolicy, resolve_named};
-use crate::level::{Level, LintSettings, LoadedLevel, level_digest, load_level};
+use crate::level::{Level, LevelDigest, LintSettings, LoadedLevel, load_level};
 use crate::probe::{Probe, ProbeSet, ProbeText, Rule};
 use crate::query::World;
 
@@ -328,18 +328,17 @@ fn open_level(path: &Path, options: &OpenOptions) -> Result<OpenLevel, Error> {
         files,
         lint,
     } = load_level(path, options.paths)?;
-    let digest = level_digest(&level);
     let (triangles, objects) = (level.triangle_count(), level.objects.len());
     let build_error = |cause| Error::Build {
         level: path.to_path_buf(),
         cause,
     };
-    let (model, world) = if options.keep_level {
-        let world = World::new(&level).map_err(build_error)?;
-        (Some(level), world)
-    } else {
-        (None, World::from_level(level).map_err(build_error)?)
-    };
+    let model = options.keep_level.then(|| level.clone());
+    // The digest is taken as the world is built, each object while its mesh is welded.
+    let mut digest = LevelDigest::new(&level);
+    let world =
+        World::from_level_seen(level, |object| digest.object(object)).map_err(build_error)?;
+    let digest = digest.finish();
     let mut diagnostics = diagnostics;
     diagnostics.extend((0..world.len()).filter_map(|id| {
         let edges = world.winding_faults(id);

@@ -19,7 +19,7 @@ mod transform;
 
 use std::path::{Path, PathBuf};
 
-pub use digest::level_digest;
+pub use digest::{LevelDigest, level_digest};
 pub use glob::glob_matches;
 pub use lint_settings::{Allowance, LintSettings};
 pub use mesh::{DEGENERATE_RELATIVE_AREA, MeshFault, is_degenerate};

@@ -282,10 +282,11 @@ pub(crate) struct MeshFacts {
 }
 
 /// The bodies of one mesh object: one per material group (or the whole mesh when it has one
-/// group), large open groups split into parts.
+/// group), large open groups split into parts. `welded` is the mesh [`weld`]ed.
 pub(crate) fn mesh_bodies(
     object: ObjectId,
     mesh: Mesh,
+    welded: Welded,
     groups: Vec<MaterialGroup>,
 ) -> Result<(Vec<Body>, MeshFacts), BuildCause> {
     let Mesh {
@@ -293,7 +294,7 @@ pub(crate) fn mesh_bodies(
         triangles,
         ..
     } = mesh;
-    let (welded, indices) = weld(&vertices, &triangles);
+    let (welded, indices) = welded;
     let facts = surface_facts(&indices);
     let whole = groups.len() == 1;
     if facts.closed {
@@ -429,9 +430,12 @@ fn split_in_space(
     parts.sort_by_key(|r| r.start);
 }
 
+/// A mesh with its vertices at the same position merged: the vertices, and the triangles over them.
+pub(crate) type Welded = (Vec<DVec3>, Vec<[u32; 3]>);
+
 /// Merges vertices at exactly the same position, keeping the triangle order. Sorting vertex indices
 /// by position keeps the extra memory to two `u32` per vertex.
-fn weld(vertices: &[DVec3], triangles: &[[u32; 3]]) -> (Vec<DVec3>, Vec<[u32; 3]>) {
+pub(crate) fn weld(vertices: &[DVec3], triangles: &[[u32; 3]]) -> Welded {
     let key = |v: DVec3| {
         v.to_array()
             .map(|c| if c == 0.0 { 0u64 } else { c.to_bits() })

@@ -12,12 +12,13 @@ use parry3d_f64::shape::TriMeshBuilderError;
 
 use parry3d_f64::shape::SharedShape;
 
-use super::body::{Body, MaterialGroup, mesh_bodies};
+use super::body::{Body, MaterialGroup, mesh_bodies, weld};
 use super::ray_index::RayIndex;
 use super::ray_tree::RayFrame;
 use super::shapes::{primitive_shape, solid_shape};
 use crate::level::{
-    FacePlace, Geometry, Level, MeshOrigin, Primitive, ShapeError, ShapeSpec, VOLUME_TAG,
+    FacePlace, Geometry, Level, LevelObject, MeshOrigin, Primitive, ShapeError, ShapeSpec,
+    VOLUME_TAG,
 };
 
 /// Index of an object in the [`World`] (the same order as the level's objects).
@@ -108,6 +109,16 @@ impl World {
     /// Builds the world from a validated level, taking it over: each mesh is handed to its bodies, or
     /// freed as soon as its parts are built, so peak memory holds one copy of the geometry.
     pub fn from_level(level: Level) -> Result<World, BuildError> {
+        World::from_level_seen(level, |_| {})
+    }
+
+    /// [`World::from_level`], showing each object to `see`, in order, before it is taken over: a
+    /// mesh while it is welded, on another thread of the pool when one is free (a check takes the
+    /// level's digest so).
+    pub fn from_level_seen(
+        level: Level,
+        mut see: impl FnMut(&LevelObject) + Send,
+    ) -> Result<World, BuildError> {
         let up = level.up;
         let mut bodies = Vec::with_capacity(level.objects.len());
         let mut volumes = Vec::new();
@@ -119,9 +130,21 @@ impl World {
                 object: item.name.clone(),
                 cause,
             };
+            let volume = item.tags.iter().any(|t| t == VOLUME_TAG);
+            let welded = match &item.geometry {
+                Geometry::Mesh(mesh) if !volume => {
+                    let (welded, ()) =
+                        rayon::join(|| weld(&mesh.vertices, &mesh.triangles), || see(&item));
+                    Some(welded)
+                }
+                _ => {
+                    see(&item);
+                    None
+                }
+            };
             let tags: Arc<[String]> = Arc::from(item.tags);
             let mut primitive_of = None;
-            if tags.iter().any(|t| t == VOLUME_TAG) {
+            if volume {
                 let (shape, pose) = match &item.geometry {
                     Geometry::Mesh(mesh) => {
                         let hull = SharedShape::convex_hull(&mesh.vertices)
@@ -173,7 +196,8 @@ impl World {
                     let groups = material_groups(&mesh, &origin, &tags, &mut materials);
                     let numbers =
                         origin.number(mesh.triangles.len().saturating_sub(1) as u32) as u64 + 1;
-                    let (own, facts) = mesh_bodies(object, mesh, groups).map_err(fail)?;
+                    let welded = welded.expect("a mesh that is not a volume is welded");
+                    let (own, facts) = mesh_bodies(object, mesh, welded, groups).map_err(fail)?;
                     bodies.extend(own);
                     (Some(origin), facts.closed, facts.winding_faults, numbers)
                 }

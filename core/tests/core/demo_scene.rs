@@ -7,7 +7,7 @@ use std::path::Path;
 use plumbline_core::check::{ResultsFile, Verdict, expand_rules, probes_digest, run_probes};
 use plumbline_core::demo::{files, write_demo_scene};
 use plumbline_core::input::PathPolicy;
-use plumbline_core::level::{LoadedLevel, level_digest, load_level};
+use plumbline_core::level::{LevelDigest, LoadedLevel, level_digest, load_level};
 use plumbline_core::lint::{LintOptions, lint};
 use plumbline_core::probe::load_probe_set;
 use plumbline_core::query::World;
@@ -129,6 +129,28 @@ fn the_probe_set_gives_the_reviewed_baseline() {
     );
     let golden = std::fs::read_to_string(scenes().join(files::BASELINE)).unwrap();
     assert_eq!(file.to_json(), golden);
+}
+
+#[test]
+fn the_digest_taken_while_the_world_is_built_is_the_levels() {
+    // The demo has meshes, primitives and volumes; on one thread and two (where each mesh is
+    // hashed while it is welded).
+    let level = load_level(&scenes().join(files::LEVEL), PathPolicy::default())
+        .unwrap()
+        .level;
+    let whole = level_digest(&level);
+    for jobs in [1, 2] {
+        let pool = rayon::ThreadPoolBuilder::new()
+            .num_threads(jobs)
+            .build()
+            .unwrap();
+        let mut digest = LevelDigest::new(&level);
+        let world = pool
+            .install(|| World::from_level_seen(level.clone(), |object| digest.object(object)))
+            .unwrap();
+        assert_eq!(world.len(), level.objects.len());
+        assert_eq!(digest.finish(), whole, "{jobs} thread(s)");
+    }
 }
 
 #[test]
