@@ -485,21 +485,28 @@ mod tests {
             std::fs::write(&path, &text).unwrap();
             assert_eq!(head_level(&path).as_deref(), from_head, "{name}");
             for jobs in [1, 2] {
-                let pool = rayon::ThreadPoolBuilder::new()
-                    .num_threads(jobs)
-                    .build()
-                    .unwrap();
-                let (read, level) = pool
-                    .install(|| ProbeText::read_alongside(&path, |named| named.to_string()))
-                    .unwrap();
+                let (read, level) = on_threads(jobs, || {
+                    ProbeText::read_alongside(&path, |named| named.to_string())
+                })
+                .unwrap();
                 assert_eq!(
                     (read.level(), level.as_str()),
                     ("quay.level.json", "quay.level.json")
                 );
             }
         }
-        // A folder is not read for its head (nor is a pipe, which would block).
+        // Neither a folder nor a pipe is read for its head (opening a pipe would block).
         assert_eq!(head_level(dir.path()), None);
+        let pipe = dir.path().join("pipe.probes.json");
+        let made = std::process::Command::new("mkfifo").arg(&pipe).status();
+        assert!(made.unwrap().success());
+        assert_eq!(head_level(&pipe), None);
+    }
+
+    /// `work` run on a pool of `jobs` threads.
+    fn on_threads<R: Send>(jobs: usize, work: impl FnOnce() -> R + Send) -> R {
+        let pool = rayon::ThreadPoolBuilder::new().num_threads(jobs).build();
+        pool.unwrap().install(work)
     }
 
     #[test]
@@ -512,15 +519,10 @@ mod tests {
         std::fs::write(&path, set_text("", "quay.level.json", 100_000)).unwrap();
         let elsewhere = |_: &Path| Some("elsewhere.level.json".to_string());
         for jobs in [1, 2] {
-            let pool = rayon::ThreadPoolBuilder::new()
-                .num_threads(jobs)
-                .build()
-                .unwrap();
-            let (_, level) = pool
-                .install(|| {
-                    ProbeText::read_alongside_with(&path, elsewhere, |named| named.to_string())
-                })
-                .unwrap();
+            let (_, level) = on_threads(jobs, || {
+                ProbeText::read_alongside_with(&path, elsewhere, |named| named.to_string())
+            })
+            .unwrap();
             assert_eq!(level, "quay.level.json", "{jobs} thread(s)");
         }
     }
