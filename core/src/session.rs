@@ -189,11 +189,12 @@ const AHEAD: usize = 1;
 const LAID_OUT: usize = 1024;
 
 /// A chunk of probes and their answers, in probe order, with the time each took, and the answers
-/// laid out as results-file text when that was asked for (in blocks of [`LAID_OUT`]).
+/// laid out as results-file text when that was asked for (blocks of up to [`LAID_OUT`], each with
+/// how many results it holds).
 struct Answered<'a> {
     probes: Cow<'a, [Probe]>,
     results: Vec<(ProbeResult, std::time::Duration)>,
-    text: Vec<String>,
+    text: Vec<(String, usize)>,
 }
 
 /// Where [`Opened::answer_each`] hands the answers: each probe with its result, and, when asked
@@ -402,8 +403,8 @@ impl Opened {
         let mut summary = Summary::default();
         let mut hand_out = |answered: Answered| -> Result<(), Error> {
             if let Some(write) = laid_out.as_mut() {
-                for (text, block) in answered.text.iter().zip(answered.results.chunks(LAID_OUT)) {
-                    write(text, block.len())?;
+                for (text, count) in &answered.text {
+                    write(text, *count)?;
                 }
             }
             for (probe, (result, took)) in answered.probes.iter().zip(answered.results) {
@@ -465,7 +466,11 @@ impl Opened {
                         .par_chunks(LAID_OUT)
                         .enumerate()
                         .map(|(k, block)| {
-                            entries_text(block.iter().map(|(r, _)| r), done + k * LAID_OUT)
+                            let first = done + k * LAID_OUT;
+                            (
+                                entries_text(block.iter().map(|(r, _)| r), first),
+                                block.len(),
+                            )
                         })
                         .collect()
                 })
