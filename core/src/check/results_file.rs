@@ -164,6 +164,10 @@ fn entry_text(result: &ProbeResult, index: usize, out: &mut String) {
     crate::json_text::write_layout(result, 2, out);
 }
 
+/// The bytes a result takes in a results file, on average over a set of 200,000 rays of which half
+/// hit (64 MB). Ours.
+const TYPICAL_ENTRY_BYTES: usize = 320;
+
 /// What comes before the element at `index` of the results array: a comma and a line break, but
 /// for the first.
 pub(super) fn before_entry(index: usize) -> &'static str {
@@ -172,12 +176,15 @@ pub(super) fn before_entry(index: usize) -> &'static str {
 
 /// Results as the elements of the results array from `first` on, laid out as a results file
 /// writes them: what a check's threads lay out in parallel for [`ResultsWriter::push_laid_out`].
-pub fn entries_text<'r>(
-    results: impl IntoIterator<Item = &'r ProbeResult>,
-    first: usize,
-) -> String {
-    let mut out = String::new();
-    for (k, result) in results.into_iter().enumerate() {
+pub fn entries_text<'r, R>(results: R, first: usize) -> String
+where
+    R: IntoIterator<Item = &'r ProbeResult>,
+    R::IntoIter: ExactSizeIterator,
+{
+    let results = results.into_iter();
+    // Room for a typical result each, so that a block's text is seldom copied as it grows.
+    let mut out = String::with_capacity(results.len() * TYPICAL_ENTRY_BYTES);
+    for (k, result) in results.enumerate() {
         entry_text(result, first + k, &mut out);
     }
     out
