@@ -19,5 +19,5 @@ pub use model::{
     TARGET_REACH, Turns,
 };
 pub use rules::{Anchor, FromRule, Landmark, REST_TOLERANCE, Rule, Template, parse_rules};
-pub use text::{CHECKED_WHOLE, ProbeText, load_probe_set, parse_probe_set, validate_probe};
+pub use text::{CHECKED_WHOLE, CHUNK, ProbeText, load_probe_set, parse_probe_set, validate_probe};
 pub use write::{probe_set_to_json, rules_to_json};
