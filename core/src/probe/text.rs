@@ -366,15 +366,38 @@ impl ProbeText {
         self.spans.is_empty()
     }
 
-    /// The probes in `range` (of file order), parsed (the first ones, parsed when the file was
-    /// checked, are handed over the first time exactly they are asked for).
+    /// The probes in `range` (of file order), parsed. Chunks parsed before they were asked for
+    /// (the first, when the file was checked, and any parsed ahead) are handed over the first
+    /// time a range holding them is asked for; the rest of the range is parsed. The first mistake
+    /// in file order is the one returned.
     pub fn probes(&self, range: Range<usize>) -> Result<Vec<Probe>, InputError> {
-        {
+        let mut held: Vec<ParsedAhead> = {
             let mut ahead = self.ahead.lock().unwrap_or_else(|e| e.into_inner());
-            if let Some(at) = ahead.iter().position(|(parsed, _)| *parsed == range) {
-                return ahead.swap_remove(at).1;
-            }
+            let (inside, outside) = std::mem::take(&mut *ahead)
+                .into_iter()
+                .partition(|(r, _)| range.start <= r.start && r.end <= range.end);
+            *ahead = outside;
+            inside
+        };
+        if let [(whole, _)] = held.as_slice()
+            && *whole == range
+        {
+            return held.remove(0).1;
         }
+        held.sort_by_key(|(r, _)| r.start);
+        let mut probes = Vec::with_capacity(range.len());
+        let mut at = range.start;
+        for (r, parsed) in held {
+            probes.extend(self.parsed(at..r.start)?);
+            probes.extend(parsed?);
+            at = r.end;
+        }
+        probes.extend(self.parsed(at..range.end)?);
+        Ok(probes)
+    }
+
+    /// The probes in `range`, parsed now.
+    fn parsed(&self, range: Range<usize>) -> Result<Vec<Probe>, InputError> {
         self.parse_each(range).into_iter().collect()
     }
 
@@ -387,7 +410,7 @@ impl ProbeText {
                 return;
             }
             let range = start..(start + CHUNK).min(self.len());
-            let parsed = self.parse_each(range.clone()).into_iter().collect();
+            let parsed = self.parsed(range.clone());
             self.ahead
                 .lock()
                 .unwrap_or_else(|e| e.into_inner())
@@ -681,14 +704,19 @@ mod tests {
         );
         let (plain, ()) = on_threads(1, || ProbeText::read_alongside(&path, slow_level)).unwrap();
         assert_eq!(held(&plain), [(0, CHUNK)]);
+        // A range holding chunks parsed ahead takes them and parses the rest: the same probes.
+        let start = ahead.probes(0..CHUNK + 1).unwrap();
+        assert_eq!(held(&ahead), [(CHUNK, 2 * CHUNK), (2 * CHUNK, count)]);
+        assert_eq!(start, plain.probes(0..CHUNK + 1).unwrap());
+        assert!(held(&plain).is_empty());
         for set in [&ahead, &plain] {
-            assert_eq!(set.probes(0..CHUNK).unwrap().len(), CHUNK);
             assert_eq!(
-                set.probes(CHUNK..2 * CHUNK).unwrap(),
-                set.probes(CHUNK..2 * CHUNK).unwrap(),
+                set.probes(CHUNK..2 * CHUNK + 7).unwrap(),
+                set.probes(CHUNK..2 * CHUNK + 7).unwrap(),
                 "held, then parsed again"
             );
-            let mistake = set.probes(2 * CHUNK..count).unwrap_err();
+            // The mistake, held with its chunk, is found when a range holding it is asked for.
+            let mistake = set.probes(CHUNK..count).unwrap_err();
             assert_eq!(mistake, set.probe(bad).unwrap_err());
             assert!(held(set).is_empty());
         }
