@@ -2,7 +2,7 @@
 //! whole: [`CHECKED_WHOLE`]), its probes parsed when they are needed, a chunk at a time: a check of
 //! a million probes never holds a million parsed probes (about 470 bytes each), only the file's
 //! text (about 100–150 bytes a probe), where each probe lies in it, and at most
-//! [`PARSED_AHEAD`] chunks parsed while its level loaded.
+//! [`PARSED_AHEAD_BYTES`] of probes parsed while its level loaded.
 
 use std::borrow::Cow;
 use std::hash::BuildHasher;
@@ -31,10 +31,11 @@ pub const CHECKED_WHOLE: usize = CHUNK;
 /// for are kept by their range. Ours.
 pub const CHUNK: usize = 8192;
 
-/// How many chunks may be parsed ahead while the level loads: a chunk of rays holds about 3.9 MB
-/// parsed, so at most ~47 MB. On two threads (200k rays, 1M-triangle level) 12 gained as much as
-/// 24 (0.675 and 0.671 s against 0.688) for half the memory. Ours.
-const PARSED_AHEAD: usize = 12;
+/// How much may be parsed ahead while the level loads, by an estimate of what parsed probes hold
+/// (a [`Probe`] each and about their text again: paths, labels). A chunk of rays is ~4.5 MB by
+/// it, so 12 chunks; on two threads (200k rays, 1M-triangle level) 12 chunks gained as much as 24
+/// (0.675 and 0.671 s against 0.688) for half the memory. Ours.
+const PARSED_AHEAD_BYTES: usize = 56 << 20;
 
 /// A chunk parsed before it was asked for: its range (of file order) and its probes or the first
 /// error among them.
@@ -140,7 +141,9 @@ impl ProbeText {
             also
         };
         let ahead = |text: ProbeText| {
-            text.parse_ahead(|| loading.load(Ordering::Acquire) == LEVEL_LOADS);
+            text.parse_ahead(PARSED_AHEAD_BYTES, || {
+                loading.load(Ordering::Acquire) == LEVEL_LOADS
+            });
             text
         };
         let starts = |who| {
@@ -401,15 +404,19 @@ impl ProbeText {
         self.parse_each(range).into_iter().collect()
     }
 
-    /// Parses the chunks after the first ([`CHUNK`] probes each, as a check asks for them), at most
-    /// [`PARSED_AHEAD`], while `meanwhile` holds: each is kept until it is asked for, its error
-    /// too, so that a mistake is still reported when its chunk is reached.
-    fn parse_ahead(&self, meanwhile: impl Fn() -> bool) {
-        for start in (CHUNK..self.len()).step_by(CHUNK).take(PARSED_AHEAD) {
-            if !meanwhile() {
+    /// Parses the chunks after the first ([`CHUNK`] probes each, as a check asks for them), while
+    /// `meanwhile` holds and their estimated size stays within `budget` bytes (see
+    /// [`PARSED_AHEAD_BYTES`]): each is kept until it is asked for, its error too, so that a
+    /// mistake is still reported when its chunk is reached.
+    fn parse_ahead(&self, budget: usize, meanwhile: impl Fn() -> bool) {
+        let mut held = 0;
+        for start in (CHUNK..self.len()).step_by(CHUNK) {
+            let range = start..(start + CHUNK).min(self.len());
+            let text = self.spans[range.end - 1].1 - self.spans[start].0;
+            held += range.len() * std::mem::size_of::<Probe>() + text;
+            if held > budget || !meanwhile() {
                 return;
             }
-            let range = start..(start + CHUNK).min(self.len());
             let parsed = self.parsed(range.clone());
             self.ahead
                 .lock()
@@ -720,6 +727,33 @@ mod tests {
             assert_eq!(mistake, set.probe(bad).unwrap_err());
             assert!(held(set).is_empty());
         }
+    }
+
+    /// Parsing ahead stops before the chunks' estimated size passes its budget, and when told to.
+    #[test]
+    fn parsing_ahead_keeps_to_its_budget() {
+        let count = 3 * CHUNK + 10;
+        let text = set_text("", "quay.level.json", count);
+        let set = ProbeText::parse(Path::new("set"), text).unwrap();
+        let chunk = |k: usize| {
+            let (start, end) = (k * CHUNK, ((k + 1) * CHUNK).min(count));
+            (end - start) * std::mem::size_of::<Probe>() + set.spans[end - 1].1 - set.spans[start].0
+        };
+        set.parse_ahead(chunk(1) + chunk(2) - 1, || true);
+        assert_eq!(held(&set), [(0, CHUNK), (CHUNK, 2 * CHUNK)]);
+        set.probes(CHUNK..2 * CHUNK).unwrap();
+        set.parse_ahead(usize::MAX, || false);
+        assert_eq!(held(&set), [(0, CHUNK)], "told to stop at once");
+        set.parse_ahead(usize::MAX, || true);
+        assert_eq!(
+            held(&set),
+            [
+                (0, CHUNK),
+                (CHUNK, 2 * CHUNK),
+                (2 * CHUNK, 3 * CHUNK),
+                (3 * CHUNK, count)
+            ]
+        );
     }
 
     proptest::proptest! {
