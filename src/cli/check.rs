@@ -262,10 +262,8 @@ pub fn run_once(
     let mut results_file = writers.results.take();
     let mut write_results = results_file.as_mut().map(|w| {
         |text: &str, count| {
-            w.push_laid_out(text, count).map_err(|source| Error::Write {
-                path: options.out.clone().unwrap_or_default(),
-                source,
-            })
+            w.push_laid_out(text, count)
+                .map_err(write_failed(&options.out))
         }
     });
     let each = &mut |probe: &Probe, result: ProbeResult, took| {
@@ -284,32 +282,28 @@ pub fn run_once(
             Some(p) => p.draw(probe, &result, changed)?,
             None => Vec::new(),
         };
-        let write = |path: &Option<PathBuf>, e| Error::Write {
-            path: path.clone().unwrap_or_default(),
-            source: e,
-        };
         if let Some(w) = &mut writers.junit {
             let paths: Vec<String> = drawn.iter().map(|d| d.path.display().to_string()).collect();
             w.push(&result, &paths)
-                .map_err(|e| write(&options.junit, e))?;
+                .map_err(write_failed(&options.junit))?;
         }
         if let Some(w) = &mut writers.markdown {
             w.push(probe.label.as_deref(), &result)
-                .map_err(|e| write(&options.markdown, e))?;
+                .map_err(write_failed(&options.markdown))?;
             if !drawn.is_empty() {
                 let links: Vec<(String, String)> = drawn
                     .iter()
                     .map(|d| (d.caption.clone(), relative_link(&markdown_dir, &d.path)))
                     .collect();
                 w.picture(&result.id, &links)
-                    .map_err(|e| write(&options.markdown, e))?;
+                    .map_err(write_failed(&options.markdown))?;
             }
         }
         if let Some(w) = &mut writers.html {
             let shown: Vec<(String, Vec<u8>)> =
                 drawn.into_iter().map(|d| (d.caption, d.png)).collect();
             w.push(probe.label.as_deref(), &result, changed, &shown)
-                .map_err(|e| write(&options.html, e))?;
+                .map_err(write_failed(&options.html))?;
         }
         if keep_results {
             kept.push(result);
@@ -329,29 +323,25 @@ pub fn run_once(
     if let Some(c) = &comparison {
         print_comparison(c, style);
     }
-    let written = |path: &Option<PathBuf>| {
-        let path = path.clone().unwrap_or_default();
-        move |source| Error::Write { path, source }
-    };
     // The level and the set are freed on their own thread while the files are finished (their
     // last writes wait on the disk).
     std::thread::scope(|scope| {
         scope.spawn(move || drop(opened));
         if let Some(w) = results_file {
-            w.finish(&summary).map_err(written(&options.out))?;
+            w.finish(&summary).map_err(write_failed(&options.out))?;
         }
         if let Some(w) = writers.junit {
             w.finish(&suite_name(&options.probes), &summary)
-                .map_err(written(&options.junit))?;
+                .map_err(write_failed(&options.junit))?;
         }
         if let Some(w) = writers.html {
             w.finish(&summary, &head.level, changed_count)
-                .map_err(written(&options.html))?;
+                .map_err(write_failed(&options.html))?;
         }
         if let Some(w) = writers.markdown {
             let labels = |id: &str| changed_labels.get(id).cloned().flatten();
             w.finish(&summary, &head.level, comparison.as_ref(), &labels)
-                .map_err(written(&options.markdown))?;
+                .map_err(write_failed(&options.markdown))?;
         }
         Ok::<_, Error>(())
     })?;
@@ -371,6 +361,14 @@ pub fn run_once(
         results,
         timings,
     })
+}
+
+/// The error of writing the output file an option names (its path, once there is an error).
+fn write_failed(path: &Option<PathBuf>) -> impl FnOnce(std::io::Error) -> Error + '_ {
+    move |source| Error::Write {
+        path: path.clone().unwrap_or_default(),
+        source,
+    }
 }
 
 /// The JUnit suite's name: the probe set's file name.
