@@ -176,8 +176,8 @@ impl Probes {
 }
 
 /// Probes are parsed and answered this many at a time: enough to keep every core busy, few enough
-/// that a run of any size holds little (README, "Real files and hostile input"). The probe-set file's own, so that the
-/// chunks it parsed ahead are the ones asked for.
+/// that a run of any size holds little (README, "Real files and hostile input"). The probe-set
+/// file's own, so that the chunks it parsed ahead are the ones asked for.
 const CHUNK: usize = crate::probe::CHUNK;
 
 /// How many answered chunks may wait to be handed out while the next is answered. Two were 2%

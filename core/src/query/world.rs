@@ -196,7 +196,8 @@ impl World {
                     let groups = material_groups(&mesh, &origin, &tags, &mut materials);
                     let numbers =
                         origin.number(mesh.triangles.len().saturating_sub(1) as u32) as u64 + 1;
-                    let welded = welded.expect("a mesh that is not a volume is welded");
+                    // Welded above, beside the digest; welded here should that ever change.
+                    let welded = welded.unwrap_or_else(|| weld(&mesh.vertices, &mesh.triangles));
                     let (own, facts) = mesh_bodies(object, mesh, welded, groups).map_err(fail)?;
                     bodies.extend(own);
                     (Some(origin), facts.closed, facts.winding_faults, numbers)
