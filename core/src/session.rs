@@ -16,6 +16,7 @@ use std::path::{Path, PathBuf};
 
 use std::borrow::Cow;
 use std::ops::Range;
+use std::sync::atomic::{AtomicBool, Ordering};
 
 use crate::check::{
     ProbeResult, Runner, Shard, Summary, assign, entries_text, expand_rules, expected_cost,
@@ -146,6 +147,14 @@ impl Probes {
             probes.extend_from_slice(&self.expanded[..range.end - explicit]);
         }
         Ok(Cow::Owned(probes))
+    }
+
+    /// Parses chunks of a probe-set file ahead while `meanwhile` holds (see
+    /// [`ProbeText::parse_ahead_while`]); probes given in memory need none.
+    fn parse_ahead_while(&self, meanwhile: impl Fn() -> bool) {
+        if let Source::File(text) = &self.source {
+            text.parse_ahead_while(meanwhile);
+        }
     }
 
     /// The set as written — its probes and its rules — parsed.
@@ -459,6 +468,9 @@ impl Opened {
             let Some(probes) = self.chunk_of(runner, range, only)? else {
                 continue;
             };
+            if start == 0 {
+                self.prepare_rays_parsing_ahead(runner, &probes);
+            }
             let results = runner.answer(&self.level.world, &probes, done, progress);
             let text = if lay_out {
                 runner.install(|| {
@@ -488,6 +500,27 @@ impl Opened {
             }
         }
         Ok(())
+    }
+
+    /// Builds the ray index before the first chunk of rays is answered, on more than one thread
+    /// with further chunks parsed ahead meanwhile: its serial steps leave a core idle.
+    fn prepare_rays_parsing_ahead(&self, runner: &Runner, first: &[Probe]) {
+        if runner.threads() < 2 || !first.iter().any(|p| p.query.kind().casts_rays()) {
+            return;
+        }
+        let built = AtomicBool::new(false);
+        runner.install(|| {
+            rayon::join(
+                || {
+                    self.level.world.prepare_rays();
+                    built.store(true, Ordering::Release);
+                },
+                || {
+                    self.probes
+                        .parse_ahead_while(|| !built.load(Ordering::Acquire))
+                },
+            )
+        });
     }
 
     /// The probes of `range` (of the whole set) parsed on `runner`'s threads; with `only`, those
