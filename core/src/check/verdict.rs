@@ -31,7 +31,7 @@ pub fn judge(
     };
     let conditions = expect.conditions();
     let unmet = first_unmet(&conditions, hits, clearance, up)
-        .or_else(|| super::volumes::first_unmet(&conditions, volumes));
+        .or_else(|| super::volumes::first_unmet(&conditions, volumes).map(Cow::Owned));
     match unmet {
         None => (
             Verdict::Pass,
@@ -41,10 +41,16 @@ pub fn judge(
                 |a| ["As expected: ", &a].concat(),
             ),
         ),
-        Some(wanted) => (
-            Verdict::Fail,
-            Cow::Owned(["Expected ", &wanted, "; ", &answer].concat()),
-        ),
+        Some(wanted) => {
+            // Written in front of the answer's own text, which has room for most reasons: one
+            // string a failing probe rather than three.
+            let mut reason = answer.into_owned();
+            reason.reserve("Expected ; ".len() + wanted.len());
+            reason.insert_str(0, "; ");
+            reason.insert_str(0, &wanted);
+            reason.insert_str(0, "Expected ");
+            (Verdict::Fail, Cow::Owned(reason))
+        }
     }
 }
 
@@ -118,26 +124,22 @@ fn first_unmet(
     hits: &Hits,
     clearance: Option<&ClearanceRecord>,
     up: DVec3,
-) -> Option<String> {
+) -> Option<Cow<'static, str>> {
     let first = hits.first();
     if let Some(blocked) = c.blocked
         && blocked == hits.is_empty()
     {
-        return Some(if blocked {
-            "blocked".into()
-        } else {
-            "clear".into()
-        });
+        return Some(Cow::Borrowed(if blocked { "blocked" } else { "clear" }));
     }
     if let Some(name) = &c.first_object
         && first.is_none_or(|(object, _, _)| object != name)
     {
-        return Some(format!("{} {name}", first_word(hits)));
+        return Some(format!("{} {name}", first_word(hits)).into());
     }
     if let Some(tag) = &c.first_tag
         && first.is_none_or(|(_, tags, _)| !tags.contains(tag))
     {
-        return Some(format!("{} tagged {tag}", first_word(hits)));
+        return Some(format!("{} tagged {tag}", first_word(hits)).into());
     }
     if let Some(range) = c.distance {
         let within = first.is_some_and(|(_, _, d)| {
@@ -152,32 +154,32 @@ fn first_unmet(
                 (None, Some(hi)) => format!("a distance of at most {}", metres(hi)),
                 (None, None) => "a distance".to_string(),
             };
-            return Some(wanted);
+            return Some(wanted.into());
         }
     }
     if let Some(min) = c.min_clearance
         && clearance.is_none_or(|cl| cl.distance < min)
     {
-        return Some(format!("a clearance of at least {}", metres(min)));
+        return Some(format!("a clearance of at least {}", metres(min)).into());
     }
     if let Some(max) = c.max_depth
         && first.is_some_and(|(_, _, depth)| depth > max)
     {
-        return Some(format!("a depth of at most {}", metres(max)));
+        return Some(format!("a depth of at most {}", metres(max)).into());
     }
     if let Hits::Jump(h) = hits {
-        return super::jump::first_unmet(c, h, up);
+        return super::jump::first_unmet(c, h, up).map(Cow::Owned);
     }
     if let Hits::Walk(h) = hits {
-        return super::walk::first_unmet(c, h);
+        return super::walk::first_unmet(c, h).map(Cow::Owned);
     }
     if let Hits::Reach(h) = hits {
-        return super::reach::first_unmet(c, h);
+        return super::reach::first_unmet(c, h).map(Cow::Owned);
     }
     if let Hits::Settle(h) = hits {
-        return super::settle::first_unmet(c, h);
+        return super::settle::first_unmet(c, h).map(Cow::Owned);
     }
-    super::level_verdict::first_unmet(c, hits)
+    super::level_verdict::first_unmet(c, hits).map(Cow::Owned)
 }
 
 fn first_word(hits: &Hits) -> &'static str {
