@@ -468,7 +468,7 @@ impl Opened {
             let Some(probes) = self.chunk_of(runner, range, only)? else {
                 continue;
             };
-            if start == 0 {
+            if done == 0 {
                 self.prepare_rays_parsing_ahead(runner, &probes);
             }
             let results = runner.answer(&self.level.world, &probes, done, progress);

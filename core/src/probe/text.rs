@@ -35,7 +35,8 @@ pub const CHUNK: usize = 8192;
 /// of what parsed probes hold (a [`Probe`] each and about their text again: paths, labels). A
 /// chunk of rays is ~4.5 MB by it, so 24 chunks: on two threads (200k rays, 1M-triangle level,
 /// 14 alternating runs) 0.658 s against 0.668 for 18 chunks and 0.686 for 12; a million probes
-/// then peak at 460 MB instead of 437 and 399 (255 bytes a probe above the level's 205 MB). Ours.
+/// then peak at 463 MB instead of 437 and 399 (257 bytes a probe above a 1,000-probe check's
+/// 206 MB). Ours.
 const PARSED_AHEAD_BYTES: usize = 112 << 20;
 
 /// A chunk parsed before it was asked for: its range (of file order) and its probes or the first
@@ -408,7 +409,8 @@ impl ProbeText {
     /// Parses the chunks after the first ([`CHUNK`] probes each, as a check asks for them), while
     /// `meanwhile` holds and their estimated size stays within `budget` bytes (see
     /// [`PARSED_AHEAD_BYTES`]): each is kept until it is asked for, its error too, so that a
-    /// mistake is still reported when its chunk is reached.
+    /// mistake is still reported when its chunk is reached. Chunks still held are counted and
+    /// skipped; before each chunk, the pool's waiting jobs run first.
     fn parse_ahead(&self, budget: usize, meanwhile: impl Fn() -> bool) {
         let mut held = 0;
         for start in (CHUNK..self.len()).step_by(CHUNK) {
