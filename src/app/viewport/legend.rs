@@ -85,14 +85,19 @@ const ROWS: [(Sample, &str); 15] = [
     (Sample::Shape(StateMark::Square, VOLUME), "leaves a volume"),
 ];
 
+/// Where the legend is drawn: the top-right corner of the view `rect`.
+pub(super) fn legend_frame(rect: Rect) -> Rect {
+    let height = ROWS.len() as f32 * ROW + 2.0 * MARGIN;
+    Rect::from_min_size(
+        Pos2::new(rect.right() - WIDTH - MARGIN, rect.top() + MARGIN),
+        Vec2::new(WIDTH, height),
+    )
+}
+
 /// Paints the legend in the top-right corner of `rect`.
 pub(super) fn paint_legend(ui: &egui::Ui, rect: Rect) {
     let painter = ui.painter().with_clip_rect(rect);
-    let height = ROWS.len() as f32 * ROW + 2.0 * MARGIN;
-    let frame = Rect::from_min_size(
-        Pos2::new(rect.right() - WIDTH - MARGIN, rect.top() + MARGIN),
-        Vec2::new(WIDTH, height),
-    );
+    let frame = legend_frame(rect);
     painter.rect_filled(frame, 4.0, color32_alpha(BACKING, 230));
     let font = FontId::proportional(12.5);
     for (k, (sample, words)) in ROWS.iter().enumerate() {

@@ -4,6 +4,7 @@
 //! the labels, the axis marker and the hover note egui paints over the view.
 
 pub mod input;
+mod label_places;
 mod legend;
 pub mod overlays;
 pub mod paint;

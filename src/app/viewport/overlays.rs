@@ -1,6 +1,7 @@
 //! What egui paints over the 3D view: labels beside failing, changed and selected probes (stepping
-//! aside so none covers another; faint while another probe is selected), the selected probe's hit
-//! numbers, the axis marker, and the note under the pointer.
+//! aside so none covers another, left out in a crowd with a note of how many; faint while another
+//! probe is selected), the selected probe's hit numbers, the axis marker, and the note under the
+//! pointer.
 
 use std::collections::HashMap;
 
@@ -11,6 +12,8 @@ use glam::DVec3;
 use super::super::Selection;
 use super::super::badge::{color32, color32_alpha, paint_mark, verdict_color32};
 use super::super::document::Document;
+use super::label_places::{LabelPlaces, frame_at};
+use super::legend::legend_frame;
 use super::{Hover, MAX_DRAWN_PROBES, Viewport};
 use crate::view::palette::{BACKING, HIT, SELECTED, okabe_ito, verdict_word};
 use crate::view::probe_marks::{hit_points, start_point};
@@ -20,6 +23,10 @@ use plumbline_core::check::{Aspect, Verdict};
 const HIT_NUMBER_OFFSET: f32 = 14.0;
 /// Radius of the disc behind a hit's number, points.
 const HIT_NUMBER_RADIUS: f32 = 8.5;
+/// How far the note of labels left out sits from the view's top left corner, points.
+const NOTE_MARGIN: f32 = 10.0;
+/// The margin inside the note's box, points.
+const NOTE_PAD: f32 = 5.0;
 
 impl Viewport {
     /// Names beside failing probes and the selected one, so the answer is readable at a glance.
@@ -35,8 +42,6 @@ impl Viewport {
         let painter = ui.painter().with_clip_rect(rect);
         let font = FontId::proportional(13.0);
         let dimmed = self.dim_others && selection.probe.is_some();
-        // Labels already placed; a label that would cover one moves down below it.
-        let mut taken: Vec<Rect> = Vec::new();
         // Every drawn marker: a label goes where it covers none, when there is such a place.
         let markers: Vec<Pos2> = shown
             .iter()
@@ -46,6 +51,7 @@ impl Viewport {
                 self.to_screen(rect, start_point(&probe.query, document.results.get(i)))
             })
             .collect();
+        let mut wanted = Vec::new();
         for &i in shown.iter().take(MAX_DRAWN_PROBES) {
             let (Some(probe), Some(result)) =
                 (document.probes.probes.get(i), document.results.get(i))
@@ -57,7 +63,11 @@ impl Viewport {
             if !selected && !changed && !matches!(result.verdict, Verdict::Fail | Verdict::Error) {
                 continue;
             }
-            let Some(at) = self.to_screen(rect, start_point(&probe.query, Some(result))) else {
+            // A probe whose marker is out of the view has no label there.
+            let Some(at) = self
+                .to_screen(rect, start_point(&probe.query, Some(result)))
+                .filter(|at| rect.contains(*at))
+            else {
                 continue;
             };
             let text = if changed {
@@ -65,43 +75,31 @@ impl Viewport {
             } else {
                 format!("{}  {}", verdict_word(result.verdict), probe.id)
             };
+            wanted.push((at, text, result.verdict, selected));
+        }
+        // The top left corner is kept for saying how many labels a crowd left out.
+        let note = |count: usize| {
+            let labels = if count == 1 { "label" } else { "labels" };
+            let text = format!(
+                "{count} {labels} left out in the crowd: zoom in, or pick a probe from the list"
+            );
+            painter.layout_no_wrap(text, FontId::proportional(12.0), egui::Color32::WHITE)
+        };
+        let note_at = rect.left_top() + Vec2::new(NOTE_MARGIN, NOTE_MARGIN);
+        let mut reserved =
+            vec![Rect::from_min_size(note_at, note(wanted.len()).size()).expand(NOTE_PAD)];
+        if self.legend {
+            reserved.push(legend_frame(rect));
+        }
+        let mut places = LabelPlaces::new(rect, markers, &reserved);
+        let mut left_out = 0;
+        for (at, text, verdict, selected) in wanted {
             let galley = painter.layout_no_wrap(text, font.clone(), egui::Color32::WHITE);
-            let frame_at = |pos: Pos2| {
-                Rect::from_min_size(
-                    pos - Vec2::new(16.0, 0.0),
-                    galley.size() + Vec2::new(16.0, 0.0),
-                )
-                .expand2(Vec2::new(5.0, 2.0))
+            let Some(pos) = places.place(at, galley.size(), selected) else {
+                left_out += 1;
+                continue;
             };
-            let (w, h) = (galley.size().x, galley.size().y);
-            // Beside the marker first, then farther out (with a leader line) in a crowd.
-            let places: Vec<Vec2> = [26.0f32, 70.0, 130.0]
-                .into_iter()
-                .flat_map(|d| {
-                    [
-                        Vec2::new(d, -h - d * 0.3),
-                        Vec2::new(d, d * 0.3),
-                        Vec2::new(-w - d, -h - d * 0.3),
-                        Vec2::new(-w - d, d * 0.3),
-                    ]
-                })
-                .collect();
-            let free = |pos: Pos2| {
-                let frame = frame_at(pos);
-                rect.contains_rect(frame)
-                    && !taken.iter().any(|r| r.intersects(frame))
-                    && !markers.iter().any(|m| frame.expand(6.0).contains(*m))
-            };
-            let mut pos = places
-                .iter()
-                .map(|d| at + *d)
-                .find(|p| free(*p))
-                .unwrap_or(at + places[0]);
-            while let Some(below) = taken.iter().find(|r| r.intersects(frame_at(pos))) {
-                pos.y = below.bottom() + 3.0;
-            }
-            let frame = frame_at(pos);
-            taken.push(frame);
+            let frame = frame_at(pos, galley.size());
             // While another probe is selected, this label steps back with its probe.
             let alpha = if dimmed && !selected { 0.45 } else { 1.0 };
             let mut painter = painter.clone();
@@ -111,25 +109,28 @@ impl Viewport {
                     at.x.clamp(frame.left(), frame.right()),
                     at.y.clamp(frame.top(), frame.bottom()),
                 );
-                painter.line_segment([at, end], Stroke::new(1.0, verdict_color32(result.verdict)));
+                painter.line_segment([at, end], Stroke::new(1.0, verdict_color32(verdict)));
             }
             painter.rect_filled(frame, 3.0, color32_alpha(BACKING, 225));
             painter.rect_stroke(
                 frame,
                 3.0,
-                Stroke::new(
-                    if selected { 2.0 } else { 1.0 },
-                    verdict_color32(result.verdict),
-                ),
+                Stroke::new(if selected { 2.0 } else { 1.0 }, verdict_color32(verdict)),
                 egui::StrokeKind::Outside,
             );
             paint_mark(
                 &painter,
                 pos + Vec2::new(-8.0, galley.size().y * 0.5),
                 5.0,
-                result.verdict,
+                verdict,
             );
             painter.galley(pos, galley, egui::Color32::WHITE);
+        }
+        if left_out > 0 {
+            let galley = note(left_out);
+            let frame = Rect::from_min_size(note_at, galley.size()).expand(NOTE_PAD);
+            painter.rect_filled(frame, 3.0, color32_alpha(BACKING, 225));
+            painter.galley(note_at, galley, egui::Color32::WHITE);
         }
     }
 
