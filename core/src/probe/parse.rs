@@ -895,10 +895,18 @@ mod tests {
             prop_oneof![3 => point().prop_map(Some), 1 => Just(None)],
             prop_oneof![3 => Just(None), 1 => Just(Some("\"first\"")), 1 => Just(Some("\"all\"")), 1 => Just(Some("\"both\""))],
             prop_oneof![4 => Just(None), 1 => Just(Some(r#""label": "gate""#)), 1 => Just(Some(r#""id": "again""#))],
+            prop_oneof![
+                3 => Just(None),
+                1 => Just(Some(r#""clear""#)),
+                1 => Just(Some(r#""blocked""#)),
+                1 => Just(Some(r#""Clear""#)),
+                1 => Just(Some(r#""cl\u0065ar""#)),
+                1 => Just(Some(r#"{"first_tag": "glass"}"#)),
+            ],
             any::<prop::sample::Index>(),
             prop_oneof![Just(" "), Just(""), Just("\n  ")],
         )
-            .prop_map(|(id, kind, from, to, hits, extra, order, space)| {
+            .prop_map(|(id, kind, from, to, hits, extra, expect, order, space)| {
                 let to = to.unwrap_or_else(|| from.clone());
                 let mut members = vec![
                     format!(r#""id":{space}"{id}""#),
@@ -907,6 +915,7 @@ mod tests {
                     format!(r#""to": [{}]"#, to.join(", ")),
                 ];
                 members.extend(hits.map(|h| format!(r#""hits": {h}"#)));
+                members.extend(expect.map(|e| format!(r#""expect":{space}{e}"#)));
                 members.extend(extra.map(str::to_string));
                 let turn = order.index(members.len());
                 members.rotate_left(turn);
@@ -919,6 +928,7 @@ mod tests {
                     && a.iter().chain(&b).all(|x| x.abs() <= crate::level::MAX_COORDINATE)
                     && a != b
                     && hits != Some("\"both\"")
+                    && matches!(expect, None | Some(r#""clear""#) | Some(r#""blocked""#))
                     && extra.is_none();
                 (text, plain)
             })

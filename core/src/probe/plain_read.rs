@@ -14,7 +14,7 @@ use serde_json::value::RawValue;
 
 use glam::DVec3;
 
-use super::model::{HitsMode, Probe, ProbeQuery};
+use super::model::{Expect, ExpectWord, HitsMode, Probe, ProbeQuery};
 use super::parse::check_id;
 use crate::json_object::{from_object_str, objects};
 use crate::level::within_range;
@@ -693,14 +693,16 @@ impl<'a> ProbeFields<'a> {
     }
 }
 
-/// A ray probe that holds nothing but its id, its kind, its two ends and perhaps its hits mode,
-/// each once and plainly written, with a well-formed id and two distinct ends within range, read
-/// straight into a [`Probe`]: the probes of large generated sets are nearly all such rays, and this
-/// skips the general reader's table of every field. `None` for anything else, which the general
-/// reader then reads (and names any error in); where both read a probe they give the same one.
+/// A ray probe that holds nothing but its id, its kind, its two ends and perhaps its hits mode
+/// and an expectation in one word ("clear" or "blocked"), each once and plainly written, with a
+/// well-formed id and two distinct ends within range, read straight into a [`Probe`]: the probes
+/// of large generated sets are nearly all such rays, and this skips the general reader's table of
+/// every field. `None` for anything else, which the general reader then reads (and names any error
+/// in); where both read a probe they give the same one.
 pub(super) fn plain_ray(text: &str) -> Option<Probe> {
     let mut s = Scanner::new(text);
     let (mut id, mut ray, mut from, mut to, mut hits) = (None, None, None, None, None);
+    let mut expect = None;
     s.members(|s, key| match key {
         "id" => put(&mut id, s.string()?),
         // Another kind is left at once to the general reader (it reads the probe from its start).
@@ -708,6 +710,7 @@ pub(super) fn plain_ray(text: &str) -> Option<Probe> {
         "from" => put(&mut from, s.read::<[f64; 3]>()?),
         "to" => put(&mut to, s.read::<[f64; 3]>()?),
         "hits" => put(&mut hits, s.read::<HitsMode>()?),
+        "expect" => put(&mut expect, expect_word(s.string()?)?),
         _ => None,
     })?;
     if !s.at_end() {
@@ -725,9 +728,18 @@ pub(super) fn plain_ray(text: &str) -> Option<Probe> {
         label: None,
         filter: Filter::default(),
         query: ProbeQuery::Ray { from, to, hits },
-        expect: None,
+        expect: expect.map(Expect::Word),
         from_rule: None,
     })
+}
+
+/// The expectation a word names, as the general reader reads it; `None` for any other word.
+fn expect_word(word: &str) -> Option<ExpectWord> {
+    match word {
+        "clear" => Some(ExpectWord::Clear),
+        "blocked" => Some(ExpectWord::Blocked),
+        _ => None,
+    }
 }
 
 /// An array of objects, read by serde from `text`.
