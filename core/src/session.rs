@@ -417,6 +417,7 @@ impl Opened {
                     write(text, *count)?;
                 }
             }
+            runner.free_later(answered.text);
             for (probe, (result, took)) in answered.probes.iter().zip(answered.results) {
                 summary.count(result.verdict);
                 each(probe, result, took)?;
