@@ -276,7 +276,7 @@ pub fn run_once(
             t.add(probe, took);
         }
         if !(brief && matches!(result.verdict, Verdict::Pass | Verdict::Unchecked)) {
-            lines.push(&result_line(&result, width, style));
+            lines.push_with(|out| result_line(&result, width, style, out));
         }
         let changed = comparer.as_mut().is_some_and(|c| c.observe(&result));
         if changed {
@@ -389,20 +389,24 @@ pub fn suite_name(probes: &Path) -> String {
         .map_or("probes".into(), |n| n.to_string_lossy().to_string())
 }
 
-/// One probe's line: its verdict, id and reason.
-fn result_line(r: &ProbeResult, width: usize, style: Style) -> String {
+/// One probe's line, written at the end of `out`: its verdict, id and reason.
+fn result_line(r: &ProbeResult, width: usize, style: Style, out: &mut String) {
     let (word, tone) = match r.verdict {
         Verdict::Pass => ("pass ", Tone::Good),
         Verdict::Fail => ("FAIL ", Tone::Bad),
         Verdict::Error => ("ERROR", Tone::Bad),
         Verdict::Unchecked => ("  -  ", Tone::Dim),
     };
-    format!(
-        "  {}  {:<width$}  {}\n",
-        style.paint(tone, word),
-        r.id,
-        r.reason
-    )
+    out.push_str("  ");
+    style.paint_onto(tone, word, out);
+    out.push_str("  ");
+    out.push_str(&r.id);
+    // Padded to the column by characters, as `{:<width$}` pads.
+    out.extend(std::iter::repeat_n(
+        ' ',
+        width.saturating_sub(r.id.chars().count()),
+    ));
+    out.extend(["  ", &r.reason, "\n"]);
 }
 
 /// The last line: counts by verdict.

@@ -23,8 +23,16 @@ impl Style {
 
     /// `text` in a colour when colour is on: `Good`, `Bad`, `Note`, `Dim`.
     pub fn paint(&self, tone: Tone, text: &str) -> String {
+        let mut out = String::new();
+        self.paint_onto(tone, text, &mut out);
+        out
+    }
+
+    /// [`Style::paint`] written at the end of `out` (a check writes one for every failing probe).
+    pub fn paint_onto(&self, tone: Tone, text: &str, out: &mut String) {
         if !self.colour {
-            return text.to_string();
+            out.push_str(text);
+            return;
         }
         let code = match tone {
             Tone::Good => "36",
@@ -32,7 +40,7 @@ impl Style {
             Tone::Note => "33",
             Tone::Dim => "2",
         };
-        format!("\x1b[{code}m{text}\x1b[0m")
+        out.extend(["\x1b[", code, "m", text, "\x1b[0m"]);
     }
 }
 
@@ -73,9 +81,10 @@ impl<'a> Lines<'a> {
         }
     }
 
-    /// Adds a line (ending in a newline); written once a batch has gathered.
-    pub fn push(&mut self, line: &str) {
-        self.pending.push_str(line);
+    /// Adds the line (ending in a newline) that `write` writes at the end of the batch; written
+    /// once a batch has gathered.
+    pub fn push_with(&mut self, write: impl FnOnce(&mut String)) {
+        write(&mut self.pending);
         if self.pending.len() >= 1 << 16 {
             self.flush();
         }
