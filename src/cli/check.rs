@@ -22,8 +22,8 @@ use super::timings::Timings;
 use super::{EXIT_FAILED, print_comparison};
 
 /// How many answered results are handed to the answering threads to be freed at once: a chunk's
-/// worth. Ours.
-const FREED_TOGETHER: usize = 8192;
+/// worth, as they were answered.
+const FREED_TOGETHER: usize = plumbline_core::probe::CHUNK;
 
 /// The options of `plumbline check`.
 #[derive(clap::Args)]

@@ -6,9 +6,13 @@
 
 use eframe::egui::{Pos2, Rect, Vec2};
 
-/// How far out from its marker a label is tried, points: beside it first, then farther out (with
-/// a leader line). Ours.
-const DISTANCES: [f32; 5] = [26.0, 50.0, 80.0, 130.0, 190.0];
+/// How far out from its marker a label is tried to one side, points: beside it first, then
+/// farther out (with a leader line). Ours.
+const DISTANCES: [f32; 3] = [26.0, 70.0, 130.0];
+
+/// How far out a label is tried above or below its marker, only once no side place is free (its
+/// leader line runs straight up or down, past other labels more often). Ours.
+const LAST_RESORTS: [f32; 3] = [50.0, 80.0, 190.0];
 
 /// Once this many labels found no free place, the rest are left out without being tried: each try
 /// looks at every label and marker, and a crowd of hundreds would otherwise cost a frame. Ours.
@@ -62,18 +66,19 @@ impl LabelPlaces {
                 && !self.taken.iter().any(|r| r.intersects(frame))
                 && !self.markers.iter().any(|m| frame.expand(6.0).contains(*m))
         };
-        let beside = DISTANCES
+        let sides = DISTANCES.into_iter().flat_map(|d| {
+            [
+                Vec2::new(d, -h - d * 0.3),
+                Vec2::new(d, d * 0.3),
+                Vec2::new(-w - d, -h - d * 0.3),
+                Vec2::new(-w - d, d * 0.3),
+            ]
+        });
+        let above_or_below = LAST_RESORTS
             .into_iter()
-            .flat_map(|d| {
-                [
-                    Vec2::new(d, -h - d * 0.3),
-                    Vec2::new(d, d * 0.3),
-                    Vec2::new(-w - d, -h - d * 0.3),
-                    Vec2::new(-w - d, d * 0.3),
-                    Vec2::new(-w * 0.5, -h - d),
-                    Vec2::new(-w * 0.5, d),
-                ]
-            })
+            .flat_map(|d| [Vec2::new(-w * 0.5, -h - d), Vec2::new(-w * 0.5, d)]);
+        let beside = sides
+            .chain(above_or_below)
             .map(|d| at + d)
             .find(|p| free(*p));
         if beside.is_none() {

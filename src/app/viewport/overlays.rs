@@ -42,40 +42,39 @@ impl Viewport {
         let painter = ui.painter().with_clip_rect(rect);
         let font = FontId::proportional(13.0);
         let dimmed = self.dim_others && selection.probe.is_some();
-        // Every drawn marker: a label goes where it covers none, when there is such a place.
-        let markers: Vec<Pos2> = shown
-            .iter()
-            .take(MAX_DRAWN_PROBES)
-            .filter_map(|&i| {
-                let probe = document.probes.probes.get(i)?;
-                self.to_screen(rect, start_point(&probe.query, document.results.get(i)))
-            })
-            .collect();
+        // Every drawn marker (a label goes where it covers none, when there is such a place), and
+        // the labels wanted: each marker placed on screen once.
+        let mut markers = Vec::new();
         let mut wanted = Vec::new();
         for &i in shown.iter().take(MAX_DRAWN_PROBES) {
-            let (Some(probe), Some(result)) =
-                (document.probes.probes.get(i), document.results.get(i))
-            else {
+            let Some(probe) = document.probes.probes.get(i) else {
+                continue;
+            };
+            let result = document.results.get(i);
+            let Some(at) = self.to_screen(rect, start_point(&probe.query, result)) else {
+                continue;
+            };
+            markers.push(at);
+            let Some(result) = result else {
                 continue;
             };
             let selected = selection.probe == Some(i);
             let changed = changes.contains_key(&*probe.id);
-            if !selected && !changed && !matches!(result.verdict, Verdict::Fail | Verdict::Error) {
+            let labelled =
+                selected || changed || matches!(result.verdict, Verdict::Fail | Verdict::Error);
+            // A probe whose marker is out of the view has no label there.
+            if !labelled || !rect.contains(at) {
                 continue;
             }
-            // A probe whose marker is out of the view has no label there.
-            let Some(at) = self
-                .to_screen(rect, start_point(&probe.query, Some(result)))
-                .filter(|at| rect.contains(*at))
-            else {
-                continue;
-            };
             let text = if changed {
                 format!("{}  {}  · changed", verdict_word(result.verdict), probe.id)
             } else {
                 format!("{}  {}", verdict_word(result.verdict), probe.id)
             };
             wanted.push((at, text, result.verdict, selected));
+        }
+        if wanted.is_empty() {
+            return;
         }
         // The top left corner is kept for saying how many labels a crowd left out.
         let note = |count: usize| {
