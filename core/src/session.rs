@@ -207,14 +207,20 @@ struct Answered<'a> {
     text: Vec<(String, usize)>,
 }
 
+/// Block `k` (of [`LAID_OUT`] results) of a chunk's results laid out as results-file text, the
+/// chunk's first result being the `done`th handed out.
+fn laid_out_block(done: usize, k: usize, block: &[(ProbeResult, std::time::Duration)]) -> String {
+    entries_text(block.iter().map(|(r, _)| r), done + k * LAID_OUT)
+}
+
 /// Where [`Opened::answer_each`] hands the answers: each probe with its result, and, when asked
 /// for, the results laid out as a results file's entries.
 pub struct HandOut<'h> {
     /// Given each probe, its result and the time its answer took, in probe order.
     pub each: &'h mut EachAnswer<'h>,
-    /// When set, given each block of results laid out by [`entries_text`] on the answering
-    /// threads (numbered from the first result handed out) and how many results it holds, in
-    /// order, before those probes are given to `each`.
+    /// When set, given each block of results laid out by [`entries_text`] (numbered from the
+    /// first result handed out) and how many results it holds, in order, before those probes are
+    /// given to `each`.
     pub laid_out: Option<&'h mut LaidOut<'h>>,
 }
 
@@ -396,9 +402,10 @@ impl Opened {
 
     /// Answers every probe as [`Opened::answer`] does, on `runner`'s threads (the check's one pool,
     /// which also parsed the probe set), handing the answers to `hand_out` in probe order as soon
-    /// as their chunk is done, so that nothing of the run is held beyond a few chunks. With two
-    /// threads or more, the pool answers (and lays out) up to [`AHEAD`] chunks ahead while this
-    /// thread hands out the answered ones. With `only` (ascending positions in the whole set, as
+    /// as their chunk is done, so that nothing of the run is held beyond a few chunks. The pool
+    /// answers up to [`AHEAD`] chunks ahead while this thread hands out the answered ones; with two
+    /// threads or more the pool also lays them out, with one this thread does (and frees what
+    /// was handed out), so that the one answering thread only answers. With `only` (ascending positions in the whole set, as
     /// [`Opened::shard_positions`] gives), answers those probes alone. Returns the counts by
     /// verdict.
     pub fn answer_each(
@@ -409,12 +416,19 @@ impl Opened {
         hand_out: HandOut,
     ) -> Result<Summary, Error> {
         let HandOut { each, mut laid_out } = hand_out;
-        let lay_out = laid_out.is_some();
+        // A pool of one thread only answers: this thread lays out (and frees) beside it.
+        let lay_out_here = runner.threads() == 1;
+        let lay_out = laid_out.is_some() && !lay_out_here;
         let mut summary = Summary::default();
         let mut hand_out = |answered: Answered| -> Result<(), Error> {
             if let Some(write) = laid_out.as_mut() {
                 for (text, count) in &answered.text {
                     write(text, *count)?;
+                }
+                if lay_out_here {
+                    for (k, block) in answered.results.chunks(LAID_OUT).enumerate() {
+                        write(&laid_out_block(summary.probes, k, block), block.len())?;
+                    }
                 }
             }
             runner.free_later(answered.text);
@@ -427,30 +441,21 @@ impl Opened {
             }
             Ok(())
         };
-        if runner.threads() > 1 {
-            std::thread::scope(|scope| {
-                let (sender, receiver) = std::sync::mpsc::sync_channel(AHEAD);
-                // The queue closes when this thread stops taking (a failed hand-out): the
-                // answering thread then stops after its chunk.
-                let answering = scope.spawn(move || {
-                    self.answer_chunks(runner, only, progress, lay_out, &mut |answered| {
-                        sender.send(answered).is_ok()
-                    })
-                });
-                let handed = receiver.into_iter().try_for_each(&mut hand_out);
-                let answered = answering
-                    .join()
-                    .unwrap_or_else(|panic| std::panic::resume_unwind(panic));
-                handed.and(answered)
-            })?;
-        } else {
-            let mut handed = Ok(());
-            self.answer_chunks(runner, only, progress, lay_out, &mut |answered| {
-                handed = hand_out(answered);
-                handed.is_ok()
-            })?;
-            handed?;
-        }
+        std::thread::scope(|scope| {
+            let (sender, receiver) = std::sync::mpsc::sync_channel(AHEAD);
+            // The queue closes when this thread stops taking (a failed hand-out): the
+            // answering thread then stops after its chunk.
+            let answering = scope.spawn(move || {
+                self.answer_chunks(runner, only, progress, lay_out, &mut |answered| {
+                    sender.send(answered).is_ok()
+                })
+            });
+            let handed = receiver.into_iter().try_for_each(&mut hand_out);
+            let answered = answering
+                .join()
+                .unwrap_or_else(|panic| std::panic::resume_unwind(panic));
+            handed.and(answered)
+        })?;
         Ok(summary)
     }
 
@@ -482,13 +487,7 @@ impl Opened {
                     results
                         .par_chunks(LAID_OUT)
                         .enumerate()
-                        .map(|(k, block)| {
-                            let first = done + k * LAID_OUT;
-                            (
-                                entries_text(block.iter().map(|(r, _)| r), first),
-                                block.len(),
-                            )
-                        })
+                        .map(|(k, block)| (laid_out_block(done, k, block), block.len()))
                         .collect()
                 })
             } else {
