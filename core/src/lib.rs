@@ -40,6 +40,7 @@
 #![warn(missing_docs)]
 
 pub mod atomic;
+pub mod beside;
 pub mod check;
 pub mod demo;
 pub mod error;

@@ -18,6 +18,7 @@ use std::borrow::Cow;
 use std::ops::Range;
 use std::sync::atomic::{AtomicBool, Ordering};
 
+use crate::beside::beside;
 use crate::check::{
     ProbeResult, Runner, Shard, Summary, assign, entries_text, expand_rules, expected_cost,
 };
@@ -505,22 +506,23 @@ impl Opened {
         Ok(())
     }
 
-    /// Builds the ray index before the first chunk of rays is answered, on more than one thread
-    /// with further chunks parsed ahead meanwhile: its serial steps leave a core idle.
+    /// Builds the ray index before the first chunk of rays is answered, with further chunks parsed
+    /// ahead [`beside`] it: on more than one thread in the cores its serial steps leave idle, on
+    /// one thread on a reading thread of its own.
     fn prepare_rays_parsing_ahead(&self, runner: &Runner, first: &[Probe]) {
-        if runner.threads() < 2 || !first.iter().any(|p| p.query.kind().casts_rays()) {
+        if !first.iter().any(|p| p.query.kind().casts_rays()) {
             return;
         }
         let built = AtomicBool::new(false);
         runner.install(|| {
-            rayon::join(
-                || {
-                    self.level.world.prepare_rays();
-                    built.store(true, Ordering::Release);
-                },
+            beside(
                 || {
                     self.probes
                         .parse_ahead_while(|| !built.load(Ordering::Acquire))
+                },
+                || {
+                    self.level.world.prepare_rays();
+                    built.store(true, Ordering::Release);
                 },
             )
         });

@@ -16,6 +16,7 @@ use super::model::{Probe, ProbeSet};
 use super::parse::parse_probe;
 use super::plain_read::{SetFields, plain_id, plain_level};
 use super::rules::{Rule, parse_rule};
+use crate::beside::beside;
 use crate::error::{InputError, check_header};
 use crate::input::{MAX_PROBES, read_input, text_digest};
 
@@ -173,7 +174,7 @@ impl ProbeText {
                     return Ok((ahead(unchecked.checked(&rule_spans)?), None));
                 }
                 let level = unchecked.level.clone();
-                let (checked, also) = rayon::join(
+                let (checked, also) = beside(
                     move || unchecked.checked(&rule_spans).map(ahead),
                     || alongside(&level),
                 );
@@ -709,10 +710,10 @@ mod tests {
         assert_eq!(&*parsed[4].id, "p4");
     }
 
-    /// While the level loads on another thread, the chunks after the first are parsed and held
-    /// until asked for: the same probes a parse gives, and a chunk's mistake is only reported
-    /// when that chunk is asked for. On one thread the level loads after the probes are checked,
-    /// so none are parsed ahead.
+    /// While the level loads, the chunks after the first are parsed and held until asked for (on
+    /// the pool's other thread, or on one thread by a reading thread of their own): the same
+    /// probes a parse gives, and a chunk's mistake is only reported when that chunk is asked for.
+    /// Without a level to load, none are parsed ahead.
     #[test]
     fn chunks_are_parsed_ahead_while_the_level_loads_and_keep_their_mistakes() {
         let dir = tempfile::tempdir().unwrap();
@@ -731,19 +732,23 @@ mod tests {
         // scheduled (on a busy machine the other may not have run yet, and then nothing is parsed
         // ahead, rightly): a few tries.
         let slow_level = |_: &str| std::thread::sleep(std::time::Duration::from_millis(500));
-        let ahead = (0..20)
-            .map(|_| on_threads(2, || ProbeText::read_alongside(&path, slow_level)).unwrap())
-            .map(|(set, ())| set)
-            .find(|set| held(set) == [(0, CHUNK), (CHUNK, 2 * CHUNK), (2 * CHUNK, count)])
-            .expect("every chunk parsed ahead in one of 20 tries");
-        let (plain, ()) = on_threads(1, || ProbeText::read_alongside(&path, slow_level)).unwrap();
+        let parsed_ahead = |jobs| {
+            (0..20)
+                .map(|_| on_threads(jobs, || ProbeText::read_alongside(&path, slow_level)).unwrap())
+                .map(|(set, ())| set)
+                .find(|set| held(set) == [(0, CHUNK), (CHUNK, 2 * CHUNK), (2 * CHUNK, count)])
+                .unwrap_or_else(|| panic!("{jobs} thread(s): every chunk parsed ahead in 20 tries"))
+        };
+        let (ahead, ahead_on_one) = (parsed_ahead(2), parsed_ahead(1));
+        let plain = ProbeText::parse(&path, text).unwrap();
         assert_eq!(held(&plain), [(0, CHUNK)]);
         // A range holding chunks parsed ahead takes them and parses the rest: the same probes.
         let start = ahead.probes(0..CHUNK + 1).unwrap();
         assert_eq!(held(&ahead), [(CHUNK, 2 * CHUNK), (2 * CHUNK, count)]);
         assert_eq!(start, plain.probes(0..CHUNK + 1).unwrap());
         assert!(held(&plain).is_empty());
-        for set in [&ahead, &plain] {
+        assert_eq!(ahead_on_one.probes(0..CHUNK + 1).unwrap(), start);
+        for set in [&ahead, &ahead_on_one, &plain] {
             assert_eq!(
                 set.probes(CHUNK..2 * CHUNK + 7).unwrap(),
                 set.probes(CHUNK..2 * CHUNK + 7).unwrap(),
