@@ -61,7 +61,8 @@ pub struct CheckOptions {
     /// Count a change since the baseline as a failure (exit 1).
     #[arg(long)]
     pub fail_on_change: bool,
-    /// Worker threads (default: all cores).
+    /// Threads that answer (default: all cores); with one, the set is read and the results are
+    /// written beside it, on a thread each.
     #[arg(long, value_parser = clap::value_parser!(u32).range(1..))]
     pub jobs: Option<u32>,
     /// List only failures, errors and changes.
@@ -187,7 +188,8 @@ pub fn run_once(
     keep_results: bool,
     style: Style,
 ) -> Result<Outcome, Error> {
-    // Reading and checking the probe set runs on the threads the answers will use (--jobs).
+    // Reading and checking the probe set runs on the threads the answers will use (--jobs), or
+    // beside the one thread on a reading thread of its own (`plumbline_core::beside`).
     let threads = Runner::new(options.jobs.map(|j| j as usize))?.timing(options.timings);
     let opened = threads.install(|| {
         open(
