@@ -5,6 +5,7 @@
 pub mod camera;
 pub mod framebuffer;
 pub mod level_drawing;
+pub mod mark_material;
 pub mod marks;
 pub mod palette;
 pub mod probe_marks;

@@ -11,13 +11,14 @@ use std::ops::Range;
 use std::sync::Arc;
 
 use three_d::{
-    Blend, Camera, ClearState, ColorMaterial, Context, CpuMesh, Cull, DepthTest, Gm, Indices, Mesh,
-    Positions, RenderStates, RenderTarget, ScissorBox, Srgba, Viewport, WriteMask, degrees, vec3,
+    Camera, ClearState, ColorMaterial, Context, CpuMesh, Cull, Gm, Indices, Mesh, Positions,
+    RenderStates, RenderTarget, ScissorBox, Srgba, Viewport, degrees, vec3,
 };
 
 use super::camera::{FIELD_OF_VIEW, OrbitCamera};
-use super::framebuffer::{DepthFormat, Offscreen, block_copy};
+use super::framebuffer::{Offscreen, block_copy};
 use super::level_drawing::{LevelDrawing, PROXY_ABOVE};
+use super::mark_material::{MarkMaterial, MarkPass};
 use super::marks::MarkSurfaces;
 use super::surface::Surface;
 
@@ -137,8 +138,6 @@ pub struct Renderer {
     partly_drawn: Option<PartlyDrawn>,
     /// A target of the view's size no longer in use, kept to draw the next level into.
     spare: Option<Offscreen>,
-    window_depth: Option<DepthFormat>,
-    depth_copy_refused: bool,
 }
 
 impl Renderer {
@@ -151,8 +150,6 @@ impl Renderer {
             cache: None,
             partly_drawn: None,
             spare: None,
-            window_depth: None,
-            depth_copy_refused: false,
         }
     }
 
@@ -185,13 +182,7 @@ impl Renderer {
         pace: Pace,
     ) -> Result<FrameKind, String> {
         self.upload(frame);
-        let depth_format = match target {
-            Target::Window { .. } => *self
-                .window_depth
-                .get_or_insert_with(|| DepthFormat::of_window(&self.context)),
-            Target::Offscreen(buffer) => buffer.depth_format,
-        };
-        let kind = self.draw_level(viewport, depth_format, frame, pace)?;
+        let kind = self.draw_level(viewport, frame, pace)?;
         let Some(cache) = &self.cache else {
             return Ok(kind);
         };
@@ -205,22 +196,12 @@ impl Renderer {
             viewport.width as i32,
             viewport.height as i32,
         ];
-        if self.depth_copy_refused
-            || !block_copy(&self.context, &cache.buffer, framebuffer, rect, true)
-        {
-            if !self.depth_copy_refused {
-                eprintln!(
-                    "plumbline: the driver refused to copy depth; probe marks are drawn without hiding"
-                );
-                self.depth_copy_refused = true;
-            }
-            block_copy(&self.context, &cache.buffer, framebuffer, rect, false);
-        }
+        block_copy(&self.context, &cache.buffer, framebuffer, rect);
         let screen = match framebuffer {
             None => RenderTarget::screen(&self.context, width, height),
             Some(fb) => RenderTarget::from_framebuffer(&self.context, width, height, fb),
         };
-        self.draw_marks(&screen, viewport, frame);
+        self.draw_marks(&screen, viewport, frame, cache.buffer.depth);
         // The framebuffer belongs to its owner, not to this render target.
         let _ = screen.into_framebuffer();
         Ok(kind)
@@ -233,7 +214,7 @@ impl Renderer {
         height: u32,
         frame: &FrameInput,
     ) -> Result<Vec<u8>, String> {
-        let buffer = Offscreen::new(&self.context, width, height, DepthFormat::Depth24)?;
+        let buffer = Offscreen::new(&self.context, width, height)?;
         self.render(
             Target::Offscreen(&buffer),
             Viewport::new_at_origo(width, height),
@@ -256,7 +237,6 @@ impl Renderer {
     fn draw_level(
         &mut self,
         viewport: Viewport,
-        depth_format: DepthFormat,
         frame: &FrameInput,
         pace: Pace,
     ) -> Result<FrameKind, String> {
@@ -271,11 +251,7 @@ impl Renderer {
             size: (viewport.width, viewport.height),
             proxy: frame.moving && has_proxy,
         };
-        let cached = |key: CacheKey| {
-            self.cache
-                .as_ref()
-                .is_some_and(|c| c.key == key && c.buffer.depth_format == depth_format)
-        };
+        let cached = |key: CacheKey| self.cache.as_ref().is_some_and(|c| c.key == key);
         if cached(key) {
             self.partly_drawn = None;
             return Ok(FrameKind::MarksOnly);
@@ -283,7 +259,7 @@ impl Renderer {
         let proxy_shown = cached(key.as_proxy());
         if key.proxy || pace == Pace::AtOnce || parts <= 1 {
             self.partly_drawn = None;
-            let buffer = self.target(key, depth_format)?;
+            let buffer = self.target(key)?;
             self.draw_into(&buffer, viewport, frame, 0..parts, key.proxy);
             self.keep(key, buffer);
             return Ok(if key.proxy {
@@ -294,7 +270,7 @@ impl Renderer {
         }
         // Parts drawn for another view are of no use now; their target may be.
         let partly = match self.partly_drawn.take() {
-            Some(p) if p.key == key && p.buffer.depth_format == depth_format => Some(p),
+            Some(p) if p.key == key => Some(p),
             stale => {
                 if let Some(p) = stale {
                     self.spare.get_or_insert(p.buffer);
@@ -306,13 +282,13 @@ impl Renderer {
             Some(p) => p,
             None => PartlyDrawn {
                 key,
-                buffer: self.target(key, depth_format)?,
+                buffer: self.target(key)?,
                 parts: 0,
             },
         };
         if has_proxy && partly.parts == 0 && !proxy_shown {
             // Nothing of this view on screen yet: its proxy first, the parts from the next frame.
-            let buffer = self.target(key.as_proxy(), depth_format)?;
+            let buffer = self.target(key.as_proxy())?;
             self.draw_into(&buffer, viewport, frame, 0..0, true);
             self.keep(key.as_proxy(), buffer);
             self.partly_drawn = Some(partly);
@@ -330,10 +306,10 @@ impl Renderer {
     }
 
     /// A target of the view's size for drawing `key` into: the spare one, or a new one.
-    fn target(&mut self, key: CacheKey, depth_format: DepthFormat) -> Result<Offscreen, String> {
+    fn target(&mut self, key: CacheKey) -> Result<Offscreen, String> {
         match self.spare.take() {
-            Some(b) if (b.width, b.height) == key.size && b.depth_format == depth_format => Ok(b),
-            _ => Offscreen::new(&self.context, key.size.0, key.size.1, depth_format),
+            Some(b) if (b.width, b.height) == key.size => Ok(b),
+            _ => Offscreen::new(&self.context, key.size.0, key.size.1),
         }
     }
 
@@ -386,23 +362,45 @@ impl Renderer {
         let _ = offscreen.into_framebuffer();
     }
 
-    /// Draws the marks over the copied level: first faintly where the level hides them (while the
-    /// depth buffer holds the level alone, so a mark never shows faintly through another mark),
-    /// then solid, then see-through.
-    fn draw_marks(&self, target: &RenderTarget, viewport: Viewport, frame: &FrameInput) {
+    /// Draws the marks over the copied level, each tested against the level's depth
+    /// (`level_depth`, the cache's) in its shader (see `mark_material`): first the see-through
+    /// marks' pixels are given the far plane's depth, then the solid marks are drawn faintly where
+    /// the level hides them (their pixels taking their depth), then solid, then see-through. So
+    /// the target's depth holds the marks alone wherever a mark is: a mark never shows faintly
+    /// through another mark, and solid marks hide the marks behind them.
+    fn draw_marks(
+        &self,
+        target: &RenderTarget,
+        viewport: Viewport,
+        frame: &FrameInput,
+        level_depth: three_d::context::Texture,
+    ) {
         let Some(marks) = &self.marks else {
             return;
         };
         let camera = three_d_camera(&frame.camera, &frame.level, viewport);
         let scissor = ScissorBox::from(viewport);
+        let material = |pass| MarkMaterial {
+            context: self.context.clone(),
+            pass,
+            level_depth,
+            origin: [viewport.x, viewport.y],
+        };
         let passes = [
-            (&marks.solid, hidden_material()),
-            (&marks.solid, mark_material(false)),
-            (&marks.see_through, mark_material(true)),
+            (&marks.see_through, MarkPass::Reset),
+            (&marks.solid, MarkPass::Hidden),
+            (&marks.solid, MarkPass::Solid),
+            (&marks.see_through, MarkPass::SeeThrough),
         ];
-        for (mesh, material) in passes {
+        for (mesh, pass) in passes {
             if let Some(mesh) = mesh {
-                target.render_partially_with_material(scissor, &material, &camera, [mesh], &[]);
+                target.render_partially_with_material(
+                    scissor,
+                    &material(pass),
+                    &camera,
+                    [mesh],
+                    &[],
+                );
             }
         }
     }
@@ -495,43 +493,5 @@ fn level_material() -> ColorMaterial {
             ..Default::default()
         },
         is_transparent: false,
-    }
-}
-
-fn mark_material(see_through: bool) -> ColorMaterial {
-    ColorMaterial {
-        color: Srgba::WHITE,
-        texture: None,
-        render_states: RenderStates {
-            cull: Cull::None,
-            depth_test: DepthTest::LessOrEqual,
-            write_mask: if see_through {
-                WriteMask::COLOR
-            } else {
-                WriteMask::COLOR_AND_DEPTH
-            },
-            blend: if see_through {
-                Blend::TRANSPARENCY
-            } else {
-                Blend::Disabled
-            },
-        },
-        is_transparent: see_through,
-    }
-}
-
-/// Marks behind the level, drawn faintly where the level hides them: at 135 of 255, as opaque
-/// as two layers at 80 (marks are drawn as their front halves; whole, front and back both showed).
-fn hidden_material() -> ColorMaterial {
-    ColorMaterial {
-        color: Srgba::new(255, 255, 255, 135),
-        texture: None,
-        render_states: RenderStates {
-            cull: Cull::None,
-            depth_test: DepthTest::Greater,
-            write_mask: WriteMask::COLOR,
-            blend: Blend::TRANSPARENCY,
-        },
-        is_transparent: true,
     }
 }

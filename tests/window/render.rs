@@ -14,7 +14,7 @@ use plumbline::pictures::Headless;
 
 use glam::{DQuat, DVec2, DVec3};
 use plumbline::view::camera::OrbitCamera;
-use plumbline::view::framebuffer::{DepthFormat, Offscreen};
+use plumbline::view::framebuffer::Offscreen;
 use plumbline::view::level_drawing::LevelDrawing;
 use plumbline::view::marks::{MarkSurfaces, Sizing, mark_surfaces};
 use plumbline::view::probe_marks::{Emphasis, probe_marks};
@@ -250,6 +250,142 @@ fn a_rays_hit_marker_lands_on_the_projected_hit_point() {
     );
 }
 
+/// Marks against the level and against one another, in flat colours facing the camera: a solid
+/// mark in front of the box is drawn whole; one behind the box shows faintly through it (neither
+/// the box's own colour nor the mark's); where a solid mark is in front of another solid mark and
+/// of a see-through one, only the front mark shows (no faint copy of the hidden marks). The
+/// depth rule is the one OpenGL's depth test applies (Segal & Akeley 2016, §14.9.4: a fragment
+/// passes `LEQUAL` when its depth is at most the stored one); the faint drawing of hidden marks is
+/// the window's own choice.
+#[test]
+fn marks_are_hidden_by_the_level_and_by_nearer_marks() {
+    let mut gl = headless();
+    let level = unit_box_level();
+    let mut drawing = LevelDrawing::new(&level);
+    drawing.grid = Surface::default();
+    let centre = DVec3::new(0.3, 0.2, -0.1);
+    let camera = OrbitCamera {
+        target: centre,
+        distance: 7.0,
+        yaw: 0.3,
+        pitch: 0.2,
+        up: DVec3::Y,
+    };
+    let ahead = (centre - camera.eye()).normalize();
+    let right = ahead.cross(DVec3::Y).normalize();
+    let up = right.cross(ahead);
+    let origin = drawing.origin;
+    let square = |surface: &mut Surface, at: DVec3, half: f64, colour: [u8; 4]| {
+        let corner = |a: f64, b: f64| at + right * (a * half) + up * (b * half);
+        let [p, q, r, t] = [
+            corner(-1.0, -1.0),
+            corner(1.0, -1.0),
+            corner(1.0, 1.0),
+            corner(-1.0, 1.0),
+        ];
+        surface.push([p, q, r], origin, colour);
+        surface.push([p, r, t], origin, colour);
+    };
+    let in_front = centre - ahead * 2.0 - right * 0.3;
+    let behind = centre + ahead * 3.0 + right * 0.3;
+    let above = centre + up * 2.2;
+    let (near, far, farther) = (
+        above - ahead * 0.5,
+        above + ahead * 0.5,
+        above + ahead * 1.0,
+    );
+    let mut marks = MarkSurfaces::default();
+    square(&mut marks.solid, in_front, 0.15, [255, 0, 0, 255]);
+    square(&mut marks.solid, behind, 0.15, [0, 255, 0, 255]);
+    // Drawn after the nearer mark, so only the depth test can hide it.
+    square(&mut marks.solid, near, 0.2, [0, 0, 255, 255]);
+    square(&mut marks.solid, far, 0.3, [255, 255, 0, 255]);
+    square(&mut marks.see_through, farther, 0.4, [255, 255, 255, 128]);
+
+    let size = DVec2::new(WIDTH as f64, HEIGHT as f64);
+    let at = |point: DVec3| {
+        let p = camera.project(point, size, 10.0).expect("in view");
+        (p.x as u32, p.y as u32)
+    };
+    // Frames drawn into one target, as a window draws them: in the frame before the last, nearer
+    // solid marks cover the spot where the see-through mark lies alone over the background and
+    // the nearest solid mark of the last frame; their depth must not hide what is there now.
+    let target = Offscreen::new(gl.renderer.context(), WIDTH, HEIGHT).expect("a target");
+    let alone = farther + right * 0.35 - up * 0.35;
+    let mut earlier = MarkSurfaces::default();
+    let eye = camera.eye();
+    for spot in [alone, near] {
+        let nearer = eye + (spot - eye) * 0.7;
+        square(&mut earlier.solid, nearer, 0.1, [255, 0, 255, 255]);
+    }
+    let mut render = |marks: MarkSurfaces, marks_revision: u64| {
+        let input = FrameInput {
+            marks_revision,
+            ..frame(drawing.clone(), camera, marks)
+        };
+        gl.renderer
+            .render(
+                Target::Offscreen(&target),
+                Viewport::new_at_origo(WIDTH, HEIGHT),
+                &input,
+                Pace::AtOnce,
+            )
+            .expect("a frame");
+        let row = WIDTH as usize * 4;
+        let bottom_up = target.read_colour();
+        bottom_up
+            .chunks_exact(row)
+            .rev()
+            .flatten()
+            .copied()
+            .collect::<Vec<u8>>()
+    };
+    let bare = render(MarkSurfaces::default(), 1);
+    let before = render(earlier, 2);
+    let image = render(marks, 3);
+    let look = |image: &[u8], point: DVec3| {
+        let (x, y) = at(point);
+        pixel(image, x, y)
+    };
+    let close = |a: [u8; 3], b: [u8; 3]| a.iter().zip(b).all(|(a, b)| a.abs_diff(b) <= 2);
+
+    assert!(
+        close(look(&image, in_front), [255, 0, 0]),
+        "{:?}",
+        look(&image, in_front)
+    );
+    let (box_colour, faint) = (look(&bare, behind), look(&image, behind));
+    assert!(
+        !close(box_colour, BACKGROUND),
+        "the mark behind lies over the box"
+    );
+    assert!(
+        faint[1] > box_colour[1] + 20 && !close(faint, [0, 255, 0]),
+        "hidden mark shown faintly: {faint:?} over the box's {box_colour:?}"
+    );
+    assert!(
+        close(look(&image, near), [0, 0, 255]),
+        "{:?}",
+        look(&image, near)
+    );
+    assert!(
+        close(look(&bare, near), BACKGROUND),
+        "the marks above stand clear of the box"
+    );
+    // Where the see-through mark alone covers the background, it is drawn over it: the nearer
+    // solid mark of the frame before hides nothing now.
+    assert!(
+        close(look(&before, alone), [255, 0, 255]),
+        "the earlier mark was there: {:?}",
+        look(&before, alone)
+    );
+    let (under, over) = (look(&bare, alone), look(&image, alone));
+    assert!(
+        close(under, BACKGROUND) && !close(over, BACKGROUND) && !close(over, [255; 3]),
+        "see-through mark over the background: {over:?}"
+    );
+}
+
 /// Three rays side by side over a floor, rendered with nothing selected and with the middle one
 /// selected. Measured across each ray at its middle: how many pixels it changes (its width on
 /// screen, halo included) and how vivid its most vivid pixel is (largest minus smallest channel).
@@ -408,8 +544,7 @@ fn a_big_level_at_rest_is_drawn_a_part_per_frame_and_ends_as_if_drawn_whole() {
         .expect("the proxy");
     assert_ne!(whole, proxy, "the proxy is not the full level");
 
-    let target = Offscreen::new(gl.renderer.context(), WIDTH, HEIGHT, DepthFormat::Depth24)
-        .expect("an offscreen target");
+    let target = Offscreen::new(gl.renderer.context(), WIDTH, HEIGHT).expect("an offscreen target");
     // A new revision: the level is uploaded afresh, with nothing of it drawn yet.
     let input = FrameInput {
         level_revision: 2,
