@@ -62,6 +62,26 @@ fn frame(drawing: LevelDrawing, camera: OrbitCamera, marks: MarkSurfaces) -> Fra
     }
 }
 
+/// One window frame of `input` drawn into the whole of `target`, at `pace`.
+fn draw_into(gl: &mut Headless, target: &Offscreen, input: &FrameInput, pace: Pace) -> FrameKind {
+    let viewport = Viewport::new_at_origo(WIDTH, HEIGHT);
+    let frame = gl
+        .renderer
+        .render(Target::Offscreen(target), viewport, input, pace);
+    frame.expect("a frame")
+}
+
+/// An offscreen target's pixels (rows from the bottom up) with their rows from the top down.
+fn top_down(bottom_up: Vec<u8>) -> Vec<u8> {
+    let row = WIDTH as usize * 4;
+    bottom_up
+        .chunks_exact(row)
+        .rev()
+        .flatten()
+        .copied()
+        .collect()
+}
+
 fn pixel(image: &[u8], x: u32, y: u32) -> [u8; 3] {
     let i = (y * WIDTH + x) as usize * 4;
     [image[i], image[i + 1], image[i + 2]]
@@ -254,9 +274,9 @@ fn a_rays_hit_marker_lands_on_the_projected_hit_point() {
 /// mark in front of the box is drawn whole; one behind the box shows faintly through it (neither
 /// the box's own colour nor the mark's); where a solid mark is in front of another solid mark and
 /// of a see-through one, only the front mark shows (no faint copy of the hidden marks). The
-/// depth rule is the one OpenGL's depth test applies (Segal & Akeley 2016, §14.9.4: a fragment
-/// passes `LEQUAL` when its depth is at most the stored one); the faint drawing of hidden marks is
-/// the window's own choice.
+/// depth rule is the one OpenGL's depth buffer test applies (Segal & Akeley 2016, §17.3, per-fragment
+/// operations — the section number from memory: a fragment passes `LEQUAL` when its depth is at
+/// most the stored one); the faint drawing of hidden marks is the window's own choice.
 #[test]
 fn marks_are_hidden_by_the_level_and_by_nearer_marks() {
     let mut gl = headless();
@@ -323,22 +343,8 @@ fn marks_are_hidden_by_the_level_and_by_nearer_marks() {
             marks_revision,
             ..frame(drawing.clone(), camera, marks)
         };
-        gl.renderer
-            .render(
-                Target::Offscreen(&target),
-                Viewport::new_at_origo(WIDTH, HEIGHT),
-                &input,
-                Pace::AtOnce,
-            )
-            .expect("a frame");
-        let row = WIDTH as usize * 4;
-        let bottom_up = target.read_colour();
-        bottom_up
-            .chunks_exact(row)
-            .rev()
-            .flatten()
-            .copied()
-            .collect::<Vec<u8>>()
+        draw_into(&mut gl, &target, &input, Pace::AtOnce);
+        top_down(target.read_colour())
     };
     let bare = render(MarkSurfaces::default(), 1);
     let before = render(earlier, 2);
@@ -348,11 +354,16 @@ fn marks_are_hidden_by_the_level_and_by_nearer_marks() {
         pixel(image, x, y)
     };
     let close = |a: [u8; 3], b: [u8; 3]| a.iter().zip(b).all(|(a, b)| a.abs_diff(b) <= 2);
+    let shows = |image: &[u8], point: DVec3, colour: [u8; 3], what: &str| {
+        let found = look(image, point);
+        assert!(close(found, colour), "{what}: {found:?}, not {colour:?}");
+    };
 
-    assert!(
-        close(look(&image, in_front), [255, 0, 0]),
-        "{:?}",
-        look(&image, in_front)
+    shows(
+        &image,
+        in_front,
+        [255, 0, 0],
+        "the mark in front of the box",
     );
     let (box_colour, faint) = (look(&bare, behind), look(&image, behind));
     assert!(
@@ -363,22 +374,16 @@ fn marks_are_hidden_by_the_level_and_by_nearer_marks() {
         faint[1] > box_colour[1] + 20 && !close(faint, [0, 255, 0]),
         "hidden mark shown faintly: {faint:?} over the box's {box_colour:?}"
     );
-    assert!(
-        close(look(&image, near), [0, 0, 255]),
-        "{:?}",
-        look(&image, near)
-    );
-    assert!(
-        close(look(&bare, near), BACKGROUND),
-        "the marks above stand clear of the box"
+    shows(&image, near, [0, 0, 255], "the nearest of the marks above");
+    shows(
+        &bare,
+        near,
+        BACKGROUND,
+        "the marks above stand clear of the box",
     );
     // Where the see-through mark alone covers the background, it is drawn over it: the nearer
     // solid mark of the frame before hides nothing now.
-    assert!(
-        close(look(&before, alone), [255, 0, 255]),
-        "the earlier mark was there: {:?}",
-        look(&before, alone)
-    );
+    shows(&before, alone, [255, 0, 255], "the earlier frame's mark");
     let (under, over) = (look(&bare, alone), look(&image, alone));
     assert!(
         close(under, BACKGROUND) && !close(over, BACKGROUND) && !close(over, [255; 3]),
@@ -550,26 +555,9 @@ fn a_big_level_at_rest_is_drawn_a_part_per_frame_and_ends_as_if_drawn_whole() {
         level_revision: 2,
         ..still
     };
-    let top_down = |bottom_up: Vec<u8>| -> Vec<u8> {
-        let row = WIDTH as usize * 4;
-        bottom_up
-            .chunks_exact(row)
-            .rev()
-            .flatten()
-            .copied()
-            .collect()
-    };
     // One window frame into the target: how it was drawn, and whether parts are pending.
     let mut next_frame = || {
-        let kind = gl
-            .renderer
-            .render(
-                Target::Offscreen(&target),
-                Viewport::new_at_origo(WIDTH, HEIGHT),
-                &input,
-                Pace::PartPerFrame,
-            )
-            .expect("a frame");
+        let kind = draw_into(&mut gl, &target, &input, Pace::PartPerFrame);
         (kind, gl.renderer.drawing_in_parts())
     };
     let mut kinds = Vec::new();
