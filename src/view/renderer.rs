@@ -1,11 +1,12 @@
 //! The GPU side of the viewport (three-d on whatever OpenGL there is, Mesa's CPU rasteriser included).
 //!
 //! The level is drawn into an offscreen colour + depth target only when the level, the camera or the
-//! viewport size changed; every other frame copies that target and draws the overlay marks over it with
-//! depth testing, so selecting or editing a probe never redraws the level. While the camera moves, big
-//! levels are drawn from their proxy; once it rests, a window draws the full level a part per frame
-//! into a second target while the proxy's image stays on screen, so no frame waits for the whole
-//! level and input stays live. Marks hidden behind the level show through faintly.
+//! viewport size changed; every other frame copies that target's colour and draws the overlay marks
+//! over it, each tested against the target's depth in their shader (`mark_material`), so selecting
+//! or editing a probe never redraws the level. While the camera moves, big levels are drawn from
+//! their proxy; once it rests, a window draws the full level a part per frame into a second target
+//! while the proxy's image stays on screen, so no frame waits for the whole level and input stays
+//! live. Marks hidden behind the level show through faintly.
 
 use std::ops::Range;
 use std::sync::Arc;
