@@ -404,9 +404,9 @@ impl Opened {
     /// Answers every probe as [`Opened::answer`] does, on `runner`'s threads (the check's one pool,
     /// which also parsed the probe set), handing the answers to `hand_out` in probe order as soon
     /// as their chunk is done, so that nothing of the run is held beyond a few chunks. The pool
-    /// answers up to [`AHEAD`] chunks ahead while this thread hands out the answered ones; with two
-    /// threads or more the pool also lays them out, with one this thread does (and frees what
-    /// was handed out), so that the one answering thread only answers. With `only` (ascending positions in the whole set, as
+    /// answers up to [`AHEAD`] chunks ahead while this thread hands out the answered ones; the
+    /// pool also lays them out, unless it [answers alone](Runner::answers_alone) (one thread):
+    /// then this thread does. With `only` (ascending positions in the whole set, as
     /// [`Opened::shard_positions`] gives), answers those probes alone. Returns the counts by
     /// verdict.
     pub fn answer_each(
@@ -417,8 +417,7 @@ impl Opened {
         hand_out: HandOut,
     ) -> Result<Summary, Error> {
         let HandOut { each, mut laid_out } = hand_out;
-        // A pool of one thread only answers: this thread lays out (and frees) beside it.
-        let lay_out_here = runner.threads() == 1;
+        let lay_out_here = runner.answers_alone();
         let lay_out = laid_out.is_some() && !lay_out_here;
         let mut summary = Summary::default();
         let mut hand_out = |answered: Answered| -> Result<(), Error> {

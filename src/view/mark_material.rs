@@ -42,6 +42,10 @@ pub struct MarkMaterial {
     pub origin: [i32; 2],
 }
 
+/// The first of the marks' shader ids, one a shader: three-d keeps 0x0000–0x4FFF for materials
+/// of its users and caches compiled shaders by id.
+const FIRST_SHADER_ID: u16 = 0x4A00;
+
 /// The texture unit the level's depth is bound to (the material has no other texture).
 const DEPTH_UNIT: u32 = 0;
 
@@ -122,7 +126,7 @@ void main()
 
     fn id(&self) -> EffectMaterialId {
         EffectMaterialId(
-            0x4A00
+            FIRST_SHADER_ID
                 + match self.pass {
                     MarkPass::Reset => 0,
                     MarkPass::Hidden => 1,

@@ -51,6 +51,15 @@ fn unit_box_level() -> Level {
     }
 }
 
+/// The level's drawing without its ground grid, so that only the level's own pixels differ from
+/// the background.
+fn without_grid(level: &Level) -> LevelDrawing {
+    LevelDrawing {
+        grid: Surface::default(),
+        ..LevelDrawing::new(level)
+    }
+}
+
 fn frame(drawing: LevelDrawing, camera: OrbitCamera, marks: MarkSurfaces) -> FrameInput {
     FrameInput {
         camera,
@@ -130,8 +139,7 @@ fn hull(mut points: Vec<DVec2>) -> Vec<DVec2> {
 fn a_box_covers_exactly_the_pixels_of_its_projected_silhouette() {
     let mut gl = headless();
     let level = unit_box_level();
-    let mut drawing = LevelDrawing::new(&level);
-    drawing.grid = Surface::default();
+    let drawing = without_grid(&level);
     let camera = OrbitCamera {
         target: DVec3::new(0.2, 0.1, 0.0),
         distance: 5.0,
@@ -223,8 +231,7 @@ fn a_rays_hit_marker_lands_on_the_projected_hit_point() {
     };
     let hit_point = DVec3::from(hits[0].point);
 
-    let mut drawing = LevelDrawing::new(&level);
-    drawing.grid = Surface::default();
+    let drawing = without_grid(&level);
     // Looking at the face the ray enters through, from the ray's side.
     let camera = OrbitCamera {
         // Off-centre, so a wrong projection would move the marker.
@@ -281,8 +288,7 @@ fn a_rays_hit_marker_lands_on_the_projected_hit_point() {
 fn marks_are_hidden_by_the_level_and_by_nearer_marks() {
     let mut gl = headless();
     let level = unit_box_level();
-    let mut drawing = LevelDrawing::new(&level);
-    drawing.grid = Surface::default();
+    let drawing = without_grid(&level);
     let centre = DVec3::new(0.3, 0.2, -0.1);
     let camera = OrbitCamera {
         target: centre,
@@ -452,8 +458,7 @@ fn the_selected_ray_is_the_widest_and_most_vivid_line_and_the_others_step_back()
             selected_all: &selected_all,
             ..SceneMarks::of(&level, &probes, &results, shown)
         });
-        let mut drawing = LevelDrawing::new(&level);
-        drawing.grid = Surface::default();
+        let drawing = without_grid(&level);
         let sizing = Sizing {
             camera,
             viewport_height: HEIGHT as f64,

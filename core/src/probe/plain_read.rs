@@ -68,6 +68,15 @@ impl<'a> Scanner<'a> {
         Some(&self.text[start..start + length])
     }
 
+    /// The value of `words` a plain string names; any other string is not plain.
+    fn one_of<T: Copy>(&mut self, words: &[(&str, T)]) -> Option<T> {
+        let word = self.string()?;
+        words
+            .iter()
+            .find(|(w, _)| *w == word)
+            .map(|&(_, value)| value)
+    }
+
     /// A number as RFC 8259 §6 writes it, when it is a finite f64.
     fn number(&mut self) -> Option<f64> {
         self.skip_space();
@@ -530,11 +539,17 @@ impl<'a> Plain<'a> for String {
 
 impl<'a> Plain<'a> for HitsMode {
     fn read(s: &mut Scanner<'a>) -> Option<HitsMode> {
-        match s.string()? {
-            "first" => Some(HitsMode::First),
-            "all" => Some(HitsMode::All),
-            _ => None,
-        }
+        s.one_of(&[("first", HitsMode::First), ("all", HitsMode::All)])
+    }
+}
+
+/// A one-word expectation, as the general reader reads it; any other word is not plain.
+impl<'a> Plain<'a> for ExpectWord {
+    fn read(s: &mut Scanner<'a>) -> Option<ExpectWord> {
+        s.one_of(&[
+            ("clear", ExpectWord::Clear),
+            ("blocked", ExpectWord::Blocked),
+        ])
     }
 }
 
@@ -710,7 +725,7 @@ pub(super) fn plain_ray(text: &str) -> Option<Probe> {
         "from" => put(&mut from, s.read::<[f64; 3]>()?),
         "to" => put(&mut to, s.read::<[f64; 3]>()?),
         "hits" => put(&mut hits, s.read::<HitsMode>()?),
-        "expect" => put(&mut expect, expect_word(s.string()?)?),
+        "expect" => put(&mut expect, s.read::<ExpectWord>()?),
         _ => None,
     })?;
     if !s.at_end() {
@@ -731,15 +746,6 @@ pub(super) fn plain_ray(text: &str) -> Option<Probe> {
         expect: expect.map(Expect::Word),
         from_rule: None,
     })
-}
-
-/// The expectation a word names, as the general reader reads it; `None` for any other word.
-fn expect_word(word: &str) -> Option<ExpectWord> {
-    match word {
-        "clear" => Some(ExpectWord::Clear),
-        "blocked" => Some(ExpectWord::Blocked),
-        _ => None,
-    }
 }
 
 /// An array of objects, read by serde from `text`.
