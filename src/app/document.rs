@@ -13,7 +13,9 @@ use plumbline_core::check::{
 use plumbline_core::error::{Diagnostic, Error};
 use plumbline_core::input::PathPolicy;
 use plumbline_core::level::{Geometry, Level, LintSettings};
-use plumbline_core::probe::{Probe, ProbeKind, ProbeSet, Rule, parse_probe_set, probe_set_to_json};
+use plumbline_core::probe::{
+    Probe, ProbeId, ProbeKind, ProbeSet, Rule, parse_probe_set, probe_set_to_json,
+};
 use plumbline_core::query::World;
 use plumbline_core::session::{Edited, OpenOptions, Opened, open};
 
@@ -44,9 +46,9 @@ pub struct Document {
     edits: u64,
     saved_edits: u64,
     /// Probes (by id) whose answers are owed: edited kinds that answer in the background.
-    owed: Vec<Arc<str>>,
+    owed: Vec<ProbeId>,
     /// Probes (by id) whose background answer the user cancelled.
-    cancelled: Vec<Arc<str>>,
+    cancelled: Vec<ProbeId>,
 }
 
 /// True for the kinds whose answers take long enough (a reach map: seconds; a settle: a physics run)

@@ -5,7 +5,7 @@
 
 use std::time::Duration;
 
-use plumbline_core::probe::{Probe, ProbeKind};
+use plumbline_core::probe::{Probe, ProbeId, ProbeKind};
 
 use super::terminal::{Style, Tone, write_stdout};
 
@@ -18,7 +18,7 @@ pub struct Timings {
     /// Probes and time, per kind (in [`ProbeKind::ALL`] order).
     by_kind: [(usize, Duration); ProbeKind::ALL.len()],
     /// The slowest probes so far, slowest first (ties: earlier in the set first).
-    slowest: Vec<(Duration, std::sync::Arc<str>, ProbeKind)>,
+    slowest: Vec<(Duration, ProbeId, ProbeKind)>,
 }
 
 impl Timings {

@@ -11,7 +11,7 @@ pub use super::settle::SettleRecord;
 pub use super::volumes::VolumeRecord;
 pub use super::walk::WalkRecord;
 use crate::json_text::Json;
-use crate::probe::ProbeKind;
+use crate::probe::{ProbeId, ProbeKind};
 
 /// How a probe's expectation fared.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
@@ -348,7 +348,7 @@ impl Hits {
 #[derive(Debug, Clone, PartialEq)]
 pub struct ProbeResult {
     /// The probe's id.
-    pub id: Arc<str>,
+    pub id: ProbeId,
     /// The probe's kind.
     pub kind: ProbeKind,
     /// How the expectation fared.

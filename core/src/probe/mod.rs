@@ -14,8 +14,8 @@ mod write;
 
 pub use model::{
     Conditions, EYE_HEIGHT, Expect, ExpectWord, HitsMode, JUMP_TIME, Launch, MAX_SETTLE_TIME,
-    MAX_STEP, MAX_WALKABLE_SLOPE, Probe, ProbeKind, ProbeQuery, ProbeSet, REST_SEARCH, Range,
-    Region, SETTLE_DENSITY, SETTLE_FRICTION, SETTLE_TIME, STANDARD_GRAVITY, Spot, Spots,
+    MAX_STEP, MAX_WALKABLE_SLOPE, Probe, ProbeId, ProbeKind, ProbeQuery, ProbeSet, REST_SEARCH,
+    Range, Region, SETTLE_DENSITY, SETTLE_FRICTION, SETTLE_TIME, STANDARD_GRAVITY, Spot, Spots,
     TARGET_REACH, Turns,
 };
 pub use rules::{Anchor, FromRule, Landmark, REST_TOLERANCE, Rule, Template, parse_rules};

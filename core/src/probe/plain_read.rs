@@ -590,7 +590,7 @@ fn put<T>(slot: &mut Option<T>, value: T) -> Option<()> {
 #[derive(Debug, Default, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub(super) struct ProbeFields<'a> {
-    pub id: std::sync::Arc<str>,
+    pub id: super::ProbeId,
     pub label: Option<String>,
     /// Borrowed from the text when it holds no escapes (nearly always): no allocation a probe.
     #[serde(borrow)]
