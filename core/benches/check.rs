@@ -119,7 +119,7 @@ fn bench(c: &mut Criterion) {
             BenchmarkId::new("check with results file", format!("{jobs} thread(s)")),
             |b| {
                 b.iter(|| {
-                    let results = run_probes(&world, &set.probes, Some(jobs), &|_| {}).unwrap();
+                    let results = run_probes(&world, &set.probes, Some(jobs), None).unwrap();
                     let file = ResultsFile::new(
                         "bench.probes.json".into(),
                         "bench.level.json".into(),
@@ -148,7 +148,7 @@ fn bench_merge(
     digest: &str,
     dir: &std::path::Path,
 ) {
-    let results = run_probes(world, probes, None, &|_| {}).unwrap();
+    let results = run_probes(world, probes, None, None).unwrap();
     let costs: Vec<u64> = probes.iter().map(|p| expected_cost(p, world)).collect();
     let shard_of = assign(&costs, 4);
     let head = ResultsHead {

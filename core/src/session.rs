@@ -7,7 +7,7 @@
 //! use plumbline_core::session::{OpenOptions, open};
 //!
 //! let opened = open(Path::new("scenes/saltfen-quay.probes.json"), &OpenOptions::default())?;
-//! let results = opened.answer(None, &|_| {})?;
+//! let results = opened.answer(None, None)?;
 //! println!("{} probes, {} warnings", results.len(), opened.level.diagnostics.len());
 //! # Ok::<(), plumbline_core::error::Error>(())
 //! ```
@@ -20,7 +20,7 @@ use std::sync::atomic::{AtomicBool, Ordering};
 
 use crate::beside::beside;
 use crate::check::{
-    ProbeResult, Runner, Shard, Summary, assign, entries_text, expand_rules, expected_cost,
+    ProbeResult, Runner, Shard, Summary, Watcher, assign, entries_text, expand_rules, expected_cost,
 };
 use crate::error::{Diagnostic, Error, InputError, Warning};
 use crate::input::{PathPolicy, resolve_named};
@@ -386,11 +386,11 @@ fn open_level(path: &Path, options: &OpenOptions) -> Result<OpenLevel, Error> {
 
 impl Opened {
     /// Answers every probe on `jobs` threads (all cores when `None`), in probe order; `progress` is
-    /// told how many are done, from any thread. The answers do not depend on the thread count.
+    /// told how many are done. The answers do not depend on the thread count.
     pub fn answer(
         &self,
         jobs: Option<usize>,
-        progress: &(dyn Fn(usize) + Sync),
+        progress: Watcher,
     ) -> Result<Vec<ProbeResult>, Error> {
         let mut results = Vec::with_capacity(self.probes.len());
         let each = &mut |_: &Probe, result, _| {
@@ -413,7 +413,7 @@ impl Opened {
         &self,
         runner: &Runner,
         only: Option<&[usize]>,
-        progress: &(dyn Fn(usize) + Sync),
+        progress: Watcher,
         hand_out: HandOut,
     ) -> Result<Summary, Error> {
         let HandOut { each, mut laid_out } = hand_out;
@@ -466,7 +466,7 @@ impl Opened {
         &'s self,
         runner: &Runner,
         only: Option<&[usize]>,
-        progress: &(dyn Fn(usize) + Sync),
+        progress: Watcher,
         lay_out: bool,
         deliver: &mut dyn FnMut(Answered<'s>) -> bool,
     ) -> Result<(), Error> {

@@ -434,7 +434,7 @@ impl Answered {
             ..OpenOptions::default()
         };
         let opened = open(path, &options)?;
-        let results = opened.answer(None, &|_| {})?;
+        let results = opened.answer(None, None)?;
         // The pointer picks with rays: build their index here, off the frame that first hovers.
         opened.level.world.prepare_rays();
         let written = opened.probes.to_set()?;

@@ -327,7 +327,7 @@ pub fn run_once(
     let summary = opened.answer_each(
         &threads,
         part.as_ref().map(|p| p.positions.as_slice()),
-        &|done| progress.update(done),
+        progress.watcher().as_ref().map(|w| w as _),
         HandOut { each, laid_out },
     )?;
     lines.finish();

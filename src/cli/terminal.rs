@@ -91,8 +91,10 @@ impl<'a> Lines<'a> {
     }
 
     fn flush(&mut self) {
-        let text = std::mem::take(&mut self.pending);
-        self.progress.bar.suspend(|| write_stdout(&text));
+        let text = &self.pending;
+        self.progress.bar.suspend(|| write_stdout(text));
+        // Kept, with its room, for the next lines.
+        self.pending.clear();
     }
 
     /// Writes what is left.
@@ -130,12 +132,14 @@ impl Progress {
         }
     }
 
-    /// Records that `done` probes are finished. Off a terminal the bar never shows, so nothing is
-    /// recorded (each record reads the clock, once a probe).
-    pub fn update(&self, done: usize) {
-        if !self.on_terminal {
-            return;
-        }
+    /// What answering tells how many probes are finished: nothing off a terminal, where the bar
+    /// never shows (so the answers are not even counted).
+    pub fn watcher(&self) -> Option<impl Fn(usize) + Sync + '_> {
+        self.on_terminal.then_some(|done| self.update(done))
+    }
+
+    /// Records that `done` probes are finished.
+    fn update(&self, done: usize) {
         if self.bar.is_hidden() && self.started.elapsed() > Duration::from_secs(1) {
             self.bar.set_draw_target(ProgressDrawTarget::stderr());
         }

@@ -40,7 +40,7 @@ pub use results_file::{
     parse_results, probes_digest,
 };
 pub use rules::expand_rules;
-pub use run::{Runner, run_probes};
+pub use run::{Runner, Watcher, run_probes};
 pub use settle::{SettleRecord, settle_ends};
 pub use shard::{MAX_SHARDS, Shard, assign, expected_cost};
 pub use verdict::metres;

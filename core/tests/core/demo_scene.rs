@@ -83,7 +83,13 @@ fn the_probe_set_gives_the_reviewed_baseline() {
     let world = World::new(&level).unwrap();
     let mut probes = set.probes.clone();
     probes.extend(expand_rules(&set.rules, &world));
-    let results = run_probes(&world, &probes, Some(2), &|_| {}).unwrap();
+    let told = std::sync::Mutex::new(Vec::new());
+    let watcher = |done| told.lock().unwrap().push(done);
+    let results = run_probes(&world, &probes, Some(2), Some(&watcher)).unwrap();
+    // The watcher is told of each probe as it is done, from either thread.
+    let mut told = told.into_inner().unwrap();
+    told.sort_unstable();
+    assert_eq!(told, (1..=probes.len()).collect::<Vec<_>>());
     let failing: Vec<(&str, &str)> = results
         .iter()
         .filter(|r| r.verdict == Verdict::Fail)

@@ -116,7 +116,7 @@ fn a_set_of_many_chunks_is_answered_in_order_for_any_thread_count() {
             .answer_each(
                 &Runner::new(Some(jobs)).unwrap(),
                 only,
-                &|_| {},
+                None,
                 HandOut {
                     each: &mut |probe, result, _| {
                         assert_eq!(probe.id, result.id);
@@ -161,7 +161,7 @@ fn a_set_of_many_chunks_is_answered_in_order_for_any_thread_count() {
             .answer_each(
                 &runner,
                 Some(&first),
-                &|_| {},
+                None,
                 HandOut::each(&mut |_, _, t| {
                     took.push(t);
                     Ok(())
@@ -183,7 +183,7 @@ fn a_set_of_many_chunks_is_answered_in_order_for_any_thread_count() {
         let failed = opened.answer_each(
             &Runner::new(Some(jobs)).unwrap(),
             None,
-            &|_| {},
+            None,
             HandOut::each(&mut |_, _, _| {
                 handed += 1;
                 if handed < 100 {

@@ -112,7 +112,7 @@ fn a_shards_partial_results_validate() {
         .answer_each(
             &Runner::new(Some(1)).unwrap(),
             Some(&part.positions),
-            &|_| {},
+            None,
             HandOut {
                 each: &mut |_, _, _| Ok(()),
                 laid_out: Some(&mut |text, count| {
